@@ -1,0 +1,31 @@
+import { writeFile } from 'node:fs/promises';
+import { hasErrors } from '../../problems/problem.js';
+import { validateProtocol } from '../../io/validate.js';
+import { isPinned } from '../../protocol/types.js';
+import { assignmentCsv } from '../../split/csv.js';
+import { foldCounts, sizeSpread } from '../../split/summary.js';
+import type { CommandIo, ExitCode } from '../io.js';
+import { reportProblems } from '../report-problems.js';
+import { textTable } from '../text-table.js';
+
+export async function foldsCommand(args: { protocol: string; out?: string }, io: CommandIo): Promise<ExitCode> {
+  const report = await validateProtocol(args.protocol);
+  reportProblems(io, report.problems, 'text');
+  if (report.unreadable) return 2;
+  if (hasErrors(report.problems) || !report.assignment || !report.table || !report.protocol) return 1;
+  const a = report.assignment;
+  const t = report.table;
+  const csv = assignmentCsv(a);
+  if (args.out) await writeFile(args.out, csv);
+  else io.out(csv);
+  const counts = foldCounts(a, t.y, t.classes.length);
+  const header = ['repeat', 'fold', 'rows', ...t.classes.map((c) => `n[${c}]`)];
+  const holdout = !isPinned(report.protocol.split) && report.protocol.split.rule === 'holdout';
+  const rows = counts.map((c) => [String(c.repeat), holdout ? (c.fold === 1 ? 'test' : 'train') : String(c.fold), String(c.rows), ...c.perClass.map(String)]);
+  io.err(`${a.version}: ${a.ids.length} ids, ${a.repeats} repeat${a.repeats === 1 ? '' : 's'}, ${a.folds} folds\n`);
+  if (a.folds <= 50) io.err(textTable(header, rows));
+  const spread = sizeSpread(counts);
+  if (!holdout) io.err(`fold sizes: ${spread.min} to ${spread.max} rows\n`);
+  if (args.out) io.err(`wrote ${args.out}\n`);
+  return 0;
+}

@@ -1,0 +1,56 @@
+/** Command-line surface: names, options and help text. Each action calls a typed command function. */
+import { Command, Option } from 'commander';
+import { packageVersion } from '../util/package-root.js';
+import { foldsCommand } from './commands/folds.js';
+import { hashCommand } from './commands/hash.js';
+import { initCommand } from './commands/init.js';
+import { validateCommand } from './commands/validate.js';
+import type { CommandIo, ExitCode } from './io.js';
+
+export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Command {
+  const program = new Command('foldseal')
+    .description('Sealed, re-runnable cross-validation: hashed data, spec-defined folds, in-fold fitting, signed results.')
+    .version(packageVersion(), '-V, --version', 'print the foldseal version')
+    .helpOption('-h, --help', 'show help')
+    .showSuggestionAfterError(true)
+    .configureOutput({ writeOut: (s) => io.out(s), writeErr: (s) => io.err(s) });
+
+  const formatOption = () => new Option('--format <format>', 'output format').choices(['text', 'json']).default('text');
+
+  program
+    .command('validate')
+    .description('check protocols against the schema and their data; report every problem at file:line:col')
+    .argument('<protocol...>', 'protocol YAML files')
+    .addOption(formatOption())
+    .addHelpText('after', '\nExamples:\n  foldseal validate protocols/demo.yaml\n  foldseal validate protocols/*.yaml --format json\n\nExit: 0 valid, 1 invalid, 2 usage error or unreadable file.')
+    .action(async (protocols: string[], o: { format: 'text' | 'json' }) => done(await validateCommand({ protocols, format: o.format }, io)));
+
+  program
+    .command('hash')
+    .description('print the SHA-256 of files, in the same form as sha256sum')
+    .argument('<file...>', 'files to hash')
+    .addHelpText('after', '\nExample:\n  foldseal hash protocols/data/trial.csv')
+    .action(async (files: string[]) => done(await hashCommand({ files }, io)));
+
+  program
+    .command('init')
+    .description('write a protocol for a data file, hash filled in, that validates as is')
+    .argument('<data>', 'CSV or TSV data file')
+    .requiredOption('--label <column>', 'column holding the class label')
+    .option('--id <column>', 'column holding a unique row id')
+    .option('--group <column>', 'column whose equal values must stay in one fold')
+    .option('--out <file>', 'where to write the protocol (default: <data name>.protocol.yaml)')
+    .option('--force', 'replace an existing protocol file')
+    .addHelpText('after', '\nExample:\n  foldseal init data/trial.csv --label outcome --id plot_id --out protocols/trial.yaml')
+    .action(async (data: string, o: { label: string; id?: string; group?: string; out?: string; force?: boolean }) => done(await initCommand({ data, ...o }, io)));
+
+  program
+    .command('folds')
+    .description('compute the fold assignment (split-v1) and write it as CSV id,repeat,fold; summary on stderr')
+    .argument('<protocol>', 'protocol YAML file')
+    .option('--out <file>', 'write the CSV here instead of stdout')
+    .addHelpText('after', '\nExample:\n  foldseal folds protocols/demo.yaml --out demo.folds.csv')
+    .action(async (protocol: string, o: { out?: string }) => done(await foldsCommand({ protocol, out: o.out }, io)));
+
+  return program;
+}

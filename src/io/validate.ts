@@ -1,0 +1,94 @@
+/**
+ * The imperative shell around validation: reads the protocol, its data, its pinned
+ * file and new rows, hashes them, and hands everything to the pure checks.
+ */
+import { readFile } from 'node:fs/promises';
+import { dirname, relative, resolve } from 'node:path';
+import { error, hasErrors, type Problem } from '../problems/problem.js';
+import { locate } from '../protocol/document.js';
+import { parseProtocol, type ParsedProtocol } from '../protocol/parse.js';
+import { checkAgainstData } from '../protocol/semantic.js';
+import { isPinned, type Protocol } from '../protocol/types.js';
+import type { Assignment } from '../split/assignment.js';
+import { tableFromBytes } from '../table/load.js';
+import type { Table } from '../table/table.js';
+import { fileProblem, readBytes } from './files.js';
+
+export interface ValidationReport extends ParsedProtocol {
+  /** True when the protocol file itself could not be read (a usage-level failure). */
+  unreadable?: boolean;
+  table?: Table;
+  dataSha256?: string;
+  assignment?: Assignment;
+  /** Absolute paths of the files the protocol names. */
+  paths?: { data: string; pinned?: string; newRows?: string };
+}
+
+/** Path as shown in messages: relative to the working folder when that is shorter. */
+export function shown(path: string): string {
+  const rel = relative(process.cwd(), path);
+  return rel && !rel.startsWith('..') ? rel : path;
+}
+
+export async function loadProtocol(path: string): Promise<ValidationReport> {
+  const file = shown(resolve(path));
+  let text: string;
+  try {
+    text = await readFile(path, 'utf8');
+  } catch (e) {
+    return { file, problems: [fileProblem(e as NodeJS.ErrnoException, file)], unreadable: true };
+  }
+  return parseProtocol(text, file);
+}
+
+export interface ValidateOptions {
+  /** Read the data from here instead of the protocol's data.file (the hash must still match). */
+  dataOverride?: string;
+}
+
+export async function validateProtocol(path: string, options: ValidateOptions = {}): Promise<ValidationReport> {
+  const parsed = await loadProtocol(path);
+  if (!parsed.protocol || !parsed.source) return parsed;
+  const p = parsed.protocol;
+  const source = parsed.source;
+  const base = dirname(resolve(path));
+  const problems: Problem[] = [...parsed.problems];
+  const at = (docPath: (string | number)[]) => ({ file: parsed.file, path: docPath, position: locate(source, docPath) });
+  const paths = {
+    data: options.dataOverride ? resolve(options.dataOverride) : resolve(base, p.data.file),
+    pinned: isPinned(p.split) ? resolve(base, p.split.pinned.file) : undefined,
+    newRows: p.reconcile.newRows ? resolve(base, p.reconcile.newRows.file) : undefined,
+  };
+  const data = await readBytes(paths.data, shown(paths.data), at(['data', 'file']));
+  let pinned: { bytes: Uint8Array; sha256: string; shownAs: string } | undefined;
+  if (paths.pinned) {
+    const pin = await readBytes(paths.pinned, shown(paths.pinned), at(['split', 'pinned', 'file']));
+    if (pin.problem) problems.push(pin.problem);
+    else pinned = { bytes: pin.bytes!, sha256: pin.sha256!, shownAs: shown(paths.pinned) };
+  }
+  if (paths.newRows && p.reconcile.newRows) {
+    const nr = await readBytes(paths.newRows, shown(paths.newRows), at(['reconcile', 'new-rows', 'file']));
+    if (nr.problem) problems.push(nr.problem);
+    else if (nr.sha256 !== p.reconcile.newRows.sha256) {
+      problems.push(error('new-rows-hash-mismatch', `the new-rows file's SHA-256 is ${nr.sha256}, not the ${p.reconcile.newRows.sha256} this protocol records`, at(['reconcile', 'new-rows', 'sha256'])));
+    }
+  }
+  if (data.problem) {
+    problems.push(data.problem);
+    return { ...parsed, problems, paths };
+  }
+  const roleLocate = (role: 'id' | 'label' | 'group' | 'features', index?: number) =>
+    locate(source, index === undefined ? ['data', role] : ['data', 'features', ...(Array.isArray(p.data.features) ? [] : ['exclude']), index]);
+  const built = tableFromBytes(data.bytes!, shown(paths.data), dataRoles(p), p.data.format, roleLocate);
+  problems.push(...built.problems.map((q) => (q.file ? q : { ...q, file: parsed.file })));
+  if (!built.table || hasErrors(built.problems) || (paths.pinned && !pinned)) {
+    return { ...parsed, problems, paths, table: built.table, dataSha256: data.sha256 };
+  }
+  const semantic = checkAgainstData(p, source, { table: built.table, sha256: data.sha256!, pinned });
+  problems.push(...semantic.problems);
+  return { ...parsed, problems, paths, table: built.table, dataSha256: data.sha256, assignment: hasErrors(problems) ? undefined : semantic.assignment };
+}
+
+export function dataRoles(p: Protocol) {
+  return { id: p.data.id, label: p.data.label, group: p.data.group, features: p.data.features, missing: p.data.missing };
+}

@@ -1,0 +1,2 @@
+export * from './problem.js';
+export * from './format.js';

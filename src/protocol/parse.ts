@@ -1,0 +1,80 @@
+/** Text → located problems and, when the shape is right, a typed Protocol. Pure: reads nothing. */
+import { error, warning, hasErrors, type Problem } from '../problems/problem.js';
+import { hasKey, locate, parseYaml, type SourceDocument } from './document.js';
+import { normalizeProtocol } from './normalize.js';
+import { schemaValidator } from './schema.js';
+import { schemaProblems } from './schema-problems.js';
+import { isPinned, ruleNeedsSeed, type Protocol } from './types.js';
+
+export interface ParsedProtocol {
+  file: string;
+  source?: SourceDocument;
+  /** The document as plain data (what the canonical form and the hash are taken of). */
+  raw?: unknown;
+  protocol?: Protocol;
+  problems: Problem[];
+}
+
+export const PROTOCOL_SCHEMA = 'protocol.schema.json';
+
+export function parseProtocol(text: string, file: string): ParsedProtocol {
+  const { source, value, problems } = parseYaml(text, file);
+  if (hasErrors(problems)) return { file, source, problems };
+  if (value === null || value === undefined || typeof value !== 'object' || Array.isArray(value)) {
+    problems.push(error('not-a-protocol', 'a protocol is a YAML mapping with the key `foldseal: 1` at the top', { file, position: { line: 1, col: 1 } }));
+    return { file, source, problems };
+  }
+  const validate = schemaValidator(PROTOCOL_SCHEMA);
+  if (!validate(value)) {
+    problems.push(...schemaProblems(validate.errors ?? [], source));
+    return { file, source, raw: value, problems };
+  }
+  const protocol = normalizeProtocol(value);
+  problems.push(...structureProblems(protocol, source));
+  return { file, source, raw: value, protocol: hasErrors(problems) ? undefined : protocol, problems };
+}
+
+/** Cross-field rules the schema does not express readably. */
+function structureProblems(p: Protocol, source: SourceDocument): Problem[] {
+  const file = source.file;
+  const out: Problem[] = [];
+  const at = (path: (string | number)[], key = false) => ({ file, path, position: locate(source, path, key) });
+  const has = (key: string) => hasKey(source, ['split'], key);
+  if (!isPinned(p.split)) {
+    if (!has('rule')) {
+      out.push(error('missing-field', 'split needs either `rule` (with its settings) or `pinned`', { ...at(['split'], true), hint: 'e.g. rule: stratified-kfold, folds: 5, seed: 20261201' }));
+      return out;
+    }
+    const { rule } = p.split;
+    if (ruleNeedsSeed(rule) && p.split.seed === undefined) {
+      out.push(error('missing-seed', `split rule ${rule} draws its folds from a seed, and none is given`, { ...at(['split'], true), hint: 'add `seed:` with any non-negative integer; foldseal never picks one for you' }));
+    }
+    if (!ruleNeedsSeed(rule) && has('seed')) out.push(warning('unused-field', `split rule ${rule} does not use a seed`, at(['split', 'seed'], true)));
+    if (rule === 'holdout') {
+      if (p.split.testFraction === undefined) out.push(error('missing-field', 'split rule holdout needs `test-fraction`', at(['split'], true)));
+      else if (!hasSixDecimals(p.split.testFraction)) out.push(error('bad-format', `test-fraction ${p.split.testFraction} has more than 6 decimal places`, at(['split', 'test-fraction'])));
+      if (has('folds')) out.push(warning('unused-field', 'split rule holdout does not use `folds` (fold 1 is the test part, fold 2 the training part)', at(['split', 'folds'], true)));
+    } else if (has('test-fraction')) out.push(error('unused-field', `test-fraction belongs to the holdout rule, not ${rule}`, at(['split', 'test-fraction'], true)));
+    if ((rule === 'leave-one-out' || rule === 'leave-group-out')) {
+      if (has('folds')) out.push(warning('unused-field', `split rule ${rule} sets the number of folds itself`, at(['split', 'folds'], true)));
+      if (p.split.repeats > 1) out.push(error('out-of-range', `split rule ${rule} has exactly one assignment; repeats must be 1`, at(['split', 'repeats'])));
+      if (has('assign')) out.push(warning('unused-field', `split rule ${rule} does not use \`assign\``, at(['split', 'assign'], true)));
+    }
+  } else {
+    for (const key of ['rule', 'folds', 'repeats', 'seed', 'assign', 'test-fraction']) {
+      if (has(key)) out.push(error('pinned-with-rule', `split has both \`pinned\` and \`${key}\`; a pinned assignment replaces the rule`, at(['split', key], true)));
+    }
+  }
+  if (p.reconcile.tie !== undefined && p.reconcile.rule !== 'majority-vote') {
+    out.push(warning('unused-field', `reconcile.tie only applies to majority-vote, not ${p.reconcile.rule}`, at(['reconcile', 'tie'], true)));
+  }
+  if (p.data.id === undefined) {
+    out.push(warning('no-id-column', 'data.id is not set: row numbers become the ids, so the folds depend on row order', { ...at(['data'], true), hint: 'name a column with a stable unique id per row' }));
+  }
+  return out;
+}
+
+function hasSixDecimals(x: number): boolean {
+  const scaled = x * 1e6;
+  return Math.abs(scaled - Math.round(scaled)) < 1e-6;
+}

@@ -1,0 +1,67 @@
+/** The protocol after schema validation, with every documented default filled in. */
+export type SplitRule = 'holdout' | 'kfold' | 'stratified-kfold' | 'grouped-kfold' | 'leave-one-out' | 'leave-group-out';
+export type AssignMode = 'balanced' | 'stable';
+export type ModelKind = 'gaussian-nb' | 'multinomial-nb' | 'bernoulli-nb' | 'logistic' | 'knn' | 'shrunken-centroid';
+export type MetricName = 'accuracy' | 'balanced-accuracy' | 'precision' | 'recall' | 'f1' | 'mcc' | 'kappa' | 'roc-auc' | 'average-precision' | 'log-loss' | 'brier';
+export type ReconcileRule = 'mean-probability' | 'majority-vote' | 'refit';
+export type TieRule = 'mean-probability' | 'abstain' | 'class-order';
+
+export type PreprocessStep =
+  | { step: 'standardize' }
+  | { step: 'log2p' }
+  | { step: 'impute'; by: 'mean' | 'median' }
+  | { step: 'select'; top: number; by: 't-test' | 'f-test' | 'variance' };
+
+export interface HashedFile {
+  file: string;
+  sha256: string;
+}
+
+export interface RuleSplit {
+  rule: SplitRule;
+  folds: number;
+  repeats: number;
+  seed?: number;
+  assign: AssignMode;
+  testFraction?: number;
+}
+
+export interface PinnedSplit {
+  pinned: HashedFile;
+}
+
+export interface Protocol {
+  foldseal: 1;
+  name: string;
+  description?: string;
+  final: boolean;
+  data: {
+    file: string;
+    sha256: string;
+    format?: 'csv' | 'tsv';
+    id?: string;
+    label: string;
+    positive?: string;
+    group?: string;
+    features?: string[] | { exclude: string[] };
+    missing: string[];
+  };
+  split: RuleSplit | PinnedSplit;
+  preprocess: PreprocessStep[];
+  model: { kind: ModelKind; options: Record<string, unknown> };
+  reconcile: { rule: ReconcileRule; tie?: TieRule; newRows?: HashedFile & { id?: string } };
+  metrics: MetricName[];
+  verify: { tolerance: number };
+}
+
+export const DEFAULT_METRICS: MetricName[] = ['accuracy', 'balanced-accuracy', 'roc-auc', 'mcc', 'log-loss'];
+export const DEFAULT_MISSING = ['', 'NA', 'NaN'];
+
+export function isPinned(split: Protocol['split']): split is PinnedSplit {
+  return 'pinned' in split;
+}
+
+/** Rules whose assignment draws SHA-256 keys from the seed. */
+export function ruleNeedsSeed(rule: SplitRule): boolean {
+  return rule !== 'leave-one-out' && rule !== 'leave-group-out';
+}

@@ -1,0 +1,23 @@
+/** Protocol split settings × table → Assignment for every repeat. Pure. */
+import type { RuleSplit } from '../protocol/types.js';
+import { SPLIT_VERSION, type Assignment } from './assignment.js';
+import { splitRules } from './registry.js';
+import type { SplitInput } from './rule.js';
+
+export function assignFolds(input: SplitInput, split: RuleSplit): Assignment {
+  const n = input.ids.length;
+  const fold = new Int32Array(n * split.repeats);
+  let folds = split.folds;
+  for (let r = 1; r <= split.repeats; r++) {
+    const out = splitRules[split.rule].fold(input, {
+      folds: split.folds,
+      seed: split.seed ?? 0,
+      repeat: r,
+      assign: split.assign,
+      testMicros: Math.round((split.testFraction ?? 0) * 1e6),
+    });
+    fold.set(out.fold, (r - 1) * n);
+    folds = out.folds;
+  }
+  return { version: SPLIT_VERSION, ids: [...input.ids], repeats: split.repeats, folds, fold };
+}

@@ -1,0 +1,34 @@
+/** A fold assignment as plain data: fold[(repeat - 1) * ids.length + row], 1-based folds and repeats. */
+export const SPLIT_VERSION = 'split-v1';
+
+export interface Assignment {
+  version: typeof SPLIT_VERSION;
+  /** Ids in the table's row order. */
+  ids: string[];
+  repeats: number;
+  /** Number of folds K (2 for holdout: fold 1 = test, fold 2 = train). */
+  folds: number;
+  fold: Int32Array;
+}
+
+export function foldOf(a: Assignment, repeat: number, row: number): number {
+  return a.fold[(repeat - 1) * a.ids.length + row];
+}
+
+/** Rows of one repeat whose fold equals / differs from `fold`, in the given row order. */
+export function foldRows(a: Assignment, repeat: number, fold: number, order: Int32Array): { test: Int32Array; train: Int32Array } {
+  const n = a.ids.length;
+  const base = (repeat - 1) * n;
+  let t = 0;
+  for (let i = 0; i < n; i++) if (a.fold[base + i] === fold) t++;
+  const test = new Int32Array(t);
+  const train = new Int32Array(n - t);
+  let ti = 0;
+  let ri = 0;
+  for (let k = 0; k < n; k++) {
+    const row = order[k];
+    if (a.fold[base + row] === fold) test[ti++] = row;
+    else train[ri++] = row;
+  }
+  return { test, train };
+}

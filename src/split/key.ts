@@ -1,0 +1,61 @@
+/**
+ * split-v1 key derivation (docs/split-spec.md §2):
+ *   key = SHA-256( "foldseal/split-v1" 0x00 seed 0x00 repeat 0x00 id )
+ * with seed and repeat written as ASCII decimal and the id as its UTF-8 bytes.
+ */
+import * as crypto from 'node:crypto';
+import { compareUtf8 } from '../util/bytes.js';
+
+const DOMAIN = 'foldseal/split-v1';
+const oneShot = (crypto as unknown as { hash?: (alg: string, data: Buffer, enc: 'buffer') => Buffer }).hash;
+
+export function keyMessage(seed: number, repeat: number, id: string): Buffer {
+  return Buffer.concat([Buffer.from(`${DOMAIN}\0${seed}\0${repeat}\0`, 'utf8'), Buffer.from(id, 'utf8')]);
+}
+
+/** 32-byte keys for every id, laid end to end. */
+export function deriveKeys(ids: readonly string[], seed: number, repeat: number): Uint8Array {
+  const out = new Uint8Array(ids.length * 32);
+  const prefix = Buffer.from(`${DOMAIN}\0${seed}\0${repeat}\0`, 'utf8');
+  for (let i = 0; i < ids.length; i++) {
+    const msg = Buffer.concat([prefix, Buffer.from(ids[i], 'utf8')]);
+    const digest = oneShot ? oneShot('sha256', msg, 'buffer') : crypto.createHash('sha256').update(msg).digest();
+    out.set(digest, i * 32);
+  }
+  return out;
+}
+
+/** The first four key bytes as an unsigned big-endian integer (used by `assign: stable`). */
+export function keyPrefix32(keys: Uint8Array, i: number): number {
+  const o = i * 32;
+  return ((keys[o] << 24) >>> 0) + (keys[o + 1] << 16) + (keys[o + 2] << 8) + keys[o + 3];
+}
+
+/** Compare keys i and j as 256-bit unsigned integers; equal keys fall back to id byte order. */
+export function compareKeys(keys: Uint8Array, ids: readonly string[], i: number, j: number): number {
+  const a = i * 32;
+  const b = j * 32;
+  for (let t = 0; t < 32; t++) {
+    const d = keys[a + t] - keys[b + t];
+    if (d !== 0) return d;
+  }
+  return compareUtf8(ids[i], ids[j]);
+}
+
+/** `rows` sorted by key (ascending). */
+export function sortByKey(rows: Int32Array, keys: Uint8Array, ids: readonly string[]): Int32Array {
+  const out = Int32Array.from(rows);
+  // Comparing the first 4 bytes as one integer settles nearly every pair.
+  const prefix = new Float64Array(ids.length);
+  for (let k = 0; k < rows.length; k++) prefix[rows[k]] = keyPrefix32(keys, rows[k]);
+  out.sort((i, j) => prefix[i] - prefix[j] || compareKeys(keys, ids, i, j));
+  return out;
+}
+
+/** Rows 0..n-1 sorted by the UTF-8 bytes of their ids (the spec's "id order"). */
+export function idOrder(ids: readonly string[]): Int32Array {
+  const order = new Int32Array(ids.length);
+  for (let i = 0; i < ids.length; i++) order[i] = i;
+  order.sort((i, j) => compareUtf8(ids[i], ids[j]));
+  return order;
+}

@@ -1,0 +1,29 @@
+import type { AssignMode } from '../protocol/types.js';
+
+/** What a split rule sees: ids, label codes (classes in UTF-8 byte order), optional group values. */
+export interface SplitInput {
+  ids: readonly string[];
+  y: Int32Array;
+  classCount: number;
+  groups?: readonly string[];
+}
+
+export interface SplitParams {
+  folds: number;
+  seed: number;
+  repeat: number;
+  assign: AssignMode;
+  /** Holdout test share in millionths (an exact integer, spec §5). */
+  testMicros: number;
+}
+
+/** A split rule: one repeat's fold per row (1-based), and the number of folds it produced. */
+export interface SplitRuleImpl {
+  fold(input: SplitInput, params: SplitParams): { fold: Int32Array; folds: number };
+}
+
+export function allRows(n: number): Int32Array {
+  const rows = new Int32Array(n);
+  for (let i = 0; i < n; i++) rows[i] = i;
+  return rows;
+}

@@ -1,0 +1,18 @@
+/** Spec §4.1: deal rows in key order round-robin (balanced), or key prefix mod k (stable). */
+import { deriveKeys, keyPrefix32, sortByKey } from '../key.js';
+import { allRows, type SplitRuleImpl } from '../rule.js';
+
+export const kfold: SplitRuleImpl = {
+  fold(input, p) {
+    const n = input.ids.length;
+    const keys = deriveKeys(input.ids, p.seed, p.repeat);
+    const fold = new Int32Array(n);
+    if (p.assign === 'stable') {
+      for (let i = 0; i < n; i++) fold[i] = (keyPrefix32(keys, i) % p.folds) + 1;
+    } else {
+      const order = sortByKey(allRows(n), keys, input.ids);
+      for (let pos = 0; pos < n; pos++) fold[order[pos]] = (pos % p.folds) + 1;
+    }
+    return { fold, folds: p.folds };
+  },
+};

@@ -1,0 +1,23 @@
+/** Spec §4.5–4.6: no keys. Fold = 1-based rank of the id (or of the group value) in UTF-8 byte order. */
+import { compareUtf8 } from '../../util/bytes.js';
+import { idOrder } from '../key.js';
+import type { SplitRuleImpl } from '../rule.js';
+import { groupIndex } from './strata.js';
+
+export const leaveOneOut: SplitRuleImpl = {
+  fold(input) {
+    const order = idOrder(input.ids);
+    const fold = new Int32Array(order.length);
+    for (let rank = 0; rank < order.length; rank++) fold[order[rank]] = rank + 1;
+    return { fold, folds: order.length };
+  },
+};
+
+export const leaveGroupOut: SplitRuleImpl = {
+  fold(input) {
+    const { names, of } = groupIndex(input.groups!, compareUtf8);
+    const fold = new Int32Array(of.length);
+    for (let i = 0; i < of.length; i++) fold[i] = of[i] + 1;
+    return { fold, folds: names.length };
+  },
+};

@@ -1,0 +1,37 @@
+/** Row-major dense matrix: cell (r, c) is data[r * cols + c]. */
+export interface Matrix {
+  rows: number;
+  cols: number;
+  data: Float64Array;
+}
+
+export function matrix(rows: number, cols: number, data = new Float64Array(rows * cols)): Matrix {
+  return { rows, cols, data };
+}
+
+/** The rows listed in `index`, in that order. */
+export function takeRows(m: Matrix, index: Int32Array): Matrix {
+  const out = new Float64Array(index.length * m.cols);
+  for (let i = 0; i < index.length; i++) {
+    const from = index[i] * m.cols;
+    out.set(m.data.subarray(from, from + m.cols), i * m.cols);
+  }
+  return { rows: index.length, cols: m.cols, data: out };
+}
+
+/** The columns listed in `index`, in that order. */
+export function takeCols(m: Matrix, index: Int32Array): Matrix {
+  const k = index.length;
+  const out = new Float64Array(m.rows * k);
+  for (let r = 0; r < m.rows; r++) {
+    const base = r * m.cols;
+    for (let j = 0; j < k; j++) out[r * k + j] = m.data[base + index[j]];
+  }
+  return { rows: m.rows, cols: k, data: out };
+}
+
+export function takeInt(values: Int32Array, index: Int32Array): Int32Array {
+  const out = new Int32Array(index.length);
+  for (let i = 0; i < index.length; i++) out[i] = values[index[i]];
+  return out;
+}

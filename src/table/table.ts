@@ -1,0 +1,178 @@
+/**
+ * Turns a delimited file into the typed table every later step uses:
+ * ids and labels as strings, label codes as Int32Array, features as a row-major Matrix.
+ */
+import { error, warning, type Problem } from '../problems/problem.js';
+import { compareUtf8 } from '../util/bytes.js';
+import { cellPosition, textColumn, type DelimitedTable } from './delimited.js';
+import type { Matrix } from './matrix.js';
+import { parseNumberBytes } from './number.js';
+
+export interface DataRoles {
+  id?: string;
+  label: string;
+  group?: string;
+  /** Explicit feature list, or columns to leave out of the default (every numeric column). */
+  features?: string[] | { exclude: string[] };
+  missing: string[];
+}
+
+export interface Table {
+  /** Row ids as given (or 1-based row numbers when the protocol names no id column). */
+  ids: string[];
+  labels: string[];
+  /** Distinct label values in UTF-8 byte order; y[r] indexes into it. */
+  classes: string[];
+  y: Int32Array;
+  groups?: string[];
+  featureNames: string[];
+  X: Matrix;
+  /** Line in the file where each data row starts (for messages). */
+  rowLines: Int32Array;
+  /** Text columns that the default feature rule left out. */
+  ignoredColumns: string[];
+}
+
+export type RolePaths = Partial<Record<'id' | 'label' | 'group' | 'features', (string | number)[]>>;
+
+export interface TableResult {
+  table?: Table;
+  problems: Problem[];
+}
+
+const MAX_CELL_PROBLEMS = 20;
+
+export function buildTable(t: DelimitedTable, roles: DataRoles, file: string, locate: (role: keyof RolePaths, index?: number) => Problem['position']): TableResult {
+  const problems: Problem[] = [];
+  const columnIndex = new Map<string, number>();
+  t.header.forEach((h, i) => { if (!columnIndex.has(h)) columnIndex.set(h, i); });
+  const duplicated = t.header.filter((h, i) => t.header.indexOf(h) !== i);
+  for (const d of [...new Set(duplicated)]) problems.push(error('data-duplicate-column', `column "${d}" appears more than once in the header`, { file, position: { line: 1, col: 1 } }));
+  if (t.rows === 0) {
+    problems.push(error('data-no-rows', 'the data file has a header but no data rows', { file, position: { line: 1, col: 1 } }));
+    return { problems };
+  }
+  const need = (role: 'id' | 'label' | 'group', name: string | undefined): number | undefined => {
+    if (name === undefined) return undefined;
+    const c = columnIndex.get(name);
+    if (c === undefined) {
+      problems.push(error('data-missing-column', `column "${name}" (data.${role}) is not in the data file's header`, { position: locate(role), hint: `columns are: ${t.header.join(', ')}` }));
+    }
+    return c;
+  };
+  const idCol = need('id', roles.id);
+  const labelCol = need('label', roles.label);
+  const groupCol = need('group', roles.group);
+  const missing = new Set(roles.missing);
+  const reserved = new Set([idCol, labelCol, groupCol].filter((c): c is number => c !== undefined));
+
+  // Features.
+  const featureCols: number[] = [];
+  const ignoredColumns: string[] = [];
+  if (Array.isArray(roles.features)) {
+    roles.features.forEach((name, k) => {
+      const c = columnIndex.get(name);
+      if (c === undefined) problems.push(error('data-missing-column', `feature column "${name}" is not in the data file's header`, { position: locate('features', k) }));
+      else if (reserved.has(c)) problems.push(error('data-feature-role', `column "${name}" is the id, label or group and cannot also be a feature`, { position: locate('features', k) }));
+      else featureCols.push(c);
+    });
+  } else {
+    const exclude = new Set(roles.features?.exclude ?? []);
+    (roles.features?.exclude ?? []).forEach((name, k) => {
+      if (!columnIndex.has(name)) problems.push(warning('data-unknown-exclude', `excluded column "${name}" is not in the data file's header`, { position: locate('features', k) }));
+    });
+    for (let c = 0; c < t.cols; c++) {
+      if (reserved.has(c) || exclude.has(t.header[c])) continue;
+      if (looksNumeric(t, c, missing)) featureCols.push(c);
+      else ignoredColumns.push(t.header[c]);
+    }
+  }
+  if (featureCols.length === 0 && problems.length === 0) problems.push(error('data-no-features', 'no numeric feature columns were found', { position: locate('features') }));
+
+  const rows = t.rows;
+  const rowLines = t.rowLine;
+  const ids = idCol === undefined ? Array.from({ length: rows }, (_, r) => String(r + 1)) : textColumn(t, idCol);
+  if (idCol !== undefined) checkIds(t, ids, idCol, file, problems);
+  const labels = labelCol === undefined ? [] : textColumn(t, labelCol);
+  let classes: string[] = [];
+  const y = new Int32Array(rows);
+  if (labelCol !== undefined) {
+    let emptyLabels = 0;
+    for (let r = 0; r < rows; r++) {
+      if (labels[r] === '' || missing.has(labels[r])) {
+        if (emptyLabels++ < MAX_CELL_PROBLEMS) problems.push(error('data-missing-label', `row ${r + 1} has no label`, { file, position: cellPosition(t, r, labelCol) }));
+      }
+    }
+    classes = [...new Set(labels)].sort(compareUtf8);
+    const code = new Map(classes.map((c, i) => [c, i]));
+    for (let r = 0; r < rows; r++) y[r] = code.get(labels[r])!;
+    if (classes.length < 2) problems.push(error('data-one-class', `the label column "${roles.label}" has ${classes.length} class${classes.length === 1 ? ` ("${classes[0]}")` : 'es'}; at least 2 are needed`, { position: locate('label') }));
+  }
+  let groups: string[] | undefined;
+  if (groupCol !== undefined) {
+    groups = textColumn(t, groupCol);
+    let empty = 0;
+    for (let r = 0; r < rows; r++) {
+      if (groups[r] === '' && empty++ < MAX_CELL_PROBLEMS) problems.push(error('data-empty-group', `row ${r + 1} has an empty group cell in column "${roles.group}"`, { file, position: cellPosition(t, r, groupCol) }));
+    }
+  }
+
+  const cols = featureCols.length;
+  const data = new Float64Array(rows * cols);
+  let bad = 0;
+  for (let j = 0; j < cols; j++) {
+    const c = featureCols[j];
+    for (let r = 0; r < rows; r++) {
+      const k = r * t.cols + c;
+      let v = parseNumberBytes(t.bytes, t.starts[k], t.ends[k]);
+      if (v !== v) {
+        const text = new TextDecoder().decode(t.bytes.subarray(t.starts[k], t.ends[k]));
+        if (missing.has(text)) v = NaN;
+        else if (bad++ < MAX_CELL_PROBLEMS) {
+          problems.push(error('data-not-a-number', `cell "${text}" in column "${t.header[c]}" (row ${r + 1}) is not a number`, { file, position: cellPosition(t, r, c), hint: text.includes(',') ? 'use a dot as the decimal separator' : 'list the token under data.missing if it marks a missing value' }));
+        }
+      }
+      data[r * cols + j] = v;
+    }
+  }
+  if (bad > MAX_CELL_PROBLEMS) problems.push(error('data-not-a-number', `${bad - MAX_CELL_PROBLEMS} more non-numeric cells not listed`, { file }));
+  const table: Table = { ids, labels, classes, y, groups, featureNames: featureCols.map((c) => t.header[c]), X: { rows, cols, data }, rowLines, ignoredColumns };
+  return { table, problems };
+}
+
+function looksNumeric(t: DelimitedTable, c: number, missing: Set<string>): boolean {
+  // A column counts as numeric when its first non-missing cell is a number; later bad cells are then errors,
+  // so a typo like `12abc` is reported instead of silently dropping the column.
+  const decoder = new TextDecoder();
+  for (let r = 0; r < t.rows; r++) {
+    const k = r * t.cols + c;
+    const v = parseNumberBytes(t.bytes, t.starts[k], t.ends[k]);
+    if (v === v) return true;
+    if (!missing.has(decoder.decode(t.bytes.subarray(t.starts[k], t.ends[k])))) return false;
+  }
+  return false;
+}
+
+function checkIds(t: DelimitedTable, ids: string[], idCol: number, file: string, problems: Problem[]): void {
+  const seen = new Map<string, number>();
+  let reported = 0;
+  for (let r = 0; r < ids.length; r++) {
+    const id = ids[r];
+    if (id === '') {
+      if (reported++ < MAX_CELL_PROBLEMS) problems.push(error('data-empty-id', `row ${r + 1} has an empty id`, { file, position: cellPosition(t, r, idCol) }));
+      continue;
+    }
+    const first = seen.get(id);
+    if (first !== undefined) {
+      if (reported++ < MAX_CELL_PROBLEMS) problems.push(error('data-duplicate-id', `id "${id}" appears again (first on line ${t.rowLine[first]})`, { file, position: cellPosition(t, r, idCol) }));
+    } else seen.set(id, r);
+  }
+  const normalized = new Map<string, string>();
+  for (const id of seen.keys()) {
+    const nfc = id.normalize('NFC');
+    const other = normalized.get(nfc);
+    if (other !== undefined && other !== id) {
+      problems.push(warning('data-id-normalization', `ids "${other}" and "${id}" differ only by Unicode normalization; the split spec hashes bytes as given, so they are different ids`, { file, position: cellPosition(t, seen.get(id)!, idCol) }));
+    } else normalized.set(nfc, id);
+  }
+}
