@@ -36,7 +36,7 @@ export async function loadProtocol(path: string): Promise<ValidationReport> {
   try {
     text = await readFile(path, 'utf8');
   } catch (e) {
-    return { file, problems: [fileProblem(e as NodeJS.ErrnoException, file)], unreadable: true };
+    return { file, problems: [fileProblem(e as NodeJS.ErrnoException, file, { file })], unreadable: true };
   }
   return parseProtocol(text, file);
 }

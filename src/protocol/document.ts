@@ -29,13 +29,13 @@ export function parseYaml(text: string, file: string): ParsedYaml {
   const source: SourceDocument = { file, text, doc, lines };
   const problems: Problem[] = [];
   for (const e of doc.errors) {
-    const pos = e.linePos?.[0];
+    const pos = lines.linePos(e.pos[0]);
     const duplicate = e.code === 'DUPLICATE_KEY';
-    problems.push(error(duplicate ? 'yaml-duplicate-key' : 'yaml-syntax', duplicate ? 'this key appears twice in the same mapping' : firstLine(e.message), { file, position: pos ? { line: pos.line, col: pos.col } : undefined }));
+    problems.push(error(duplicate ? 'yaml-duplicate-key' : 'yaml-syntax', duplicate ? `key ${keyAt(text, e.pos[0])}appears twice in the same mapping` : firstLine(e.message), { file, position: { line: pos.line, col: pos.col } }));
   }
   for (const w of doc.warnings) {
-    const pos = w.linePos?.[0];
-    problems.push({ code: 'yaml-warning', severity: 'warning', message: firstLine(w.message), file, position: pos ? { line: pos.line, col: pos.col } : undefined });
+    const pos = lines.linePos(w.pos[0]);
+    problems.push({ code: 'yaml-warning', severity: 'warning', message: firstLine(w.message), file, position: { line: pos.line, col: pos.col } });
   }
   if (problems.some((p) => p.severity === 'error')) return { source, value: undefined, problems };
   let value: unknown;
@@ -48,6 +48,11 @@ export function parseYaml(text: string, file: string): ParsedYaml {
     } else throw e;
   }
   return { source, value, problems };
+}
+
+function keyAt(text: string, offset: number): string {
+  const m = /^\s*([^:\n]+?)\s*:/.exec(text.slice(offset, offset + 200));
+  return m ? `"${m[1]}" ` : '';
 }
 
 function firstLine(message: string): string {

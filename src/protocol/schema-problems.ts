@@ -46,6 +46,11 @@ function branchFits(branch: Record<string, unknown>, value: unknown): boolean {
   return false;
 }
 
+export function pathName(path: readonly (string | number)[]): string {
+  if (path.length === 0) return 'the protocol';
+  return path.map((s, i) => (typeof s === 'number' ? `[${s}]` : i === 0 ? s : `.${s}`)).join('');
+}
+
 function show(v: unknown): string {
   return typeof v === 'string' ? `"${v}"` : JSON.stringify(v);
 }
@@ -60,7 +65,7 @@ function typeName(v: unknown): string {
 
 function toProblem(e: Err, source: SourceDocument): Problem {
   const path = pathOf(e.instancePath);
-  const name = path.length ? path.join('.') : 'the protocol';
+  const name = pathName(path);
   const file = source.file;
   const at = (p: (string | number)[], key = false) => ({ file, path: p, position: locate(source, p, key) });
   switch (e.keyword) {
