@@ -4,6 +4,7 @@ import { packageVersion } from '../util/package-root.js';
 import { foldsCommand } from './commands/folds.js';
 import { hashCommand } from './commands/hash.js';
 import { initCommand } from './commands/init.js';
+import { runCommand } from './commands/run.js';
 import { validateCommand } from './commands/validate.js';
 import type { CommandIo, ExitCode } from './io.js';
 
@@ -51,6 +52,15 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .option('--out <file>', 'write the CSV here instead of stdout')
     .addHelpText('after', '\nExample:\n  foldseal folds protocols/demo.yaml --out demo.folds.csv')
     .action(async (protocol: string, o: { out?: string }) => done(await foldsCommand({ protocol, out: o.out }, io)));
+
+  program
+    .command('run')
+    .description('cross-validate: fit preprocessing and model inside every fold, score, write predictions and results')
+    .argument('<protocol>', 'protocol YAML file')
+    .option('--out <dir>', 'results folder (default: results/<protocol name>)')
+    .option('--force', 'replace an existing results folder')
+    .addHelpText('after', '\nExample:\n  foldseal run protocols/demo.yaml --out results/demo\n\nThe folder is written to a temporary sibling and renamed at the end, so it is never half-written.')
+    .action(async (protocol: string, o: { out?: string; force?: boolean }) => done(await runCommand({ protocol, ...o }, io)));
 
   return program;
 }

@@ -1,0 +1,28 @@
+/** What a metric sees: true class codes, probabilities (rows × k), k, and the positive class for binary metrics. */
+export interface Scored {
+  truth: Int32Array;
+  proba: Float64Array;
+  classCount: number;
+  /** Positive class code (binary metrics); the last class when the protocol names none. */
+  positive: number;
+  /** Predicted class codes: the most probable class, the first in class order on ties. */
+  predicted: Int32Array;
+}
+
+/** A metric value, or null where it is undefined for these rows (e.g. ROC AUC with one class present). */
+export type Metric = (s: Scored) => number | null;
+
+export function predictedClasses(proba: Float64Array, k: number): Int32Array {
+  const rows = proba.length / k;
+  const out = new Int32Array(rows);
+  for (let r = 0; r < rows; r++) {
+    let best = 0;
+    for (let c = 1; c < k; c++) if (proba[r * k + c] > proba[r * k + best]) best = c;
+    out[r] = best;
+  }
+  return out;
+}
+
+export function scored(truth: Int32Array, proba: Float64Array, classCount: number, positive: number): Scored {
+  return { truth, proba, classCount, positive, predicted: predictedClasses(proba, classCount) };
+}

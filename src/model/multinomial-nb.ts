@@ -1,0 +1,46 @@
+/** Multinomial naive Bayes on non-negative counts with additive smoothing (default 1). */
+import { FitError, classCounts, softmaxRows, type ModelImpl } from './types.js';
+
+export interface MultinomialNbParams {
+  logPrior: (number | null)[];
+  logProb: number[][]; // [class][feature]
+}
+
+export const multinomialNb: ModelImpl<MultinomialNbParams> = {
+  fit(X, y, options, { classCount }) {
+    const alpha = (options.smoothing as number | undefined) ?? 1;
+    const { rows, cols, data } = X;
+    for (let k = 0; k < data.length; k++) if (data[k] < 0) throw new FitError('negative-counts', `multinomial-nb needs non-negative counts; feature ${(k % cols) + 1} has ${data[k]}`, 'use gaussian-nb for measurements, or drop standardize before multinomial-nb');
+    const n = classCounts(y, classCount);
+    const count = new Float64Array(classCount * cols);
+    for (let r = 0; r < rows; r++) {
+      const o = y[r] * cols;
+      for (let j = 0; j < cols; j++) count[o + j] += data[r * cols + j];
+    }
+    const logProb: number[][] = [];
+    const logPrior: (number | null)[] = [];
+    for (let c = 0; c < classCount; c++) {
+      let total = 0;
+      for (let j = 0; j < cols; j++) total += count[c * cols + j] + alpha;
+      logProb.push(Array.from(count.subarray(c * cols, (c + 1) * cols), (v) => Math.log(v + alpha) - Math.log(total)));
+      logPrior.push(n[c] > 0 ? Math.log(n[c] / rows) : null);
+    }
+    return { logPrior, logProb };
+  },
+  predict(p, X) {
+    const k = p.logPrior.length;
+    const { rows, cols, data } = X;
+    const scores = new Float64Array(rows * k);
+    for (let c = 0; c < k; c++) {
+      const lp = p.logPrior[c];
+      const w = Float64Array.from(p.logProb[c]);
+      for (let r = 0; r < rows; r++) {
+        if (lp === null) { scores[r * k + c] = -Infinity; continue; }
+        let s = lp;
+        for (let j = 0; j < cols; j++) s += data[r * cols + j] * w[j];
+        scores[r * k + c] = s;
+      }
+    }
+    return softmaxRows(scores, rows, k);
+  },
+};

@@ -1,0 +1,50 @@
+/**
+ * One fit → predict interface for every model (after Buitinck et al. 2013, "API design for
+ * machine learning software"): fit returns plain JSON-able parameters, predict maps rows to
+ * class probabilities. Both are pure and deterministic.
+ */
+import type { Matrix } from '../table/matrix.js';
+
+export interface FitContext {
+  /** Number of classes overall; classes absent from the training part get probability 0. */
+  classCount: number;
+}
+
+export interface ModelImpl<P = unknown> {
+  /** Fit on training rows (row-major X, class codes y). Options are the protocol's `model.options`. */
+  fit(X: Matrix, y: Int32Array, options: Record<string, unknown>, ctx: FitContext): P;
+  /** Probabilities, row-major rows × classCount; each row sums to 1. */
+  predict(params: P, X: Matrix): Float64Array;
+}
+
+/** Problems a fit can hit that are the user's to fix (not bugs). */
+export class FitError extends Error {
+  constructor(readonly code: string, message: string, readonly hint?: string) {
+    super(message);
+    this.name = 'FitError';
+  }
+}
+
+export function classCounts(y: Int32Array, classCount: number): Float64Array {
+  const c = new Float64Array(classCount);
+  for (let i = 0; i < y.length; i++) c[y[i]]++;
+  return c;
+}
+
+/** Turns per-class log scores into probabilities with log-sum-exp; -Infinity scores give exactly 0. */
+export function softmaxRows(scores: Float64Array, rows: number, k: number): Float64Array {
+  const out = new Float64Array(rows * k);
+  for (let r = 0; r < rows; r++) {
+    const o = r * k;
+    let max = -Infinity;
+    for (let c = 0; c < k; c++) if (scores[o + c] > max) max = scores[o + c];
+    let sum = 0;
+    for (let c = 0; c < k; c++) {
+      const e = scores[o + c] === -Infinity ? 0 : Math.exp(scores[o + c] - max);
+      out[o + c] = e;
+      sum += e;
+    }
+    for (let c = 0; c < k; c++) out[o + c] /= sum;
+  }
+  return out;
+}

@@ -1,0 +1,72 @@
+/**
+ * Keep the `top` features by a score computed on the training part only (fitting selection
+ * inside the folds avoids the selection bias of Ambroise & McLachlan 2002, PNAS 99:6562).
+ * Scores: |Welch t| (two classes), one-way ANOVA F, or variance. Higher is better; an
+ * undefined score (a constant feature) ranks last; equal scores keep the earlier column.
+ */
+import { takeCols } from '../table/matrix.js';
+import type { TransformImpl } from './types.js';
+
+export interface SelectParams { keep: number[]; scores: (number | null)[] }
+
+export function featureScores(X: { rows: number; cols: number; data: Float64Array }, y: Int32Array, classCount: number, by: 't-test' | 'f-test' | 'variance'): Float64Array {
+  const { rows, cols, data } = X;
+  const n = new Float64Array(classCount);
+  for (let r = 0; r < rows; r++) n[y[r]]++;
+  const sum = new Float64Array(classCount * cols);
+  const total = new Float64Array(cols);
+  for (let r = 0; r < rows; r++) {
+    const o = y[r] * cols;
+    for (let j = 0; j < cols; j++) { const v = data[r * cols + j]; sum[o + j] += v; total[j] += v; }
+  }
+  const ss = new Float64Array(classCount * cols); // within-class sum of squares per class
+  const tss = new Float64Array(cols);
+  for (let r = 0; r < rows; r++) {
+    const c = y[r];
+    for (let j = 0; j < cols; j++) {
+      const v = data[r * cols + j];
+      const d = v - sum[c * cols + j] / n[c];
+      ss[c * cols + j] += d * d;
+      const e = v - total[j] / rows;
+      tss[j] += e * e;
+    }
+  }
+  const out = new Float64Array(cols);
+  const present = Array.from(n.keys()).filter((c) => n[c] > 0);
+  for (let j = 0; j < cols; j++) {
+    if (by === 'variance') { out[j] = tss[j] / rows; continue; }
+    if (by === 't-test') {
+      const [a, b] = present;
+      const va = ss[a * cols + j] / (n[a] - 1) / n[a];
+      const vb = ss[b * cols + j] / (n[b] - 1) / n[b];
+      out[j] = Math.abs(sum[a * cols + j] / n[a] - sum[b * cols + j] / n[b]) / Math.sqrt(va + vb);
+      continue;
+    }
+    let within = 0;
+    for (const c of present) within += ss[c * cols + j];
+    const between = tss[j] - within;
+    const dfb = present.length - 1;
+    const dfw = rows - present.length;
+    out[j] = (between / dfb) / (within / dfw);
+  }
+  return out;
+}
+
+export const select: TransformImpl<SelectParams> = {
+  fit(X, y, classCount, step: { top: number; by: 't-test' | 'f-test' | 'variance' }) {
+    const scores = featureScores(X, y, classCount, step.by);
+    const order = Array.from(scores.keys()).sort((a, b) => {
+      const sa = Number.isFinite(scores[a]) ? scores[a] : -Infinity;
+      const sb = Number.isFinite(scores[b]) ? scores[b] : -Infinity;
+      return sb - sa || a - b;
+    });
+    const keep = order.slice(0, step.top).sort((a, b) => a - b);
+    return { keep, scores: Array.from(scores, (s) => (Number.isFinite(s) ? s : null)) };
+  },
+  apply(p, X) {
+    return takeCols(X, Int32Array.from(p.keep));
+  },
+  columns(p, names) {
+    return p.keep.map((j) => names[j]);
+  },
+};

@@ -1,0 +1,54 @@
+/** results.json: the plain data of one run (the signed manifest wraps it). Pure. */
+import type { Problem } from '../problems/problem.js';
+import { isPinned, type Protocol } from '../protocol/types.js';
+import type { Assignment } from '../split/assignment.js';
+import type { Table } from '../table/table.js';
+import type { CvResult } from './cross-validate.js';
+
+export const RESULTS_VERSION = 1;
+
+export interface ResultsInput {
+  protocol: Protocol;
+  protocolSha256: string;
+  dataSha256: string;
+  table: Table;
+  assignment: Assignment;
+  assignmentSha256: string;
+  cv: CvResult;
+  files: Record<string, string>;
+  warnings: Problem[];
+}
+
+export function buildResults(r: ResultsInput): Record<string, unknown> {
+  const { protocol: p, table, cv } = r;
+  const counts = new Array<number>(table.classes.length).fill(0);
+  for (const c of table.y) counts[c]++;
+  const split = isPinned(p.split)
+    ? { version: r.assignment.version, pinned: p.split.pinned.file, 'pinned-sha256': p.split.pinned.sha256 }
+    : { version: r.assignment.version, rule: p.split.rule, seed: p.split.seed ?? null, assign: p.split.assign, ...(p.split.rule === 'holdout' ? { 'test-fraction': p.split.testFraction } : {}) };
+  return {
+    'foldseal-results': RESULTS_VERSION,
+    protocol: { name: p.name, sha256: r.protocolSha256 },
+    data: { sha256: r.dataSha256, rows: table.ids.length, features: table.featureNames, classes: table.classes, 'class-counts': counts },
+    split: { ...split, folds: r.assignment.folds, repeats: r.assignment.repeats, 'assignment-sha256': r.assignmentSha256 },
+    model: { kind: p.model.kind, options: p.model.options },
+    preprocess: p.preprocess.map((s) => s.step),
+    classes: cv.classes,
+    positive: cv.classes[cv.positive],
+    metrics: cv.metricNames,
+    folds: cv.folds.map((f) => ({
+      repeat: f.repeat,
+      fold: f.fold,
+      'train-rows': f.trainRows,
+      'test-rows': f.testRows,
+      'test-class-counts': f.testClassCounts,
+      metrics: f.metrics,
+      'baseline-accuracy': f.baselineAccuracy,
+      confusion: f.confusion,
+    })),
+    summary: Object.fromEntries(Object.entries(cv.summary).map(([m, s]) => [m, { mean: s.mean, sd: s.sd, pooled: s.pooled, 'undefined-folds': s.undefinedFolds }])),
+    baseline: { 'accuracy-mean': cv.baseline.mean, 'accuracy-pooled': cv.baseline.pooled, 'largest-class-share': cv.baseline.largestClassShare },
+    files: r.files,
+    warnings: r.warnings.map((w) => w.message),
+  };
+}
