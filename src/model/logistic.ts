@@ -2,8 +2,9 @@
  * L2-regularized logistic regression. Objective: Σ_i −log p(y_i | x_i) + (l2 / 2)·‖W‖², the
  * intercepts unpenalized. Two classes: one weight vector (sigmoid); more: one per class
  * (softmax), the last intercept fixed at 0 (it is not identifiable). Solver: Newton's method
- * with backtracking line search, deterministic, stopped when the largest absolute gradient
- * component is below `tolerance`.
+ * with backtracking line search, deterministic, stopped when the largest absolute component of the
+ * gradient of the mean loss (objective / rows) is below `tolerance` (default 1e-10) — then one more
+ * step is taken — or when no step lowers the objective any further (the floating-point floor).
  */
 import { choleskySolve } from './linalg.js';
 import { FitError, classCounts, type ModelImpl } from './types.js';
@@ -22,7 +23,7 @@ const MAX_PARAMETERS = 1200;
 export const logistic: ModelImpl<LogisticParams> = {
   fit(X, y, options, { classCount }) {
     const l2 = (options.l2 as number | undefined) ?? 1;
-    const tolerance = (options.tolerance as number | undefined) ?? 1e-8;
+    const tolerance = (options.tolerance as number | undefined) ?? 1e-10;
     const maxIterations = (options['max-iterations'] as number | undefined) ?? 200;
     const counts = classCounts(y, classCount);
     const present = Array.from(counts.keys()).filter((c) => counts[c] > 0);
@@ -39,13 +40,17 @@ export const logistic: ModelImpl<LogisticParams> = {
     const theta = new Float64Array(blocks * width);
     const objective = (t: Float64Array) => lossGradHess(X, yl, C, t, l2, false).loss;
     let iterations = 0;
+    let polished = false;
     for (;;) {
       const { loss, grad, hess } = lossGradHess(X, yl, C, theta, l2, true);
       const g = pack(grad, blocks, width, C);
       let gmax = 0;
       for (let i = 0; i < g.length; i++) gmax = Math.max(gmax, Math.abs(g[i]));
-      if (gmax < tolerance) break;
-      if (iterations >= maxIterations) throw new FitError('logistic-no-convergence', `logistic did not reach gradient tolerance ${tolerance} in ${maxIterations} Newton steps (largest gradient ${gmax.toExponential(3)})`, l2 === 0 ? 'the classes may be separable; set model.options.l2 above 0' : 'raise max-iterations or tolerance');
+      // The tolerance applies to the gradient of the mean loss, so it means the same for 100 rows as for 100,000.
+      // Once within tolerance, one more Newton step: convergence is quadratic, so it costs one
+      // iteration and lands at the floating-point floor instead of just inside the tolerance.
+      if (gmax / X.rows < tolerance) { if (polished) break; polished = true; }
+      if (iterations >= maxIterations) throw new FitError('logistic-no-convergence', `logistic did not reach gradient tolerance ${tolerance} in ${maxIterations} Newton steps (largest mean-loss gradient ${(gmax / X.rows).toExponential(3)})`, l2 === 0 ? 'the classes may be separable; set model.options.l2 above 0' : 'raise max-iterations or tolerance');
       const h = packHessian(hess!, blocks, width, C, dim);
       // A tiny ridge keeps the step defined when l2 = 0 and the Hessian is near singular.
       let step = choleskySolve(h, g, dim);
@@ -59,11 +64,17 @@ export const logistic: ModelImpl<LogisticParams> = {
       const candidate = new Float64Array(theta.length);
       let slope = 0;
       for (let i = 0; i < dim; i++) slope += g[i] * step[i];
-      for (let tries = 0; tries < 60; tries++) {
+      let decreased = false;
+      // Inside the tolerance the full Newton step is taken as is: the loss change is then below
+      // rounding, so a line search could not tell a good step from a bad one.
+      if (polished) { unpack(theta, step, -1, candidate, blocks, width, C); decreased = true; }
+      for (let tries = 0; tries < 60 && !decreased; tries++) {
         unpack(theta, step, -t, candidate, blocks, width, C);
-        if (objective(candidate) <= loss - 1e-4 * t * slope) break;
+        if (objective(candidate) <= loss - 1e-4 * t * slope) { decreased = true; break; }
         t /= 2;
       }
+      // No step lowers the loss any more: we are at the floating-point floor of the optimum.
+      if (!decreased) break;
       theta.set(candidate);
       iterations++;
     }

@@ -1,0 +1,14 @@
+#!/usr/bin/env python3
+"""Writes breast-cancer.csv from scikit-learn's bundled copy of the Wisconsin Diagnostic
+Breast Cancer data (Street, Wolberg & Mangasarian 1993; UCI), as shipped by Debian's
+python3-sklearn. Run with Debian's interpreter: /usr/bin/python3 make-breast-cancer.py"""
+import os
+from sklearn.datasets import load_breast_cancer
+
+d = load_breast_cancer()
+here = os.path.dirname(os.path.abspath(__file__))
+names = [n.replace(" ", "_") for n in d.feature_names]
+with open(os.path.join(here, "breast-cancer.csv"), "w") as f:
+    f.write(",".join(["id"] + names + ["diagnosis"]) + "\n")
+    for i, (row, t) in enumerate(zip(d.data, d.target)):
+        f.write(",".join([f"bc-{i + 1:04d}"] + [repr(float(v)) for v in row] + [d.target_names[t]]) + "\n")

@@ -1,0 +1,228 @@
+#!/usr/bin/env python3
+"""Outside reference for foldseal's runner: the same folds (exported by `foldseal folds`),
+the same data, fitted and scored with scikit-learn (Debian's python3-sklearn 1.2.1), SciPy
+and NumPy. Writes one JSON fixture per case of cases.json.
+
+Usage: /usr/bin/python3 sklearn_reference.py CASES.json FOLDS_DIR OUT_DIR
+
+Mapping of foldseal's steps to the reference (scikit-learn's own names stay in this file):
+  standardize           StandardScaler()
+  log2p                 FunctionTransformer(lambda x: np.log2(x + 1))
+  impute {by}           SimpleImputer(strategy=by)
+  select f-test         SelectKBest(f_classif, k=top)
+  select t-test         SelectKBest(|scipy.stats.ttest_ind(equal_var=False)|, k=top)
+  select variance       SelectKBest(column variance, k=top)
+  gaussian-nb           GaussianNB(var_smoothing=1e-9)
+  multinomial-nb        MultinomialNB(alpha=smoothing)
+  bernoulli-nb          BernoulliNB(alpha=smoothing, binarize=threshold)
+  logistic              LogisticRegression(C=1/l2, solver="newton-cg", tol=1e-10, max_iter=10000)
+  knn                   KNeighborsClassifier(n_neighbors=k, algorithm="brute")
+  shrunken-centroid     NumPy transcription of Tibshirani et al. (2002), PNAS 99:6567, eqs. 1-6
+"""
+import json
+import os
+import sys
+
+import numpy as np
+import pandas as pd
+from scipy import stats
+from sklearn.feature_selection import SelectKBest, f_classif
+from sklearn.impute import SimpleImputer
+from sklearn.linear_model import LogisticRegression
+from sklearn.metrics import (accuracy_score, average_precision_score, balanced_accuracy_score, brier_score_loss,
+                             cohen_kappa_score, f1_score, log_loss, matthews_corrcoef, precision_score, recall_score,
+                             roc_auc_score)
+from sklearn.naive_bayes import BernoulliNB, GaussianNB, MultinomialNB
+from sklearn.neighbors import KNeighborsClassifier
+from sklearn.preprocessing import FunctionTransformer, StandardScaler
+
+HERE = os.path.dirname(os.path.abspath(__file__))
+
+
+def welch_scores(X, y):
+    a, b = np.unique(y)
+    t, _ = stats.ttest_ind(X[y == a], X[y == b], equal_var=False)
+    return np.abs(t)
+
+
+def variance_scores(X, y):
+    return X.var(axis=0)
+
+
+class ShrunkenCentroids:
+    """Tibshirani, Hastie, Narasimhan & Chu (2002): d_kj = (xbar_kj - xbar_j) / (m_k (s_j + s0)),
+    soft-thresholded by delta; discriminant sum_j (x_j - xbar'_kj)^2/(s_j+s0)^2 - 2 log pi_k;
+    probabilities proportional to exp(-discriminant/2)."""
+
+    def __init__(self, shrink):
+        self.shrink = shrink
+
+    def fit(self, X, y):
+        self.classes_ = np.unique(y)
+        n, K = len(y), len(self.classes_)
+        overall = X.mean(axis=0)
+        means = np.array([X[y == c].mean(axis=0) for c in self.classes_])
+        within = sum(((X[y == c] - means[i]) ** 2).sum(axis=0) for i, c in enumerate(self.classes_))
+        s = np.sqrt(within / (n - K))
+        scale = s + np.median(s)
+        nk = np.array([(y == c).sum() for c in self.classes_])
+        m = np.sqrt(1 / nk - 1 / n)
+        d = (means - overall) / (m[:, None] * scale)
+        d = np.sign(d) * np.maximum(np.abs(d) - self.shrink, 0)
+        self.centroids = overall + m[:, None] * scale * d
+        self.scale = scale
+        self.log_prior = np.log(nk / n)
+        return self
+
+    def predict_proba(self, X):
+        delta = np.array([(((X - c) / self.scale) ** 2).sum(axis=1) - 2 * lp for c, lp in zip(self.centroids, self.log_prior)]).T
+        z = -delta / 2
+        z -= z.max(axis=1, keepdims=True)
+        e = np.exp(z)
+        return e / e.sum(axis=1, keepdims=True)
+
+
+class PolishedLogistic:
+    """scikit-learn's LogisticRegression, then (two classes only) three exact Newton steps in
+    NumPy on the same objective 0.5*||w||^2 + C * sum(log-loss): newton-cg stalls at a
+    gradient near 1e-8, which moves probabilities by ~1e-8 and would hide real differences."""
+
+    def __init__(self, C):
+        self.inner = LogisticRegression(C=C, solver="newton-cg", tol=1e-10, max_iter=10000)
+        self.C = C
+
+    def fit(self, X, y):
+        import warnings
+        from sklearn.exceptions import ConvergenceWarning
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", ConvergenceWarning)  # polished below, then compared at 1e-9
+            self.inner.fit(X, y)
+        self.classes_ = self.inner.classes_
+        if len(self.classes_) == 2:
+            t = (y == self.classes_[1]).astype(float)
+            Z = np.hstack([X, np.ones((len(X), 1))])
+            theta = np.append(self.inner.coef_[0], self.inner.intercept_[0])
+            ridge = np.append(np.ones(X.shape[1]), 0.0)
+            for _ in range(3):
+                p = 1 / (1 + np.exp(-Z @ theta))
+                g = self.C * Z.T @ (p - t) + ridge * theta
+                H = self.C * (Z * (p * (1 - p))[:, None]).T @ Z + np.diag(ridge)
+                theta = theta - np.linalg.solve(H, g)
+            self.theta = theta
+        return self
+
+    def predict_proba(self, X):
+        if len(self.classes_) != 2:
+            return self.inner.predict_proba(X)
+        p = 1 / (1 + np.exp(-(X @ self.theta[:-1] + self.theta[-1])))
+        return np.column_stack([1 - p, p])
+
+
+def make_step(step):
+    if step == "standardize":
+        return StandardScaler()
+    if step == "log2p":
+        return FunctionTransformer(lambda x: np.log2(x + 1))
+    if "impute" in step:
+        return SimpleImputer(strategy=step["impute"]["by"])
+    sel = step["select"]
+    score = {"f-test": f_classif, "t-test": welch_scores, "variance": variance_scores}[sel["by"]]
+    return SelectKBest(score, k=sel["top"])
+
+
+def make_model(model):
+    kind, o = model["kind"], model.get("options", {})
+    if kind == "gaussian-nb":
+        return GaussianNB(var_smoothing=o.get("variance-floor", 1e-9))
+    if kind == "multinomial-nb":
+        return MultinomialNB(alpha=o.get("smoothing", 1.0))
+    if kind == "bernoulli-nb":
+        return BernoulliNB(alpha=o.get("smoothing", 1.0), binarize=o.get("threshold", 0.0))
+    if kind == "logistic":
+        return PolishedLogistic(C=1.0 / o.get("l2", 1.0))
+    if kind == "knn":
+        return KNeighborsClassifier(n_neighbors=o.get("k", 5), algorithm="brute")
+    if kind == "shrunken-centroid":
+        return ShrunkenCentroids(o.get("shrink", 0.0))
+    raise ValueError(kind)
+
+
+def score(names, y, P, classes, positive):
+    pred = classes[P.argmax(axis=1)]
+    binary = len(classes) == 2
+    pos_col = list(classes).index(positive)
+    avg = dict(average="binary", pos_label=positive) if binary else dict(average="macro")
+    onehot = (y[:, None] == classes[None, :]).astype(float)
+    out = {}
+    for m in names:
+        if m == "accuracy":
+            v = accuracy_score(y, pred)
+        elif m == "balanced-accuracy":
+            v = balanced_accuracy_score(y, pred)
+        elif m == "precision":
+            v = precision_score(y, pred, zero_division=0, **avg)
+        elif m == "recall":
+            v = recall_score(y, pred, zero_division=0, **avg)
+        elif m == "f1":
+            v = f1_score(y, pred, zero_division=0, **avg)
+        elif m == "mcc":
+            v = matthews_corrcoef(y, pred)
+        elif m == "kappa":
+            v = cohen_kappa_score(y, pred)
+        elif m == "roc-auc":
+            v = roc_auc_score(y == positive, P[:, pos_col]) if binary else roc_auc_score(y, P, multi_class="ovr", average="macro", labels=classes)
+        elif m == "average-precision":
+            v = average_precision_score(y == positive, P[:, pos_col]) if binary else np.mean([average_precision_score(onehot[:, c], P[:, c]) for c in range(len(classes))])
+        elif m == "log-loss":
+            v = log_loss(y, P, labels=classes)
+        elif m == "brier":
+            v = brier_score_loss(y == positive, P[:, pos_col]) if binary else np.mean(((P - onehot) ** 2).sum(axis=1))
+        out[m] = float(v)
+    return out
+
+
+def run_case(case, folds_dir):
+    df = pd.read_csv(os.path.join(HERE, case["data"]), dtype={"id": str}, keep_default_na=False, na_values=["", "NA", "NaN"], float_precision="round_trip")
+    ids = df["id"].to_numpy()
+    y = df[case["label"]].to_numpy().astype(str)
+    feature_names = [c for c in df.columns if c not in ("id", case["label"])]
+    X = df[feature_names].to_numpy(dtype=float)
+    classes = np.unique(y)
+    positive = case.get("positive", classes[-1])
+    folds = pd.read_csv(os.path.join(folds_dir, case["name"] + ".folds.csv"), dtype={"id": str})
+    result = {"case": case["name"], "reference": "scikit-learn " + __import__("sklearn").__version__, "classes": list(classes), "folds": [], "pooled": []}
+    for rep in sorted(folds["repeat"].unique()):
+        f_of = dict(zip(folds[folds["repeat"] == rep]["id"], folds[folds["repeat"] == rep]["fold"]))
+        fold = np.array([f_of[i] for i in ids])
+        oof = np.full((len(ids), len(classes)), np.nan)
+        for k in sorted(np.unique(fold)):
+            test, train = fold == k, fold != k
+            Xtr, Xte, names = X[train], X[test], np.array(feature_names)
+            for step in case["preprocess"]:
+                t = make_step(step)
+                Xtr = t.fit_transform(Xtr, y[train])
+                Xte = t.transform(Xte)
+                if isinstance(t, SelectKBest):
+                    names = names[t.get_support()]
+            model = make_model(case["model"]).fit(Xtr, y[train])
+            P = model.predict_proba(Xte)
+            oof[test] = P
+            order = np.argsort(ids[test], kind="stable")
+            result["folds"].append({
+                "repeat": int(rep), "fold": int(k),
+                "ids": [str(i) for i in ids[test][order]],
+                "proba": P[order].tolist(),
+                "features": [str(n) for n in names],
+                "metrics": score(case["metrics"], y[test], P, classes, positive),
+            })
+        result["pooled"].append(score(case["metrics"], y, oof, classes, positive))
+    return result
+
+
+if __name__ == "__main__":
+    cases_path, folds_dir, out_dir = sys.argv[1:4]
+    os.makedirs(out_dir, exist_ok=True)
+    for case in json.load(open(cases_path)):
+        with open(os.path.join(out_dir, case["name"] + ".json"), "w") as f:
+            json.dump(run_case(case, folds_dir), f, indent=1)
+            f.write("\n")
