@@ -9,7 +9,6 @@ import { reportProblems } from './report-problems.js';
 export async function main(argv: string[]): Promise<ExitCode> {
   let code: ExitCode = 0;
   const program = buildProgram(processIo, (c) => { code = c; });
-  program.exitOverride();
   try {
     await program.parseAsync(argv, { from: 'user' });
     return code;

@@ -14,7 +14,9 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .version(packageVersion(), '-V, --version', 'print the foldseal version')
     .helpOption('-h, --help', 'show help')
     .showSuggestionAfterError(true)
-    .configureOutput({ writeOut: (s) => io.out(s), writeErr: (s) => io.err(s) });
+    .configureOutput({ writeOut: (s) => io.out(s), writeErr: (s) => io.err(s) })
+    // Set before the subcommands are added so they inherit it: main maps commander's exits to ours.
+    .exitOverride();
 
   const formatOption = () => new Option('--format <format>', 'output format').choices(['text', 'json']).default('text');
 

@@ -23,7 +23,7 @@ function collapse(errors: readonly Err[]): Err[] {
   const wrappers = errors.filter((e) => e.keyword === 'oneOf');
   const dropped = new Set<Err>();
   for (const w of wrappers) {
-    const inside = errors.filter((e) => e !== w && e.schemaPath.startsWith(w.schemaPath + '/'));
+    const inside = errors.filter((e) => e !== w && e.schemaPath.startsWith(w.schemaPath + '/') && (e.instancePath === w.instancePath || e.instancePath.startsWith(w.instancePath + '/')));
     const branches = (w.schema as Record<string, unknown>[]) ?? [];
     const value = w.data;
     const fit = branches.findIndex((b) => branchFits(b, value));

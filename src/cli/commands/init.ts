@@ -1,4 +1,4 @@
-import { writeFile } from 'node:fs/promises';
+import { mkdir, writeFile } from 'node:fs/promises';
 import { basename, dirname, extname, relative, resolve } from 'node:path';
 import { error, hasErrors } from '../../problems/problem.js';
 import { FoldsealError } from '../../problems/problem.js';
@@ -47,6 +47,7 @@ export async function initCommand(args: InitArgs, io: CommandIo): Promise<ExitCo
     // A fixed seed derived from the data hash: reproducible, and not chosen after seeing scores.
     seed: parseInt(read.sha256!.slice(0, 8), 16),
   });
+  await mkdir(dirname(out), { recursive: true });
   try {
     await writeFile(out, text, { flag: args.force ? 'w' : 'wx' });
   } catch (e) {

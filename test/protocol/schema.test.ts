@@ -1,0 +1,33 @@
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import t from 'tap';
+import { protocolReference } from '../../src/protocol/reference-doc.js';
+import { readSchema } from '../../src/protocol/schema.js';
+import { root } from '../helpers.js';
+
+type S = Record<string, any>;
+const schema = readSchema('protocol.schema.json');
+
+function objects(s: S, path: string, out: [string, S][]): [string, S][] {
+  if (s && typeof s === 'object') {
+    if (s.type === 'object' && s.properties) out.push([path, s]);
+    for (const [k, v] of Object.entries(s)) if (v && typeof v === 'object') objects(v as S, `${path}/${k}`, out);
+  }
+  return out;
+}
+
+t.test('the protocol schema is draft 2020-12 with an $id', async (t) => {
+  t.equal(schema.$schema, 'https://json-schema.org/draft/2020-12/schema');
+  t.match(schema.$id as string, /^https:\/\//);
+});
+
+t.test('every mapping is closed and every property has a description', async (t) => {
+  for (const [path, s] of objects(schema, '#', [])) {
+    t.equal(s.additionalProperties, false, `${path} closes additionalProperties`);
+    for (const [name, p] of Object.entries(s.properties as Record<string, S>)) t.ok(typeof p.description === 'string' && p.description.length > 10, `${path}/${name} has a description`);
+  }
+});
+
+t.test('docs/protocol.md is generated from the schema and up to date (npm run docs)', async (t) => {
+  t.equal(readFileSync(join(root, 'docs', 'protocol.md'), 'utf8'), protocolReference(schema));
+});
