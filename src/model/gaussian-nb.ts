@@ -32,15 +32,20 @@ export const gaussianNb: ModelImpl<GaussianNbParams> = {
       const b = r * cols;
       for (let j = 0; j < cols; j++) { const d = data[b + j] - mean[o + j]; ss[o + j] += d * d; }
     }
-    // Largest feature variance over the whole training part (two-pass for accuracy).
+    // Largest feature variance of the training part, from the class statistics:
+    // total sum of squares = within-class + between-class (saves two passes over the rows).
     let largest = 0;
     for (let j = 0; j < cols; j++) {
-      let m = 0;
-      for (let r = 0; r < rows; r++) m += data[r * cols + j];
-      m /= rows;
-      let v = 0;
-      for (let r = 0; r < rows; r++) { const d = data[r * cols + j] - m; v += d * d; }
-      largest = Math.max(largest, v / rows);
+      let total = 0;
+      for (let c = 0; c < classCount; c++) total += sum[c * cols + j];
+      const overall = total / rows;
+      let spread = 0;
+      for (let c = 0; c < classCount; c++) {
+        if (n[c] === 0) continue;
+        const d = mean[c * cols + j] - overall;
+        spread += ss[c * cols + j] + n[c] * d * d;
+      }
+      largest = Math.max(largest, spread / rows);
     }
     const epsilon = floor * largest;
     const logPrior: (number | null)[] = [];

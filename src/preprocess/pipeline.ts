@@ -26,14 +26,15 @@ export function fitPipeline(steps: readonly PreprocessStep[], X: Matrix, y: Int3
     if (impl.columns) columns = impl.columns(params, columns);
     fitted.push({ step, params });
   }
-  assertFinite(current, columns);
+  // Validation already guarantees finite (or imputed) input; only transforms can create non-finite values.
+  if (steps.length) assertFinite(current, columns);
   return { pipeline: { steps: fitted, columns }, X: current };
 }
 
 export function applyPipeline(p: FittedPipeline, X: Matrix): Matrix {
   let current = X;
   for (const s of p.steps) current = transforms[s.step.step].apply(s.params, current);
-  assertFinite(current, p.columns);
+  if (p.steps.length) assertFinite(current, p.columns);
   return current;
 }
 

@@ -13,41 +13,43 @@ export function featureScores(X: { rows: number; cols: number; data: Float64Arra
   const { rows, cols, data } = X;
   const n = new Float64Array(classCount);
   for (let r = 0; r < rows; r++) n[y[r]]++;
-  const sum = new Float64Array(classCount * cols);
-  const total = new Float64Array(cols);
+  const mean = new Float64Array(classCount * cols);
   for (let r = 0; r < rows; r++) {
     const o = y[r] * cols;
-    for (let j = 0; j < cols; j++) { const v = data[r * cols + j]; sum[o + j] += v; total[j] += v; }
+    const b = r * cols;
+    for (let j = 0; j < cols; j++) mean[o + j] += data[b + j];
   }
-  const ss = new Float64Array(classCount * cols); // within-class sum of squares per class
-  const tss = new Float64Array(cols);
+  const overall = new Float64Array(cols);
+  for (let c = 0; c < classCount; c++) {
+    const o = c * cols;
+    for (let j = 0; j < cols; j++) overall[j] += mean[o + j];
+    if (n[c] > 0) for (let j = 0; j < cols; j++) mean[o + j] /= n[c];
+  }
+  for (let j = 0; j < cols; j++) overall[j] /= rows;
+  // Within-class sums of squares (two-pass, around the class means).
+  const ss = new Float64Array(classCount * cols);
   for (let r = 0; r < rows; r++) {
-    const c = y[r];
-    for (let j = 0; j < cols; j++) {
-      const v = data[r * cols + j];
-      const d = v - sum[c * cols + j] / n[c];
-      ss[c * cols + j] += d * d;
-      const e = v - total[j] / rows;
-      tss[j] += e * e;
-    }
+    const o = y[r] * cols;
+    const b = r * cols;
+    for (let j = 0; j < cols; j++) { const d = data[b + j] - mean[o + j]; ss[o + j] += d * d; }
   }
-  const out = new Float64Array(cols);
   const present = Array.from(n.keys()).filter((c) => n[c] > 0);
+  const out = new Float64Array(cols);
   for (let j = 0; j < cols; j++) {
-    if (by === 'variance') { out[j] = tss[j] / rows; continue; }
-    if (by === 't-test') {
+    let within = 0;
+    let between = 0;
+    for (const c of present) {
+      within += ss[c * cols + j];
+      const d = mean[c * cols + j] - overall[j];
+      between += n[c] * d * d;
+    }
+    if (by === 'variance') out[j] = (within + between) / rows;
+    else if (by === 't-test') {
       const [a, b] = present;
       const va = ss[a * cols + j] / (n[a] - 1) / n[a];
       const vb = ss[b * cols + j] / (n[b] - 1) / n[b];
-      out[j] = Math.abs(sum[a * cols + j] / n[a] - sum[b * cols + j] / n[b]) / Math.sqrt(va + vb);
-      continue;
-    }
-    let within = 0;
-    for (const c of present) within += ss[c * cols + j];
-    const between = tss[j] - within;
-    const dfb = present.length - 1;
-    const dfw = rows - present.length;
-    out[j] = (between / dfb) / (within / dfw);
+      out[j] = Math.abs(mean[a * cols + j] - mean[b * cols + j]) / Math.sqrt(va + vb);
+    } else out[j] = (between / (present.length - 1)) / (within / (rows - present.length));
   }
   return out;
 }

@@ -46,8 +46,8 @@ export function buildTable(t: DelimitedTable, roles: DataRoles, file: string, lo
   const problems: Problem[] = [];
   const columnIndex = new Map<string, number>();
   t.header.forEach((h, i) => { if (!columnIndex.has(h)) columnIndex.set(h, i); });
-  const duplicated = t.header.filter((h, i) => t.header.indexOf(h) !== i);
-  for (const d of [...new Set(duplicated)]) problems.push(error('data-duplicate-column', `column "${d}" appears more than once in the header`, { file, position: { line: 1, col: 1 } }));
+  const duplicated = new Set(t.header.filter((h, i) => columnIndex.get(h) !== i));
+  for (const d of duplicated) problems.push(error('data-duplicate-column', `column "${d}" appears more than once in the header`, { file, position: { line: 1, col: 1 } }));
   if (t.rows === 0) {
     problems.push(error('data-no-rows', 'the data file has a header but no data rows', { file, position: { line: 1, col: 1 } }));
     return { problems };
@@ -120,10 +120,12 @@ export function buildTable(t: DelimitedTable, roles: DataRoles, file: string, lo
   const cols = featureCols.length;
   const data = new Float64Array(rows * cols);
   let bad = 0;
-  for (let j = 0; j < cols; j++) {
-    const c = featureCols[j];
-    for (let r = 0; r < rows; r++) {
-      const k = r * t.cols + c;
+  // Row by row, so the bytes are read in file order.
+  for (let r = 0; r < rows; r++) {
+    const base = r * t.cols;
+    for (let j = 0; j < cols; j++) {
+      const c = featureCols[j];
+      const k = base + c;
       let v = parseNumberBytes(t.bytes, t.starts[k], t.ends[k]);
       if (v !== v) {
         const text = new TextDecoder().decode(t.bytes.subarray(t.starts[k], t.ends[k]));

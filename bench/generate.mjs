@@ -1,0 +1,43 @@
+#!/usr/bin/env node
+// Writes the benchmark tables (synthetic, seeded) and their protocols into bench/out/:
+//   a) 100,000 rows × 50 features, 2 classes  — stratified 10-fold, gaussian-nb
+//   b) 200 rows × 20,000 features, 2 classes  — 10 × repeated stratified 5-fold,
+//      standardize + top-100 f-test + gaussian-nb
+import { createHash } from 'node:crypto';
+import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+
+const out = join(new URL('.', import.meta.url).pathname, 'out');
+mkdirSync(out, { recursive: true });
+
+function generator(seed) {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+function table(name, rows, cols, informative, seed) {
+  const rand = generator(seed);
+  const normal = () => Math.sqrt(-2 * Math.log(1 - rand())) * Math.cos(2 * Math.PI * rand());
+  const lines = ['id,' + Array.from({ length: cols }, (_, j) => `f${j + 1}`).join(',') + ',class'];
+  for (let r = 0; r < rows; r++) {
+    const c = rand() < 0.4 ? 1 : 0;
+    const cells = new Array(cols);
+    for (let j = 0; j < cols; j++) cells[j] = (normal() + (j < informative ? 0.8 * c : 0)).toFixed(4);
+    lines.push(`s${r + 1},${cells.join(',')},${c ? 'case' : 'control'}`);
+  }
+  const file = join(out, `${name}.csv`);
+  writeFileSync(file, lines.join('\n') + '\n');
+  return createHash('sha256').update(readFileSync(file)).digest('hex');
+}
+
+const a = table('a-100k-x50', 100000, 50, 10, 1);
+writeFileSync(join(out, 'a.yaml'), `foldseal: 1\nname: bench-a\ndata: {file: a-100k-x50.csv, sha256: "${a}", id: id, label: class}\nsplit: {rule: stratified-kfold, folds: 10, seed: 1}\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy, roc-auc, log-loss]\n`);
+const b = table('b-200-x20000', 200, 20000, 50, 2);
+writeFileSync(join(out, 'b.yaml'), `foldseal: 1\nname: bench-b\ndata: {file: b-200-x20000.csv, sha256: "${b}", id: id, label: class}\nsplit: {rule: stratified-kfold, folds: 5, repeats: 10, seed: 2}\npreprocess: [standardize, {select: {top: 100, by: f-test}}]\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy, roc-auc, log-loss]\n`);
+console.log(`wrote ${out}`);

@@ -1,0 +1,35 @@
+#!/usr/bin/env node
+// Times `foldseal run` against the reference library on the same generated files, in the same
+// run, and prints the ratio foldseal / reference (lower is better; target ≤ 0.3). Each side is a
+// whole process (start-up, reading the file, the folds, writing predictions); best of 3.
+import { execFileSync, spawnSync } from 'node:child_process';
+import { existsSync, mkdtempSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+
+const here = new URL('.', import.meta.url).pathname;
+const out = join(here, 'out');
+if (!existsSync(join(out, 'b.yaml'))) execFileSync(process.execPath, [join(here, 'generate.mjs')], { stdio: 'inherit' });
+const bin = join(here, '..', 'dist', 'src', 'cli', 'main.js');
+const python = '/usr/bin/python3';
+
+function time(cmd, args) {
+  let best = Infinity;
+  for (let i = 0; i < 3; i++) {
+    const start = process.hrtime.bigint();
+    const r = spawnSync(cmd, args, { encoding: 'utf8' });
+    const seconds = Number(process.hrtime.bigint() - start) / 1e9;
+    if (r.status !== 0) throw new Error(`${cmd} ${args.join(' ')} failed:\n${r.stderr}`);
+    best = Math.min(best, seconds);
+  }
+  return best;
+}
+
+const scratch = mkdtempSync(join(tmpdir(), 'foldseal-bench-'));
+const rows = [];
+for (const [name, file, label] of [['a', 'a-100k-x50.csv', '100,000 × 50, stratified 10-fold, gaussian-nb'], ['b', 'b-200-x20000.csv', '200 × 20,000, 10 × 5-fold, standardize + top-100 f-test + gaussian-nb']]) {
+  const ours = time(process.execPath, [bin, 'run', join(out, `${name}.yaml`), '--out', join(scratch, name), '--force']);
+  const theirs = time(python, [join(here, 'reference.py'), name, join(out, file), join(scratch, `${name}-ref.csv`)]);
+  rows.push({ name, label, ours, theirs, ratio: ours / theirs });
+}
+for (const r of rows) console.log(`(${r.name}) ${r.label}: foldseal ${r.ours.toFixed(2)} s, reference ${r.theirs.toFixed(2)} s, ratio ${r.ratio.toFixed(2)}`);
