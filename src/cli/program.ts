@@ -1,12 +1,14 @@
 /** Command-line surface: names, options and help text. Each action calls a typed command function. */
 import { Command, Option } from 'commander';
 import { packageVersion } from '../util/package-root.js';
+import { applyCommand } from './commands/apply.js';
 import { foldsCommand } from './commands/folds.js';
 import { hashCommand } from './commands/hash.js';
 import { initCommand } from './commands/init.js';
 import { runCommand } from './commands/run.js';
 import { validateCommand } from './commands/validate.js';
 import type { CommandIo, ExitCode } from './io.js';
+import type { ReconcileRule, TieRule } from '../protocol/types.js';
 
 export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Command {
   const program = new Command('foldseal')
@@ -61,8 +63,20 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .argument('<protocol>', 'protocol YAML file')
     .option('--out <dir>', 'results folder (default: results/<protocol name>)')
     .option('--force', 'replace an existing results folder')
+    .option('--refit', 'also fit one model on every labeled row and save it in models.json')
     .addHelpText('after', '\nExample:\n  foldseal run protocols/demo.yaml --out results/demo\n\nThe folder is written to a temporary sibling and renamed at the end, so it is never half-written.')
-    .action(async (protocol: string, o: { out?: string; force?: boolean }) => done(await runCommand({ protocol, ...o }, io)));
+    .action(async (protocol: string, o: { out?: string; force?: boolean; refit?: boolean }) => done(await runCommand({ protocol, ...o }, io)));
+
+  program
+    .command('apply')
+    .description('predict a table of new rows with the saved fold models of a results folder')
+    .argument('<results-dir>', 'folder written by foldseal run')
+    .argument('<table>', 'CSV or TSV with the id column and the feature columns')
+    .option('--out <file>', 'write the predictions here instead of stdout')
+    .addOption(new Option('--rule <rule>', 'reconcile rule (default: the protocol\'s)').choices(['mean-probability', 'majority-vote', 'refit']))
+    .addOption(new Option('--tie <rule>', 'tie rule for majority-vote').choices(['mean-probability', 'abstain', 'class-order']))
+    .addHelpText('after', '\nExamples:\n  foldseal apply results/demo protocols/data/seedlings-new.csv --out applied.csv\n  foldseal apply results/demo new.csv --rule majority-vote --tie abstain --out voted.csv\n\nmodels.json and predictions.csv are checked against the hashes in results.json first.')
+    .action(async (results: string, table: string, o: { out?: string; rule?: ReconcileRule; tie?: TieRule }) => done(await applyCommand({ results, table, ...o }, io)));
 
   return program;
 }

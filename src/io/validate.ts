@@ -11,7 +11,9 @@ import { checkAgainstData } from '../protocol/semantic.js';
 import { isPinned, type Protocol } from '../protocol/types.js';
 import type { Assignment } from '../split/assignment.js';
 import { tableFromBytes } from '../table/load.js';
+import { knownColumns } from '../protocol/known-columns.js';
 import type { Table } from '../table/table.js';
+import { newRowsFromBytes, type NewRows } from '../table/new-rows.js';
 import { fileProblem, readBytes } from './files.js';
 
 export interface ValidationReport extends ParsedProtocol {
@@ -20,6 +22,7 @@ export interface ValidationReport extends ParsedProtocol {
   table?: Table;
   dataSha256?: string;
   assignment?: Assignment;
+  newRows?: NewRows;
   /** Absolute paths of the files the protocol names. */
   paths?: { data: string; pinned?: string; newRows?: string };
 }
@@ -66,12 +69,13 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
     if (pin.problem) problems.push(pin.problem);
     else pinned = { bytes: pin.bytes!, sha256: pin.sha256!, shownAs: shown(paths.pinned) };
   }
+  let newRowBytes: Uint8Array | undefined;
   if (paths.newRows && p.reconcile.newRows) {
     const nr = await readBytes(paths.newRows, shown(paths.newRows), at(['reconcile', 'new-rows', 'file']));
     if (nr.problem) problems.push(nr.problem);
     else if (nr.sha256 !== p.reconcile.newRows.sha256) {
       problems.push(error('new-rows-hash-mismatch', `the new-rows file's SHA-256 is ${nr.sha256}, not the ${p.reconcile.newRows.sha256} this protocol records`, at(['reconcile', 'new-rows', 'sha256'])));
-    }
+    } else newRowBytes = nr.bytes;
   }
   if (data.problem) {
     problems.push(data.problem);
@@ -86,7 +90,13 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
   }
   const semantic = checkAgainstData(p, source, { table: built.table, sha256: data.sha256!, pinned });
   problems.push(...semantic.problems);
-  return { ...parsed, problems, paths, table: built.table, dataSha256: data.sha256, assignment: hasErrors(problems) ? undefined : semantic.assignment };
+  let newRows: NewRows | undefined;
+  if (newRowBytes) {
+    const nr = newRowsFromBytes(newRowBytes, shown(paths.newRows!), built.table.featureNames, p.reconcile.newRows!.id ?? p.data.id, p.data.missing, knownColumns(p));
+    problems.push(...nr.problems);
+    newRows = nr.rows;
+  }
+  return { ...parsed, problems, paths, table: built.table, dataSha256: data.sha256, newRows, assignment: hasErrors(problems) ? undefined : semantic.assignment };
 }
 
 export function dataRoles(p: Protocol) {

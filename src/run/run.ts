@@ -8,11 +8,24 @@ import type { Assignment } from '../split/assignment.js';
 import { assignmentCsv } from '../split/csv.js';
 import type { Table } from '../table/table.js';
 import { sha256Bytes } from '../io/hash.js';
+import { fitOptions, models } from '../model/registry.js';
+import { fitPipeline } from '../preprocess/pipeline.js';
+import { appliedCsv, applyRows, type AppliedRow } from '../reconcile/applied.js';
+import { heldOutFromOof } from '../reconcile/held-out.js';
+import { MODELS_VERSION, modelsJson, type ModelsFile, type SavedModel } from '../reconcile/models-file.js';
+import { idOrder } from '../split/key.js';
+import { takeInt, takeRows } from '../table/matrix.js';
+import type { NewRows } from '../table/new-rows.js';
+import { knownColumns } from '../protocol/known-columns.js';
 import { crossValidate, type CvHooks, type CvResult } from './cross-validate.js';
 import { predictionsCsv } from './predictions.js';
 import { buildResults } from './results.js';
 
 export interface RunInput {
+  /** Rows to predict after the cross-validation (the protocol's reconcile.new-rows). */
+  newRows?: NewRows;
+  /** Also fit one model on every labeled row (always done for rule refit). */
+  refit?: boolean;
   protocol: Protocol;
   /** The protocol document as plain data (hashed in canonical form). */
   raw: unknown;
@@ -25,35 +38,71 @@ export interface RunInput {
 
 export interface RunOutput {
   cv: CvResult;
+  applied?: AppliedRow[];
   results: Record<string, unknown>;
   assignmentCsv: string;
   files: Record<string, string>;
 }
 
 export function runProtocol(input: RunInput, hooks: CvHooks = {}): RunOutput {
-  let cv: CvResult;
-  try {
-    cv = crossValidate(input.protocol, input.table, input.assignment, hooks);
-  } catch (e) {
-    if (e instanceof FitError || e instanceof TransformError) {
-      throw new FoldsealError(error(e.code, e.message, { file: input.protocolFile, hint: e.hint }), 1);
-    }
-    throw e;
-  }
+  const cv: CvResult = guardFit(input.protocolFile, () => crossValidate(input.protocol, input.table, input.assignment, hooks));
   const folds = assignmentCsv(input.assignment);
   const predictions = predictionsCsv(cv, input.table);
-  const files: Record<string, string> = { 'predictions.csv': predictions };
+  const p = input.protocol;
+  const protocolSha256 = canonicalSha256(input.raw);
+  const refit = input.refit || p.reconcile.rule === 'refit' ? fitOnAll(input) : null;
+  const saved: ModelsFile = {
+    'foldseal-models': MODELS_VERSION,
+    'protocol-sha256': protocolSha256,
+    kind: p.model.kind,
+    preprocess: p.preprocess,
+    classes: cv.classes,
+    features: input.table.featureNames,
+    missing: p.data.missing,
+    'known-columns': knownColumns(p),
+    id: p.reconcile.newRows?.id ?? p.data.id ?? null,
+    reconcile: { rule: p.reconcile.rule, tie: p.reconcile.tie ?? null },
+    folds: cv.models,
+    refit,
+  };
+  const files: Record<string, string> = { 'predictions.csv': predictions, 'models.json': modelsJson(saved) };
+  let applied: AppliedRow[] | undefined;
+  if (input.newRows) {
+    applied = guardFit(input.protocolFile, () => applyRows({ kind: p.model.kind, folds: cv.models, refit, classes: cv.classes, rule: p.reconcile.rule, tie: p.reconcile.tie ?? null, rows: input.newRows!, heldOut: heldOutFromOof(input.table.ids, cv.oof, cv.testedIn, cv.classes.length) }));
+    files['applied.csv'] = appliedCsv(applied, cv.classes);
+  }
   const results = buildResults({
     protocol: input.protocol,
-    protocolSha256: canonicalSha256(input.raw),
+    protocolSha256,
     dataSha256: input.dataSha256,
     table: input.table,
     assignment: input.assignment,
     assignmentSha256: sha256Bytes(folds),
     cv,
-    files: { 'predictions.csv': sha256Bytes(predictions) },
+    files: Object.fromEntries(Object.entries(files).map(([name, text]) => [name, sha256Bytes(text)])),
     warnings: [...input.warnings, ...cv.warnings],
   });
   files['results.json'] = JSON.stringify(results, null, 2) + '\n';
-  return { cv, results, assignmentCsv: folds, files };
+  return { cv, results, assignmentCsv: folds, files, applied };
+}
+
+function guardFit<T>(protocolFile: string, f: () => T): T {
+  try {
+    return f();
+  } catch (e) {
+    if (e instanceof FitError || e instanceof TransformError) throw new FoldsealError(error(e.code, e.message, { file: protocolFile, hint: e.hint }), 1);
+    throw e;
+  }
+}
+
+/** One pipeline and model fitted on every labeled row, visited in id order. */
+function fitOnAll(input: RunInput): SavedModel {
+  const { protocol: p, table } = input;
+  const order = idOrder(table.ids);
+  return guardFit(input.protocolFile, () => {
+    const y = takeInt(table.y, order);
+    const { pipeline, X } = fitPipeline(p.preprocess, takeRows(table.X, order), y, table.classes.length, table.featureNames);
+    const model = models[p.model.kind].fit(X, y, fitOptions(p.model.kind, p.model.options, table.classes), { classCount: table.classes.length });
+    return { repeat: 0, fold: 0, pipeline, model };
+  });
 }

@@ -29,6 +29,6 @@ export async function runCase(c: ReferenceCase): Promise<{ out: RunOutput; ids: 
   const report = await validateProtocol(protocol);
   const errors = report.problems.filter((p) => p.severity === 'error');
   if (errors.length || !report.protocol || !report.table || !report.assignment) throw new Error(`case ${c.name} does not validate: ${errors.map((e) => e.message).join('; ')}`);
-  const out = runProtocol({ protocol: report.protocol, raw: report.raw, protocolFile: report.file, table: report.table, dataSha256: report.dataSha256!, assignment: report.assignment, warnings: [] });
+  const out = runProtocol({ protocol: report.protocol, raw: report.raw, newRows: report.newRows, protocolFile: report.file, table: report.table, dataSha256: report.dataSha256!, assignment: report.assignment, warnings: [] });
   return { out, ids: report.table.ids, table: report.table };
 }

@@ -190,6 +190,7 @@ def run_case(case, folds_dir):
     classes = np.unique(y)
     positive = case.get("positive", classes[-1])
     folds = pd.read_csv(os.path.join(folds_dir, case["name"] + ".folds.csv"), dtype={"id": str})
+    fitted = []
     result = {"case": case["name"], "reference": "scikit-learn " + __import__("sklearn").__version__, "classes": list(classes), "folds": [], "pooled": []}
     for rep in sorted(folds["repeat"].unique()):
         f_of = dict(zip(folds[folds["repeat"] == rep]["id"], folds[folds["repeat"] == rep]["fold"]))
@@ -198,13 +199,16 @@ def run_case(case, folds_dir):
         for k in sorted(np.unique(fold)):
             test, train = fold == k, fold != k
             Xtr, Xte, names = X[train], X[test], np.array(feature_names)
+            steps_fitted = []
             for step in case["preprocess"]:
                 t = make_step(step)
+                steps_fitted.append(t)
                 Xtr = t.fit_transform(Xtr, y[train])
                 Xte = t.transform(Xte)
                 if isinstance(t, SelectKBest):
                     names = names[t.get_support()]
             model = make_model(case["model"]).fit(Xtr, y[train])
+            fitted.append((steps_fitted, model))
             P = model.predict_proba(Xte)
             oof[test] = P
             order = np.argsort(ids[test], kind="stable")
@@ -216,6 +220,21 @@ def run_case(case, folds_dir):
                 "metrics": score(case["metrics"], y[test], P, classes, positive),
             })
         result["pooled"].append(score(case["metrics"], y, oof, classes, positive))
+    if "new-rows" in case:
+        # Reconciliation reference: the mean of the fold models' probabilities and their votes.
+        new = pd.read_csv(os.path.join(HERE, case["new-rows"]), dtype={"id": str}, float_precision="round_trip")
+        unseen = ~new["id"].isin(ids)
+        Xn = new.loc[unseen, feature_names].to_numpy(dtype=float)
+        per_model = []
+        for steps, model in fitted:
+            Z = Xn
+            for t in steps:
+                Z = t.transform(Z)
+            per_model.append(model.predict_proba(Z))
+        votes = np.zeros((len(Xn), len(classes)), dtype=int)
+        for P in per_model:
+            votes[np.arange(len(Xn)), P.argmax(axis=1)] += 1
+        result["new-rows"] = {"ids": new.loc[unseen, "id"].tolist(), "mean": np.mean(per_model, axis=0).tolist(), "votes": votes.tolist()}
     return result
 
 

@@ -12,3 +12,14 @@ with open(os.path.join(here, "breast-cancer.csv"), "w") as f:
     f.write(",".join(["id"] + names + ["diagnosis"]) + "\n")
     for i, (row, t) in enumerate(zip(d.data, d.target)):
         f.write(",".join([f"bc-{i + 1:04d}"] + [repr(float(v)) for v in row] + [d.target_names[t]]) + "\n")
+
+# For the reconciliation check: the first 469 rows for cross-validation, and a new-rows table of
+# the last 100 rows (never seen) plus 5 rows that were in the cross-validation, without the label.
+with open(os.path.join(here, "breast-cancer.csv")) as f:
+    lines = f.read().splitlines()
+header, rows = lines[0], lines[1:]
+with open(os.path.join(here, "breast-cancer-train.csv"), "w") as f:
+    f.write("\n".join([header] + rows[:469]) + "\n")
+unlabeled = lambda line: line.rsplit(",", 1)[0]
+with open(os.path.join(here, "breast-cancer-new.csv"), "w") as f:
+    f.write("\n".join([unlabeled(header)] + [unlabeled(r) for r in rows[469:] + rows[10:15]]) + "\n")

@@ -1,0 +1,95 @@
+import { readFile, writeFile } from 'node:fs/promises';
+import { join } from 'node:path';
+import { error, FoldsealError, hasErrors, type Problem } from '../../problems/problem.js';
+import { sha256Bytes } from '../../io/hash.js';
+import { fileProblem } from '../../io/files.js';
+import { shown } from '../../io/validate.js';
+import { applyRows, appliedCsv, disagreementReport } from '../../reconcile/applied.js';
+import { heldOutFromPredictions } from '../../reconcile/held-out.js';
+import { MODELS_VERSION, type ModelsFile } from '../../reconcile/models-file.js';
+import { tiePossible } from '../../reconcile/reconcile.js';
+import { RESULTS_VERSION } from '../../run/results.js';
+import type { ReconcileRule, TieRule } from '../../protocol/types.js';
+import { newRowsFromBytes } from '../../table/new-rows.js';
+import { FitError } from '../../model/types.js';
+import { TransformError } from '../../preprocess/types.js';
+import type { CommandIo, ExitCode } from '../io.js';
+import { reportProblems } from '../report-problems.js';
+
+export interface ApplyArgs {
+  results: string;
+  table: string;
+  out?: string;
+  rule?: ReconcileRule;
+  tie?: TieRule;
+}
+
+async function read(path: string): Promise<Buffer> {
+  try {
+    return await readFile(path);
+  } catch (e) {
+    throw new FoldsealError(fileProblem(e as NodeJS.ErrnoException, shown(path), { file: shown(path) }), 2);
+  }
+}
+
+function parseJson(bytes: Buffer, path: string): any {
+  try {
+    return JSON.parse(bytes.toString('utf8'));
+  } catch (e) {
+    throw new FoldsealError(error('not-json', `${shown(path)} is not valid JSON (${(e as Error).message})`, { file: shown(path) }), 1);
+  }
+}
+
+export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<ExitCode> {
+  const resultsPath = join(args.results, 'results.json');
+  const modelsPath = join(args.results, 'models.json');
+  const predictionsPath = join(args.results, 'predictions.csv');
+  const results = parseJson(await read(resultsPath), resultsPath);
+  if (results?.['foldseal-results'] !== RESULTS_VERSION) {
+    throw new FoldsealError(error('results-version', `${shown(resultsPath)} has results format ${JSON.stringify(results?.['foldseal-results'])}; this foldseal reads format ${RESULTS_VERSION}`, { file: shown(resultsPath) }), 1);
+  }
+  const modelBytes = await read(modelsPath);
+  const expected = results.files?.['models.json'];
+  if (sha256Bytes(modelBytes) !== expected) {
+    throw new FoldsealError(error('models-hash-mismatch', `${shown(modelsPath)} does not match the SHA-256 recorded in results.json (it was changed after the run)`, { file: shown(modelsPath), hint: 're-run the protocol instead of editing saved models' }), 1);
+  }
+  const saved = parseJson(modelBytes, modelsPath) as ModelsFile;
+  if (saved['foldseal-models'] !== MODELS_VERSION) throw new FoldsealError(error('models-version', `${shown(modelsPath)} has models format ${JSON.stringify(saved['foldseal-models'])}; this foldseal reads format ${MODELS_VERSION}`, { file: shown(modelsPath) }), 1);
+  const predictionBytes = await read(predictionsPath);
+  if (sha256Bytes(predictionBytes) !== results.files?.['predictions.csv']) {
+    throw new FoldsealError(error('predictions-hash-mismatch', `${shown(predictionsPath)} does not match the SHA-256 recorded in results.json`, { file: shown(predictionsPath) }), 1);
+  }
+  const rule = args.rule ?? saved.reconcile.rule;
+  const tie = args.tie ?? (rule === saved.reconcile.rule ? saved.reconcile.tie : null);
+  const problems: Problem[] = [];
+  if (rule === 'majority-vote' && tie === null && tiePossible(saved.folds.length, saved.classes.length)) {
+    problems.push(error('tie-rule-needed', `majority-vote over ${saved.folds.length} fold models and ${saved.classes.length} classes can tie`, { hint: 'add --tie mean-probability, --tie abstain or --tie class-order' }));
+  }
+  if (rule === 'refit' && !saved.refit) problems.push(error('no-refit-model', 'models.json has no refit model', { hint: 'run the protocol with --refit (or reconcile.rule: refit) to save one' }));
+  if (problems.length) throw new FoldsealError(problems, 2);
+
+  const tableBytes = await read(args.table);
+  const nr = newRowsFromBytes(tableBytes, shown(args.table), saved.features, saved.id ?? undefined, saved.missing, saved['known-columns']);
+  reportProblems(io, nr.problems, 'text');
+  if (hasErrors(nr.problems) || !nr.rows) return 1;
+  let rows;
+  try {
+    rows = applyRows({ kind: saved.kind, folds: saved.folds, refit: saved.refit, classes: saved.classes, rule, tie, rows: nr.rows, heldOut: heldOutFromPredictions(predictionBytes, saved.classes) });
+  } catch (e) {
+    if (e instanceof FitError || e instanceof TransformError) throw new FoldsealError(error(e.code, e.message, { hint: e.hint }), 1);
+    throw e;
+  }
+  const overridden = rule !== saved.reconcile.rule || tie !== saved.reconcile.tie;
+  const comment = overridden ? `foldseal apply: rule ${rule}${tie ? `, tie ${tie}` : ''} (the protocol declares ${saved.reconcile.rule}${saved.reconcile.tie ? `, tie ${saved.reconcile.tie}` : ''})` : undefined;
+  const csv = appliedCsv(rows, saved.classes, comment);
+  if (args.out) {
+    await writeFile(args.out, csv);
+    if (overridden) {
+      const sidecar = { 'foldseal-apply': 1, rule, tie, 'protocol-rule': saved.reconcile.rule, 'protocol-tie': saved.reconcile.tie, 'models-sha256': expected, 'table-sha256': sha256Bytes(tableBytes), 'output-sha256': sha256Bytes(csv) };
+      await writeFile(`${args.out}.json`, JSON.stringify(sidecar, null, 2) + '\n');
+    }
+    io.err(`wrote ${args.out}${overridden ? ` and ${args.out}.json` : ''}\n`);
+  } else io.out(csv);
+  io.err(disagreementReport(rows, saved.classes));
+  return 0;
+}

@@ -1,0 +1,58 @@
+/** Rows to predict: an id column and the training features matched by name (extra columns are ignored). */
+import { error, warning, type Problem } from '../problems/problem.js';
+import { cellPosition, readDelimited, textColumn } from './delimited.js';
+import { delimiterFor } from './load.js';
+import type { Matrix } from './matrix.js';
+import { parseNumberBytes } from './number.js';
+
+export interface NewRows {
+  ids: string[];
+  X: Matrix;
+  ignoredColumns: string[];
+}
+
+const MAX_LISTED = 20;
+
+/** `known` names columns the protocol already accounts for (label, group, exclusions): ignored without a warning. */
+export function newRowsFromBytes(bytes: Uint8Array, file: string, features: readonly string[], idColumn: string | undefined, missing: readonly string[], known: readonly string[] = []): { rows?: NewRows; problems: Problem[] } {
+  const read = readDelimited(bytes, delimiterFor(file), file);
+  if (!read.table) return { problems: read.problems };
+  const t = read.table;
+  const problems: Problem[] = [];
+  const at = (line = 1, col = 1) => ({ file, position: { line, col } });
+  if (t.rows === 0) return { problems: [error('data-no-rows', 'the new-rows file has a header but no data rows', at())] };
+  const index = new Map(t.header.map((h, i) => [h, i]));
+  const idCol = idColumn === undefined ? undefined : index.get(idColumn);
+  if (idColumn !== undefined && idCol === undefined) problems.push(error('new-rows-missing-id', `the id column "${idColumn}" is not in the new-rows file's header`, at()));
+  const cols = features.map((f) => index.get(f));
+  features.forEach((f, j) => { if (cols[j] === undefined) problems.push(error('new-rows-missing-feature', `feature "${f}" is not in the new-rows file's header`, at())); });
+  if (problems.length) return { problems };
+  const used = new Set([idCol, ...cols]);
+  const ignoredColumns = t.header.filter((_, i) => !used.has(i));
+  const unexpected = ignoredColumns.filter((c) => !known.includes(c));
+  if (unexpected.length) problems.push(warning('new-rows-extra-columns', `columns not used for prediction: ${unexpected.join(', ')}`, at()));
+  const ids = idCol === undefined ? Array.from({ length: t.rows }, (_, r) => String(r + 1)) : textColumn(t, idCol);
+  const seen = new Map<string, number>();
+  ids.forEach((id, r) => {
+    if (id === '') problems.push(error('data-empty-id', `row ${r + 1} has an empty id`, { file, position: cellPosition(t, r, idCol!) }));
+    else if (seen.has(id)) problems.push(error('data-duplicate-id', `id "${id}" appears again (first on line ${t.rowLine[seen.get(id)!]})`, { file, position: cellPosition(t, r, idCol!) }));
+    else seen.set(id, r);
+  });
+  const missingSet = new Set(missing);
+  const data = new Float64Array(t.rows * features.length);
+  let bad = 0;
+  for (let r = 0; r < t.rows; r++) {
+    for (let j = 0; j < features.length; j++) {
+      const k = r * t.cols + cols[j]!;
+      let v = parseNumberBytes(t.bytes, t.starts[k], t.ends[k]);
+      if (v !== v) {
+        const text = new TextDecoder().decode(t.bytes.subarray(t.starts[k], t.ends[k]));
+        if (missingSet.has(text)) v = NaN;
+        else if (bad++ < MAX_LISTED) problems.push(error('data-not-a-number', `cell "${text}" in column "${features[j]}" (row ${r + 1}) is not a number`, { file, position: cellPosition(t, r, cols[j]!) }));
+      }
+      data[r * features.length + j] = v;
+    }
+  }
+  if (problems.some((p) => p.severity === 'error')) return { problems };
+  return { rows: { ids, X: { rows: t.rows, cols: features.length, data }, ignoredColumns }, problems };
+}
