@@ -3,6 +3,8 @@ import { Command, Option } from 'commander';
 import { packageVersion } from '../util/package-root.js';
 import { applyCommand } from './commands/apply.js';
 import { foldsCommand } from './commands/folds.js';
+import { keygenCommand } from './commands/keygen.js';
+import { verifyCommand } from './commands/verify.js';
 import { hashCommand } from './commands/hash.js';
 import { initCommand } from './commands/init.js';
 import { runCommand } from './commands/run.js';
@@ -64,8 +66,9 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .option('--out <dir>', 'results folder (default: results/<protocol name>)')
     .option('--force', 'replace an existing results folder')
     .option('--refit', 'also fit one model on every labeled row and save it in models.json')
+    .option('--key <file>', 'sign manifest.json with this Ed25519 private key (from foldseal keygen)')
     .addHelpText('after', '\nExample:\n  foldseal run protocols/demo.yaml --out results/demo\n\nThe folder is written to a temporary sibling and renamed at the end, so it is never half-written.')
-    .action(async (protocol: string, o: { out?: string; force?: boolean; refit?: boolean }) => done(await runCommand({ protocol, ...o }, io)));
+    .action(async (protocol: string, o: { out?: string; force?: boolean; refit?: boolean; key?: string }) => done(await runCommand({ protocol, ...o }, io)));
 
   program
     .command('apply')
@@ -77,6 +80,27 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .addOption(new Option('--tie <rule>', 'tie rule for majority-vote').choices(['mean-probability', 'abstain', 'class-order']))
     .addHelpText('after', '\nExamples:\n  foldseal apply results/demo protocols/data/seedlings-new.csv --out applied.csv\n  foldseal apply results/demo new.csv --rule majority-vote --tie abstain --out voted.csv\n\nmodels.json and predictions.csv are checked against the hashes in results.json first.')
     .action(async (results: string, table: string, o: { out?: string; rule?: ReconcileRule; tie?: TieRule }) => done(await applyCommand({ results, table, ...o }, io)));
+
+  program
+    .command('keygen')
+    .description('make an Ed25519 key pair for signing manifests; prints the key fingerprint')
+    .requiredOption('--out <prefix>', 'writes PREFIX.key (private, mode 0600) and PREFIX.pub (public)')
+    .addHelpText('after', '\nExample:\n  foldseal keygen --out ~/.foldseal/lab\n\nThe fingerprint is the SHA-256 of the raw 32-byte public key; publish it with the .pub file.')
+    .action(async (o: { out: string }) => done(await keygenCommand(o, io)));
+
+  program
+    .command('verify')
+    .description('check a manifest: signature, result files, and (with --rerun) a fresh run of its protocol')
+    .argument('<manifest>', 'manifest.json written by foldseal run')
+    .option('--key <file>', "the author's public key (.pub); pins the signer")
+    .option('--allow-unpinned', 'accept a signature made by the key embedded in the manifest, or no signature')
+    .option('--rerun', 're-run the protocol on local data and compare assignment, metrics and predictions')
+    .option('--data <file>', 'data file for the re-run (its content is compared by hash with the recorded one)')
+    .option('--protocol <file>', 're-run this protocol file instead of the embedded copy')
+    .option('--strict', 'a result file missing next to the manifest is an error')
+    .addOption(formatOption())
+    .addHelpText('after', '\nExamples:\n  foldseal verify results/demo/manifest.json --key author.pub\n  foldseal verify results/demo/manifest.json --key author.pub --rerun\n\nExit: 0 verified (identical), 1 a check failed or the re-run differs, 2 usage or unreadable input.')
+    .action(async (manifest: string, o: { key?: string; allowUnpinned?: boolean; rerun?: boolean; data?: string; protocol?: string; strict?: boolean; format: 'text' | 'json' }) => done(await verifyCommand({ manifest, ...o }, io)));
 
   return program;
 }

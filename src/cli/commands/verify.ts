@@ -1,0 +1,161 @@
+import { existsSync } from 'node:fs';
+import { mkdtemp, readFile, rm, writeFile } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { dirname, join, resolve } from 'node:path';
+import { error, FoldsealError, hasErrors, warning, type Problem } from '../../problems/problem.js';
+import { sha256Bytes, sha256File } from '../../io/hash.js';
+import { fileProblem } from '../../io/files.js';
+import { readPublicKey } from '../../io/keys.js';
+import { produceRun } from '../../io/produce-run.js';
+import { loadProtocol, shown } from '../../io/validate.js';
+import type { Manifest } from '../../manifest/build.js';
+import { canonicalSha256 } from '../../manifest/canonical.js';
+import { checkManifest } from '../../manifest/check.js';
+import { compareRuns, verdict, type Difference } from '../../manifest/compare.js';
+import { manifestForRun } from '../../manifest/for-run.js';
+import type { CommandIo, ExitCode } from '../io.js';
+import { reportProblems, type OutputFormat } from '../report-problems.js';
+import { toolInfo } from '../tool-info.js';
+
+export interface VerifyArgs {
+  manifest: string;
+  key?: string;
+  rerun?: boolean;
+  data?: string;
+  protocol?: string;
+  format: OutputFormat;
+  allowUnpinned?: boolean;
+  strict?: boolean;
+}
+
+export async function verifyCommand(args: VerifyArgs, io: CommandIo): Promise<ExitCode> {
+  const file = shown(resolve(args.manifest));
+  let text: string;
+  try {
+    text = await readFile(args.manifest, 'utf8');
+  } catch (e) {
+    throw new FoldsealError(fileProblem(e as NodeJS.ErrnoException, file, { file }), 2);
+  }
+  const publicKey = args.key ? await readPublicKey(args.key) : undefined;
+  const check = checkManifest(text, { file, publicKey, allowUnpinned: args.allowUnpinned });
+  const problems: Problem[] = [...check.problems];
+  const lines: string[] = [];
+  let differences: Difference[] = [];
+  const m = check.manifest as any;
+  const usable = m && !problems.some((p) => p.code === 'manifest-schema');
+  if (usable) {
+    lines.push(check.signedBy ? `signature: valid, signed by ${check.signedBy}${check.pinned ? '' : ' (embedded key, not pinned)'}` : 'signature: not verified');
+    lines.push(`files: ${await checkSiblings(m, dirname(resolve(args.manifest)), Boolean(args.strict), problems)}`);
+    if (args.rerun) {
+      const rerun = await rerunManifest(m, args, problems);
+      differences = rerun.differences;
+      lines.push(...rerun.lines);
+    }
+  }
+  const failed = hasErrors(problems) || differences.length > 0;
+  const final = args.rerun && usable && !rerun_failed(problems) ? verdict(differences) : failed ? 'not verified' : 'verified';
+  if (args.format === 'json') {
+    io.out(JSON.stringify({ verdict: final, 'signed-by': check.signedBy ?? null, pinned: check.pinned, problems, differences }, null, 2) + '\n');
+  } else {
+    reportProblems(io, problems, 'text');
+    for (const d of differences) io.out(`  ${d.kind}: ${d.message}\n`);
+    io.out(lines.map((l) => l + '\n').join('') + final + '\n');
+  }
+  return failed ? 1 : 0;
+}
+
+function rerun_failed(problems: Problem[]): boolean {
+  return problems.some((p) => p.code === 'rerun-failed');
+}
+
+async function checkSiblings(m: Manifest & { files: Record<string, string> }, dir: string, strict: boolean, problems: Problem[]): Promise<string> {
+  const parts: string[] = [];
+  for (const [name, sha] of Object.entries(m.files)) {
+    const path = join(dir, name);
+    if (!existsSync(path)) {
+      problems.push((strict ? error : warning)('file-missing', `${name} is not next to the manifest, so its hash was not checked`, { file: shown(path) }));
+      parts.push(`${name} missing`);
+      continue;
+    }
+    const now = await sha256File(path);
+    if (now !== sha) problems.push(error('file-hash-mismatch', `${name} has SHA-256 ${now}, not the ${sha} the manifest records`, { file: shown(path) }));
+    parts.push(`${name} ${now === sha ? 'ok' : 'CHANGED'}`);
+  }
+  return parts.join(', ');
+}
+
+async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Promise<{ differences: Difference[]; lines: string[] }> {
+  const manifestDir = dirname(resolve(args.manifest));
+  let doc: any;
+  let base: string;
+  if (args.protocol) {
+    const loaded = await loadProtocol(args.protocol);
+    if (!loaded.raw || hasErrors(loaded.problems)) {
+      problems.push(...loaded.problems, error('rerun-failed', `the protocol ${args.protocol} cannot be read`));
+      return { differences: [], lines: [] };
+    }
+    doc = structuredClone(loaded.raw);
+    base = dirname(resolve(args.protocol));
+  } else {
+    doc = structuredClone(m.protocol.document);
+    base = resolve(manifestDir, m.protocol.location);
+  }
+  const protocolSha = canonicalSha256(doc);
+  doc.data.file = args.data ? resolve(args.data) : resolve(base, doc.data.file);
+  if (doc.split?.pinned) doc.split.pinned.file = resolve(base, doc.split.pinned.file);
+  if (doc.reconcile?.['new-rows']) doc.reconcile['new-rows'].file = resolve(base, doc.reconcile['new-rows'].file);
+  let localSha: string;
+  try {
+    localSha = await sha256File(doc.data.file);
+  } catch (e) {
+    problems.push(fileProblem(e as NodeJS.ErrnoException, shown(doc.data.file), { file: shown(doc.data.file) }), error('rerun-failed', 'the data for the re-run cannot be read', { hint: 'pass --data FILE with a copy of the data' }));
+    return { differences: [], lines: [] };
+  }
+  // A changed data file is itself a difference; the run goes ahead so its effect is visible too.
+  doc.data.sha256 = localSha;
+  const work = await mkdtemp(join(tmpdir(), 'foldseal-verify-'));
+  try {
+    const path = join(work, 'protocol.yaml');
+    await writeFile(path, JSON.stringify(doc, null, 2));
+    const { report, input, out } = await produceRun(path, { refit: Boolean(m.files['models.json'] && JSON.parse(await readFileOr(join(manifestDir, 'models.json'), 'null'))?.refit) });
+    if (!input || !out) {
+      problems.push(...report.problems.filter((p) => p.severity === 'error'), error('rerun-failed', 'the protocol did not validate on the local data, so it could not be re-run'));
+      return { differences: [], lines: [] };
+    }
+    const fresh = manifestForRun(input, out, { tool: toolInfo(), created: '', protocolLocation: m.protocol.location }).manifest as any;
+    fresh.protocol.sha256 = protocolSha;
+    const differences = compareRuns(m, fresh, doc.verify?.tolerance ?? 0);
+    const recordedPredictions = await readFileOr(join(manifestDir, 'predictions.csv'), '');
+    if (recordedPredictions && recordedPredictions !== out.files['predictions.csv']) {
+      const d = differences.find((x) => x.message.startsWith('predictions.csv'));
+      if (d) d.message += `; ${lineDifferences(recordedPredictions, out.files['predictions.csv'])} lines differ`;
+    }
+    const n = (m.split.assignment as unknown[]).length;
+    const lines = [`rerun: ${n} assignments, ${countMetrics(m.results)} metric values and ${sha256Bytes(out.files['predictions.csv']) === m.files['predictions.csv'] ? 'identical' : 'changed'} predictions compared (tolerance ${doc.verify?.tolerance ?? 0})`];
+    return { differences, lines };
+  } finally {
+    await rm(work, { recursive: true, force: true });
+  }
+}
+
+async function readFileOr(path: string, fallback: string): Promise<string> {
+  try {
+    return await readFile(path, 'utf8');
+  } catch {
+    return fallback;
+  }
+}
+
+function lineDifferences(a: string, b: string): number {
+  const x = a.split('\n');
+  const y = b.split('\n');
+  let n = Math.abs(x.length - y.length);
+  for (let i = 0; i < Math.min(x.length, y.length); i++) if (x[i] !== y[i]) n++;
+  return n;
+}
+
+function countMetrics(results: any): number {
+  let n = 0;
+  for (const f of results.folds) n += Object.keys(f.metrics).length;
+  return n + Object.keys(results.summary).length * 3;
+}

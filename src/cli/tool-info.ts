@@ -1,0 +1,6 @@
+import type { ToolInfo } from '../manifest/build.js';
+import { packageVersion } from '../util/package-root.js';
+
+export function toolInfo(): ToolInfo {
+  return { name: 'foldseal', version: packageVersion(), node: process.version, platform: `${process.platform}-${process.arch}` };
+}

@@ -1,0 +1,28 @@
+/** Validate a protocol file and run it: the shared shell of `run` and `verify --rerun`. */
+import { hasErrors } from '../problems/problem.js';
+import type { CvHooks } from '../run/cross-validate.js';
+import { runProtocol, type RunInput, type RunOutput } from '../run/run.js';
+import { validateProtocol, type ValidationReport } from './validate.js';
+
+export interface Produced {
+  report: ValidationReport;
+  input?: RunInput;
+  out?: RunOutput;
+}
+
+export async function produceRun(protocolPath: string, options: { refit?: boolean; hooks?: CvHooks } = {}): Promise<Produced> {
+  const report = await validateProtocol(protocolPath);
+  if (report.unreadable || hasErrors(report.problems) || !report.protocol || !report.table || !report.assignment) return { report };
+  const input: RunInput = {
+    protocol: report.protocol,
+    raw: report.raw,
+    protocolFile: report.file,
+    table: report.table,
+    dataSha256: report.dataSha256!,
+    assignment: report.assignment,
+    newRows: report.newRows,
+    refit: options.refit,
+    warnings: report.problems.filter((q) => q.severity === 'warning'),
+  };
+  return { report, input, out: runProtocol(input, options.hooks) };
+}

@@ -1,0 +1,39 @@
+/** Wraps a run's outputs in a manifest (and signs it when a key is given). Pure: time, tool and keys come in. */
+import type { KeyObject } from 'node:crypto';
+import { sha256Bytes } from '../io/hash.js';
+import { schemaValidator } from '../protocol/schema.js';
+import type { RunInput, RunOutput } from '../run/run.js';
+import { buildManifest, MANIFEST_FILES, type Manifest, type ToolInfo } from './build.js';
+import { canonicalSha256 } from './canonical.js';
+import { manifestText, signManifest } from './sign.js';
+
+export interface ManifestMeta {
+  tool: ToolInfo;
+  created: string;
+  /** Folder of the protocol file relative to the results folder. */
+  protocolLocation: string;
+  key?: { privateKey: KeyObject; publicKey: KeyObject };
+}
+
+export function manifestForRun(input: RunInput, out: RunOutput, meta: ManifestMeta): { manifest: Manifest; text: string } {
+  const files: Record<string, string> = {};
+  for (const name of MANIFEST_FILES) if (out.files[name] !== undefined) files[name] = sha256Bytes(out.files[name]);
+  let manifest = buildManifest({
+    tool: meta.tool,
+    created: meta.created,
+    protocol: { document: input.raw, sha256: canonicalSha256(input.raw), location: meta.protocolLocation },
+    dataSha256: input.dataSha256,
+    table: input.table,
+    assignment: input.assignment,
+    assignmentSha256: sha256Bytes(out.assignmentCsv),
+    results: out.results,
+    files,
+  });
+  if (meta.key) manifest = signManifest(manifest, meta.key.privateKey, meta.key.publicKey);
+  const validate = schemaValidator('manifest.schema.json');
+  /* c8 ignore next 3 -- a manifest that fails its own schema is a bug in foldseal, reported as one */
+  if (!validate(manifest)) {
+    throw new Error(`foldseal wrote a manifest that fails schema/manifest.schema.json: ${JSON.stringify(validate.errors)}`);
+  }
+  return { manifest, text: manifestText(manifest) };
+}

@@ -1,0 +1,94 @@
+/** Signed manifests against tampering (fast-check): every mutation must be rejected. */
+import { generateKeyPairSync } from 'node:crypto';
+import { join } from 'node:path';
+import fc from 'fast-check';
+import t from 'tap';
+import { produceRun } from '../../src/io/produce-run.js';
+import { canonicalJson } from '../../src/manifest/canonical.js';
+import { checkManifest } from '../../src/manifest/check.js';
+import { manifestForRun } from '../../src/manifest/for-run.js';
+import { root } from '../helpers.js';
+
+const keyA = generateKeyPairSync('ed25519');
+const keyB = generateKeyPairSync('ed25519');
+const tool = { name: 'foldseal' as const, version: '0.0.0-test', node: 'v20', platform: 'test' };
+const { input, out } = await produceRun(join(root, 'protocols', 'demo.yaml'));
+const { text } = manifestForRun(input!, out!, { tool, created: '2026-12-01T00:00:00.000Z', protocolLocation: '../protocols', key: keyA });
+const rejected = (s: string, publicKey = keyA.publicKey) => checkManifest(s, { file: 'm.json', publicKey }).problems.some((p) => p.severity === 'error');
+
+type Path = (string | number)[];
+function paths(value: unknown, prefix: Path = [], out: Path[] = []): Path[] {
+  if (value !== null && typeof value === 'object') {
+    for (const [k, v] of Object.entries(value)) {
+      const p = [...prefix, Array.isArray(value) ? Number(k) : k];
+      out.push(p);
+      paths(v, p, out);
+    }
+  }
+  return out;
+}
+const base = JSON.parse(text);
+const all = paths(base);
+const get = (o: any, p: Path) => p.reduce((x, k) => x[k], o);
+const set = (o: any, p: Path, v: unknown) => { get(o, p.slice(0, -1))[p[p.length - 1]] = v; };
+
+t.test('the untouched manifest verifies with key A and fails with key B', async (t) => {
+  t.same(checkManifest(text, { file: 'm.json', publicKey: keyA.publicKey }).problems, []);
+  const withB = checkManifest(text, { file: 'm.json', publicKey: keyB.publicKey });
+  t.same(withB.problems.map((p) => p.code), ['signature-wrong-key']);
+});
+
+t.test('1,200 generated mutations: none is accepted', async (t) => {
+  let tried = 0;
+  const bytes = Buffer.from(text, 'utf8');
+  fc.assert(fc.property(fc.nat(bytes.length - 1), fc.integer({ min: 1, max: 255 }), (i, delta) => {
+    const b = Buffer.from(bytes);
+    b[i] = (b[i] + delta) % 256;
+    tried++;
+    return rejected(b.toString('utf8'));
+  }), { numRuns: 600 });
+  fc.assert(fc.property(fc.constantFrom(...all), (p) => {
+    const m = structuredClone(base);
+    const parent = get(m, p.slice(0, -1));
+    if (Array.isArray(parent)) parent.splice(p[p.length - 1] as number, 1);
+    else delete parent[p[p.length - 1]];
+    tried++;
+    return rejected(canonicalJson(m) + '\n');
+  }), { numRuns: 300 });
+  fc.assert(fc.property(fc.constantFrom(...all), fc.constantFrom(...all), (p, q) => {
+    const m = structuredClone(base);
+    const a = get(m, p);
+    const b = get(m, q);
+    fc.pre(canonicalJson(a) !== canonicalJson(b) && !p.join('/').startsWith(q.join('/')) && !q.join('/').startsWith(p.join('/')));
+    set(m, p, structuredClone(b));
+    set(m, q, structuredClone(a));
+    tried++;
+    return rejected(canonicalJson(m) + '\n');
+  }), { numRuns: 300 });
+  t.ok(tried >= 1000, `${tried} mutations tried, all rejected`);
+});
+
+t.test('a changed value is named by its member path', async (t) => {
+  const m = structuredClone(base);
+  m.results.summary.accuracy.mean = 0.99;
+  const problems = checkManifest(canonicalJson(m) + '\n', { file: 'm.json', publicKey: keyA.publicKey }).problems;
+  t.same(problems.map((p) => p.message), ['the signature does not match the content: /results/summary changed after signing']);
+  const reformatted = JSON.stringify(base, null, 2);
+  t.same(checkManifest(reformatted, { file: 'm.json', publicKey: keyA.publicKey }).problems.map((p) => p.code), ['manifest-not-canonical'], 'a pretty-printed copy is flagged, its signature still holds');
+});
+
+t.test('bad manifests', async (t) => {
+  const codes = (s: string) => checkManifest(s, { file: 'm.json' }).problems.map((p) => p.code);
+  t.same(codes(text.slice(0, 200)), ['manifest-not-json'], 'truncated');
+  t.same(codes('[1,2]'), ['manifest-not-object']);
+  t.same(codes(text.replace('"foldseal-manifest":1', '"foldseal-manifest":2')), ['manifest-version']);
+  t.same(codes(text.replace('"created":', '"extra":1,"created":')), ['manifest-schema']);
+  const unsigned = structuredClone(base);
+  delete unsigned.signature;
+  t.same(codes(canonicalJson(unsigned) + '\n'), ['manifest-unsigned']);
+  t.same(checkManifest(canonicalJson(unsigned) + '\n', { file: 'm.json', allowUnpinned: true }).problems.map((p) => p.severity), ['warning']);
+  t.same(codes(text), ['signature-unpinned'], 'valid but unpinned without --key');
+  const forged = structuredClone(base);
+  forged.signature['key-sha256'] = '0'.repeat(64);
+  t.ok(codes(canonicalJson(forged) + '\n').includes('signature-key-mismatch'));
+});
