@@ -2,7 +2,9 @@
 import { Command, Option } from 'commander';
 import { packageVersion } from '../util/package-root.js';
 import { applyCommand } from './commands/apply.js';
+import { checkCommand } from './commands/check.js';
 import { foldsCommand } from './commands/folds.js';
+import { lockCommand } from './commands/lock.js';
 import { keygenCommand } from './commands/keygen.js';
 import { verifyCommand } from './commands/verify.js';
 import { hashCommand } from './commands/hash.js';
@@ -101,6 +103,22 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .addOption(formatOption())
     .addHelpText('after', '\nExamples:\n  foldseal verify results/demo/manifest.json --key author.pub\n  foldseal verify results/demo/manifest.json --key author.pub --rerun\n\nExit: 0 verified (identical), 1 a check failed or the re-run differs, 2 usage or unreadable input.')
     .action(async (manifest: string, o: { key?: string; allowUnpinned?: boolean; rerun?: boolean; data?: string; protocol?: string; strict?: boolean; format: 'text' | 'json' }) => done(await verifyCommand({ manifest, ...o }, io)));
+
+  program
+    .command('check')
+    .description('repository gate: validate every protocol and check data, pinned splits, sealed rows and the lock')
+    .argument('[dir]', 'repository folder', '.')
+    .addOption(formatOption())
+    .option('--staged', 'only protocols touched by the staged git change, and those sharing their data')
+    .addHelpText('after', '\nExamples:\n  foldseal check\n  foldseal check --staged          # in a pre-commit hook\n  foldseal check . --format json   # for CI annotations\n\nExit: 0 clean, 1 findings, 2 usage error (a corrupt lock, not a git repository).')
+    .action(async (dir: string, o: { format: 'text' | 'json'; staged?: boolean }) => done(await checkCommand({ dir, ...o }, io)));
+
+  program
+    .command('lock')
+    .description('record the current protocols, data hashes and fold assignments in foldseal.lock.json; prints what changed')
+    .argument('[dir]', 'repository folder', '.')
+    .addHelpText('after', '\nExample:\n  foldseal lock && git add foldseal.lock.json\n\nThe lock keeps its sealed and policy sections; commit it so the change is reviewed.')
+    .action(async (dir: string) => done(await lockCommand({ dir }, io)));
 
   return program;
 }

@@ -1,0 +1,54 @@
+import { execFileSync } from 'node:child_process';
+import { resolve } from 'node:path';
+import { gate, type GateInput, type ProtocolState } from '../../check/gate.js';
+import { error, FoldsealError, hasErrors } from '../../problems/problem.js';
+import { countSummary } from '../../problems/format.js';
+import { readRepo, relativePosix } from '../../io/repo.js';
+import type { CommandIo, ExitCode } from '../io.js';
+import { reportProblems, type OutputFormat } from '../report-problems.js';
+
+export interface CheckArgs {
+  dir: string;
+  format: OutputFormat;
+  staged?: boolean;
+}
+
+export async function checkCommand(args: CheckArgs, io: CommandIo): Promise<ExitCode> {
+  const root = resolve(args.dir);
+  const repo = await readRepo(root);
+  const input = repo.input;
+  if (args.staged) input.only = stagedScope(root, input);
+  const findings = [...repo.problems, ...gate(input)];
+  const checked = input.only ? input.only.size : input.protocols.length;
+  if (args.format === 'json') {
+    reportProblems(io, findings, 'json');
+  } else {
+    reportProblems(io, findings, 'text');
+    io.err(`${checked} protocol${checked === 1 ? '' : 's'} checked: ${countSummary(findings)}\n`);
+  }
+  return hasErrors(findings) ? 1 : 0;
+}
+
+/** Protocols touched by the staged change, plus every protocol that shares data with them. */
+function stagedScope(root: string, input: GateInput): Set<string> {
+  let staged: string[];
+  try {
+    staged = execFileSync('git', ['diff', '--cached', '--name-only', '--relative'], { cwd: root, encoding: 'utf8' }).split('\n').filter(Boolean);
+  } catch {
+    throw new FoldsealError(error('not-a-git-repo', `${root} is not inside a git work tree, so --staged has nothing to read`), 2);
+  }
+  const protocols = input.protocols;
+  const dataOf = (p: ProtocolState) => p.report.paths?.data;
+  const touched = new Set(staged);
+  const scope = new Set<string>();
+  const touchedData = new Set<string>();
+  for (const p of protocols) {
+    const data = dataOf(p);
+    if (touched.has(p.path) || (data && touched.has(relativePosix(root, data)))) {
+      scope.add(p.path);
+      if (data) touchedData.add(resolve(data));
+    }
+  }
+  for (const p of protocols) { const data = dataOf(p); if (data && touchedData.has(resolve(data))) scope.add(p.path); }
+  return scope;
+}

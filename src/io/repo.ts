@@ -1,0 +1,69 @@
+/** Reads a team repository for the gate: its protocols, lock, sealed list and signed manifests. */
+import { existsSync } from 'node:fs';
+import { readdir, readFile } from 'node:fs/promises';
+import { join, relative } from 'node:path';
+import { lockEntry } from '../check/entry.js';
+import type { GateInput, ProtocolState } from '../check/gate.js';
+import { LOCK_FILE, parseLock, parseSealed, type ParsedLock } from '../check/lock.js';
+import { checkManifest } from '../manifest/check.js';
+import { error, FoldsealError, type Problem } from '../problems/problem.js';
+import { discoverProtocols } from './discover.js';
+import { sha256Bytes } from './hash.js';
+import { shown, validateProtocol } from './validate.js';
+
+export interface Repo {
+  input: GateInput;
+  /** Problems of the repository files themselves (sealed file unreadable or changed). */
+  problems: Problem[];
+}
+
+export async function readRepo(root: string): Promise<Repo> {
+  const problems: Problem[] = [];
+  const lockPath = join(root, LOCK_FILE);
+  const lockFile = shown(lockPath);
+  let lock: ParsedLock | undefined;
+  if (existsSync(lockPath)) {
+    lock = parseLock(await readFile(lockPath, 'utf8'), lockFile);
+    // A corrupt lock is a usage-level failure: the gate cannot judge anything against it.
+    if (!lock.lock) throw new FoldsealError(lock.problems, 2);
+  }
+  const protocols: ProtocolState[] = [];
+  for (const path of await discoverProtocols(root)) {
+    const report = await validateProtocol(join(root, path));
+    const entry = report.protocol && report.assignment && report.dataSha256 ? lockEntry(report.protocol, report.raw, report.dataSha256, report.assignment) : undefined;
+    protocols.push({ path, report, entry });
+  }
+  let sealed: GateInput['sealed'];
+  const s = lock?.lock?.sealed;
+  if (s) {
+    const file = join(root, s.file);
+    try {
+      const bytes = await readFile(file);
+      if (sha256Bytes(bytes) !== s.sha256) problems.push(error('sealed-hash-mismatch', `the sealed-ids file ${s.file} has SHA-256 ${sha256Bytes(bytes)}, not the ${s.sha256} the lock records`, { file: lockFile }));
+      sealed = { ids: parseSealed(bytes.toString('utf8')), file: shown(file) };
+    } catch {
+      problems.push(error('sealed-missing', `the sealed-ids file ${s.file} named by the lock cannot be read`, { file: lockFile }));
+    }
+  }
+  const manifests: GateInput['manifests'] = [];
+  if (lock?.lock?.policy?.signers) {
+    for (const file of await findManifests(join(root, 'results'))) {
+      const text = await readFile(file, 'utf8');
+      manifests.push({ file: shown(file), check: checkManifest(text, { file: shown(file), allowUnpinned: true }) });
+    }
+  }
+  return { input: { protocols, lock, lockFile, sealed, manifests }, problems };
+}
+
+async function findManifests(dir: string): Promise<string[]> {
+  if (!existsSync(dir)) return [];
+  const out: string[] = [];
+  for (const e of await readdir(dir, { withFileTypes: true, recursive: true })) {
+    if (e.isFile() && e.name === 'manifest.json') out.push(join((e as unknown as { parentPath?: string; path: string }).parentPath ?? (e as unknown as { path: string }).path, e.name));
+  }
+  return out.sort();
+}
+
+export function relativePosix(root: string, path: string): string {
+  return relative(root, path).split('\\').join('/');
+}
