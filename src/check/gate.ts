@@ -71,7 +71,7 @@ function drift(s: ProtocolState, locked: LockEntry): Problem[] {
   const out: Problem[] = [];
   const now = s.entry!;
   if (now.split.seed !== locked.split.seed) out.push(error('seed-changed', `the seed changed from ${locked.split.seed} to ${now.split.seed} without a lock update`, { ...at(s, ['split', 'seed']), hint: 'changing the seed after seeing scores is seed-shopping; if it is deliberate, record it with foldseal lock' }));
-  if (now.split.rule !== locked.split.rule || now.split.pinned !== locked.split.pinned) out.push(error('rule-changed', `the split changed from ${locked.split.rule ?? `pinned ${locked.split.pinned}`} to ${now.split.rule ?? `pinned ${now.split.pinned}`} without a lock update`, at(s, ['split'])));
+  if (now.split.rule !== locked.split.rule || now.split.pinned !== locked.split.pinned) out.push(error('rule-changed', `the split changed from ${locked.split.rule ?? `pinned ${locked.split.pinned}`} to ${now.split.rule ?? `pinned ${now.split.pinned}`} without a lock update`, at(s, now.split.rule ? ['split', 'rule'] : ['split'])));
   if (now['data-sha256'] !== locked['data-sha256']) out.push(error('data-drift', `the data changed: SHA-256 ${now['data-sha256']}, locked ${locked['data-sha256']}`, at(s, ['data', 'sha256'])));
   if (now['assignment-sha256'] !== locked['assignment-sha256']) {
     const moved = Object.entries(locked.assignment).filter(([id, f]) => now.assignment[id] !== undefined && now.assignment[id] !== f).map(([id]) => id);
