@@ -25,7 +25,11 @@ async function runOn(file: string, text: string, rule: string) {
   const results = JSON.parse(out.files['results.json']);
   delete results.data.sha256;
   delete results.protocol.sha256;
-  return { folds: out.assignmentCsv, predictions: out.files['predictions.csv'], results };
+  // models.json records the protocol hash (which includes the data hash); everything else must agree.
+  delete results.files['models.json'];
+  const models = JSON.parse(out.files['models.json']);
+  delete models['protocol-sha256'];
+  return { folds: out.assignmentCsv, predictions: out.files['predictions.csv'], results, models };
 }
 
 for (const rule of ['{rule: stratified-kfold, folds: 5, repeats: 2, seed: 99}', '{rule: grouped-kfold, folds: 4, seed: 3}', '{rule: holdout, test-fraction: 0.25, seed: 5, assign: stable}']) {
@@ -38,6 +42,7 @@ for (const rule of ['{rule: stratified-kfold, folds: 5, repeats: 2, seed: 99}', 
     t.equal(reordered.predictions, base.predictions, 'predictions identical after shuffling');
     t.equal(tsv.predictions, base.predictions, 'predictions identical from TSV');
     t.same(reordered.results, base.results, 'results identical apart from the hashes');
+    t.same(reordered.models, base.models, 'fold models identical');
     const again = await runOn('d.csv', demo, rule);
     t.equal(again.predictions, base.predictions, 'two runs agree');
   });
