@@ -20,6 +20,9 @@ export const impute: TransformImpl<ImputeParams> = {
     }
     return { fill };
   },
+  restrict(p, positions) {
+    return { fill: positions.map((j) => p.fill[j]) };
+  },
   apply(p, X) {
     const out = Float64Array.from(X.data);
     for (let k = 0; k < out.length; k++) if (out[k] !== out[k]) out[k] = p.fill[k % X.cols];

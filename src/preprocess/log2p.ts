@@ -5,6 +5,9 @@ export const log2p: TransformImpl<Record<string, never>> = {
   fit() {
     return {};
   },
+  restrict(p) {
+    return p;
+  },
   apply(_p, X) {
     const out = new Float64Array(X.data.length);
     for (let k = 0; k < out.length; k++) {

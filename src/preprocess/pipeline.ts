@@ -1,6 +1,7 @@
 /** Fit the protocol's steps in order on the training rows, carrying the feature names along. */
 import type { PreprocessStep } from '../protocol/types.js';
 import type { Matrix } from '../table/matrix.js';
+import { takeCols } from '../table/matrix.js';
 import { transforms } from './registry.js';
 import { TransformError } from './types.js';
 
@@ -13,6 +14,8 @@ export interface FittedPipeline {
   steps: FittedStep[];
   /** Feature names going into the model. */
   columns: string[];
+  /** When set, the pipeline reads only these input feature positions (see prunePipeline). */
+  input?: number[];
 }
 
 export function fitPipeline(steps: readonly PreprocessStep[], X: Matrix, y: Int32Array, classCount: number, names: readonly string[]): { pipeline: FittedPipeline; X: Matrix } {
@@ -32,7 +35,7 @@ export function fitPipeline(steps: readonly PreprocessStep[], X: Matrix, y: Int3
 }
 
 export function applyPipeline(p: FittedPipeline, X: Matrix): Matrix {
-  let current = X;
+  let current = p.input ? takeCols(X, Int32Array.from(p.input)) : X;
   for (const s of p.steps) current = transforms[s.step.step].apply(s.params, current);
   if (p.steps.length) assertFinite(current, p.columns);
   return current;
@@ -45,4 +48,33 @@ function assertFinite(X: Matrix, columns: readonly string[]): void {
       throw new TransformError('non-finite-feature', `feature "${columns[k % X.cols]}" has ${what} after preprocessing (row ${Math.floor(k / X.cols) + 1} of the part)`, 'add an impute step, or check the input for overflow');
     }
   }
+}
+
+/**
+ * The same pipeline, reading only the input columns that survive every selection: column-wise
+ * steps are cut to those columns and the selections drop out. Predictions are bit-identical
+ * (each kept column goes through the same arithmetic), while a 20,000-feature pipeline that keeps
+ * 100 stores and applies 100 columns' parameters.
+ */
+export function prunePipeline(p: FittedPipeline, inputWidth: number): FittedPipeline {
+  if (!p.steps.some((s) => transforms[s.step.step].kept)) return p;
+  // Original positions present at the input of each step, and at the end.
+  const inputs: number[][] = [];
+  let current = Array.from({ length: inputWidth }, (_, j) => j);
+  for (const s of p.steps) {
+    inputs.push(current);
+    const kept = transforms[s.step.step].kept?.(s.params);
+    if (kept) current = kept.map((k) => current[k]);
+  }
+  const survivors = new Set(current);
+  const steps: FittedStep[] = [];
+  p.steps.forEach((s, t) => {
+    const impl = transforms[s.step.step];
+    if (impl.kept) return;
+    const positions = inputs[t].flatMap((orig, k) => (survivors.has(orig) ? [k] : []));
+    steps.push({ step: s.step, params: impl.restrict!(s.params, positions) });
+  });
+  const order = inputs[0].filter((j) => survivors.has(j));
+  // Selections keep input order, so the survivors' original order is the model's column order.
+  return { steps, columns: p.columns, input: order };
 }

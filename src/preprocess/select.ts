@@ -68,6 +68,9 @@ export const select: TransformImpl<SelectParams> = {
   apply(p, X) {
     return takeCols(X, Int32Array.from(p.keep));
   },
+  kept(p) {
+    return p.keep;
+  },
   columns(p, names) {
     return p.keep.map((j) => names[j]);
   },

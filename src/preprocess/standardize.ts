@@ -14,6 +14,9 @@ export const standardize: TransformImpl<StandardizeParams> = {
     const scale = Array.from(ss, (s) => { const sd = Math.sqrt(s / rows); return sd > 0 ? sd : 1; });
     return { mean: Array.from(mean), scale };
   },
+  restrict(p, positions) {
+    return { mean: positions.map((j) => p.mean[j]), scale: positions.map((j) => p.scale[j]) };
+  },
   apply(p, X) {
     const { rows, cols, data } = X;
     const out = new Float64Array(rows * cols);

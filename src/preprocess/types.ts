@@ -6,6 +6,10 @@ export interface TransformImpl<P = unknown> {
   apply(params: P, X: Matrix): Matrix;
   /** Names of the output columns given the input names (selection keeps a subset). */
   columns?(params: P, names: readonly string[]): string[];
+  /** For selections: the input positions kept, in output order. */
+  kept?(params: P): number[];
+  /** For column-wise transforms: the same transform on a subset of the input positions. */
+  restrict?(params: P, positions: readonly number[]): P;
 }
 
 export class TransformError extends Error {

@@ -7,7 +7,7 @@ import { metrics as metricFns } from '../metric/registry.js';
 import { confusionRows } from '../metric/confusion.js';
 import { scored } from '../metric/types.js';
 import { fitOptions, models } from '../model/registry.js';
-import { applyPipeline, fitPipeline, type FittedPipeline } from '../preprocess/pipeline.js';
+import { applyPipeline, fitPipeline, prunePipeline, type FittedPipeline } from '../preprocess/pipeline.js';
 import { warning, type Problem } from '../problems/problem.js';
 import { isPinned, type MetricName, type Protocol } from '../protocol/types.js';
 import { foldRows, type Assignment } from '../split/assignment.js';
@@ -81,17 +81,20 @@ export function crossValidate(p: Protocol, table: Table, a: Assignment, hooks: C
       const { test, train } = foldRows(a, r, f, order);
       const yTrain = takeInt(table.y, train);
       const trainCounts = new Array<number>(k).fill(0);
-      for (const c of yTrain) trainCounts[c]++;
+      for (let i = 0; i < yTrain.length; i++) trainCounts[yTrain[i]]++;
       trainCounts.forEach((c, cls) => {
         if (c === 0) warnings.push(warning('class-absent-from-training', `class "${table.classes[cls]}" has no row in the training part of repeat ${r}, fold ${f}; that fold's model gives it probability 0`));
       });
-      const { pipeline, X: trainX } = fitPipeline(p.preprocess, takeRows(table.X, train), yTrain, k, table.featureNames);
+      const fitted0 = fitPipeline(p.preprocess, takeRows(table.X, train), yTrain, k, table.featureNames);
+      const trainX = fitted0.X;
+      const pipeline = prunePipeline(fitted0.pipeline, table.X.cols);
       const params = model.fit(trainX, yTrain, options, { classCount: k });
       const testX = applyPipeline(pipeline, takeRows(table.X, test));
       const foldProba = model.predict(params, testX);
       const yTest = takeInt(table.y, test);
       for (let i = 0; i < test.length; i++) {
-        proba.set(foldProba.subarray(i * k, (i + 1) * k), test[i] * k);
+        const to = test[i] * k;
+        for (let c = 0; c < k; c++) proba[to + c] = foldProba[i * k + c];
         tested[test[i]] = f;
       }
       const s = scored(yTest, foldProba, k, positive);
@@ -99,7 +102,7 @@ export function crossValidate(p: Protocol, table: Table, a: Assignment, hooks: C
       for (const m of p.metrics) values[m] = metricFns[m](s);
       const majority = trainCounts.indexOf(Math.max(...trainCounts));
       const testClassCounts = new Array<number>(k).fill(0);
-      for (const c of yTest) testClassCounts[c]++;
+      for (let i = 0; i < yTest.length; i++) testClassCounts[yTest[i]]++;
       folds.push({ repeat: r, fold: f, trainRows: train.length, testRows: test.length, testClassCounts, metrics: values, baselineAccuracy: testClassCounts[majority] / test.length, confusion: confusionRows(s) });
       fitted.push({ repeat: r, fold: f, pipeline, model: params });
       hooks.onFold?.(folds.length, total);

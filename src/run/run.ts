@@ -9,7 +9,7 @@ import { assignmentCsv } from '../split/csv.js';
 import type { Table } from '../table/table.js';
 import { sha256Bytes } from '../io/hash.js';
 import { fitOptions, models } from '../model/registry.js';
-import { fitPipeline } from '../preprocess/pipeline.js';
+import { fitPipeline, prunePipeline } from '../preprocess/pipeline.js';
 import { appliedCsv, applyRows, type AppliedRow } from '../reconcile/applied.js';
 import { heldOutFromOof } from '../reconcile/held-out.js';
 import { MODELS_VERSION, modelsJson, type ModelsFile, type SavedModel } from '../reconcile/models-file.js';
@@ -103,6 +103,6 @@ function fitOnAll(input: RunInput): SavedModel {
     const y = takeInt(table.y, order);
     const { pipeline, X } = fitPipeline(p.preprocess, takeRows(table.X, order), y, table.classes.length, table.featureNames);
     const model = models[p.model.kind].fit(X, y, fitOptions(p.model.kind, p.model.options, table.classes), { classCount: table.classes.length });
-    return { repeat: 0, fold: 0, pipeline, model };
+    return { repeat: 0, fold: 0, pipeline: prunePipeline(pipeline, table.X.cols), model };
   });
 }

@@ -11,12 +11,23 @@ export function matrix(rows: number, cols: number, data = new Float64Array(rows 
 
 /** The rows listed in `index`, in that order. */
 export function takeRows(m: Matrix, index: Int32Array): Matrix {
-  const out = new Float64Array(index.length * m.cols);
-  for (let i = 0; i < index.length; i++) {
-    const from = index[i] * m.cols;
-    out.set(m.data.subarray(from, from + m.cols), i * m.cols);
+  const cols = m.cols;
+  const out = new Float64Array(index.length * cols);
+  const data = m.data;
+  if (cols < 256) {
+    // Short rows: a plain loop beats allocating a subarray view per row.
+    let o = 0;
+    for (let i = 0; i < index.length; i++) {
+      const from = index[i] * cols;
+      for (let j = 0; j < cols; j++) out[o++] = data[from + j];
+    }
+  } else {
+    for (let i = 0; i < index.length; i++) {
+      const from = index[i] * cols;
+      out.set(data.subarray(from, from + cols), i * cols);
+    }
   }
-  return { rows: index.length, cols: m.cols, data: out };
+  return { rows: index.length, cols, data: out };
 }
 
 /** The columns listed in `index`, in that order. */
