@@ -59,22 +59,23 @@ function assertFinite(X: Matrix, columns: readonly string[]): void {
 export function prunePipeline(p: FittedPipeline, inputWidth: number): FittedPipeline {
   if (!p.steps.some((s) => transforms[s.step.step].kept)) return p;
   // Original positions present at the input of each step, and at the end.
-  const inputs: number[][] = [];
-  let current = Array.from({ length: inputWidth }, (_, j) => j);
+  const inputs: Int32Array[] = [];
+  let current = Int32Array.from({ length: inputWidth }, (_, j) => j);
   for (const s of p.steps) {
     inputs.push(current);
     const kept = transforms[s.step.step].kept?.(s.params);
-    if (kept) current = kept.map((k) => current[k]);
+    if (kept) current = Int32Array.from(kept, (k) => current[k]);
   }
-  const survivors = new Set(current);
+  const survives = new Uint8Array(inputWidth);
+  for (const j of current) survives[j] = 1;
   const steps: FittedStep[] = [];
   p.steps.forEach((s, t) => {
     const impl = transforms[s.step.step];
     if (impl.kept) return;
-    const positions = inputs[t].flatMap((orig, k) => (survivors.has(orig) ? [k] : []));
+    const positions: number[] = [];
+    inputs[t].forEach((orig, k) => { if (survives[orig]) positions.push(k); });
     steps.push({ step: s.step, params: impl.restrict!(s.params, positions) });
   });
-  const order = inputs[0].filter((j) => survivors.has(j));
   // Selections keep input order, so the survivors' original order is the model's column order.
-  return { steps, columns: p.columns, input: order };
+  return { steps, columns: p.columns, input: Array.from(current) };
 }

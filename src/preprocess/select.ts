@@ -2,7 +2,8 @@
  * Keep the `top` features by a score computed on the training part only (fitting selection
  * inside the folds avoids the selection bias of Ambroise & McLachlan 2002, PNAS 99:6562).
  * Scores: |Welch t| (two classes), one-way ANOVA F, or variance. Higher is better; an
- * undefined score (a constant feature) ranks last; equal scores keep the earlier column.
+ * undefined score (NaN: a constant feature) ranks last, an infinite one (no spread within
+ * classes) first; equal scores keep the earlier column.
  */
 import { takeCols } from '../table/matrix.js';
 import type { TransformImpl } from './types.js';
@@ -54,16 +55,28 @@ export function featureScores(X: { rows: number; cols: number; data: Float64Arra
   return out;
 }
 
+/** Positions of the `top` highest scores (undefined scores last, ties to the earlier position), ascending. */
+export function topIndices(scores: Float64Array, top: number): number[] {
+  // NaN (a constant feature) ranks last; +Infinity (a perfectly separating one) ranks first.
+  const value = (j: number) => (scores[j] === scores[j] ? scores[j] : -Infinity);
+  // A sorted shortlist (best first) with binary insertion: O(n log top) instead of sorting all n.
+  const best: number[] = [];
+  const better = (a: number, b: number) => value(a) > value(b) || (value(a) === value(b) && a < b);
+  for (let j = 0; j < scores.length; j++) {
+    if (best.length === top && !better(j, best[top - 1])) continue;
+    let lo = 0;
+    let hi = best.length;
+    while (lo < hi) { const mid = (lo + hi) >> 1; if (better(best[mid], j)) lo = mid + 1; else hi = mid; }
+    best.splice(lo, 0, j);
+    if (best.length > top) best.pop();
+  }
+  return best.sort((a, b) => a - b);
+}
+
 export const select: TransformImpl<SelectParams> = {
   fit(X, y, classCount, step: { top: number; by: 't-test' | 'f-test' | 'variance' }) {
     const scores = featureScores(X, y, classCount, step.by);
-    const order = Array.from(scores.keys()).sort((a, b) => {
-      const sa = Number.isFinite(scores[a]) ? scores[a] : -Infinity;
-      const sb = Number.isFinite(scores[b]) ? scores[b] : -Infinity;
-      return sb - sa || a - b;
-    });
-    const keep = order.slice(0, step.top).sort((a, b) => a - b);
-    return { keep, scores: Array.from(scores, (s) => (Number.isFinite(s) ? s : null)) };
+    return { keep: topIndices(scores, step.top), scores: Array.from(scores, (s) => (Number.isFinite(s) ? s : null)) };
   },
   apply(p, X) {
     return takeCols(X, Int32Array.from(p.keep));
