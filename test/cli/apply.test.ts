@@ -67,3 +67,19 @@ broken('duplicate ids', (d) => { writeFileSync(join(d, 'n.csv'), `${header}\n${l
 broken('an id column missing', (d) => { writeFileSync(join(d, 'n.csv'), header.replace('seedling_id', 'plant') + `\n${line}\n`); return [join(d, 'n.csv')]; }, 'error: the id column "seedling_id" is not in the new-rows file\'s header');
 broken('a feature column missing', (d) => { writeFileSync(join(d, 'n.csv'), header.replace('phenol_index', 'phenols') + `\n${line}\n`); return [join(d, 'n.csv')]; }, 'error: feature "phenol_index" is not in the new-rows file\'s header');
 broken('a missing results folder', () => ['x.csv'], 'does not exist', 2);
+
+t.test('run with reconcile rule refit writes refit rows; majority-vote without a tie rule does not validate', async (t) => {
+  const d = tempDir();
+  const demo = readFileSync(join(root, 'protocols', 'demo.yaml'), 'utf8').replaceAll('file: data/', `file: ${join(root, 'protocols', 'data')}/`);
+  writeFileSync(join(d, 'refit.yaml'), demo.replace('rule: mean-probability', 'rule: refit'));
+  const r = cli(['run', 'refit.yaml', '--out', 'res'], d);
+  t.equal(r.code, 0, r.stderr);
+  const sources = readFileSync(join(d, 'res', 'applied.csv'), 'utf8').trimEnd().split('\n').slice(1).map((l) => l.split(',')[1]);
+  t.same([...new Set(sources)].sort(), ['held-out', 'refit']);
+  t.ok(JSON.parse(readFileSync(join(d, 'res', 'models.json'), 'utf8')).refit, 'the refit model is saved');
+  writeFileSync(join(d, 'vote.yaml'), demo.replace('rule: mean-probability', 'rule: majority-vote'));
+  const v = cli(['validate', 'vote.yaml'], d);
+  t.equal(v.code, 1);
+  t.match(v.stderr, /vote\.yaml:\d+:9: error: majority-vote over 10 fold models and 2 classes can tie, and reconcile\.tie is not set/);
+  t.match(v.stderr, 'hint: add `tie: mean-probability`, `tie: abstain` or `tie: class-order`');
+});
