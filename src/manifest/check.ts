@@ -3,7 +3,7 @@ import { createPublicKey, type KeyObject } from 'node:crypto';
 import { error, warning, type Problem } from '../problems/problem.js';
 import { schemaValidator } from '../protocol/schema.js';
 import { MANIFEST_VERSION, type Manifest } from './build.js';
-import { canonicalJson } from './canonical.js';
+import { canonicalJson, NonJsonValueError } from './canonical.js';
 import { changedMembers, fingerprint, manifestText, memberDigests, signatureValid, type Signature } from './sign.js';
 
 export interface ManifestCheck {
@@ -40,12 +40,28 @@ export function checkManifest(text: string, o: CheckOptions): ManifestCheck {
     return { manifest, problems, pinned: false };
   }
   const signature = manifest.signature as Signature | undefined;
-  if (text !== manifestText(manifest)) {
+  let canonical: string;
+  try {
+    canonical = manifestText(manifest);
+  } catch (e) {
+    if (!(e instanceof NonJsonValueError)) throw e;
+    problems.push(error('manifest-not-json', `the manifest holds a number out of range at ${e.path}`, { file }));
+    return { manifest, problems, pinned: false };
+  }
+  if (text !== canonical) {
     problems.push(error('manifest-not-canonical', 'the file is not the canonical JSON foldseal writes (its bytes were changed after it was written)', { file, hint: 'a reformatted copy cannot be checked byte for byte; use the original file' }));
   }
   if (!signature) {
     problems.push((o.allowUnpinned ? warning : error)('manifest-unsigned', 'the manifest is not signed', { file, hint: 'the author signs with foldseal run --key PREFIX.key' }));
     return { manifest, problems, pinned: false };
+  }
+  // Base64 has spare bits in its last character: require the one canonical spelling, so no
+  // character of the signature can change without the check noticing.
+  for (const member of ['public-key', 'value'] as const) {
+    if (Buffer.from(signature[member], 'base64').toString('base64') !== signature[member]) {
+      problems.push(error('signature-encoding', `signature.${member} is not canonical base64 (it was edited)`, { file }));
+      return { manifest, problems, pinned: false };
+    }
   }
   let embedded: KeyObject;
   try {

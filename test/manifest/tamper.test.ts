@@ -46,7 +46,7 @@ t.test('1,200 generated mutations: none is accepted', async (t) => {
     b[i] = (b[i] + delta) % 256;
     tried++;
     return rejected(b.toString('utf8'));
-  }), { numRuns: 600 });
+  }), { numRuns: 2000 });
   fc.assert(fc.property(fc.constantFrom(...all), (p) => {
     const m = structuredClone(base);
     const parent = get(m, p.slice(0, -1));
@@ -81,6 +81,7 @@ t.test('bad manifests', async (t) => {
   const codes = (s: string) => checkManifest(s, { file: 'm.json' }).problems.map((p) => p.code);
   t.same(codes(text.slice(0, 200)), ['manifest-not-json'], 'truncated');
   t.same(codes('[1,2]'), ['manifest-not-object']);
+  t.same(codes(text.replace(/"accuracy":0\.\d+/, '"accuracy":1e999')), ['manifest-not-json'], 'a number that overflows to Infinity');
   t.same(codes(text.replace('"foldseal-manifest":1', '"foldseal-manifest":2')), ['manifest-version']);
   t.same(codes(text.replace('"created":', '"extra":1,"created":')), ['manifest-schema']);
   const unsigned = structuredClone(base);
@@ -91,4 +92,12 @@ t.test('bad manifests', async (t) => {
   const forged = structuredClone(base);
   forged.signature['key-sha256'] = '0'.repeat(64);
   t.ok(codes(canonicalJson(forged) + '\n').includes('signature-key-mismatch'));
+  // The last base64 character of the 32-byte key carries 2 spare bits: a change there decodes to
+  // the same key, and must still be caught.
+  const spare = structuredClone(base);
+  const key: string = spare.signature['public-key'];
+  const last = key[key.length - 2];
+  const alphabet = 'ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/';
+  spare.signature['public-key'] = key.slice(0, -2) + alphabet[alphabet.indexOf(last) ^ 1] + '=';
+  t.same(codes(canonicalJson(spare) + '\n'), ['signature-encoding']);
 });

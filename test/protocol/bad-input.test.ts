@@ -3,13 +3,13 @@
  * message, exit 1, and nothing written. Expected texts are foldseal's own contract.
  */
 import { readdirSync } from 'node:fs';
-import t from 'tap';
+import t, { type Test } from 'tap';
 import { cli, protocolText, sha256, smallCsv, tempDir } from '../helpers.js';
 
 const csv = smallCsv();
 const h = sha256(csv);
 
-function check(t: Tap.Test, name: string, files: Record<string, string>, expected: string[], code = 1) {
+function check(t: Test, name: string, files: Record<string, string>, expected: string[], code = 1) {
   t.test(name, async (t) => {
     const dir = tempDir({ 'data.csv': csv, ...files });
     const before = readdirSync(dir).sort();
@@ -20,8 +20,6 @@ function check(t: Tap.Test, name: string, files: Record<string, string>, expecte
     t.same(readdirSync(dir).sort(), before, 'nothing is written');
   });
 }
-type Tap = typeof t;
-declare namespace Tap { type Test = Tap; }
 
 check(t, 'malformed YAML', { 'p.yaml': 'foldseal: 1\nname: [t\n' }, ['p.yaml:3:1: error: Flow sequence in block collection must be sufficiently indented and end with a ]']);
 check(t, 'a duplicate key', { 'p.yaml': protocolText(csv).replace('name: t\n', 'name: t\nname: u\n') }, ['p.yaml:3:1: error: key "name" appears twice in the same mapping']);

@@ -7,17 +7,9 @@ import { assignFolds } from '../../src/split/assign.js';
 import { assignmentCsv } from '../../src/split/csv.js';
 import { deriveKeys, keyMessage } from '../../src/split/key.js';
 import { compareUtf8 } from '../../src/util/bytes.js';
+import type { SpecVector } from '../split/vectors.js';
 
-interface Vector {
-  name: string;
-  rule: 'holdout' | 'kfold' | 'stratified-kfold' | 'grouped-kfold' | 'leave-one-out' | 'leave-group-out';
-  folds?: number;
-  repeats?: number;
-  seed?: number;
-  assign?: 'balanced' | 'stable';
-  'test-fraction'?: number;
-  rows: string[][];
-}
+type Vector = Omit<SpecVector, 'expected'>;
 
 const letters = 'abcdefghij'.split('');
 const vectors: Vector[] = [

@@ -5,7 +5,7 @@
  */
 import { spawnSync } from 'node:child_process';
 import { join } from 'node:path';
-import t from 'tap';
+import t, { type Test } from 'tap';
 import { tempDir } from '../helpers.js';
 import { metrics } from '../../src/metric/registry.js';
 import { scored } from '../../src/metric/types.js';
@@ -15,7 +15,7 @@ import { fixture, refDir, referenceCases, runCase, type ReferenceFixture } from 
 const TOLERANCE = 1e-9;
 const close = (a: number, b: number) => Math.abs(a - b) <= TOLERANCE * Math.max(1, Math.abs(b));
 
-async function compareCase(t: Tap, name: string, ref: ReferenceFixture) {
+async function compareCase(t: Test, name: string, ref: ReferenceFixture) {
   const c = referenceCases().find((x) => x.name === name)!;
   const { out, ids, table } = await runCase(c);
   const cv = out.cv;
@@ -67,7 +67,6 @@ async function compareCase(t: Tap, name: string, ref: ReferenceFixture) {
     }
   });
 }
-type Tap = typeof t;
 
 for (const c of referenceCases()) {
   t.test(`${c.name} agrees with the committed scikit-learn fixture`, async (t) => compareCase(t, c.name, fixture(c.name)));
