@@ -53,7 +53,8 @@ export async function verifyCommand(args: VerifyArgs, io: CommandIo): Promise<Ex
     }
   }
   const failed = hasErrors(problems) || differences.length > 0;
-  const final = args.rerun && usable && !rerun_failed(problems) ? verdict(differences) : failed ? 'not verified' : 'verified';
+  const reran = Boolean(args.rerun && usable) && !problems.some((p) => p.code === 'rerun-failed');
+  const final = reran ? verdict(differences) : failed ? 'not verified' : 'verified';
   if (args.format === 'json') {
     io.out(JSON.stringify({ verdict: final, 'signed-by': check.signedBy ?? null, pinned: check.pinned, problems, differences }, null, 2) + '\n');
   } else {
@@ -62,10 +63,6 @@ export async function verifyCommand(args: VerifyArgs, io: CommandIo): Promise<Ex
     io.out(lines.map((l) => l + '\n').join('') + final + '\n');
   }
   return failed ? 1 : 0;
-}
-
-function rerun_failed(problems: Problem[]): boolean {
-  return problems.some((p) => p.code === 'rerun-failed');
 }
 
 async function checkSiblings(m: Manifest & { files: Record<string, string> }, dir: string, strict: boolean, problems: Problem[]): Promise<string> {
@@ -117,7 +114,7 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
   try {
     const path = join(work, 'protocol.yaml');
     await writeFile(path, JSON.stringify(doc, null, 2));
-    const { report, input, out } = await produceRun(path, { refit: Boolean(m.files['models.json'] && JSON.parse(await readFileOr(join(manifestDir, 'models.json'), 'null'))?.refit) });
+    const { report, input, out } = await produceRun(path, { refit: await recordedRefit(join(manifestDir, 'models.json')) });
     if (!input || !out) {
       problems.push(...report.problems.filter((p) => p.severity === 'error'), error('rerun-failed', 'the protocol did not validate on the local data, so it could not be re-run'));
       return { differences: [], lines: [] };
@@ -135,6 +132,15 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
     return { differences, lines };
   } finally {
     await rm(work, { recursive: true, force: true });
+  }
+}
+
+/** Whether the recorded run saved a refit model (run --refit), so the re-run does the same. */
+async function recordedRefit(modelsPath: string): Promise<boolean> {
+  try {
+    return Boolean(JSON.parse(await readFileOr(modelsPath, 'null'))?.refit);
+  } catch {
+    return false;
   }
 }
 
