@@ -6,13 +6,13 @@
 import { metrics as metricFns } from '../metric/registry.js';
 import { confusionRows } from '../metric/confusion.js';
 import { scored } from '../metric/types.js';
-import { fitOptions, models } from '../model/registry.js';
-import { applyPipeline, fitPipeline, prunePipeline, type FittedPipeline } from '../preprocess/pipeline.js';
+import type { FittedPipeline } from '../preprocess/pipeline.js';
+import { fitFold, type FoldFit } from './fit-fold.js';
 import { warning, type Problem } from '../problems/problem.js';
 import { isPinned, type MetricName, type Protocol } from '../protocol/types.js';
 import { foldRows, type Assignment } from '../split/assignment.js';
 import { idOrder } from '../split/key.js';
-import { takeInt, takeRows } from '../table/matrix.js';
+import { takeInt } from '../table/matrix.js';
 import type { Table } from '../table/table.js';
 import { meanOf, meanSd, type MetricSummary } from './summary.js';
 
@@ -60,56 +60,67 @@ export interface CvHooks {
   onFold?: (done: number, total: number) => void;
 }
 
+export interface FoldPlan {
+  repeat: number;
+  fold: number;
+  /** Row indices in the split spec's id order. */
+  train: Int32Array;
+  test: Int32Array;
+}
+
+/** Every (repeat, fold) to fit, in the order results are reported. */
+export function planFolds(p: Protocol, table: Table, a: Assignment): FoldPlan[] {
+  const order = idOrder(table.ids);
+  const plans: FoldPlan[] = [];
+  for (let r = 1; r <= a.repeats; r++) for (const f of evaluatedFolds(p, a)) plans.push({ repeat: r, fold: f, ...foldRows(a, r, f, order) });
+  return plans;
+}
+
 export function crossValidate(p: Protocol, table: Table, a: Assignment, hooks: CvHooks = {}): CvResult {
+  const plans = planFolds(p, table, a);
+  const fits = plans.map((plan, i) => {
+    const fit = fitFold(p, table, plan.train, plan.test);
+    hooks.onFold?.(i + 1, plans.length);
+    return fit;
+  });
+  return assembleResult(p, table, a, plans, fits);
+}
+
+/** Scores, summaries and out-of-fold arrays from the fitted folds (however they were fitted). */
+export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: readonly FoldPlan[], fits: readonly FoldFit[]): CvResult {
   const k = table.classes.length;
   const n = table.ids.length;
   const positive = p.data.positive !== undefined ? table.classes.indexOf(p.data.positive) : k - 1;
   const order = idOrder(table.ids);
-  const model = models[p.model.kind];
-  const options = fitOptions(p.model.kind, p.model.options, table.classes);
   const folds: FoldResult[] = [];
   const fitted: FoldModel[] = [];
   const warnings: Problem[] = [];
-  const oof: Float64Array[] = [];
-  const testedIn: Int32Array[] = [];
-  const evaluated = evaluatedFolds(p, a);
-  const total = a.repeats * evaluated.length;
-  for (let r = 1; r <= a.repeats; r++) {
-    const proba = new Float64Array(n * k).fill(NaN);
-    const tested = new Int32Array(n);
-    for (const f of evaluated) {
-      const { test, train } = foldRows(a, r, f, order);
-      const yTrain = takeInt(table.y, train);
-      const trainCounts = new Array<number>(k).fill(0);
-      for (let i = 0; i < yTrain.length; i++) trainCounts[yTrain[i]]++;
-      trainCounts.forEach((c, cls) => {
-        if (c === 0) warnings.push(warning('class-absent-from-training', `class "${table.classes[cls]}" has no row in the training part of repeat ${r}, fold ${f}; that fold's model gives it probability 0`));
-      });
-      const fitted0 = fitPipeline(p.preprocess, takeRows(table.X, train), yTrain, k, table.featureNames);
-      const trainX = fitted0.X;
-      const pipeline = prunePipeline(fitted0.pipeline, table.X.cols);
-      const params = model.fit(trainX, yTrain, options, { classCount: k });
-      const testX = applyPipeline(pipeline, takeRows(table.X, test));
-      const foldProba = model.predict(params, testX);
-      const yTest = takeInt(table.y, test);
-      for (let i = 0; i < test.length; i++) {
-        const to = test[i] * k;
-        for (let c = 0; c < k; c++) proba[to + c] = foldProba[i * k + c];
-        tested[test[i]] = f;
-      }
-      const s = scored(yTest, foldProba, k, positive);
-      const values: Record<string, number | null> = {};
-      for (const m of p.metrics) values[m] = metricFns[m](s);
-      const majority = trainCounts.indexOf(Math.max(...trainCounts));
-      const testClassCounts = new Array<number>(k).fill(0);
-      for (let i = 0; i < yTest.length; i++) testClassCounts[yTest[i]]++;
-      folds.push({ repeat: r, fold: f, trainRows: train.length, testRows: test.length, testClassCounts, metrics: values, baselineAccuracy: testClassCounts[majority] / test.length, confusion: confusionRows(s) });
-      fitted.push({ repeat: r, fold: f, pipeline, model: params });
-      hooks.onFold?.(folds.length, total);
+  const oof: Float64Array[] = Array.from({ length: a.repeats }, () => new Float64Array(n * k).fill(NaN));
+  const testedIn: Int32Array[] = Array.from({ length: a.repeats }, () => new Int32Array(n));
+  plans.forEach(({ repeat: r, fold: f, train, test }, index) => {
+    const { pipeline, model: params, proba: foldProba } = fits[index];
+    const proba = oof[r - 1];
+    const tested = testedIn[r - 1];
+    const trainCounts = new Array<number>(k).fill(0);
+    for (let i = 0; i < train.length; i++) trainCounts[table.y[train[i]]]++;
+    trainCounts.forEach((c, cls) => {
+      if (c === 0) warnings.push(warning('class-absent-from-training', `class "${table.classes[cls]}" has no row in the training part of repeat ${r}, fold ${f}; that fold's model gives it probability 0`));
+    });
+    const yTest = takeInt(table.y, test);
+    for (let i = 0; i < test.length; i++) {
+      const to = test[i] * k;
+      for (let c = 0; c < k; c++) proba[to + c] = foldProba[i * k + c];
+      tested[test[i]] = f;
     }
-    oof.push(proba);
-    testedIn.push(tested);
-  }
+    const s = scored(yTest, foldProba, k, positive);
+    const values: Record<string, number | null> = {};
+    for (const m of p.metrics) values[m] = metricFns[m](s);
+    const majority = trainCounts.indexOf(Math.max(...trainCounts));
+    const testClassCounts = new Array<number>(k).fill(0);
+    for (let i = 0; i < yTest.length; i++) testClassCounts[yTest[i]]++;
+    folds.push({ repeat: r, fold: f, trainRows: train.length, testRows: test.length, testClassCounts, metrics: values, baselineAccuracy: testClassCounts[majority] / test.length, confusion: confusionRows(s) });
+    fitted.push({ repeat: r, fold: f, pipeline, model: params });
+  });
   const summary: Record<string, MetricSummary> = {};
   const pooledByRepeat = pooled(p.metrics, table, oof, testedIn, order, positive);
   for (const m of p.metrics) {

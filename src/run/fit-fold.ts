@@ -1,0 +1,30 @@
+/** One fold: fit the pipeline and the model on the training rows, predict the test rows. Pure. */
+import { fitOptions, models } from '../model/registry.js';
+import { applyPipeline, fitPipeline, prunePipeline, type FittedPipeline } from '../preprocess/pipeline.js';
+import type { Protocol } from '../protocol/types.js';
+import { takeInt, takeRows, type Matrix } from '../table/matrix.js';
+
+export interface FoldData {
+  X: Matrix;
+  y: Int32Array;
+  classes: readonly string[];
+  featureNames: readonly string[];
+}
+
+export interface FoldFit {
+  pipeline: FittedPipeline;
+  model: unknown;
+  /** Test rows × classes, in the order of `test`. */
+  proba: Float64Array;
+}
+
+export function fitFold(p: Pick<Protocol, 'preprocess' | 'model'>, d: FoldData, train: Int32Array, test: Int32Array): FoldFit {
+  const k = d.classes.length;
+  const yTrain = takeInt(d.y, train);
+  const fitted = fitPipeline(p.preprocess, takeRows(d.X, train), yTrain, k, d.featureNames);
+  const pipeline = prunePipeline(fitted.pipeline, d.X.cols);
+  const impl = models[p.model.kind];
+  const model = impl.fit(fitted.X, yTrain, fitOptions(p.model.kind, p.model.options, d.classes), { classCount: k });
+  const proba = impl.predict(model, applyPipeline(pipeline, takeRows(d.X, test)));
+  return { pipeline, model, proba };
+}
