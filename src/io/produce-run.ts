@@ -1,7 +1,8 @@
 /** Validate a protocol file and run it: the shared shell of `run` and `verify --rerun`. */
 import { hasErrors } from '../problems/problem.js';
 import type { CvHooks } from '../run/cross-validate.js';
-import { runProtocol, type RunInput, type RunOutput } from '../run/run.js';
+import { guardFit, runProtocol, type RunInput, type RunOutput } from '../run/run.js';
+import { crossValidateInWorkers } from './fold-workers.js';
 import { validateProtocol, type ValidationReport } from './validate.js';
 
 export interface Produced {
@@ -24,5 +25,11 @@ export async function produceRun(protocolPath: string, options: { refit?: boolea
     refit: options.refit,
     warnings: report.problems.filter((q) => q.severity === 'warning'),
   };
-  return { report, input, out: runProtocol(input, options.hooks) };
+  let cv;
+  try {
+    cv = await crossValidateInWorkers(input.protocol, input.table, input.assignment, options.hooks);
+  } catch (e) {
+    guardFit(input.protocolFile, () => { throw e; });
+  }
+  return { report, input, out: runProtocol(input, options.hooks, cv) };
 }

@@ -44,8 +44,9 @@ export interface RunOutput {
   files: Record<string, string>;
 }
 
-export function runProtocol(input: RunInput, hooks: CvHooks = {}): RunOutput {
-  const cv: CvResult = guardFit(input.protocolFile, () => crossValidate(input.protocol, input.table, input.assignment, hooks));
+/** `fitted` is a cross-validation already done elsewhere (on worker threads); without it the folds are fitted here. */
+export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvResult): RunOutput {
+  const cv: CvResult = fitted ?? guardFit(input.protocolFile, () => crossValidate(input.protocol, input.table, input.assignment, hooks));
   const folds = assignmentCsv(input.assignment);
   const predictions = predictionsCsv(cv, input.table);
   const p = input.protocol;
@@ -86,7 +87,7 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}): RunOutput {
   return { cv, results, assignmentCsv: folds, files, applied };
 }
 
-function guardFit<T>(protocolFile: string, f: () => T): T {
+export function guardFit<T>(protocolFile: string, f: () => T): T {
   try {
     return f();
   } catch (e) {

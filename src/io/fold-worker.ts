@@ -1,0 +1,18 @@
+/** Worker thread entry: fits the folds it is sent on the shared table (see fold-workers.ts). */
+import { parentPort, workerData } from 'node:worker_threads';
+import { FitError } from '../model/types.js';
+import { TransformError } from '../preprocess/types.js';
+import { fitFold, type FoldData } from '../run/fit-fold.js';
+
+const w = workerData as { protocol: Parameters<typeof fitFold>[0]; rows: number; cols: number; data: SharedArrayBuffer; y: SharedArrayBuffer; classes: string[]; featureNames: string[] };
+const table: FoldData = { X: { rows: w.rows, cols: w.cols, data: new Float64Array(w.data) }, y: new Int32Array(w.y), classes: w.classes, featureNames: w.featureNames };
+
+parentPort!.on('message', (job: { index: number; train: Int32Array; test: Int32Array }) => {
+  try {
+    const fit = fitFold(w.protocol, table, job.train, job.test);
+    parentPort!.postMessage({ index: job.index, fit }, [fit.proba.buffer as ArrayBuffer]);
+  } catch (e) {
+    const user = e instanceof FitError || e instanceof TransformError;
+    parentPort!.postMessage({ index: job.index, error: { kind: user ? e.name : 'bug', code: user ? e.code : '', message: user ? e.message : String((e as Error).stack ?? e), hint: user ? e.hint : undefined } });
+  }
+});

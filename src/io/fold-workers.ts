@@ -1,0 +1,67 @@
+/**
+ * Fits the folds on worker threads when the job is large enough to pay for them. Each fold runs
+ * the same pure fitFold on the same inputs, and results are assembled in plan order, so the
+ * output is byte-identical to the serial loop.
+ */
+import { availableParallelism } from 'node:os';
+import { Worker } from 'node:worker_threads';
+import { FitError } from '../model/types.js';
+import { TransformError } from '../preprocess/types.js';
+import type { Protocol } from '../protocol/types.js';
+import type { Assignment } from '../split/assignment.js';
+import type { Table } from '../table/table.js';
+import { assembleResult, crossValidate, planFolds, type CvHooks, type CvResult } from '../run/cross-validate.js';
+import type { FoldFit } from '../run/fit-fold.js';
+
+/** Cells × folds below which thread start-up costs more than it saves. */
+const MIN_WORK = 2_000_000;
+
+export function threadCount(table: Table, folds: number): number {
+  const forced = Number(process.env.FOLDSEAL_THREADS);
+  if (Number.isInteger(forced) && forced >= 1) return forced;
+  // Workers load compiled JavaScript; from TypeScript sources (tests) the serial loop runs.
+  if (!import.meta.url.endsWith('.js')) return 1;
+  if (table.X.rows * table.X.cols * folds < MIN_WORK) return 1;
+  return Math.max(1, Math.min(availableParallelism(), folds, 8));
+}
+
+export async function crossValidateInWorkers(p: Protocol, table: Table, a: Assignment, hooks: CvHooks = {}): Promise<CvResult> {
+  const plans = planFolds(p, table, a);
+  const threads = threadCount(table, plans.length);
+  if (threads < 2 || !import.meta.url.endsWith('.js')) return crossValidate(p, table, a, hooks);
+  const data = new SharedArrayBuffer(table.X.data.byteLength);
+  new Float64Array(data).set(table.X.data);
+  const y = new SharedArrayBuffer(table.y.byteLength);
+  new Int32Array(y).set(table.y);
+  const workerData = { protocol: { preprocess: p.preprocess, model: p.model }, rows: table.X.rows, cols: table.X.cols, data, y, classes: table.classes, featureNames: table.featureNames };
+  const fits: FoldFit[] = new Array(plans.length);
+  const workers = Array.from({ length: threads }, () => new Worker(new URL('./fold-worker.js', import.meta.url), { workerData }));
+  try {
+    await new Promise<void>((resolve, reject) => {
+      let next = 0;
+      let done = 0;
+      const feed = (w: Worker) => {
+        if (next >= plans.length) return;
+        const index = next++;
+        w.postMessage({ index, train: plans[index].train, test: plans[index].test });
+      };
+      for (const w of workers) {
+        w.on('message', (m: { index: number; fit?: FoldFit; error?: { kind: string; code: string; message: string; hint?: string } }) => {
+          if (m.error) {
+            reject(m.error.kind === 'FitError' ? new FitError(m.error.code, m.error.message, m.error.hint) : m.error.kind === 'TransformError' ? new TransformError(m.error.code, m.error.message, m.error.hint) : new Error(m.error.message));
+            return;
+          }
+          fits[m.index] = m.fit!;
+          hooks.onFold?.(++done, plans.length);
+          if (done === plans.length) resolve();
+          else feed(w);
+        });
+        w.on('error', reject);
+        feed(w);
+      }
+    });
+  } finally {
+    await Promise.all(workers.map((w) => w.terminate()));
+  }
+  return assembleResult(p, table, a, plans, fits);
+}
