@@ -19,5 +19,6 @@ export function assignFolds(input: SplitInput, split: RuleSplit): Assignment {
     fold.set(out.fold, (r - 1) * n);
     folds = out.folds;
   }
-  return { version: SPLIT_VERSION, ids: [...input.ids], repeats: split.repeats, folds, fold };
+  // The table's own ids array (read-only), so its id order is computed once.
+  return { version: SPLIT_VERSION, ids: input.ids as string[], repeats: split.repeats, folds, fold };
 }

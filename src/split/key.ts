@@ -54,8 +54,14 @@ export function sortByKey(rows: Int32Array, keys: Uint8Array, ids: readonly stri
 
 /** Rows 0..n-1 sorted by the UTF-8 bytes of their ids (the spec's "id order"). */
 export function idOrder(ids: readonly string[]): Int32Array {
+  // Ids arrays are never mutated after a table is built, so one sort per array serves every caller.
+  const cached = orderCache.get(ids);
+  if (cached) return cached;
   const order = new Int32Array(ids.length);
   for (let i = 0; i < ids.length; i++) order[i] = i;
   order.sort((i, j) => compareUtf8(ids[i], ids[j]));
+  orderCache.set(ids, order);
   return order;
 }
+
+const orderCache = new WeakMap<readonly string[], Int32Array>();
