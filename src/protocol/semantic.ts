@@ -8,7 +8,7 @@ import type { Assignment } from '../split/assignment.js';
 import { parsePinned } from '../split/pinned.js';
 import type { Table } from '../table/table.js';
 import { locate, type SourceDocument } from './document.js';
-import { isPinned, type Protocol } from './types.js';
+import { isPinned, testsFoldOneOnly, type Protocol } from './types.js';
 
 export interface DataEvidence {
   table: Table;
@@ -129,7 +129,7 @@ function assignmentProblems(p: Protocol, table: Table, a: Assignment, at: At): P
     const size = new Int32Array(a.folds + 1);
     for (let i = 0; i < n; i++) size[a.fold[(r - 1) * n + i]]++;
     // Holdout trains on fold 2 only; every other assignment trains on all rows outside the test fold.
-    const testFolds = p.split && !isPinned(p.split) && p.split.rule === 'holdout' ? [1] : Array.from({ length: a.folds }, (_, k) => k + 1);
+    const testFolds = testsFoldOneOnly(p) ? [1] : Array.from({ length: a.folds }, (_, k) => k + 1);
     for (const f of testFolds) smallestTrain = Math.min(smallestTrain, n - size[f]);
   }
   if (p.model.kind === 'knn') {
@@ -137,7 +137,7 @@ function assignmentProblems(p: Protocol, table: Table, a: Assignment, at: At): P
     if (k > smallestTrain) out.push(error('knn-k-too-large', `knn k is ${k} but the smallest training part has ${smallestTrain} rows`, at(['model', 'options', 'k'])));
   }
   if (p.reconcile.rule === 'majority-vote' && p.reconcile.tie === undefined) {
-    const models = isPinned(p.split) || p.split.rule !== 'holdout' ? a.folds * a.repeats : a.repeats;
+    const models = testsFoldOneOnly(p) ? a.repeats : a.folds * a.repeats;
     if (models % 2 === 0 || table.classes.length > 2) {
       out.push(error('tie-rule-needed', `majority-vote over ${models} fold models and ${table.classes.length} classes can tie, and reconcile.tie is not set`, { ...at(['reconcile', 'rule']), hint: 'add `tie: mean-probability`, `tie: abstain` or `tie: class-order`' }));
     }

@@ -65,3 +65,11 @@ export function isPinned(split: Protocol['split']): split is PinnedSplit {
 export function ruleNeedsSeed(rule: SplitRule): boolean {
   return rule !== 'leave-one-out' && rule !== 'leave-group-out';
 }
+
+/**
+ * Whether only fold 1 is a test part (fold 2 trains): the holdout rule, and a pinned split of a
+ * `final: true` protocol, whose fold 1 holds the sealed rows — testing fold 2 would train on them.
+ */
+export function testsFoldOneOnly(p: Pick<Protocol, 'split' | 'final'>): boolean {
+  return isPinned(p.split) ? p.final : p.split.rule === 'holdout';
+}

@@ -9,7 +9,7 @@ import { scored } from '../metric/types.js';
 import type { FittedPipeline } from '../preprocess/pipeline.js';
 import { fitFold, type FoldFit } from './fit-fold.js';
 import { warning, type Problem } from '../problems/problem.js';
-import { isPinned, type MetricName, type Protocol } from '../protocol/types.js';
+import { testsFoldOneOnly, type MetricName, type Protocol } from '../protocol/types.js';
 import { foldRows, type Assignment } from '../split/assignment.js';
 import { idOrder } from '../split/key.js';
 import { takeInt } from '../table/matrix.js';
@@ -51,8 +51,7 @@ export interface CvResult {
 }
 
 export function evaluatedFolds(p: Protocol, a: Assignment): number[] {
-  const holdout = !isPinned(p.split) && p.split.rule === 'holdout';
-  return holdout ? [1] : Array.from({ length: a.folds }, (_, i) => i + 1);
+  return testsFoldOneOnly(p) ? [1] : Array.from({ length: a.folds }, (_, i) => i + 1);
 }
 
 export interface CvHooks {

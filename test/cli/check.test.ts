@@ -146,6 +146,10 @@ t.test('sealed rows: used by a non-final protocol, and a final protocol that tes
   t.ok(out.includes('protocols/p1.yaml:4:9: error: first uses 4 sealed ids from ../data/a.csv (reserved for the final evaluation): r1, r2, r3, r4'), r.stderr);
   t.ok(out.includes('protocols/p2.yaml:4:9: error: second uses 4 sealed ids from ../data/a.csv (reserved for the final evaluation): r1, r2, r3, r4'));
   t.notOk(out.some((l) => l.startsWith('protocols/final.yaml')), 'the final protocol tests on exactly the sealed ids');
+  const finalRun = cli(['run', 'protocols/final.yaml', '--out', 'results/final'], dir);
+  t.equal(finalRun.code, 0, finalRun.stderr);
+  const results = JSON.parse(readFileSync(join(dir, 'results/final/results.json'), 'utf8'));
+  t.same(results.folds.map((f: { fold: number; 'test-rows': number; 'train-rows': number }) => [f.fold, f['test-rows'], f['train-rows']]), [[1, 4, 16]], 'a final protocol tests fold 1 only and never trains on the sealed rows');
   writeFileSync(join(dir, 'splits/final.ids'), 'r1\nr2\nr3\nr5\n');
   const moved = cli(['check', '.'], dir);
   t.match(moved.stderr, /^foldseal\.lock\.json: error: the sealed-ids file splits\/final\.ids has SHA-256 [0-9a-f]{64}, not the [0-9a-f]{64} the lock records$/m);

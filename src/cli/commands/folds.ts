@@ -1,7 +1,7 @@
 import { writeFile } from 'node:fs/promises';
 import { hasErrors } from '../../problems/problem.js';
 import { validateProtocol } from '../../io/validate.js';
-import { isPinned } from '../../protocol/types.js';
+import { testsFoldOneOnly } from '../../protocol/types.js';
 import { assignmentCsv } from '../../split/csv.js';
 import { foldCounts, sizeSpread } from '../../split/summary.js';
 import type { CommandIo, ExitCode } from '../io.js';
@@ -20,7 +20,7 @@ export async function foldsCommand(args: { protocol: string; out?: string }, io:
   else io.out(csv);
   const counts = foldCounts(a, t.y, t.classes.length);
   const header = ['repeat', 'fold', 'rows', ...t.classes.map((c) => `n[${c}]`)];
-  const holdout = !isPinned(report.protocol.split) && report.protocol.split.rule === 'holdout';
+  const holdout = testsFoldOneOnly(report.protocol);
   const rows = counts.map((c) => [String(c.repeat), holdout ? (c.fold === 1 ? 'test' : 'train') : String(c.fold), String(c.rows), ...c.perClass.map(String)]);
   io.err(`${a.version}: ${a.ids.length} ids, ${a.repeats} repeat${a.repeats === 1 ? '' : 's'}, ${a.folds} folds\n`);
   if (a.folds <= 50) io.err(textTable(header, rows));
