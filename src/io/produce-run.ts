@@ -1,7 +1,7 @@
 /** Validate a protocol file and run it: the shared shell of `run` and `verify --rerun`. */
 import { hasErrors } from '../problems/problem.js';
 import type { CvHooks } from '../run/cross-validate.js';
-import { guardFit, runProtocol, type RunInput, type RunOutput } from '../run/run.js';
+import { asUserError, runProtocol, type RunInput, type RunOutput } from '../run/run.js';
 import { crossValidateInWorkers } from './fold-workers.js';
 import { validateProtocol, type ValidationReport } from './validate.js';
 
@@ -25,11 +25,8 @@ export async function produceRun(protocolPath: string, options: { refit?: boolea
     refit: options.refit,
     warnings: report.problems.filter((q) => q.severity === 'warning'),
   };
-  let cv;
-  try {
-    cv = await crossValidateInWorkers(input.protocol, input.table, input.assignment, options.hooks);
-  } catch (e) {
-    guardFit(input.protocolFile, () => { throw e; });
-  }
+  const cv = await crossValidateInWorkers(input.protocol, input.table, input.assignment, options.hooks).catch((e: unknown) => {
+    throw asUserError(e, input.protocolFile);
+  });
   return { report, input, out: runProtocol(input, options.hooks, cv) };
 }

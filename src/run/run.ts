@@ -91,9 +91,13 @@ export function guardFit<T>(protocolFile: string, f: () => T): T {
   try {
     return f();
   } catch (e) {
-    if (e instanceof FitError || e instanceof TransformError) throw new FoldsealError(error(e.code, e.message, { file: protocolFile, hint: e.hint }), 1);
-    throw e;
+    throw asUserError(e, protocolFile);
   }
+}
+
+/** A fit or transform failure is the user's to fix: it becomes a located FoldsealError; anything else stays a bug. */
+export function asUserError(e: unknown, protocolFile: string): unknown {
+  return e instanceof FitError || e instanceof TransformError ? new FoldsealError(error(e.code, e.message, { file: protocolFile, hint: e.hint }), 1) : e;
 }
 
 /** One pipeline and model fitted on every labeled row, visited in id order. */

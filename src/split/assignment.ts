@@ -11,10 +11,6 @@ export interface Assignment {
   fold: Int32Array;
 }
 
-export function foldOf(a: Assignment, repeat: number, row: number): number {
-  return a.fold[(repeat - 1) * a.ids.length + row];
-}
-
 /** Rows of one repeat whose fold equals / differs from `fold`, in the given row order. */
 export function foldRows(a: Assignment, repeat: number, fold: number, order: Int32Array): { test: Int32Array; train: Int32Array } {
   const n = a.ids.length;
