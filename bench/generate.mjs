@@ -6,23 +6,14 @@
 import { createHash } from 'node:crypto';
 import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
+import { seededRandom } from '../scripts/seeded-random.mjs';
 
 const out = join(new URL('.', import.meta.url).pathname, 'out');
 mkdirSync(out, { recursive: true });
 
-function generator(seed) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function table(name, rows, cols, informative, seed) {
-  const rand = generator(seed);
+  const rand = seededRandom(seed);
   const normal = () => Math.sqrt(-2 * Math.log(1 - rand())) * Math.cos(2 * Math.PI * rand());
   const lines = ['id,' + Array.from({ length: cols }, (_, j) => `f${j + 1}`).join(',') + ',class'];
   for (let r = 0; r < rows; r++) {

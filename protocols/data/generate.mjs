@@ -6,21 +6,11 @@
 import { writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { seededRandom } from '../../scripts/seeded-random.mjs';
 
 const here = dirname(fileURLToPath(import.meta.url));
 
-// mulberry32: a small, well-known 32-bit generator; enough for invented data.
-function generator(seed) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-const rand = generator(20261201);
+const rand = seededRandom(20261201);
 const normal = () => {
   const u = 1 - rand();
   const v = rand();

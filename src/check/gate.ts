@@ -103,7 +103,8 @@ function sealedFindings(g: GateInput, inScope: (p: string) => boolean): Problem[
     const a = s.report.assignment;
     if (!a) continue;
     const test = new Set(a.ids.filter((_, row) => a.fold[row] === 1));
-    const missing = [...sealed].filter((id) => t.ids.includes(id) && !test.has(id));
+    const inData = new Set(present);
+    const missing = [...sealed].filter((id) => inData.has(id) && !test.has(id));
     const extra = [...test].filter((id) => !sealed.has(id));
     if (missing.length || extra.length || present.length === 0) out.push(error('final-test-mismatch', `the test part (fold 1) of final protocol ${p.name} must be exactly the sealed ids: ${missing.length} sealed ids are not in it, ${extra.length} other ids are${present.length === 0 ? '; the data has no sealed id' : ''}`, at(s, ['split'])));
   }

@@ -62,7 +62,7 @@ export function reconcile(kind: ModelKind, folds: readonly SavedModel[], refit: 
   }
   const agreement = new Float64Array(rows);
   for (let r = 0; r < rows; r++) {
-    const target = predicted[r] === -1 ? -1 : predicted[r];
+    const target = predicted[r];
     let same = 0;
     let best = 0;
     for (let c = 0; c < k; c++) best = Math.max(best, count(top, r, c));

@@ -3,15 +3,13 @@ import { error, warning, type Problem } from '../problems/problem.js';
 import { cellPosition, readDelimited, textColumn } from './delimited.js';
 import { delimiterFor } from './load.js';
 import type { Matrix } from './matrix.js';
-import { parseNumberBytes } from './number.js';
+import { numericCells } from './numeric.js';
 
 export interface NewRows {
   ids: string[];
   X: Matrix;
   ignoredColumns: string[];
 }
-
-const MAX_LISTED = 20;
 
 /** `known` names columns the protocol already accounts for (label, group, exclusions): ignored without a warning. */
 export function newRowsFromBytes(bytes: Uint8Array, file: string, features: readonly string[], idColumn: string | undefined, missing: readonly string[], known: readonly string[] = []): { rows?: NewRows; problems: Problem[] } {
@@ -38,21 +36,8 @@ export function newRowsFromBytes(bytes: Uint8Array, file: string, features: read
     else if (seen.has(id)) problems.push(error('data-duplicate-id', `id "${id}" appears again (first on line ${t.rowLine[seen.get(id)!]})`, { file, position: cellPosition(t, r, idCol!) }));
     else seen.set(id, r);
   });
-  const missingSet = new Set(missing);
-  const data = new Float64Array(t.rows * features.length);
-  let bad = 0;
-  for (let r = 0; r < t.rows; r++) {
-    for (let j = 0; j < features.length; j++) {
-      const k = r * t.cols + cols[j]!;
-      let v = parseNumberBytes(t.bytes, t.starts[k], t.ends[k]);
-      if (v !== v) {
-        const text = new TextDecoder().decode(t.bytes.subarray(t.starts[k], t.ends[k]));
-        if (missingSet.has(text)) v = NaN;
-        else if (bad++ < MAX_LISTED) problems.push(error('data-not-a-number', `cell "${text}" in column "${features[j]}" (row ${r + 1}) is not a number`, { file, position: cellPosition(t, r, cols[j]!) }));
-      }
-      data[r * features.length + j] = v;
-    }
-  }
+  const { data, problems: cellProblems } = numericCells(t, cols as number[], new Set(missing), file);
+  problems.push(...cellProblems);
   if (problems.some((p) => p.severity === 'error')) return { problems };
   return { rows: { ids, X: { rows: t.rows, cols: features.length, data }, ignoredColumns }, problems };
 }

@@ -7,6 +7,7 @@ import { compareUtf8 } from '../util/bytes.js';
 import { cellPosition, textColumn, type DelimitedTable } from './delimited.js';
 import type { Matrix } from './matrix.js';
 import { parseNumberBytes } from './number.js';
+import { numericCells } from './numeric.js';
 
 export interface DataRoles {
   id?: string;
@@ -118,26 +119,9 @@ export function buildTable(t: DelimitedTable, roles: DataRoles, file: string, lo
   }
 
   const cols = featureCols.length;
-  const data = new Float64Array(rows * cols);
-  let bad = 0;
-  // Row by row, so the bytes are read in file order.
-  for (let r = 0; r < rows; r++) {
-    const base = r * t.cols;
-    for (let j = 0; j < cols; j++) {
-      const c = featureCols[j];
-      const k = base + c;
-      let v = parseNumberBytes(t.bytes, t.starts[k], t.ends[k]);
-      if (v !== v) {
-        const text = new TextDecoder().decode(t.bytes.subarray(t.starts[k], t.ends[k]));
-        if (missing.has(text)) v = NaN;
-        else if (bad++ < MAX_CELL_PROBLEMS) {
-          problems.push(error('data-not-a-number', `cell "${text}" in column "${t.header[c]}" (row ${r + 1}) is not a number`, { file, position: cellPosition(t, r, c), hint: text.includes(',') ? 'use a dot as the decimal separator' : 'list the token under data.missing if it marks a missing value' }));
-        }
-      }
-      data[r * cols + j] = v;
-    }
-  }
-  if (bad > MAX_CELL_PROBLEMS) problems.push(error('data-not-a-number', `${bad - MAX_CELL_PROBLEMS} more non-numeric cells not listed`, { file }));
+  const numbers = numericCells(t, featureCols, missing, file);
+  problems.push(...numbers.problems);
+  const data = numbers.data;
   const table: Table = { ids, labels, classes, y, groups, featureNames: featureCols.map((c) => t.header[c]), X: { rows, cols, data }, rowLines, ignoredColumns };
   return { table, problems };
 }

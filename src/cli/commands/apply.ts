@@ -11,8 +11,7 @@ import { tiePossible } from '../../reconcile/reconcile.js';
 import { RESULTS_VERSION } from '../../run/results.js';
 import type { ReconcileRule, TieRule } from '../../protocol/types.js';
 import { newRowsFromBytes } from '../../table/new-rows.js';
-import { FitError } from '../../model/types.js';
-import { TransformError } from '../../preprocess/types.js';
+import { asUserError } from '../../run/run.js';
 import type { CommandIo, ExitCode } from '../io.js';
 import { reportProblems } from '../report-problems.js';
 
@@ -76,8 +75,7 @@ export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<Exit
   try {
     rows = applyRows({ kind: saved.kind, folds: saved.folds, refit: saved.refit, classes: saved.classes, rule, tie, rows: nr.rows, heldOut: heldOutFromPredictions(predictionBytes, saved.classes) });
   } catch (e) {
-    if (e instanceof FitError || e instanceof TransformError) throw new FoldsealError(error(e.code, e.message, { hint: e.hint }), 1);
-    throw e;
+    throw asUserError(e, shown(modelsPath));
   }
   const overridden = rule !== saved.reconcile.rule || tie !== saved.reconcile.tie;
   const comment = overridden ? `foldseal apply: rule ${rule}${tie ? `, tie ${tie}` : ''} (the protocol declares ${saved.reconcile.rule}${saved.reconcile.tie ? `, tie ${saved.reconcile.tie}` : ''})` : undefined;

@@ -1,0 +1,12 @@
+// mulberry32: a small, well-known 32-bit generator, enough for invented and synthetic data.
+// Shared by the demo-data generator and the benchmark generator; dependency-free on purpose.
+export function seededRandom(seed) {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
