@@ -12,6 +12,7 @@ import type { Assignment } from '../split/assignment.js';
 import type { Table } from '../table/table.js';
 import { assembleResult, crossValidate, planFolds, type CvHooks, type CvResult } from '../run/cross-validate.js';
 import type { FoldFit } from '../run/fit-fold.js';
+import { canFitByMoments } from '../run/fit-by-moments.js';
 
 /** Cells × folds below which thread start-up costs more than it saves. */
 const MIN_WORK = 2_000_000;
@@ -28,7 +29,8 @@ export function threadCount(table: Table, folds: number): number {
 export async function crossValidateInWorkers(p: Protocol, table: Table, a: Assignment, hooks: CvHooks = {}): Promise<CvResult> {
   const plans = planFolds(p, table, a);
   const threads = threadCount(table, plans.length);
-  if (threads < 2 || !import.meta.url.endsWith('.js')) return crossValidate(p, table, a, hooks);
+  // Fits from class moments cost little per fold: no thread pays for its start-up there.
+  if (threads < 2 || !import.meta.url.endsWith('.js') || canFitByMoments(p)) return crossValidate(p, table, a, hooks);
   const data = new SharedArrayBuffer(table.X.data.byteLength);
   new Float64Array(data).set(table.X.data);
   const y = new SharedArrayBuffer(table.y.byteLength);

@@ -1,6 +1,5 @@
 /** Wraps a run's outputs in a manifest (and signs it when a key is given). Pure: time, tool and keys come in. */
 import type { KeyObject } from 'node:crypto';
-import { sha256Bytes } from '../io/hash.js';
 import { schemaValidator } from '../protocol/schema.js';
 import type { RunInput, RunOutput } from '../run/run.js';
 import { buildManifest, MANIFEST_FILES, type Manifest, type ToolInfo } from './build.js';
@@ -17,7 +16,7 @@ export interface ManifestMeta {
 
 export function manifestForRun(input: RunInput, out: RunOutput, meta: ManifestMeta): { manifest: Manifest; text: string } {
   const files: Record<string, string> = {};
-  for (const name of MANIFEST_FILES) if (out.files[name] !== undefined) files[name] = sha256Bytes(out.files[name]);
+  for (const name of MANIFEST_FILES) if (out.digests[name] !== undefined) files[name] = out.digests[name];
   let manifest = buildManifest({
     tool: meta.tool,
     created: meta.created,
@@ -25,7 +24,7 @@ export function manifestForRun(input: RunInput, out: RunOutput, meta: ManifestMe
     dataSha256: input.dataSha256,
     table: input.table,
     assignment: input.assignment,
-    assignmentSha256: sha256Bytes(out.assignmentCsv),
+    assignmentSha256: out.assignmentSha256,
     results: out.results,
     files,
   });

@@ -6,41 +6,56 @@
  */
 import type { Metric, Scored } from './types.js';
 
-export function aucOf(score: Float64Array, positive: Uint8Array): number | null {
-  const n = score.length;
-  const order = Array.from(score.keys()).sort((a, b) => score[a] - score[b]);
-  let rankSum = 0;
+/** Scores of the positive and the negative rows, each sorted ascending (native typed-array sorts). */
+function sortedByClass(score: Float64Array, positive: Uint8Array): { pos: Float64Array; neg: Float64Array } {
   let n1 = 0;
-  for (let i = 0; i < n; ) {
-    let j = i;
-    while (j + 1 < n && score[order[j + 1]] === score[order[i]]) j++;
-    const mid = (i + j) / 2 + 1;
-    for (let t = i; t <= j; t++) if (positive[order[t]]) { rankSum += mid; n1++; }
-    i = j + 1;
-  }
-  const n0 = n - n1;
+  for (let i = 0; i < positive.length; i++) n1 += positive[i];
+  const pos = new Float64Array(n1);
+  const neg = new Float64Array(score.length - n1);
+  let a = 0;
+  let b = 0;
+  for (let i = 0; i < score.length; i++) { if (positive[i]) pos[a++] = score[i]; else neg[b++] = score[i]; }
+  return { pos: pos.sort(), neg: neg.sort() };
+}
+
+export function aucOf(score: Float64Array, positive: Uint8Array): number | null {
+  const { pos, neg } = sortedByClass(score, positive);
+  const n1 = pos.length;
+  const n0 = neg.length;
   if (n1 === 0 || n0 === 0) return null;
-  return (rankSum - (n1 * (n1 + 1)) / 2) / (n1 * n0);
+  // U = Σ over positives of (negatives below + ½ negatives tied): the mid-rank sum minus n₁(n₁+1)/2.
+  // Every partial sum is a multiple of ½ below 2^53, so it is exact and equals the rank-sum form.
+  let u = 0;
+  let below = 0;
+  let tiedEnd = 0;
+  for (let i = 0; i < n1; i++) {
+    const v = pos[i];
+    while (below < n0 && neg[below] < v) below++;
+    if (tiedEnd < below) tiedEnd = below;
+    while (tiedEnd < n0 && neg[tiedEnd] === v) tiedEnd++;
+    u += below + (tiedEnd - below) / 2;
+  }
+  return u / (n1 * n0);
 }
 
 export function averagePrecisionOf(score: Float64Array, positive: Uint8Array): number | null {
-  const n = score.length;
-  const order = Array.from(score.keys()).sort((a, b) => score[b] - score[a]);
-  let total = 0;
-  for (let i = 0; i < n; i++) total += positive[i];
+  const { pos, neg } = sortedByClass(score, positive);
+  const total = pos.length;
   if (total === 0) return null;
+  // Distinct thresholds from the highest score down; each adds its tied rows at once.
+  let i = pos.length - 1;
+  let j = neg.length - 1;
   let tp = 0;
   let seen = 0;
   let lastRecall = 0;
   let ap = 0;
-  for (let i = 0; i < n; ) {
-    let j = i;
-    while (j + 1 < n && score[order[j + 1]] === score[order[i]]) j++;
-    for (let t = i; t <= j; t++) { tp += positive[order[t]]; seen++; }
+  while (i >= 0) {
+    const v = j >= 0 && neg[j] > pos[i] ? neg[j] : pos[i];
+    while (i >= 0 && pos[i] === v) { tp++; seen++; i--; }
+    while (j >= 0 && neg[j] === v) { seen++; j--; }
     const r = tp / total;
     ap += (r - lastRecall) * (tp / seen);
     lastRecall = r;
-    i = j + 1;
   }
   return ap;
 }

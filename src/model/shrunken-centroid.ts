@@ -5,7 +5,8 @@
  * δ_k(x) = Σ_j (x_j − x̄'_kj)² / (s_j + s0)² − 2 log π_k, and probabilities ∝ exp(−δ_k / 2).
  * shrink = 0 gives plain nearest (standardized) centroids.
  */
-import { FitError, classCounts, softmaxRows, type ModelImpl } from './types.js';
+import { classMoments, overallMoments } from './class-moments.js';
+import { FitError, softmaxRows, type ModelImpl } from './types.js';
 
 export interface ShrunkenCentroidParams {
   centroid: (number[] | null)[]; // shrunken centroid per class
@@ -13,40 +14,38 @@ export interface ShrunkenCentroidParams {
   logPrior: (number | null)[];
 }
 
-export const shrunkenCentroid: ModelImpl<ShrunkenCentroidParams> = {
-  fit(X, y, options, { classCount }) {
-    const shrink = (options.shrink as number | undefined) ?? 0;
-    const { rows, cols, data } = X;
-    const n = classCounts(y, classCount);
-    const present = Array.from(n).filter((c) => c > 0).length;
-    if (rows - present < 1) throw new FitError('too-few-rows', 'shrunken-centroid needs more training rows than classes');
-    const overall = new Float64Array(cols);
-    const sum = new Float64Array(classCount * cols);
-    for (let r = 0; r < rows; r++) for (let j = 0; j < cols; j++) { overall[j] += data[r * cols + j]; sum[y[r] * cols + j] += data[r * cols + j]; }
-    for (let j = 0; j < cols; j++) overall[j] /= rows;
-    const mean = sum.map((v, k) => (n[Math.floor(k / cols)] > 0 ? v / n[Math.floor(k / cols)] : 0));
-    const within = new Float64Array(cols);
-    for (let r = 0; r < rows; r++) for (let j = 0; j < cols; j++) { const d = data[r * cols + j] - mean[y[r] * cols + j]; within[j] += d * d; }
-    const s = Array.from(within, (w) => Math.sqrt(w / (rows - present)));
-    const s0 = median(s);
-    const scale = s.map((v) => v + s0);
-    if (scale.some((v) => v === 0)) throw new FitError('constant-features', 'shrunken-centroid: every feature is constant within classes in this training part');
-    const centroid: (number[] | null)[] = [];
-    const logPrior: (number | null)[] = [];
-    for (let c = 0; c < classCount; c++) {
-      if (n[c] === 0) { centroid.push(null); logPrior.push(null); continue; }
-      const m = Math.sqrt(1 / n[c] - 1 / rows);
-      const row: number[] = [];
-      for (let j = 0; j < cols; j++) {
-        const d = (mean[c * cols + j] - overall[j]) / (m * scale[j]);
-        const shrunk = Math.sign(d) * Math.max(Math.abs(d) - shrink, 0);
-        row.push(overall[j] + m * scale[j] * shrunk);
-      }
-      centroid.push(row);
-      logPrior.push(Math.log(n[c] / rows));
+const fromMoments: NonNullable<ModelImpl<ShrunkenCentroidParams>['fromMoments']> = (moments, options, { classCount }) => {
+  const shrink = (options.shrink as number | undefined) ?? 0;
+  const { cols, n, mean } = moments;
+  const { rows, mean: overall } = overallMoments(moments);
+  const present = Array.from(n).filter((c) => c > 0).length;
+  if (rows - present < 1) throw new FitError('too-few-rows', 'shrunken-centroid needs more training rows than classes');
+  const within = new Float64Array(cols);
+  for (let c = 0; c < classCount; c++) for (let j = 0; j < cols; j++) within[j] += moments.m2[c * cols + j];
+  const s = Array.from(within, (w) => Math.sqrt(w / (rows - present)));
+  const s0 = median(s);
+  const scale = s.map((v) => v + s0);
+  if (scale.some((v) => v === 0)) throw new FitError('constant-features', 'shrunken-centroid: every feature is constant within classes in this training part');
+  const centroid: (number[] | null)[] = [];
+  const logPrior: (number | null)[] = [];
+  for (let c = 0; c < classCount; c++) {
+    if (n[c] === 0) { centroid.push(null); logPrior.push(null); continue; }
+    const m = Math.sqrt(1 / n[c] - 1 / rows);
+    const row: number[] = [];
+    for (let j = 0; j < cols; j++) {
+      const d = (mean[c * cols + j] - overall[j]) / (m * scale[j]);
+      const shrunk = Math.sign(d) * Math.max(Math.abs(d) - shrink, 0);
+      row.push(overall[j] + m * scale[j] * shrunk);
     }
-    return { centroid, scale, logPrior };
-  },
+    centroid.push(row);
+    logPrior.push(Math.log(n[c] / rows));
+  }
+  return { centroid, scale, logPrior };
+};
+
+export const shrunkenCentroid: ModelImpl<ShrunkenCentroidParams> = {
+  fit: (X, y, options, ctx) => fromMoments(classMoments(X, y, ctx.classCount), options, ctx),
+  fromMoments,
   predict(p, X) {
     const k = p.centroid.length;
     const { rows, cols, data } = X;

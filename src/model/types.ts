@@ -4,6 +4,7 @@
  * class probabilities. Both are pure and deterministic.
  */
 import type { Matrix } from '../table/matrix.js';
+import type { ClassMoments } from './class-moments.js';
 
 export interface FitContext {
   /** Number of classes overall; classes absent from the training part get probability 0. */
@@ -15,6 +16,12 @@ export interface ModelImpl<P = unknown> {
   fit(X: Matrix, y: Int32Array, options: Record<string, unknown>, ctx: FitContext): P;
   /** Probabilities, row-major rows × classCount; each row sums to 1. */
   predict(params: P, X: Matrix): Float64Array;
+  /**
+   * For models that learn from their training rows only through class moments: the same fit
+   * from the moments. `fit` must equal fromMoments(classMoments(X, y)); the runner then fits
+   * folds from merged per-fold moments (see class-moments.ts).
+   */
+  fromMoments?(moments: ClassMoments, options: Record<string, unknown>, ctx: FitContext): P;
 }
 
 /** Problems a fit can hit that are the user's to fix (not bugs). */

@@ -8,6 +8,7 @@ import { confusionRows } from '../metric/confusion.js';
 import { scored } from '../metric/types.js';
 import type { FittedPipeline } from '../preprocess/pipeline.js';
 import { fitFold, type FoldFit } from './fit-fold.js';
+import { canFitByMoments, fitByMoments } from './fit-by-moments.js';
 import { warning, type Problem } from '../problems/problem.js';
 import { testsFoldOneOnly, type MetricName, type Protocol } from '../protocol/types.js';
 import { foldRows, type Assignment } from '../split/assignment.js';
@@ -77,6 +78,11 @@ export function planFolds(p: Protocol, table: Table, a: Assignment): FoldPlan[] 
 
 export function crossValidate(p: Protocol, table: Table, a: Assignment, hooks: CvHooks = {}): CvResult {
   const plans = planFolds(p, table, a);
+  if (canFitByMoments(p)) {
+    const fits = fitByMoments(p, table, a, plans);
+    hooks.onFold?.(plans.length, plans.length);
+    return assembleResult(p, table, a, plans, fits);
+  }
   const fits = plans.map((plan, i) => {
     const fit = fitFold(p, table, plan.train, plan.test);
     hooks.onFold?.(i + 1, plans.length);

@@ -41,7 +41,10 @@ export interface RunOutput {
   applied?: AppliedRow[];
   results: Record<string, unknown>;
   assignmentCsv: string;
+  assignmentSha256: string;
   files: Record<string, string>;
+  /** SHA-256 of every file in `files`. */
+  digests: Record<string, string>;
 }
 
 /** `fitted` is a cross-validation already done elsewhere (on worker threads); without it the folds are fitted here. */
@@ -72,19 +75,22 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
     applied = guardFit(input.protocolFile, () => applyRows({ kind: p.model.kind, folds: cv.models, refit, classes: cv.classes, rule: p.reconcile.rule, tie: p.reconcile.tie ?? null, rows: input.newRows!, heldOut: heldOutFromOof(input.table.ids, cv.oof, cv.testedIn, cv.classes.length) }));
     files['applied.csv'] = appliedCsv(applied, cv.classes);
   }
+  const digests = Object.fromEntries(Object.entries(files).map(([name, text]) => [name, sha256Bytes(text)]));
+  const assignmentSha256 = sha256Bytes(folds);
   const results = buildResults({
     protocol: input.protocol,
     protocolSha256,
     dataSha256: input.dataSha256,
     table: input.table,
     assignment: input.assignment,
-    assignmentSha256: sha256Bytes(folds),
+    assignmentSha256,
     cv,
-    files: Object.fromEntries(Object.entries(files).map(([name, text]) => [name, sha256Bytes(text)])),
+    files: { ...digests },
     warnings: [...input.warnings, ...cv.warnings],
   });
   files['results.json'] = JSON.stringify(results, null, 2) + '\n';
-  return { cv, results, assignmentCsv: folds, files, applied };
+  digests['results.json'] = sha256Bytes(files['results.json']);
+  return { cv, results, assignmentCsv: folds, assignmentSha256, files, digests, applied };
 }
 
 export function guardFit<T>(protocolFile: string, f: () => T): T {

@@ -3,11 +3,11 @@
  *   key = SHA-256( "foldseal/split-v1" 0x00 seed 0x00 repeat 0x00 id )
  * with seed and repeat written as ASCII decimal and the id as its UTF-8 bytes.
  */
-import * as crypto from 'node:crypto';
+import { ShortHasher } from './sha256.js';
 import { compareUtf8 } from '../util/bytes.js';
 
 const DOMAIN = 'foldseal/split-v1';
-const oneShot = (crypto as unknown as { hash?: (alg: string, data: Buffer, enc: 'buffer') => Buffer }).hash;
+const utf8 = new TextEncoder();
 
 export function keyMessage(seed: number, repeat: number, id: string): Buffer {
   return Buffer.concat([Buffer.from(`${DOMAIN}\0${seed}\0${repeat}\0`, 'utf8'), Buffer.from(id, 'utf8')]);
@@ -17,10 +17,15 @@ export function keyMessage(seed: number, repeat: number, id: string): Buffer {
 export function deriveKeys(ids: readonly string[], seed: number, repeat: number): Uint8Array {
   const out = new Uint8Array(ids.length * 32);
   const prefix = Buffer.from(`${DOMAIN}\0${seed}\0${repeat}\0`, 'utf8');
+  let message = new Uint8Array(prefix.length + 64);
+  message.set(prefix);
+  const hasher = new ShortHasher();
   for (let i = 0; i < ids.length; i++) {
-    const msg = Buffer.concat([prefix, Buffer.from(ids[i], 'utf8')]);
-    const digest = oneShot ? oneShot('sha256', msg, 'buffer') : crypto.createHash('sha256').update(msg).digest();
-    out.set(digest, i * 32);
+    const id = ids[i];
+    // An id takes at most 3 UTF-8 bytes per UTF-16 unit.
+    if (message.length < prefix.length + id.length * 3) { const grown = new Uint8Array(prefix.length + id.length * 3); grown.set(prefix); message = grown; }
+    const length = prefix.length + utf8.encodeInto(id, message.subarray(prefix.length)).written;
+    hasher.digestInto(message, length, out, i * 32);
   }
   return out;
 }

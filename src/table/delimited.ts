@@ -4,6 +4,8 @@
  * straight from the bytes and only text columns (id, label, group) become strings.
  */
 import { error, type Problem } from '../problems/problem.js';
+import { charColumn, decodeSpan, type Grid } from './grid.js';
+import { parseNumberBytes } from './number.js';
 
 export interface DelimitedTable {
   bytes: Uint8Array;
@@ -130,9 +132,8 @@ export function readDelimited(input: Uint8Array, delimiter: number, file: string
     problems.push(error('data-empty', 'the data file is empty', { file, position: { line: 1, col: 1 } }));
     return { table: undefined, problems };
   }
-  const decoder = new TextDecoder('utf-8');
   const header: string[] = [];
-  for (let c = 0; c < cols; c++) header.push(cellString(bytes, starts[c], ends[c], escaped[c] === 1, decoder));
+  for (let c = 0; c < cols; c++) header.push(cellString(bytes, starts[c], ends[c], escaped[c] === 1));
   const rows = records - 1;
   return {
     table: {
@@ -150,28 +151,50 @@ export function readDelimited(input: Uint8Array, delimiter: number, file: string
   };
 }
 
-export function cellString(bytes: Uint8Array, start: number, end: number, escaped: boolean, decoder: TextDecoder): string {
-  const s = decoder.decode(bytes.subarray(start, end));
+export function cellString(bytes: Uint8Array, start: number, end: number, escaped: boolean): string {
+  const s = decodeSpan(bytes, start, end);
   return escaped ? s.replaceAll('""', '"') : s;
 }
 
 /** The text of every cell of one column. */
 export function textColumn(t: DelimitedTable, col: number): string[] {
-  const decoder = new TextDecoder('utf-8');
   const out = new Array<string>(t.rows);
   for (let r = 0; r < t.rows; r++) {
     const k = r * t.cols + col;
-    out[r] = cellString(t.bytes, t.starts[k], t.ends[k], t.escaped[k] === 1, decoder);
+    out[r] = cellString(t.bytes, t.starts[k], t.ends[k], t.escaped[k] === 1);
   }
   return out;
 }
 
-/** 1-based character column of a cell, for messages. */
+/** 1-based line and character column of a cell, for messages. */
 export function cellPosition(t: DelimitedTable, row: number, col: number): { line: number; col: number } {
-  const k = row * t.cols + col;
-  const prefix = new TextDecoder('utf-8').decode(t.bytes.subarray(t.rowLineStart[row], t.starts[k]));
-  const lastBreak = prefix.lastIndexOf('\n');
-  const lineOffset = prefix.split('\n').length - 1;
-  const chars = lastBreak === -1 ? prefix.length : prefix.length - lastBreak - 1;
-  return { line: t.rowLine[row] + lineOffset, col: chars + 1 };
+  const at = charColumn(t.bytes, t.rowLineStart[row], t.starts[row * t.cols + col]);
+  return { line: t.rowLine[row] + at.lineOffset, col: at.col };
+}
+
+/** The full reader's table seen as a Grid. */
+export function delimitedGrid(t: DelimitedTable): Grid {
+  return {
+    header: t.header,
+    rows: t.rows,
+    rowLine: t.rowLine,
+    text: (r, c) => { const k = r * t.cols + c; return cellString(t.bytes, t.starts[k], t.ends[k], t.escaped[k] === 1); },
+    number: (r, c) => { const k = r * t.cols + c; return parseNumberBytes(t.bytes, t.starts[k], t.ends[k]); },
+    position: (r, c) => cellPosition(t, r, c),
+    extract(numberCols, textCols) {
+      const width = numberCols.length;
+      const numbers = new Float64Array(t.rows * width);
+      const failed: number[] = [];
+      for (let r = 0; r < t.rows; r++) {
+        const base = r * t.cols;
+        for (let j = 0; j < width; j++) {
+          const k = base + numberCols[j];
+          const v = parseNumberBytes(t.bytes, t.starts[k], t.ends[k]);
+          if (v !== v) failed.push(r * width + j);
+          numbers[r * width + j] = v;
+        }
+      }
+      return { numbers, failed, texts: textCols.map((c) => textColumn(t, c)) };
+    },
+  };
 }

@@ -1,9 +1,9 @@
 /** Rows to predict: an id column and the training features matched by name (extra columns are ignored). */
 import { error, warning, type Problem } from '../problems/problem.js';
-import { cellPosition, readDelimited, textColumn } from './delimited.js';
+import { cellPosition, delimitedGrid, readDelimited, textColumn } from './delimited.js';
 import { delimiterFor } from './load.js';
 import type { Matrix } from './matrix.js';
-import { numericCells } from './numeric.js';
+import { numberProblems } from './numeric.js';
 
 export interface NewRows {
   ids: string[];
@@ -36,8 +36,10 @@ export function newRowsFromBytes(bytes: Uint8Array, file: string, features: read
     else if (seen.has(id)) problems.push(error('data-duplicate-id', `id "${id}" appears again (first on line ${t.rowLine[seen.get(id)!]})`, { file, position: cellPosition(t, r, idCol!) }));
     else seen.set(id, r);
   });
-  const { data, problems: cellProblems } = numericCells(t, cols as number[], new Set(missing), file);
-  problems.push(...cellProblems);
+  const grid = delimitedGrid(t);
+  const extracted = grid.extract(cols as number[], [])!;
+  problems.push(...numberProblems(grid, extracted, cols as number[], new Set(missing), file));
+  const data = extracted.numbers;
   if (problems.some((p) => p.severity === 'error')) return { problems };
   return { rows: { ids, X: { rows: t.rows, cols: features.length, data }, ignoredColumns }, problems };
 }

@@ -4,10 +4,9 @@
  */
 import { error, warning, type Problem } from '../problems/problem.js';
 import { compareUtf8 } from '../util/bytes.js';
-import { cellPosition, textColumn, type DelimitedTable } from './delimited.js';
+import type { Grid } from './grid.js';
 import type { Matrix } from './matrix.js';
-import { parseNumberBytes } from './number.js';
-import { numericCells } from './numeric.js';
+import { numberProblems } from './numeric.js';
 
 export interface DataRoles {
   id?: string;
@@ -39,11 +38,14 @@ export type RolePaths = Partial<Record<'id' | 'label' | 'group' | 'features', (s
 export interface TableResult {
   table?: Table;
   problems: Problem[];
+  /** The grid's rows turned out ragged (only the fast reader finds this late): read the file with the full reader. */
+  ragged?: true;
 }
 
 const MAX_CELL_PROBLEMS = 20;
+const ASCII = /^[\x00-\x7f]*$/;
 
-export function buildTable(t: DelimitedTable, roles: DataRoles, file: string, locate: (role: keyof RolePaths, index?: number) => Problem['position']): TableResult {
+export function buildTable(t: Grid, roles: DataRoles, file: string, locate: (role: keyof RolePaths, index?: number) => Problem['position']): TableResult {
   const problems: Problem[] = [];
   const columnIndex = new Map<string, number>();
   t.header.forEach((h, i) => { if (!columnIndex.has(h)) columnIndex.set(h, i); });
@@ -82,7 +84,7 @@ export function buildTable(t: DelimitedTable, roles: DataRoles, file: string, lo
     (roles.features?.exclude ?? []).forEach((name, k) => {
       if (!columnIndex.has(name)) problems.push(warning('data-unknown-exclude', `excluded column "${name}" is not in the data file's header`, { position: locate('features', k) }));
     });
-    for (let c = 0; c < t.cols; c++) {
+    for (let c = 0; c < t.header.length; c++) {
       if (reserved.has(c) || exclude.has(t.header[c])) continue;
       if (looksNumeric(t, c, missing)) featureCols.push(c);
       else ignoredColumns.push(t.header[c]);
@@ -92,16 +94,20 @@ export function buildTable(t: DelimitedTable, roles: DataRoles, file: string, lo
 
   const rows = t.rows;
   const rowLines = t.rowLine;
-  const ids = idCol === undefined ? Array.from({ length: rows }, (_, r) => String(r + 1)) : textColumn(t, idCol);
+  const textCols = [idCol, labelCol, groupCol].filter((c): c is number => c !== undefined);
+  const extracted = t.extract(featureCols, textCols);
+  if (!extracted) return { problems, ragged: true };
+  const textOf = (c: number | undefined) => (c === undefined ? undefined : extracted.texts[textCols.indexOf(c)]);
+  const ids = textOf(idCol) ?? Array.from({ length: rows }, (_, r) => String(r + 1));
   if (idCol !== undefined) checkIds(t, ids, idCol, file, problems);
-  const labels = labelCol === undefined ? [] : textColumn(t, labelCol);
+  const labels = textOf(labelCol) ?? [];
   let classes: string[] = [];
   const y = new Int32Array(rows);
   if (labelCol !== undefined) {
     let emptyLabels = 0;
     for (let r = 0; r < rows; r++) {
       if (labels[r] === '' || missing.has(labels[r])) {
-        if (emptyLabels++ < MAX_CELL_PROBLEMS) problems.push(error('data-missing-label', `row ${r + 1} has no label`, { file, position: cellPosition(t, r, labelCol) }));
+        if (emptyLabels++ < MAX_CELL_PROBLEMS) problems.push(error('data-missing-label', `row ${r + 1} has no label`, { file, position: t.position(r, labelCol) }));
       }
     }
     classes = [...new Set(labels)].sort(compareUtf8);
@@ -109,56 +115,52 @@ export function buildTable(t: DelimitedTable, roles: DataRoles, file: string, lo
     for (let r = 0; r < rows; r++) y[r] = code.get(labels[r])!;
     if (classes.length < 2) problems.push(error('data-one-class', `the label column "${roles.label}" has ${classes.length} class${classes.length === 1 ? ` ("${classes[0]}")` : 'es'}; at least 2 are needed`, { position: locate('label') }));
   }
-  let groups: string[] | undefined;
-  if (groupCol !== undefined) {
-    groups = textColumn(t, groupCol);
+  const groups = textOf(groupCol);
+  if (groups) {
     let empty = 0;
     for (let r = 0; r < rows; r++) {
-      if (groups[r] === '' && empty++ < MAX_CELL_PROBLEMS) problems.push(error('data-empty-group', `row ${r + 1} has an empty group cell in column "${roles.group}"`, { file, position: cellPosition(t, r, groupCol) }));
+      if (groups[r] === '' && empty++ < MAX_CELL_PROBLEMS) problems.push(error('data-empty-group', `row ${r + 1} has an empty group cell in column "${roles.group}"`, { file, position: t.position(r, groupCol!) }));
     }
   }
 
   const cols = featureCols.length;
-  const numbers = numericCells(t, featureCols, missing, file);
-  problems.push(...numbers.problems);
-  const data = numbers.data;
-  const table: Table = { ids, labels, classes, y, groups, featureNames: featureCols.map((c) => t.header[c]), X: { rows, cols, data }, rowLines, ignoredColumns };
+  problems.push(...numberProblems(t, extracted, featureCols, missing, file));
+  const table: Table = { ids, labels, classes, y, groups, featureNames: featureCols.map((c) => t.header[c]), X: { rows, cols, data: extracted.numbers }, rowLines, ignoredColumns };
   return { table, problems };
 }
 
-function looksNumeric(t: DelimitedTable, c: number, missing: Set<string>): boolean {
+function looksNumeric(t: Grid, c: number, missing: Set<string>): boolean {
   // A column counts as numeric when its first non-missing cell is a number; later bad cells are then errors,
   // so a typo like `12abc` is reported instead of silently dropping the column.
-  const decoder = new TextDecoder();
   for (let r = 0; r < t.rows; r++) {
-    const k = r * t.cols + c;
-    const v = parseNumberBytes(t.bytes, t.starts[k], t.ends[k]);
+    const v = t.number(r, c);
     if (v === v) return true;
-    if (!missing.has(decoder.decode(t.bytes.subarray(t.starts[k], t.ends[k])))) return false;
+    if (!missing.has(t.text(r, c))) return false;
   }
   return false;
 }
 
-function checkIds(t: DelimitedTable, ids: string[], idCol: number, file: string, problems: Problem[]): void {
+function checkIds(t: Grid, ids: string[], idCol: number, file: string, problems: Problem[]): void {
   const seen = new Map<string, number>();
   let reported = 0;
   for (let r = 0; r < ids.length; r++) {
     const id = ids[r];
     if (id === '') {
-      if (reported++ < MAX_CELL_PROBLEMS) problems.push(error('data-empty-id', `row ${r + 1} has an empty id`, { file, position: cellPosition(t, r, idCol) }));
+      if (reported++ < MAX_CELL_PROBLEMS) problems.push(error('data-empty-id', `row ${r + 1} has an empty id`, { file, position: t.position(r, idCol) }));
       continue;
     }
     const first = seen.get(id);
     if (first !== undefined) {
-      if (reported++ < MAX_CELL_PROBLEMS) problems.push(error('data-duplicate-id', `id "${id}" appears again (first on line ${t.rowLine[first]})`, { file, position: cellPosition(t, r, idCol) }));
+      if (reported++ < MAX_CELL_PROBLEMS) problems.push(error('data-duplicate-id', `id "${id}" appears again (first on line ${t.rowLine[first]})`, { file, position: t.position(r, idCol) }));
     } else seen.set(id, r);
   }
   const normalized = new Map<string, string>();
   for (const id of seen.keys()) {
-    const nfc = id.normalize('NFC');
+    // ASCII text is its own normal form; only other ids need the (slow) normalizer.
+    const nfc = ASCII.test(id) ? id : id.normalize('NFC');
     const other = normalized.get(nfc);
     if (other !== undefined && other !== id) {
-      problems.push(warning('data-id-normalization', `ids "${other}" and "${id}" differ only by Unicode normalization; the split spec hashes bytes as given, so they are different ids`, { file, position: cellPosition(t, seen.get(id)!, idCol) }));
+      problems.push(warning('data-id-normalization', `ids "${other}" and "${id}" differ only by Unicode normalization; the split spec hashes bytes as given, so they are different ids`, { file, position: t.position(seen.get(id)!, idCol) }));
     } else normalized.set(nfc, id);
   }
 }

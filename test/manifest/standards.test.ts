@@ -2,6 +2,8 @@ import { spawnSync } from 'node:child_process';
 import { createPrivateKey, createPublicKey, generateKeyPairSync, sign, verify } from 'node:crypto';
 import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
+import canonicalize from 'canonicalize';
+import fc from 'fast-check';
 import t from 'tap';
 import { canonicalJson, NonJsonValueError } from '../../src/manifest/canonical.js';
 import { rawPublicKey, signingBytes } from '../../src/manifest/sign.js';
@@ -34,6 +36,24 @@ t.test('RFC 8785 Appendix B number serialization samples', async (t) => {
 t.test('RFC 8785 §3.2.4 example', async (t) => {
   const input = JSON.parse('{"numbers": [333333333.33333329, 1E30, 4.50, 2e-3, 0.000000000000000000000000001], "string": "\\u20ac$\\u000F\\u000aA\'\\u0042\\u0022\\u005c\\\\\\"\\/", "literals": [null, true, false]}');
   t.equal(canonicalJson(input), '{"literals":[null,true,false],"numbers":[333333333.3333333,1e+30,4.5,0.002,1e-27],"string":"€$\\u000f\\nA\'B\\"\\\\\\\\\\"/"}');
+});
+
+// RFC 8785 §3.2.3, the property-sorting example (names compared as UTF-16 code units; an astral
+// character's surrogates sort before U+FB33). Transcribed from memory of the RFC's example.
+t.test('RFC 8785 §3.2.3 sorting example', async (t) => {
+  const input = { '\u20ac': 'Euro Sign', '\r': 'Carriage Return', '\ufb33': 'Hebrew Letter Dalet With Dagesh', '1': 'One', '\ud83d\ude00': 'Emoji: Grinning Face', '\u0080': 'Control', '\u00f6': 'Latin Small Letter O With Diaeresis' };
+  const order = ['\r', '1', '\u0080', '\u00f6', '\u20ac', '\ud83d\ude00', '\ufb33'] as const;
+  t.equal(canonicalJson(input), `{${order.map((k) => `${JSON.stringify(k)}:${JSON.stringify(input[k])}`).join(',')}}`);
+});
+
+// Reference library: the `canonicalize` package (an independent RFC 8785 implementation, a dev
+// dependency only) must write the same bytes for any JSON value.
+t.test('same bytes as the canonicalize package on generated JSON', async (t) => {
+  fc.assert(fc.property(fc.jsonValue(), (v) => canonicalJson(v) === canonicalize(v)), { numRuns: 3000 });
+  fc.assert(fc.property(fc.array(fc.tuple(fc.string({ unit: 'binary' }), fc.integer(), fc.double({ noNaN: true, noDefaultInfinity: true }))), (v) => canonicalJson(v) === canonicalize(v)), { numRuns: 500 });
+  t.throws(() => canonicalJson({ a: [[1, NaN]] }), { message: 'value at /a/0/1 is NaN, which has no JSON form' });
+  t.throws(() => canonicalJson({ a: [{ b: undefined }] }), { message: 'value at /a/0/b is undefined, which has no JSON form' });
+  t.throws(() => canonicalJson([new Date(0)]), { message: 'value at /0 is object, which has no JSON form' });
 });
 
 // RFC 8032 §7.1, TEST 1 (the empty message), from the RFC's text.

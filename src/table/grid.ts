@@ -1,0 +1,55 @@
+/**
+ * What building a table needs from a read file, whichever reader read it: the header, one
+ * cell's text or number, a cell's position for messages, and one pass that pulls the numeric
+ * and text columns out together.
+ */
+export interface Extracted {
+  /** Rows × number columns, row-major; NaN where a cell is not a number. */
+  numbers: Float64Array;
+  /** Indexes into `numbers` of the cells that did not parse, ascending. */
+  failed: number[];
+  /** Per text column, every row's text. */
+  texts: string[][];
+}
+
+export interface Grid {
+  header: string[];
+  rows: number;
+  /** 1-based line number where each data row starts. */
+  rowLine: Int32Array;
+  text(row: number, col: number): string;
+  /** The cell as a number by the strict grammar of number.ts, NaN when it is not one. */
+  number(row: number, col: number): number;
+  position(row: number, col: number): { line: number; col: number };
+  /**
+   * One pass over the rows. Undefined when a row turns out not to have the header's cell count:
+   * only the fast reader can find that this late, and its caller then reads the file with the
+   * full reader, which reports the row where it is.
+   */
+  extract(numberCols: readonly number[], textCols: readonly number[]): Extracted | undefined;
+}
+
+const utf8 = new TextDecoder('utf-8');
+
+/** UTF-8 text of bytes [start, end); short ASCII cells (ids, labels) skip the decoder. */
+export function decodeSpan(bytes: Uint8Array, start: number, end: number): string {
+  if (end - start <= 24) {
+    let s = '';
+    for (let i = start; i < end; i++) {
+      const b = bytes[i];
+      if (b >= 0x80) return utf8.decode(bytes.subarray(start, end));
+      s += String.fromCharCode(b);
+    }
+    return s;
+  }
+  return utf8.decode(bytes.subarray(start, end));
+}
+
+/** 1-based character column of byte `at` on the line starting at byte `lineStart` (UTF-8 aware). */
+export function charColumn(bytes: Uint8Array, lineStart: number, at: number): { lineOffset: number; col: number } {
+  const prefix = utf8.decode(bytes.subarray(lineStart, at));
+  const lastBreak = prefix.lastIndexOf('\n');
+  const lineOffset = prefix.split('\n').length - 1;
+  const chars = lastBreak === -1 ? prefix.length : prefix.length - lastBreak - 1;
+  return { lineOffset, col: chars + 1 };
+}

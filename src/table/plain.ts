@@ -1,0 +1,170 @@
+/**
+ * The fast reader for the common large case: a delimited file without a single quote
+ * character. Then every line is one record and every delimiter ends a cell, so lines are
+ * found with the native byte search, and numeric cells are parsed in the same pass that finds
+ * them. It reads exactly what the full RFC 4180 reader reads (a property test holds them
+ * together); when a file is not that simple it returns undefined and the full reader takes over.
+ */
+import { charColumn, decodeSpan, type Extracted, type Grid } from './grid.js';
+import { parseNumberBytes } from './number.js';
+
+const QUOTE = 0x22;
+const CR = 0x0d;
+const LF = 0x0a;
+const POW10 = [1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15];
+
+export interface PlainTable {
+  bytes: Uint8Array;
+  delimiter: number;
+  header: string[];
+  rows: number;
+  cols: number;
+  /** Byte span of each data row's line, without its line break. */
+  rowStart: Int32Array;
+  rowEnd: Int32Array;
+}
+
+export function readPlain(input: Uint8Array, delimiter: number): PlainTable | undefined {
+  let bytes = input;
+  if (bytes.length >= 3 && bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf) bytes = bytes.subarray(3);
+  if (bytes.indexOf(QUOTE) !== -1) return undefined;
+  // Blank lines at the very end are not records (as in the full reader).
+  let n = bytes.length;
+  while (n > 0 && (bytes[n - 1] === LF || bytes[n - 1] === CR)) n--;
+  if (n === 0) return undefined;
+  const lines = Math.max(1, countLines(bytes, n));
+  const starts = new Int32Array(lines);
+  const ends = new Int32Array(lines);
+  let records = 0;
+  let crs = 0;
+  for (let i = 0; i < n; records++) {
+    let stop = bytes.indexOf(LF, i);
+    if (stop === -1 || stop > n) stop = n;
+    let end = stop;
+    if (end > i && bytes[end - 1] === CR) { end--; crs++; }
+    starts[records] = i;
+    ends[records] = end;
+    i = stop + 1;
+  }
+  // A carriage return that is not part of CR LF is a line break to the full reader: leave such files to it.
+  if (countByte(bytes, CR, n) !== crs) return undefined;
+  const header: string[] = [];
+  for (let i = starts[0]; ;) {
+    let stop = bytes.indexOf(delimiter, i);
+    if (stop === -1 || stop > ends[0]) stop = ends[0];
+    header.push(decodeSpan(bytes, i, stop));
+    if (stop === ends[0]) break;
+    i = stop + 1;
+  }
+  return { bytes, delimiter, header, rows: records - 1, cols: header.length, rowStart: starts.subarray(1, records), rowEnd: ends.subarray(1, records) };
+}
+
+function countLines(bytes: Uint8Array, n: number): number {
+  let count = 1;
+  for (let i = bytes.indexOf(LF); i !== -1 && i < n; i = bytes.indexOf(LF, i + 1)) count++;
+  return count;
+}
+
+function countByte(bytes: Uint8Array, value: number, n: number): number {
+  let count = 0;
+  for (let i = bytes.indexOf(value); i !== -1 && i < n; i = bytes.indexOf(value, i + 1)) count++;
+  return count;
+}
+
+/**
+ * Finds cells by walking a row from its start. The walk resumes where the last one stopped when
+ * it moves right along the same row, so probing every column of a row costs one pass, not one
+ * per column (20,000 columns would make that quadratic).
+ */
+function spanFinder(t: PlainTable): (row: number, col: number) => [number, number] {
+  let row = -1;
+  let col = 0;
+  let at = 0; // byte where cell `col` of `row` starts
+  return (r, c) => {
+    if (r !== row || c < col) { row = r; col = 0; at = t.rowStart[r]; }
+    const end = t.rowEnd[r];
+    for (; col < c; col++) {
+      const stop = t.bytes.indexOf(t.delimiter, at);
+      if (stop === -1 || stop >= end) { row = -1; return [end, end]; } // past the row's last cell
+      at = stop + 1;
+    }
+    const stop = t.bytes.indexOf(t.delimiter, at);
+    return [at, stop === -1 || stop >= end ? end : stop];
+  };
+}
+
+export function plainGrid(t: PlainTable): Grid {
+  const span = spanFinder(t);
+  return {
+    header: t.header,
+    rows: t.rows,
+    rowLine: Int32Array.from({ length: t.rows }, (_, r) => r + 2),
+    text: (r, c) => { const [s, e] = span(r, c); return decodeSpan(t.bytes, s, e); },
+    number: (r, c) => { const [s, e] = span(r, c); return parseNumberBytes(t.bytes, s, e); },
+    position: (r, c) => ({ line: r + 2, col: charColumn(t.bytes, t.rowStart[r], span(r, c)[0]).col }),
+    extract: (numberCols, textCols) => extractPlain(t, numberCols, textCols),
+  };
+}
+
+function extractPlain(t: PlainTable, numberCols: readonly number[], textCols: readonly number[]): Extracted | undefined {
+  const { bytes, delimiter, rows, cols } = t;
+  const width = numberCols.length;
+  const numberSlot = new Int32Array(cols).fill(-1);
+  numberCols.forEach((c, j) => { numberSlot[c] = j; });
+  const textSlot = new Int32Array(cols).fill(-1);
+  textCols.forEach((c, j) => { textSlot[c] = j; });
+  const numbers = new Float64Array(rows * width);
+  const failed: number[] = [];
+  const spans = new Int32Array(rows * textCols.length * 2);
+  for (let r = 0; r < rows; r++) {
+    let i = t.rowStart[r];
+    const end = t.rowEnd[r];
+    for (let c = 0; c < cols; c++) {
+      const start = i;
+      const j = numberSlot[c];
+      if (j >= 0) {
+        // The common shape [-]digits[.digits] with at most 15 digits is exact as mantissa / 10^k
+        // (Clinger 1990); anything else goes to the full parser.
+        let negative = false;
+        if (i < end && bytes[i] === 0x2d) { negative = true; i++; }
+        let mantissa = 0;
+        let digits = 0;
+        let scale = 0;
+        let b = i < end ? bytes[i] : -1;
+        while (b >= 0x30 && b <= 0x39) { mantissa = mantissa * 10 + (b - 0x30); digits++; b = ++i < end ? bytes[i] : -1; }
+        const intDigits = digits;
+        if (b === 0x2e) {
+          b = ++i < end ? bytes[i] : -1;
+          while (b >= 0x30 && b <= 0x39) { mantissa = mantissa * 10 + (b - 0x30); digits++; scale++; b = ++i < end ? bytes[i] : -1; }
+        }
+        let v: number;
+        if ((b === delimiter || b === -1) && digits > 0 && digits <= 15 && (intDigits > 0 || scale > 0)) {
+          v = mantissa / POW10[scale];
+          if (negative) v = -v;
+        } else {
+          while (i < end && bytes[i] !== delimiter) i++;
+          v = parseNumberBytes(bytes, start, i);
+          if (v !== v) failed.push(r * width + j);
+        }
+        numbers[r * width + j] = v;
+      } else {
+        while (i < end && bytes[i] !== delimiter) i++;
+      }
+      const k = textSlot[c];
+      if (k >= 0) { const o = (r * textCols.length + k) * 2; spans[o] = start; spans[o + 1] = i; }
+      if (c < cols - 1) {
+        if (i >= end) return undefined; // fewer cells than the header
+        i++;
+      }
+    }
+    if (i !== end) return undefined; // more cells than the header
+  }
+  const texts = textCols.map((_, k) => {
+    const out = new Array<string>(rows);
+    for (let r = 0; r < rows; r++) { const o = (r * textCols.length + k) * 2; out[r] = decodeSpan(bytes, spans[o], spans[o + 1]); }
+    return out;
+  });
+  // Cells were met in file order; listed feature order may differ within a row.
+  failed.sort((a, b) => a - b);
+  return { numbers, failed, texts };
+}
