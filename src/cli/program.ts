@@ -1,17 +1,8 @@
 /** Command-line surface: names, options and help text. Each action calls a typed command function. */
 import { Command, Option } from 'commander';
 import { packageVersion } from '../util/package-root.js';
-import { applyCommand } from './commands/apply.js';
-import { checkCommand } from './commands/check.js';
-import { foldsCommand } from './commands/folds.js';
-import { lockCommand } from './commands/lock.js';
-import { keygenCommand } from './commands/keygen.js';
-import { verifyCommand } from './commands/verify.js';
-import { hashCommand } from './commands/hash.js';
-import { initCommand } from './commands/init.js';
-import { runCommand } from './commands/run.js';
-import { validateCommand } from './commands/validate.js';
 import type { CommandIo, ExitCode } from './io.js';
+// Commands load when chosen: a quick `validate` does not pay for the runner and the signer.
 import type { ReconcileRule, TieRule } from '../protocol/types.js';
 
 export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Command {
@@ -32,14 +23,14 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .argument('<protocol...>', 'protocol YAML files')
     .addOption(formatOption())
     .addHelpText('after', '\nExamples:\n  foldseal validate protocols/demo.yaml\n  foldseal validate protocols/*.yaml --format json\n\nExit: 0 valid, 1 invalid, 2 usage error or unreadable file.')
-    .action(async (protocols: string[], o: { format: 'text' | 'json' }) => done(await validateCommand({ protocols, format: o.format }, io)));
+    .action(async (protocols: string[], o: { format: 'text' | 'json' }) => done(await (await import('./commands/validate.js')).validateCommand({ protocols, format: o.format }, io)));
 
   program
     .command('hash')
     .description('print the SHA-256 of files, in the same form as sha256sum')
     .argument('<file...>', 'files to hash')
     .addHelpText('after', '\nExample:\n  foldseal hash protocols/data/trial.csv')
-    .action(async (files: string[]) => done(await hashCommand({ files }, io)));
+    .action(async (files: string[]) => done(await (await import('./commands/hash.js')).hashCommand({ files }, io)));
 
   program
     .command('init')
@@ -51,7 +42,7 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .option('--out <file>', 'where to write the protocol (default: <data name>.protocol.yaml)')
     .option('--force', 'replace an existing protocol file')
     .addHelpText('after', '\nExample:\n  foldseal init data/trial.csv --label outcome --id plot_id --out protocols/trial.yaml')
-    .action(async (data: string, o: { label: string; id?: string; group?: string; out?: string; force?: boolean }) => done(await initCommand({ data, ...o }, io)));
+    .action(async (data: string, o: { label: string; id?: string; group?: string; out?: string; force?: boolean }) => done(await (await import('./commands/init.js')).initCommand({ data, ...o }, io)));
 
   program
     .command('folds')
@@ -59,7 +50,7 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .argument('<protocol>', 'protocol YAML file')
     .option('--out <file>', 'write the CSV here instead of stdout')
     .addHelpText('after', '\nExample:\n  foldseal folds protocols/demo.yaml --out demo.folds.csv')
-    .action(async (protocol: string, o: { out?: string }) => done(await foldsCommand({ protocol, out: o.out }, io)));
+    .action(async (protocol: string, o: { out?: string }) => done(await (await import('./commands/folds.js')).foldsCommand({ protocol, out: o.out }, io)));
 
   program
     .command('run')
@@ -70,7 +61,7 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .option('--refit', 'also fit one model on every labeled row and save it in models.json')
     .option('--key <file>', 'sign manifest.json with this Ed25519 private key (from foldseal keygen)')
     .addHelpText('after', '\nExample:\n  foldseal run protocols/demo.yaml --out results/demo\n\nThe folder is written to a temporary sibling and renamed at the end, so it is never half-written.')
-    .action(async (protocol: string, o: { out?: string; force?: boolean; refit?: boolean; key?: string }) => done(await runCommand({ protocol, ...o }, io)));
+    .action(async (protocol: string, o: { out?: string; force?: boolean; refit?: boolean; key?: string }) => done(await (await import('./commands/run.js')).runCommand({ protocol, ...o }, io)));
 
   program
     .command('apply')
@@ -81,14 +72,14 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .addOption(new Option('--rule <rule>', 'reconcile rule (default: the protocol\'s)').choices(['mean-probability', 'majority-vote', 'refit']))
     .addOption(new Option('--tie <rule>', 'tie rule for majority-vote').choices(['mean-probability', 'abstain', 'class-order']))
     .addHelpText('after', '\nExamples:\n  foldseal apply results/demo protocols/data/seedlings-new.csv --out applied.csv\n  foldseal apply results/demo new.csv --rule majority-vote --tie abstain --out voted.csv\n\nmodels.json and predictions.csv are checked against the hashes in results.json first.')
-    .action(async (results: string, table: string, o: { out?: string; rule?: ReconcileRule; tie?: TieRule }) => done(await applyCommand({ results, table, ...o }, io)));
+    .action(async (results: string, table: string, o: { out?: string; rule?: ReconcileRule; tie?: TieRule }) => done(await (await import('./commands/apply.js')).applyCommand({ results, table, ...o }, io)));
 
   program
     .command('keygen')
     .description('make an Ed25519 key pair for signing manifests; prints the key fingerprint')
     .requiredOption('--out <prefix>', 'writes PREFIX.key (private, mode 0600) and PREFIX.pub (public)')
     .addHelpText('after', '\nExample:\n  foldseal keygen --out ~/.foldseal/lab\n\nThe fingerprint is the SHA-256 of the raw 32-byte public key; publish it with the .pub file.')
-    .action(async (o: { out: string }) => done(await keygenCommand(o, io)));
+    .action(async (o: { out: string }) => done(await (await import('./commands/keygen.js')).keygenCommand(o, io)));
 
   program
     .command('verify')
@@ -102,7 +93,7 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .option('--strict', 'a result file missing next to the manifest is an error')
     .addOption(formatOption())
     .addHelpText('after', '\nExamples:\n  foldseal verify results/demo/manifest.json --key author.pub\n  foldseal verify results/demo/manifest.json --key author.pub --rerun\n\nExit: 0 verified (identical), 1 a check failed or the re-run differs, 2 usage or unreadable input.')
-    .action(async (manifest: string, o: { key?: string; allowUnpinned?: boolean; rerun?: boolean; data?: string; protocol?: string; strict?: boolean; format: 'text' | 'json' }) => done(await verifyCommand({ manifest, ...o }, io)));
+    .action(async (manifest: string, o: { key?: string; allowUnpinned?: boolean; rerun?: boolean; data?: string; protocol?: string; strict?: boolean; format: 'text' | 'json' }) => done(await (await import('./commands/verify.js')).verifyCommand({ manifest, ...o }, io)));
 
   program
     .command('check')
@@ -111,14 +102,14 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .addOption(formatOption())
     .option('--staged', 'only protocols touched by the staged git change, and those sharing their data')
     .addHelpText('after', '\nExamples:\n  foldseal check\n  foldseal check --staged          # in a pre-commit hook\n  foldseal check . --format json   # for CI annotations\n\nExit: 0 clean, 1 findings, 2 usage error (a corrupt lock, not a git repository).')
-    .action(async (dir: string, o: { format: 'text' | 'json'; staged?: boolean }) => done(await checkCommand({ dir, ...o }, io)));
+    .action(async (dir: string, o: { format: 'text' | 'json'; staged?: boolean }) => done(await (await import('./commands/check.js')).checkCommand({ dir, ...o }, io)));
 
   program
     .command('lock')
     .description('record the current protocols, data hashes and fold assignments in foldseal.lock.json; prints what changed')
     .argument('[dir]', 'repository folder', '.')
     .addHelpText('after', '\nExample:\n  foldseal lock && git add foldseal.lock.json\n\nThe lock keeps its sealed and policy sections; commit it so the change is reviewed.')
-    .action(async (dir: string) => done(await lockCommand({ dir }, io)));
+    .action(async (dir: string) => done(await (await import('./commands/lock.js')).lockCommand({ dir }, io)));
 
   return program;
 }

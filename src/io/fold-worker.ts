@@ -4,8 +4,8 @@ import { FitError } from '../model/types.js';
 import { TransformError } from '../preprocess/types.js';
 import { fitFold, type FoldData } from '../run/fit-fold.js';
 
-const w = workerData as { protocol: Parameters<typeof fitFold>[0]; rows: number; cols: number; data: SharedArrayBuffer; y: SharedArrayBuffer; classes: string[]; featureNames: string[] };
-const table: FoldData = { X: { rows: w.rows, cols: w.cols, data: new Float64Array(w.data) }, y: new Int32Array(w.y), classes: w.classes, featureNames: w.featureNames };
+const w = workerData as { protocol: Parameters<typeof fitFold>[0]; rows: number; cols: number; data: SharedArrayBuffer; columns?: SharedArrayBuffer; y: SharedArrayBuffer; classes: string[]; featureNames: string[] };
+const table: FoldData = { X: { rows: w.rows, cols: w.cols, data: new Float64Array(w.data) }, y: new Int32Array(w.y), classes: w.classes, featureNames: w.featureNames, columns: w.columns && new Float64Array(w.columns) };
 
 parentPort!.on('message', (job: { index: number; train: Int32Array; test: Int32Array }) => {
   try {

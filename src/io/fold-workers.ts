@@ -13,6 +13,7 @@ import type { Table } from '../table/table.js';
 import { assembleResult, crossValidate, planFolds, type CvHooks, type CvResult } from '../run/cross-validate.js';
 import type { FoldFit } from '../run/fit-fold.js';
 import { canFitByMoments } from '../run/fit-by-moments.js';
+import { columnMajor, fitsByColumns } from '../preprocess/by-columns.js';
 
 /** Cells × folds below which thread start-up costs more than it saves. */
 const MIN_WORK = 2_000_000;
@@ -35,7 +36,12 @@ export async function crossValidateInWorkers(p: Protocol, table: Table, a: Assig
   new Float64Array(data).set(table.X.data);
   const y = new SharedArrayBuffer(table.y.byteLength);
   new Int32Array(y).set(table.y);
-  const workerData = { protocol: { preprocess: p.preprocess, model: p.model }, rows: table.X.rows, cols: table.X.cols, data, y, classes: table.classes, featureNames: table.featureNames };
+  let columns: SharedArrayBuffer | undefined;
+  if (fitsByColumns(p.preprocess)) {
+    columns = new SharedArrayBuffer(table.X.data.byteLength);
+    columnMajor(table.X, new Float64Array(columns));
+  }
+  const workerData = { protocol: { preprocess: p.preprocess, model: p.model }, rows: table.X.rows, cols: table.X.cols, data, columns, y, classes: table.classes, featureNames: table.featureNames };
   const fits: FoldFit[] = new Array(plans.length);
   const workers = Array.from({ length: threads }, () => new Worker(new URL('./fold-worker.js', import.meta.url), { workerData }));
   try {

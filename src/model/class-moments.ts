@@ -91,3 +91,18 @@ export function overallMoments(m: ClassMoments): { rows: number; mean: Float64Ar
   }
   return { rows, mean, ss };
 }
+
+/** The moments of the listed features only, in that order. */
+export function restrictMoments(m: ClassMoments, features: readonly number[]): ClassMoments {
+  const { classCount } = m;
+  const cols = features.length;
+  const mean = new Float64Array(classCount * cols);
+  const m2 = new Float64Array(classCount * cols);
+  for (let c = 0; c < classCount; c++) {
+    features.forEach((j, q) => {
+      mean[c * cols + q] = m.mean[c * m.cols + j];
+      m2[c * cols + q] = m.m2[c * m.cols + j];
+    });
+  }
+  return { classCount, cols, n: m.n, mean, m2 };
+}

@@ -1,25 +1,41 @@
 /** Fill missing cells (NaN) with the training mean or median of the column's present values. */
-import { TransformError, type TransformImpl } from './types.js';
+import { concatColumnParams, TransformError, type TransformImpl } from './types.js';
 
 export interface ImputeParams { fill: number[] }
+interface ImputeStep { by: 'mean' | 'median' }
+
+function fillValue(present: number[], step: ImputeStep, column: number): number {
+  if (present.length === 0) throw new TransformError('impute-empty-column', `feature ${column + 1} has no present value in a training part, so there is nothing to impute from`);
+  if (step.by === 'mean') return present.reduce((a, b) => a + b, 0) / present.length;
+  present.sort((a, b) => a - b);
+  const h = present.length >> 1;
+  return present.length % 2 ? present[h] : (present[h - 1] + present[h]) / 2;
+}
 
 export const impute: TransformImpl<ImputeParams> = {
-  fit(X, _y, _k, step: { by: 'mean' | 'median' }) {
+  fit(X, _y, _k, step: ImputeStep) {
     const { rows, cols, data } = X;
     const fill: number[] = [];
     for (let j = 0; j < cols; j++) {
       const present: number[] = [];
       for (let r = 0; r < rows; r++) { const v = data[r * cols + j]; if (v === v) present.push(v); }
-      if (present.length === 0) throw new TransformError('impute-empty-column', `feature ${j + 1} has no present value in a training part, so there is nothing to impute from`);
-      if (step.by === 'mean') fill.push(present.reduce((a, b) => a + b, 0) / present.length);
-      else {
-        present.sort((a, b) => a - b);
-        const h = present.length >> 1;
-        fill.push(present.length % 2 ? present[h] : (present[h - 1] + present[h]) / 2);
-      }
+      fill.push(fillValue(present, step, j));
     }
     return { fill };
   },
+  column: {
+    fields: ['fill'],
+    fit(v, n, step: ImputeStep, out) {
+      const present: number[] = [];
+      for (let i = 0; i < n; i++) if (v[i] === v[i]) present.push(v[i]);
+      // The column's position is not known here; a failure is re-raised by the whole-matrix fit, which names it.
+      out[0] = fillValue(present, step, -1);
+    },
+    apply(v, n, p) {
+      for (let i = 0; i < n; i++) if (v[i] !== v[i]) v[i] = p[0];
+    },
+  },
+  concat: concatColumnParams,
   restrict(p, positions) {
     return { fill: positions.map((j) => p.fill[j]) };
   },

@@ -1,9 +1,21 @@
 /** log2(x + 1), for counts and intensities; negative input is rejected rather than turned into NaN. */
-import { TransformError, type TransformImpl } from './types.js';
+import { concatColumnParams, TransformError, type TransformImpl } from './types.js';
 
 export const log2p: TransformImpl<Record<string, never>> = {
   fit() {
     return {};
+  },
+  concat: concatColumnParams,
+  column: {
+    fields: [],
+    fit() {},
+    apply(v, n) {
+      for (let i = 0; i < n; i++) {
+        // The position is not known here; the whole-matrix apply re-raises this with it.
+        if (v[i] < 0) throw new TransformError('log2p-negative', `log2p got the negative value ${v[i]}`);
+        v[i] = Math.log2(v[i] + 1);
+      }
+    },
   },
   restrict(p) {
     return p;

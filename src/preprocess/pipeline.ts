@@ -1,7 +1,7 @@
 /** Fit the protocol's steps in order on the training rows, carrying the feature names along. */
 import type { PreprocessStep } from '../protocol/types.js';
 import type { Matrix } from '../table/matrix.js';
-import { takeCols } from '../table/matrix.js';
+import { takeCells, takeCols, takeRows } from '../table/matrix.js';
 import { transforms } from './registry.js';
 import { TransformError } from './types.js';
 
@@ -34,14 +34,15 @@ export function fitPipeline(steps: readonly PreprocessStep[], X: Matrix, y: Int3
   return { pipeline: { steps: fitted, columns }, X: current };
 }
 
-export function applyPipeline(p: FittedPipeline, X: Matrix): Matrix {
-  let current = p.input ? takeCols(X, Int32Array.from(p.input)) : X;
+/** `rows`: apply to just these rows of X (read straight from X, no copy of unused columns). */
+export function applyPipeline(p: FittedPipeline, X: Matrix, rows?: Int32Array): Matrix {
+  let current = rows ? (p.input ? takeCells(X, rows, Int32Array.from(p.input)) : takeRows(X, rows)) : p.input ? takeCols(X, Int32Array.from(p.input)) : X;
   for (const s of p.steps) current = transforms[s.step.step].apply(s.params, current);
   if (p.steps.length) assertFinite(current, p.columns);
   return current;
 }
 
-function assertFinite(X: Matrix, columns: readonly string[]): void {
+export function assertFinite(X: Matrix, columns: readonly string[]): void {
   for (let k = 0; k < X.data.length; k++) {
     if (!Number.isFinite(X.data[k])) {
       const what = X.data[k] !== X.data[k] ? 'a missing value' : 'an infinite value';

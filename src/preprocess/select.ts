@@ -5,55 +5,13 @@
  * undefined score (NaN: a constant feature) ranks last, an infinite one (no spread within
  * classes) first; equal scores keep the earlier column.
  */
-import { takeCols } from '../table/matrix.js';
+import { takeCols, type Matrix } from '../table/matrix.js';
+import { restrictMoments } from '../model/class-moments.js';
+import { featureScores, momentScores, scoreColumn, type ScoreBy } from './feature-scores.js';
 import type { TransformImpl } from './types.js';
 
 export interface SelectParams { keep: number[]; scores: (number | null)[] }
-
-export function featureScores(X: { rows: number; cols: number; data: Float64Array }, y: Int32Array, classCount: number, by: 't-test' | 'f-test' | 'variance'): Float64Array {
-  const { rows, cols, data } = X;
-  const n = new Float64Array(classCount);
-  for (let r = 0; r < rows; r++) n[y[r]]++;
-  const mean = new Float64Array(classCount * cols);
-  for (let r = 0; r < rows; r++) {
-    const o = y[r] * cols;
-    const b = r * cols;
-    for (let j = 0; j < cols; j++) mean[o + j] += data[b + j];
-  }
-  const overall = new Float64Array(cols);
-  for (let c = 0; c < classCount; c++) {
-    const o = c * cols;
-    for (let j = 0; j < cols; j++) overall[j] += mean[o + j];
-    if (n[c] > 0) for (let j = 0; j < cols; j++) mean[o + j] /= n[c];
-  }
-  for (let j = 0; j < cols; j++) overall[j] /= rows;
-  // Within-class sums of squares (two-pass, around the class means).
-  const ss = new Float64Array(classCount * cols);
-  for (let r = 0; r < rows; r++) {
-    const o = y[r] * cols;
-    const b = r * cols;
-    for (let j = 0; j < cols; j++) { const d = data[b + j] - mean[o + j]; ss[o + j] += d * d; }
-  }
-  const present = Array.from(n.keys()).filter((c) => n[c] > 0);
-  const out = new Float64Array(cols);
-  for (let j = 0; j < cols; j++) {
-    let within = 0;
-    let between = 0;
-    for (const c of present) {
-      within += ss[c * cols + j];
-      const d = mean[c * cols + j] - overall[j];
-      between += n[c] * d * d;
-    }
-    if (by === 'variance') out[j] = (within + between) / rows;
-    else if (by === 't-test') {
-      const [a, b] = present;
-      const va = ss[a * cols + j] / (n[a] - 1) / n[a];
-      const vb = ss[b * cols + j] / (n[b] - 1) / n[b];
-      out[j] = Math.abs(mean[a * cols + j] - mean[b * cols + j]) / Math.sqrt(va + vb);
-    } else out[j] = (between / (present.length - 1)) / (within / (rows - present.length));
-  }
-  return out;
-}
+interface SelectStep { top: number; by: ScoreBy }
 
 /** Positions of the `top` highest scores (undefined scores last, ties to the earlier position), ascending. */
 export function topIndices(scores: Float64Array, top: number): number[] {
@@ -73,11 +31,18 @@ export function topIndices(scores: Float64Array, top: number): number[] {
   return best.sort((a, b) => a - b);
 }
 
+const score = (X: Matrix, y: Int32Array, classCount: number, step: SelectStep) => featureScores(X, y, classCount, step.by);
+const fromScores = (scores: Float64Array, step: SelectStep): SelectParams => ({ keep: topIndices(scores, step.top), scores: Array.from(scores, (s) => (Number.isFinite(s) ? s : null)) });
+
 export const select: TransformImpl<SelectParams> = {
-  fit(X, y, classCount, step: { top: number; by: 't-test' | 'f-test' | 'variance' }) {
-    const scores = featureScores(X, y, classCount, step.by);
-    return { keep: topIndices(scores, step.top), scores: Array.from(scores, (s) => (Number.isFinite(s) ? s : null)) };
+  fit: (X, y, classCount, step: SelectStep) => fromScores(score(X, y, classCount, step), step),
+  score,
+  moments: {
+    fit: (m, step: SelectStep) => fromScores(momentScores(m, step.by), step),
+    after: (p, m) => restrictMoments(m, p.keep),
   },
+  scoreColumn: (v, n, y, classCount, step: SelectStep, counts, mean, ss, present) => scoreColumn(v, n, y, classCount, step.by, counts, mean, ss, present),
+  fromScores,
   apply(p, X) {
     return takeCols(X, Int32Array.from(p.keep));
   },

@@ -7,7 +7,8 @@ import { metrics as metricFns } from '../metric/registry.js';
 import { confusionRows } from '../metric/confusion.js';
 import { scored } from '../metric/types.js';
 import type { FittedPipeline } from '../preprocess/pipeline.js';
-import { fitFold, type FoldFit } from './fit-fold.js';
+import { columnMajor, fitsByColumns } from '../preprocess/by-columns.js';
+import { fitFold, type FoldData, type FoldFit } from './fit-fold.js';
 import { canFitByMoments, fitByMoments } from './fit-by-moments.js';
 import { warning, type Problem } from '../problems/problem.js';
 import { testsFoldOneOnly, type MetricName, type Protocol } from '../protocol/types.js';
@@ -83,8 +84,9 @@ export function crossValidate(p: Protocol, table: Table, a: Assignment, hooks: C
     hooks.onFold?.(plans.length, plans.length);
     return assembleResult(p, table, a, plans, fits);
   }
+  const data: FoldData = { ...table, columns: fitsByColumns(p.preprocess) ? columnMajor(table.X) : undefined };
   const fits = plans.map((plan, i) => {
-    const fit = fitFold(p, table, plan.train, plan.test);
+    const fit = fitFold(p, data, plan.train, plan.test);
     hooks.onFold?.(i + 1, plans.length);
     return fit;
   });

@@ -1,23 +1,33 @@
 /**
- * Fold fits from class moments, for models that learn only moments (fromMoments) and protocols
- * with no preprocessing: each fold's rows are summarized once per repeat, and a fold's model is
- * fitted from the merged moments of every other fold, which are exactly its training rows. The
- * per-fold work is then independent of the training part's size. Pure.
+ * Fold fits from class moments. When every preprocessing step learns only class moments of its
+ * input (standardize, select) and so does the model (gaussian-nb, shrunken-centroid), each fold's
+ * rows are summarized once per repeat, and a fold's pipeline and model are fitted from the
+ * merged moments of every other fold — exactly its training rows (Chan, Golub & LeVeque 1979
+ * for the merge). Each step also carries the moments through to its output, so nothing passes
+ * over the training rows per fold; a model that needs rows gets the training rows through the
+ * fitted pipeline instead. The values equal the row-by-row fit up to rounding (tests bound the
+ * difference). Pure.
  */
 import { mergeMoments, classMoments, type ClassMoments } from '../model/class-moments.js';
 import { fitOptions, models } from '../model/registry.js';
+import { applyPipeline, prunePipeline, type FittedStep } from '../preprocess/pipeline.js';
+import { transforms } from '../preprocess/registry.js';
 import type { Protocol } from '../protocol/types.js';
 import { foldRows, type Assignment } from '../split/assignment.js';
 import { idOrder } from '../split/key.js';
-import { takeRows } from '../table/matrix.js';
+import { takeInt } from '../table/matrix.js';
 import type { FoldData, FoldFit } from './fit-fold.js';
 import type { FoldPlan } from './cross-validate.js';
 
-export function canFitByMoments(p: Pick<Protocol, 'preprocess' | 'model'>): boolean {
-  return p.preprocess.length === 0 && models[p.model.kind].fromMoments !== undefined;
+type Parts = Pick<Protocol, 'preprocess' | 'model'>;
+
+/** Worth it when something is learned from moments: a pipeline of moment steps, or a moment model. */
+export function canFitByMoments(p: Parts): boolean {
+  const steps = p.preprocess.every((s) => transforms[s.step].moments);
+  return steps && (p.preprocess.length > 0 || models[p.model.kind].fromMoments !== undefined);
 }
 
-export function fitByMoments(p: Pick<Protocol, 'preprocess' | 'model'>, d: FoldData & { ids: readonly string[] }, a: Assignment, plans: readonly FoldPlan[]): FoldFit[] {
+export function fitByMoments(p: Parts, d: FoldData & { ids: readonly string[] }, a: Assignment, plans: readonly FoldPlan[]): FoldFit[] {
   const impl = models[p.model.kind];
   const k = d.classes.length;
   const options = fitOptions(p.model.kind, p.model.options, d.classes);
@@ -33,10 +43,20 @@ export function fitByMoments(p: Pick<Protocol, 'preprocess' | 'model'>, d: FoldD
     return blocks;
   };
   return plans.map((plan) => {
-    const blocks = blocksOf(plan.repeat);
-    let training: ClassMoments | undefined;
-    blocks.forEach((b, g) => { if (g + 1 !== plan.fold) training = training ? mergeMoments(training, b) : b; });
-    const model = impl.fromMoments!(training!, options, { classCount: k });
-    return { pipeline: { steps: [], columns: [...d.featureNames] }, model, proba: impl.predict(model, takeRows(d.X, plan.test)) };
+    let moments: ClassMoments | undefined;
+    blocksOf(plan.repeat).forEach((b, g) => { if (g + 1 !== plan.fold) moments = moments ? mergeMoments(moments, b) : b; });
+    let m = moments!;
+    let columns = [...d.featureNames];
+    const steps: FittedStep[] = [];
+    for (const step of p.preprocess) {
+      const t = transforms[step.step];
+      const params = t.moments!.fit(m, step);
+      m = t.moments!.after(params, m);
+      if (t.columns) columns = t.columns(params, columns);
+      steps.push({ step, params });
+    }
+    const pipeline = prunePipeline({ steps, columns }, d.X.cols);
+    const model = impl.fromMoments ? impl.fromMoments(m, options, { classCount: k }) : impl.fit(applyPipeline(pipeline, d.X, plan.train), takeInt(d.y, plan.train), options, { classCount: k });
+    return { pipeline, model, proba: impl.predict(model, applyPipeline(pipeline, d.X, plan.test)) };
   });
 }

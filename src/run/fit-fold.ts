@@ -1,14 +1,17 @@
 /** One fold: fit the pipeline and the model on the training rows, predict the test rows. Pure. */
 import { fitOptions, models } from '../model/registry.js';
-import { applyPipeline, fitPipeline, prunePipeline, type FittedPipeline } from '../preprocess/pipeline.js';
+import { fitPipelineOnRows } from '../preprocess/by-columns.js';
+import { applyPipeline, prunePipeline, type FittedPipeline } from '../preprocess/pipeline.js';
 import type { Protocol } from '../protocol/types.js';
-import { takeInt, takeRows, type Matrix } from '../table/matrix.js';
+import { takeInt, type Matrix } from '../table/matrix.js';
 
 export interface FoldData {
   X: Matrix;
   y: Int32Array;
   classes: readonly string[];
   featureNames: readonly string[];
+  /** X in column-major order, when the pipeline fits column by column (see by-columns.ts). */
+  columns?: Float64Array;
 }
 
 export interface FoldFit {
@@ -21,10 +24,10 @@ export interface FoldFit {
 export function fitFold(p: Pick<Protocol, 'preprocess' | 'model'>, d: FoldData, train: Int32Array, test: Int32Array): FoldFit {
   const k = d.classes.length;
   const yTrain = takeInt(d.y, train);
-  const fitted = fitPipeline(p.preprocess, takeRows(d.X, train), yTrain, k, d.featureNames);
+  const fitted = fitPipelineOnRows(p.preprocess, d.X, train, yTrain, k, d.featureNames, d.columns);
   const pipeline = prunePipeline(fitted.pipeline, d.X.cols);
   const impl = models[p.model.kind];
   const model = impl.fit(fitted.X, yTrain, fitOptions(p.model.kind, p.model.options, d.classes), { classCount: k });
-  const proba = impl.predict(model, applyPipeline(pipeline, takeRows(d.X, test)));
+  const proba = impl.predict(model, applyPipeline(pipeline, d.X, test));
   return { pipeline, model, proba };
 }

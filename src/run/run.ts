@@ -9,12 +9,13 @@ import { assignmentCsv } from '../split/csv.js';
 import type { Table } from '../table/table.js';
 import { sha256Bytes } from '../io/hash.js';
 import { fitOptions, models } from '../model/registry.js';
-import { fitPipeline, prunePipeline } from '../preprocess/pipeline.js';
+import { columnMajor, fitPipelineOnRows, fitsByColumns } from '../preprocess/by-columns.js';
+import { prunePipeline } from '../preprocess/pipeline.js';
 import { appliedCsv, applyRows, type AppliedRow } from '../reconcile/applied.js';
 import { heldOutFromOof } from '../reconcile/held-out.js';
 import { MODELS_VERSION, modelsJson, type ModelsFile, type SavedModel } from '../reconcile/models-file.js';
 import { idOrder } from '../split/key.js';
-import { takeInt, takeRows } from '../table/matrix.js';
+import { takeInt } from '../table/matrix.js';
 import type { NewRows } from '../table/new-rows.js';
 import { knownColumns } from '../protocol/known-columns.js';
 import { crossValidate, type CvHooks, type CvResult } from './cross-validate.js';
@@ -112,7 +113,7 @@ function fitOnAll(input: RunInput): SavedModel {
   const order = idOrder(table.ids);
   return guardFit(input.protocolFile, () => {
     const y = takeInt(table.y, order);
-    const { pipeline, X } = fitPipeline(p.preprocess, takeRows(table.X, order), y, table.classes.length, table.featureNames);
+    const { pipeline, X } = fitPipelineOnRows(p.preprocess, table.X, order, y, table.classes.length, table.featureNames, fitsByColumns(p.preprocess) ? columnMajor(table.X) : undefined);
     const model = models[p.model.kind].fit(X, y, fitOptions(p.model.kind, p.model.options, table.classes), { classCount: table.classes.length });
     return { repeat: 0, fold: 0, pipeline: prunePipeline(pipeline, table.X.cols), model };
   });

@@ -41,6 +41,19 @@ export function takeCols(m: Matrix, index: Int32Array): Matrix {
   return { rows: m.rows, cols: k, data: out };
 }
 
+/** Cells at the listed rows and columns: out(i, j) = m(rows[i], cols[j]). */
+export function takeCells(m: Matrix, rows: Int32Array, cols: Int32Array): Matrix {
+  const k = cols.length;
+  const out = new Float64Array(rows.length * k);
+  const data = m.data;
+  for (let i = 0; i < rows.length; i++) {
+    const base = rows[i] * m.cols;
+    const o = i * k;
+    for (let j = 0; j < k; j++) out[o + j] = data[base + cols[j]];
+  }
+  return { rows: rows.length, cols: k, data: out };
+}
+
 export function takeInt(values: Int32Array, index: Int32Array): Int32Array {
   const out = new Int32Array(index.length);
   for (let i = 0; i < index.length; i++) out[i] = values[index[i]];

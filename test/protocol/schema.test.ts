@@ -2,7 +2,8 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import t from 'tap';
 import { protocolReference } from '../../src/protocol/reference-doc.js';
-import { readSchema } from '../../src/protocol/schema.js';
+import { parse } from 'yaml';
+import { compileValidator, precompiledValidator, readSchema } from '../../src/protocol/schema.js';
 import { root } from '../helpers.js';
 
 type S = Record<string, any>;
@@ -30,4 +31,27 @@ t.test('every mapping is closed and every property has a description', async (t)
 
 t.test('docs/protocol.md is generated from the schema and up to date (npm run docs)', async (t) => {
   t.equal(readFileSync(join(root, 'docs', 'protocol.md'), 'utf8'), protocolReference(schema));
+});
+
+// The build's standalone validators are Ajv's own code generation for the same schema and
+// options: they must report exactly what a validator compiled at run time reports.
+t.test('precompiled validators report exactly what freshly compiled ones do', async (t) => {
+  const documents: unknown[] = [
+    parse(readFileSync(join(root, 'protocols', 'demo.yaml'), 'utf8')),
+    { foldseal: 1, name: 'x', data: { file: 'd.csv', sha256: 'zz', label: 3 }, split: { rule: 'kfold', folds: 1 }, model: { kind: 'gaussian-nbb' }, metrics: ['acc'], extra: true },
+    { foldseal: 2 },
+    [],
+    { 'foldseal-manifest': 1, tool: { name: 'foldseal' } },
+  ];
+  for (const name of ['protocol.schema.json', 'manifest.schema.json']) {
+    const built = precompiledValidator(name);
+    t.ok(built, `${name} was precompiled by the build`);
+    const fresh = compileValidator(name);
+    for (const d of documents) {
+      const a = built!(d);
+      const b = fresh(d);
+      t.equal(a, b, `${name}: same verdict`);
+      t.same(JSON.parse(JSON.stringify(built!.errors ?? null)), JSON.parse(JSON.stringify(fresh.errors ?? null)), `${name}: same errors`);
+    }
+  }
 });
