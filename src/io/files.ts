@@ -1,5 +1,5 @@
 /** File reading at the edge: every failure becomes a located Problem, never a stack trace. */
-import { readFile } from 'node:fs/promises';
+import { open, readFile } from 'node:fs/promises';
 import { error, type Problem } from '../problems/problem.js';
 import { sha256Bytes } from './hash.js';
 
@@ -9,9 +9,10 @@ export interface ReadBytes {
   problem?: Problem;
 }
 
-export async function readBytes(path: string, shownAs: string, where?: Partial<Problem>): Promise<ReadBytes> {
+/** `shared`: read into a SharedArrayBuffer, so worker threads can read the same bytes without a copy. */
+export async function readBytes(path: string, shownAs: string, where?: Partial<Problem>, options: { shared?: boolean } = {}): Promise<ReadBytes> {
   try {
-    const bytes = await readFile(path);
+    const bytes = options.shared ? await readShared(path) : await readFile(path);
     return { bytes, sha256: sha256Bytes(bytes) };
   } catch (e) {
     return { problem: fileProblem(e as NodeJS.ErrnoException, shownAs, where) };
@@ -21,4 +22,22 @@ export async function readBytes(path: string, shownAs: string, where?: Partial<P
 export function fileProblem(e: NodeJS.ErrnoException, shownAs: string, where: Partial<Problem> = {}): Problem {
   const reason = e.code === 'ENOENT' ? 'does not exist' : e.code === 'EISDIR' ? 'is a folder, not a file' : e.code === 'EACCES' ? 'cannot be read (permission denied)' : `cannot be read (${e.code ?? e.message})`;
   return error(e.code === 'ENOENT' ? 'file-missing' : 'file-unreadable', `file ${shownAs} ${reason}`, where);
+}
+
+async function readShared(path: string): Promise<Uint8Array> {
+  const file = await open(path, 'r');
+  try {
+    const size = (await file.stat()).size;
+    const bytes = new Uint8Array(new SharedArrayBuffer(size));
+    let at = 0;
+    while (at < size) {
+      const { bytesRead } = await file.read(bytes, at, size - at, at);
+      /* c8 ignore next -- the file shrank while being read */
+      if (bytesRead === 0) return bytes.subarray(0, at);
+      at += bytesRead;
+    }
+    return bytes;
+  } finally {
+    await file.close();
+  }
 }

@@ -2,7 +2,7 @@
  * The imperative shell around validation: reads the protocol, its data, its pinned
  * file and new rows, hashes them, and hands everything to the pure checks.
  */
-import { readFile } from 'node:fs/promises';
+import { readFile, stat } from 'node:fs/promises';
 import { dirname, relative, resolve } from 'node:path';
 import { error, hasErrors, type Problem } from '../problems/problem.js';
 import { locate } from '../protocol/document.js';
@@ -15,6 +15,7 @@ import { knownColumns } from '../protocol/known-columns.js';
 import type { Table } from '../table/table.js';
 import { newRowsFromBytes, type NewRows } from '../table/new-rows.js';
 import { fileProblem, readBytes } from './files.js';
+import { rowThreadsAvailable, startRowThread, type RowThread } from './row-helper.js';
 
 export interface ValidationReport extends ParsedProtocol {
   /** True when the protocol file itself could not be read (a usage-level failure). */
@@ -55,14 +56,27 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
   const p = parsed.protocol;
   const source = parsed.source;
   const base = dirname(resolve(path));
-  const problems: Problem[] = [...parsed.problems];
   const at = (docPath: (string | number)[]) => ({ file: parsed.file, path: docPath, position: locate(source, docPath) });
   const paths = {
     data: options.dataOverride ? resolve(options.dataOverride) : resolve(base, p.data.file),
     pinned: isPinned(p.split) ? resolve(base, p.split.pinned.file) : undefined,
     newRows: p.reconcile.newRows ? resolve(base, p.reconcile.newRows.file) : undefined,
   };
-  const data = await readBytes(paths.data, shown(paths.data), at(['data', 'file']));
+  // A large data file is parsed on two threads: start the second while the file is read.
+  const size = await stat(paths.data).then((st) => st.size, () => 0);
+  const rowThread = rowThreadsAvailable(size) ? startRowThread() : undefined;
+  try {
+    return await validateWithData({ ...parsed, protocol: p, source }, paths, at, rowThread);
+  } finally {
+    await rowThread?.close();
+  }
+}
+
+async function validateWithData(parsed: ParsedProtocol & { protocol: Protocol; source: NonNullable<ParsedProtocol['source']> }, paths: { data: string; pinned?: string; newRows?: string }, at: (docPath: (string | number)[]) => Partial<Problem>, rowThread: RowThread | undefined): Promise<ValidationReport> {
+  const p = parsed.protocol;
+  const source = parsed.source;
+  const problems: Problem[] = [...parsed.problems];
+  const data = await readBytes(paths.data, shown(paths.data), at(['data', 'file']), { shared: rowThread !== undefined });
   let pinned: { bytes: Uint8Array; sha256: string; shownAs: string } | undefined;
   if (paths.pinned) {
     const pin = await readBytes(paths.pinned, shown(paths.pinned), at(['split', 'pinned', 'file']));
@@ -83,7 +97,7 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
   }
   const roleLocate = (role: 'id' | 'label' | 'group' | 'features', index?: number) =>
     locate(source, index === undefined ? ['data', role] : ['data', 'features', ...(Array.isArray(p.data.features) ? [] : ['exclude']), index]);
-  const built = tableFromBytes(data.bytes!, shown(paths.data), dataRoles(p), p.data.format, roleLocate);
+  const built = tableFromBytes(data.bytes!, shown(paths.data), dataRoles(p), p.data.format, roleLocate, rowThread);
   problems.push(...built.problems.map((q) => (q.file ? q : { ...q, file: parsed.file })));
   if (!built.table || hasErrors(built.problems) || (paths.pinned && !pinned)) {
     return { ...parsed, problems, paths, table: built.table, dataSha256: data.sha256 };

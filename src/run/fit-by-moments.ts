@@ -33,11 +33,13 @@ export function fitByMoments(p: Parts, d: FoldData & { ids: readonly string[] },
   const options = fitOptions(p.model.kind, p.model.options, d.classes);
   const order = idOrder(d.ids);
   const perRepeat = new Map<number, ClassMoments[]>();
+  const tested = new Map(plans.map((plan) => [`${plan.repeat}/${plan.fold}`, plan.test]));
   const blocksOf = (repeat: number) => {
     let blocks = perRepeat.get(repeat);
     if (!blocks) {
       // Fold g's rows in id order, g = 1..K: the same rows and order the plans' test parts use.
-      blocks = Array.from({ length: a.folds }, (_, g) => classMoments(d.X, d.y, k, foldRows(a, repeat, g + 1, order).test));
+      const rowsOf = (g: number) => tested.get(`${repeat}/${g}`) ?? foldRows(a, repeat, g, order).test;
+      blocks = Array.from({ length: a.folds }, (_, g) => classMoments(d.X, d.y, k, rowsOf(g + 1)));
       perRepeat.set(repeat, blocks);
     }
     return blocks;

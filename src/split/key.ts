@@ -64,9 +64,13 @@ export function idOrder(ids: readonly string[]): Int32Array {
   if (cached) return cached;
   const order = new Int32Array(ids.length);
   for (let i = 0; i < ids.length; i++) order[i] = i;
-  order.sort((i, j) => compareUtf8(ids[i], ids[j]));
+  // Without surrogates (code points beyond U+FFFF), UTF-16 order is UTF-8 byte order, and the
+  // engine's own string comparison gives it directly.
+  if (ids.some((id) => SURROGATE.test(id))) order.sort((i, j) => compareUtf8(ids[i], ids[j]));
+  else order.sort((i, j) => (ids[i] < ids[j] ? -1 : ids[i] > ids[j] ? 1 : 0));
   orderCache.set(ids, order);
   return order;
 }
 
+const SURROGATE = /[\ud800-\udfff]/;
 const orderCache = new WeakMap<readonly string[], Int32Array>();

@@ -154,6 +154,8 @@ function checkIds(t: Grid, ids: string[], idCol: number, file: string, problems:
       if (reported++ < MAX_CELL_PROBLEMS) problems.push(error('data-duplicate-id', `id "${id}" appears again (first on line ${t.rowLine[first]})`, { file, position: t.position(r, idCol) }));
     } else seen.set(id, r);
   }
+  // Distinct ASCII ids stay distinct under normalization: only a table with other ids needs the check.
+  if (ids.every((id) => ASCII.test(id))) return;
   const normalized = new Map<string, string>();
   for (const id of seen.keys()) {
     // ASCII text is its own normal form; only other ids need the (slow) normalizer.

@@ -1,0 +1,46 @@
+/**
+ * A second thread for reading large quote-free tables: it parses the upper half of the rows
+ * while the main thread parses the lower half, both straight into one shared array. The main
+ * thread waits for it synchronously (Atomics.wait), so the pure table builder stays synchronous.
+ */
+import { availableParallelism } from 'node:os';
+import { MessageChannel, receiveMessageOnPort, Worker } from 'node:worker_threads';
+import type { RowHelper, RowsPart } from '../table/plain.js';
+
+/** Files below this size read faster on one thread than a worker takes to start. */
+export const SHARED_READ_BYTES = 8 * 1024 * 1024;
+
+export interface RowThread extends RowHelper {
+  close(): Promise<void>;
+}
+
+/** Only from compiled JavaScript (the worker loads dist/), on a machine with a second core. */
+export function rowThreadsAvailable(size: number): boolean {
+  return size >= SHARED_READ_BYTES && availableParallelism() >= 2 && import.meta.url.endsWith('.js');
+}
+
+/** Started early (before the file is read) so the worker is loaded by the time rows are parsed. */
+export function startRowThread(): RowThread {
+  const { port1, port2 } = new MessageChannel();
+  const worker = new Worker(new URL('./row-worker.js', import.meta.url), { workerData: { port: port2 }, transferList: [port2] });
+  return {
+    numbers: (length) => new Float64Array(new SharedArrayBuffer(length * 8)),
+    start(t, numberCols, textCols, from, to, numbers) {
+      const done = new Int32Array(new SharedArrayBuffer(4));
+      const table = { bytes: t.bytes, delimiter: t.delimiter, header: t.header, rows: t.rows, cols: t.cols, rowStart: t.rowStart, rowEnd: t.rowEnd };
+      worker.postMessage({ table, numberCols, textCols, from, to, numbers, done });
+      return () => {
+        // The worker always answers, errors included, so this loop ends.
+        while (Atomics.load(done, 0) === 0) Atomics.wait(done, 0, 0, 1000);
+        const reply = receiveMessageOnPort(port1)?.message as { part?: RowsPart; error?: string } | undefined;
+        /* c8 ignore next -- a failure inside the worker is a bug in foldseal */
+        if (!reply || reply.error !== undefined) throw new Error(`foldseal: row thread failed: ${reply?.error ?? 'no reply'}`);
+        return reply.part;
+      };
+    },
+    async close() {
+      port1.close();
+      await worker.terminate();
+    },
+  };
+}
