@@ -14,9 +14,15 @@ export interface RowThread extends RowHelper {
   close(): Promise<void>;
 }
 
-/** Only from compiled JavaScript (the worker loads dist/), on a machine with a second core. */
+/**
+ * Only from compiled JavaScript (the worker loads dist/), on a machine with a second core.
+ * FOLDSEAL_THREADS=1 turns it off; 2 or more turns it on for any size (as the tests do).
+ */
 export function rowThreadsAvailable(size: number): boolean {
-  return size >= SHARED_READ_BYTES && availableParallelism() >= 2 && import.meta.url.endsWith('.js');
+  if (!import.meta.url.endsWith('.js')) return false;
+  const forced = Number(process.env.FOLDSEAL_THREADS);
+  if (Number.isInteger(forced) && forced >= 1) return forced >= 2;
+  return size >= SHARED_READ_BYTES && availableParallelism() >= 2;
 }
 
 /** Started early (before the file is read) so the worker is loaded by the time rows are parsed. */

@@ -104,6 +104,10 @@ function preprocessProblems(p: Protocol, table: Table, at: At): Problem[] {
     if (s.step !== 'select') return;
     if (s.top > width) out.push(error('select-too-many', `select keeps the top ${s.top} features but only ${width} are there`, at(['preprocess', i, 'select', 'top'])));
     if (s.by === 't-test' && table.classes.length !== 2) out.push(error('t-test-needs-two-classes', `the t-test score needs exactly 2 classes; the label has ${table.classes.length}`, { ...at(['preprocess', i, 'select', 'by']), hint: 'use by: f-test for more classes' }));
+    // Standardized columns all have variance 1: the "top" ones would differ only by rounding.
+    if (s.by === 'variance' && p.preprocess.slice(0, i).some((earlier) => earlier.step === 'standardize')) {
+      out.push(warning('variance-after-standardize', 'select by variance comes after standardize, where every column has variance 1: which columns it keeps is decided by rounding', { ...at(['preprocess', i, 'select', 'by']), hint: 'select by variance before standardize, or by t-test or f-test' }));
+    }
     width = Math.min(width, s.top);
   });
   return out;
