@@ -5,12 +5,15 @@
  */
 import { availableParallelism } from 'node:os';
 import { MessageChannel, receiveMessageOnPort, Worker } from 'node:worker_threads';
+import { deriveKeys } from '../split/key.js';
 import type { RowHelper, RowsPart } from '../table/plain.js';
 
 /** Files below this size read faster on one thread than a worker takes to start. */
 export const SHARED_READ_BYTES = 8 * 1024 * 1024;
 
 export interface RowThread extends RowHelper {
+  /** deriveKeys(ids, seed, repeat), the second half of the ids on the other thread. */
+  keys(ids: readonly string[], seed: number, repeat: number): Uint8Array;
   close(): Promise<void>;
 }
 
@@ -29,20 +32,30 @@ export function rowThreadsAvailable(size: number): boolean {
 export function startRowThread(): RowThread {
   const { port1, port2 } = new MessageChannel();
   const worker = new Worker(new URL('./row-worker.js', import.meta.url), { workerData: { port: port2 }, transferList: [port2] });
+  const waitFor = (done: Int32Array): Record<string, unknown> => {
+    // The worker always answers, errors included, so this loop ends.
+    while (Atomics.load(done, 0) === 0) Atomics.wait(done, 0, 0, 1000);
+    const reply = receiveMessageOnPort(port1)?.message as { error?: string } | undefined;
+    /* c8 ignore next -- a failure inside the worker is a bug in foldseal */
+    if (!reply || reply.error !== undefined) throw new Error(`foldseal: row thread failed: ${reply?.error ?? 'no reply'}`);
+    return reply;
+  };
   return {
     numbers: (length) => new Float64Array(new SharedArrayBuffer(length * 8)),
     start(t, numberCols, textCols, from, to, numbers) {
       const done = new Int32Array(new SharedArrayBuffer(4));
       const table = { bytes: t.bytes, delimiter: t.delimiter, header: t.header, rows: t.rows, cols: t.cols, rowStart: t.rowStart, rowEnd: t.rowEnd };
-      worker.postMessage({ table, numberCols, textCols, from, to, numbers, done });
-      return () => {
-        // The worker always answers, errors included, so this loop ends.
-        while (Atomics.load(done, 0) === 0) Atomics.wait(done, 0, 0, 1000);
-        const reply = receiveMessageOnPort(port1)?.message as { part?: RowsPart; error?: string } | undefined;
-        /* c8 ignore next -- a failure inside the worker is a bug in foldseal */
-        if (!reply || reply.error !== undefined) throw new Error(`foldseal: row thread failed: ${reply?.error ?? 'no reply'}`);
-        return reply.part;
-      };
+      worker.postMessage({ kind: 'rows', table, numberCols, textCols, from, to, numbers, done });
+      return () => (waitFor(done) as { part?: RowsPart }).part;
+    },
+    keys(ids, seed, repeat) {
+      const out = new Uint8Array(new SharedArrayBuffer(ids.length * 32));
+      const mid = ids.length >> 1;
+      const done = new Int32Array(new SharedArrayBuffer(4));
+      worker.postMessage({ kind: 'keys', ids: ids.slice(mid), seed, repeat, out: out.subarray(mid * 32), done });
+      out.set(deriveKeys(ids.slice(0, mid), seed, repeat));
+      waitFor(done);
+      return out;
     },
     async close() {
       port1.close();

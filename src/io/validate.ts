@@ -102,7 +102,7 @@ async function validateWithData(parsed: ParsedProtocol & { protocol: Protocol; s
   if (!built.table || hasErrors(built.problems) || (paths.pinned && !pinned)) {
     return { ...parsed, problems, paths, table: built.table, dataSha256: data.sha256 };
   }
-  const semantic = checkAgainstData(p, source, { table: built.table, sha256: data.sha256!, pinned });
+  const semantic = checkAgainstData(p, source, { table: built.table, sha256: data.sha256!, pinned, idKeys: rowThread && splitKeysOnTwoThreads(p, built.table.ids, rowThread) });
   problems.push(...semantic.problems);
   let newRows: NewRows | undefined;
   if (newRowBytes) {
@@ -111,6 +111,14 @@ async function validateWithData(parsed: ParsedProtocol & { protocol: Protocol; s
     newRows = nr.rows;
   }
   return { ...parsed, problems, paths, table: built.table, dataSha256: data.sha256, newRows, assignment: hasErrors(problems) ? undefined : semantic.assignment };
+}
+
+/** Many ids: derive every repeat's split keys with the row thread's help (rules that hash group names derive their own). */
+function splitKeysOnTwoThreads(p: Protocol, ids: readonly string[], rowThread: RowThread): ((seed: number, repeat: number) => Uint8Array | undefined) | undefined {
+  if (isPinned(p.split) || ids.length < 10_000) return undefined;
+  const seed = p.split.seed ?? 0;
+  const keys = Array.from({ length: p.split.repeats }, (_, r) => rowThread.keys(ids, seed, r + 1));
+  return (s, repeat) => (s === seed ? keys[repeat - 1] : undefined);
 }
 
 export function dataRoles(p: Protocol) {

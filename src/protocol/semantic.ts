@@ -15,6 +15,8 @@ export interface DataEvidence {
   sha256: string;
   /** The pinned assignment file's bytes and hash, when the protocol pins its split. */
   pinned?: { bytes: Uint8Array; sha256: string; shownAs: string };
+  /** Split keys of the table's ids derived by the shell (see SplitInput.idKeys). */
+  idKeys?: (seed: number, repeat: number) => Uint8Array | undefined;
 }
 
 export interface SemanticResult {
@@ -71,7 +73,7 @@ export function checkAgainstData(p: Protocol, source: SourceDocument, ev: DataEv
       });
     }
     if (problems.every((q) => q.severity !== 'error')) {
-      assignment = assignFolds({ ids: table.ids, y: table.y, classCount: table.classes.length, groups: table.groups }, s);
+      assignment = assignFolds({ ids: table.ids, y: table.y, classCount: table.classes.length, groups: table.groups, idKeys: ev.idKeys }, s);
       if (s.rule === 'holdout') {
         const test = assignment.fold.subarray(0, n).filter((f) => f === 1).length;
         if (test === 0 || test === n) problems.push(error('empty-part', `test-fraction ${s.testFraction} leaves the ${test === 0 ? 'test' : 'training'} part empty for ${n} rows`, at(['split', 'test-fraction'])));

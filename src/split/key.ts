@@ -49,11 +49,24 @@ export function compareKeys(keys: Uint8Array, ids: readonly string[], i: number,
 
 /** `rows` sorted by key (ascending). */
 export function sortByKey(rows: Int32Array, keys: Uint8Array, ids: readonly string[]): Int32Array {
-  const out = Int32Array.from(rows);
-  // Comparing the first 4 bytes as one integer settles nearly every pair.
-  const prefix = new Float64Array(ids.length);
-  for (let k = 0; k < rows.length; k++) prefix[rows[k]] = keyPrefix32(keys, rows[k]);
-  out.sort((i, j) => prefix[i] - prefix[j] || compareKeys(keys, ids, i, j));
+  // The first 4 key bytes and the row number packed into one double (exact below 2^53 while
+  // rows < 2^21) sort natively; only rows sharing those 4 bytes need the full comparison.
+  if (ids.length >= 2 ** 21) {
+    const out = Int32Array.from(rows);
+    return out.sort((i, j) => compareKeys(keys, ids, i, j));
+  }
+  const packed = new Float64Array(rows.length);
+  for (let k = 0; k < rows.length; k++) packed[k] = keyPrefix32(keys, rows[k]) * 2 ** 21 + rows[k];
+  packed.sort();
+  const out = new Int32Array(rows.length);
+  for (let k = 0; k < rows.length; k++) out[k] = packed[k] % 2 ** 21;
+  for (let a = 0; a < out.length; ) {
+    let b = a + 1;
+    const prefix = Math.floor(packed[a] / 2 ** 21);
+    while (b < out.length && Math.floor(packed[b] / 2 ** 21) === prefix) b++;
+    if (b - a > 1) out.subarray(a, b).sort((i, j) => compareKeys(keys, ids, i, j));
+    a = b;
+  }
   return out;
 }
 

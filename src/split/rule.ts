@@ -1,3 +1,4 @@
+import { deriveKeys } from './key.js';
 import type { AssignMode } from '../protocol/types.js';
 
 /** What a split rule sees: ids, label codes (classes in UTF-8 byte order), optional group values. */
@@ -6,6 +7,16 @@ export interface SplitInput {
   y: Int32Array;
   classCount: number;
   groups?: readonly string[];
+  /**
+   * Keys of the ids already derived elsewhere (the shell may derive them on two threads), or
+   * undefined; they must equal deriveKeys(ids, seed, repeat).
+   */
+  idKeys?: (seed: number, repeat: number) => Uint8Array | undefined;
+}
+
+/** split-v1 keys of the input's ids for one repeat (spec §2). */
+export function idKeysOf(input: SplitInput, seed: number, repeat: number): Uint8Array {
+  return input.idKeys?.(seed, repeat) ?? deriveKeys(input.ids, seed, repeat);
 }
 
 export interface SplitParams {

@@ -31,18 +31,24 @@ export interface Grid {
 
 const utf8 = new TextDecoder('utf-8');
 
-/** UTF-8 text of bytes [start, end); short ASCII cells (ids, labels) skip the decoder. */
+/** UTF-8 text of bytes [start, end); ASCII cells (nearly all ids and labels) skip the decoder. */
 export function decodeSpan(bytes: Uint8Array, start: number, end: number): string {
-  if (end - start <= 24) {
-    let s = '';
-    for (let i = start; i < end; i++) {
-      const b = bytes[i];
-      if (b >= 0x80) return utf8.decode(bytes.subarray(start, end));
-      s += String.fromCharCode(b);
-    }
-    return s;
+  for (let i = start; i < end; i++) if (bytes[i] >= 0x80) return utf8.decode(bytes.subarray(start, end));
+  // ASCII is its own Latin-1: Buffer's native Latin-1 slice makes the string in one step.
+  const offset = bytes.byteOffset;
+  return bufferOver(bytes).toString('latin1', offset + start, offset + end);
+}
+
+const views = new WeakMap<ArrayBufferLike, Buffer>();
+
+/** A Buffer over the whole memory behind `bytes` (made once per memory block, no copy). */
+function bufferOver(bytes: Uint8Array): Buffer {
+  let view = views.get(bytes.buffer);
+  if (!view) {
+    view = Buffer.from(bytes.buffer);
+    views.set(bytes.buffer, view);
   }
-  return utf8.decode(bytes.subarray(start, end));
+  return view;
 }
 
 /** 1-based character column of byte `at` on the line starting at byte `lineStart` (UTF-8 aware). */

@@ -3,6 +3,7 @@
  * ids and labels as strings, label codes as Int32Array, features as a row-major Matrix.
  */
 import { error, warning, type Problem } from '../problems/problem.js';
+import { idOrder } from '../split/key.js';
 import { compareUtf8 } from '../util/bytes.js';
 import type { Grid } from './grid.js';
 import type { Matrix } from './matrix.js';
@@ -141,21 +142,24 @@ function looksNumeric(t: Grid, c: number, missing: Set<string>): boolean {
 }
 
 function checkIds(t: Grid, ids: string[], idCol: number, file: string, problems: Problem[]): void {
-  const seen = new Map<string, number>();
+  // Sorted by id (the split spec's order, computed once and reused by the split), equal ids are
+  // neighbours with the first row of each run first (the sort is stable).
+  const order = idOrder(ids);
+  const firstOf = new Map<number, number>(); // repeated row → the row where its id first appears
+  for (let k = 1, runStart = 0; k < order.length; k++) {
+    if (ids[order[k]] !== ids[order[runStart]]) runStart = k;
+    else if (ids[order[k]] !== '') firstOf.set(order[k], order[runStart]);
+  }
   let reported = 0;
-  for (let r = 0; r < ids.length; r++) {
-    const id = ids[r];
-    if (id === '') {
-      if (reported++ < MAX_CELL_PROBLEMS) problems.push(error('data-empty-id', `row ${r + 1} has an empty id`, { file, position: t.position(r, idCol) }));
-      continue;
-    }
-    const first = seen.get(id);
-    if (first !== undefined) {
-      if (reported++ < MAX_CELL_PROBLEMS) problems.push(error('data-duplicate-id', `id "${id}" appears again (first on line ${t.rowLine[first]})`, { file, position: t.position(r, idCol) }));
-    } else seen.set(id, r);
+  for (let r = 0; r < ids.length && reported < MAX_CELL_PROBLEMS; r++) {
+    if (ids[r] === '') { reported++; problems.push(error('data-empty-id', `row ${r + 1} has an empty id`, { file, position: t.position(r, idCol) })); continue; }
+    const first = firstOf.get(r);
+    if (first !== undefined) { reported++; problems.push(error('data-duplicate-id', `id "${ids[r]}" appears again (first on line ${t.rowLine[first]})`, { file, position: t.position(r, idCol) })); }
   }
   // Distinct ASCII ids stay distinct under normalization: only a table with other ids needs the check.
   if (ids.every((id) => ASCII.test(id))) return;
+  const seen = new Map<string, number>();
+  ids.forEach((id, r) => { if (id !== '' && !seen.has(id)) seen.set(id, r); });
   const normalized = new Map<string, string>();
   for (const id of seen.keys()) {
     // ASCII text is its own normal form; only other ids need the (slow) normalizer.

@@ -3,8 +3,8 @@
  * round-half-up(m × P / 10^6) rows in key order are test. Stable: a row is test when
  * prefix32(key) × 10^6 < P × 2^32.
  */
-import { deriveKeys, keyPrefix32, sortByKey } from '../key.js';
-import type { SplitRuleImpl } from '../rule.js';
+import { keyPrefix32, sortByKey } from '../key.js';
+import { idKeysOf, type SplitRuleImpl } from '../rule.js';
 import { rowsByClass } from './strata.js';
 
 export function testCount(m: number, micros: number): number {
@@ -14,7 +14,7 @@ export function testCount(m: number, micros: number): number {
 export const holdout: SplitRuleImpl = {
   fold(input, p) {
     const n = input.ids.length;
-    const keys = deriveKeys(input.ids, p.seed, p.repeat);
+    const keys = idKeysOf(input, p.seed, p.repeat);
     const fold = new Int32Array(n).fill(2);
     if (p.assign === 'stable') {
       const bound = p.testMicros * 4294967296; // < 2^53, exact in a double

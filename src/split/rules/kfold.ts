@@ -1,11 +1,11 @@
 /** Spec §4.1: deal rows in key order round-robin (balanced), or key prefix mod k (stable). */
-import { deriveKeys, keyPrefix32, sortByKey } from '../key.js';
-import { allRows, type SplitRuleImpl } from '../rule.js';
+import { keyPrefix32, sortByKey } from '../key.js';
+import { allRows, idKeysOf, type SplitRuleImpl } from '../rule.js';
 
 export const kfold: SplitRuleImpl = {
   fold(input, p) {
     const n = input.ids.length;
-    const keys = deriveKeys(input.ids, p.seed, p.repeat);
+    const keys = idKeysOf(input, p.seed, p.repeat);
     const fold = new Int32Array(n);
     if (p.assign === 'stable') {
       for (let i = 0; i < n; i++) fold[i] = (keyPrefix32(keys, i) % p.folds) + 1;

@@ -3,14 +3,14 @@
  * concatenated and dealt round-robin with one running counter, so both per-class
  * counts and fold sizes differ by at most 1. Stable mode is the k-fold stable rule.
  */
-import { deriveKeys, keyPrefix32, sortByKey } from '../key.js';
-import type { SplitRuleImpl } from '../rule.js';
+import { keyPrefix32, sortByKey } from '../key.js';
+import { idKeysOf, type SplitRuleImpl } from '../rule.js';
 import { rowsByClass } from './strata.js';
 
 export const stratifiedKfold: SplitRuleImpl = {
   fold(input, p) {
     const n = input.ids.length;
-    const keys = deriveKeys(input.ids, p.seed, p.repeat);
+    const keys = idKeysOf(input, p.seed, p.repeat);
     const fold = new Int32Array(n);
     if (p.assign === 'stable') {
       for (let i = 0; i < n; i++) fold[i] = (keyPrefix32(keys, i) % p.folds) + 1;
