@@ -17,15 +17,21 @@ export function keyMessage(seed: number, repeat: number, id: string): Buffer {
 export function deriveKeys(ids: readonly string[], seed: number, repeat: number): Uint8Array {
   const out = new Uint8Array(ids.length * 32);
   const prefix = Buffer.from(`${DOMAIN}\0${seed}\0${repeat}\0`, 'utf8');
-  let message = new Uint8Array(prefix.length + 64);
-  message.set(prefix);
+  const p = prefix.length;
   const hasher = new ShortHasher();
+  hasher.block.set(prefix);
   for (let i = 0; i < ids.length; i++) {
     const id = ids[i];
-    // An id takes at most 3 UTF-8 bytes per UTF-16 unit.
-    if (message.length < prefix.length + id.length * 3) { const grown = new Uint8Array(prefix.length + id.length * 3); grown.set(prefix); message = grown; }
-    const length = prefix.length + utf8.encodeInto(id, message.subarray(prefix.length)).written;
-    hasher.digestInto(message, length, out, i * 32);
+    // An id takes at most 3 UTF-8 bytes per UTF-16 unit; ASCII ids are written byte by byte.
+    hasher.reserve(p + id.length * 3);
+    const block = hasher.block;
+    let length = p;
+    for (let c = 0; c < id.length; c++, length++) {
+      const code = id.charCodeAt(c);
+      if (code >= 0x80) { length = p + utf8.encodeInto(id, block.subarray(p)).written; break; }
+      block[length] = code;
+    }
+    hasher.digestBlockInto(length, out, i * 32);
   }
   return out;
 }

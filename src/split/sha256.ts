@@ -19,19 +19,31 @@ const INITIAL = Int32Array.from([0x6a09e667, 0xbb67ae85, 0x3c6ef372, 0xa54ff53a,
 export class ShortHasher {
   private readonly w = new Int32Array(64);
   private readonly h = new Int32Array(8);
-  private block = new Uint8Array(128);
+  /** Callers may write a message straight into this buffer and call digestBlockInto. */
+  block = new Uint8Array(128);
 
   /** Writes SHA-256(message[0, length)) to out[offset, offset + 32). */
   digestInto(message: Uint8Array, length: number, out: Uint8Array, offset: number): void {
+    this.reserve(length);
+    this.block.set(message.subarray(0, length));
+    this.digestBlockInto(length, out, offset);
+  }
+
+  /** Makes room for a message of `length` bytes in `block` (keeping what is there). */
+  reserve(length: number): void {
+    const size = (Math.floor((length + 8) / 64) + 1) * 64;
+    if (this.block.length < size) { const grown = new Uint8Array(size * 2); grown.set(this.block); this.block = grown; }
+  }
+
+  /** SHA-256 of block[0, length) (reserve(length) first) to out[offset, offset + 32). */
+  digestBlockInto(length: number, out: Uint8Array, offset: number): void {
     const blocks = Math.floor((length + 8) / 64) + 1;
-    if (this.block.length < blocks * 64) this.block = new Uint8Array(blocks * 64);
     const block = this.block;
-    block.set(message.subarray(0, length));
-    block.fill(0, length, blocks * 64);
+    const end = blocks * 64;
     block[length] = 0x80;
+    block.fill(0, length + 1, end - 4);
     // Message length in bits, big-endian, in the last 8 bytes (lengths here stay far below 2^32 bits).
     const bits = length * 8;
-    const end = blocks * 64;
     block[end - 4] = bits >>> 24;
     block[end - 3] = (bits >>> 16) & 0xff;
     block[end - 2] = (bits >>> 8) & 0xff;
