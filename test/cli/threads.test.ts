@@ -44,3 +44,13 @@ t.test('a table parsed on two threads reads the same as on one', async (t) => {
     t.equal(two.stderr + two.stdout, one.stderr + one.stdout, `${what}: same report`);
   }
 });
+
+t.test('split keys of many ids derived on two threads equal those from one', async (t) => {
+  // 12,000 invented rows (more than the 10,000 ids at which keys are split between threads).
+  const lines = ['id,label,a,b'];
+  for (let i = 1; i <= 12000; i++) lines.push(`r${i},${i % 3 ? 'x' : 'y'},${(i * 7) % 13},${(i * 11) % 17}.5`);
+  const csv = lines.join('\n') + '\n';
+  const dir = tempDir({ 'd.csv': csv, 'p.yaml': `foldseal: 1\nname: many\ndata: {file: d.csv, sha256: "${sha256(csv)}", id: id, label: label}\nsplit: {rule: stratified-kfold, folds: 4, repeats: 2, seed: 5}\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy]\n` });
+  for (const threads of ['1', '2']) t.equal(run(threads, ['folds', 'p.yaml', '--out', `folds-${threads}.csv`], dir).status, 0);
+  t.equal(readFileSync(join(dir, 'folds-2.csv'), 'utf8'), readFileSync(join(dir, 'folds-1.csv'), 'utf8'), 'assignment CSV identical');
+});

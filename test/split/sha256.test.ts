@@ -2,7 +2,7 @@
 import { createHash } from 'node:crypto';
 import fc from 'fast-check';
 import t from 'tap';
-import { deriveKeys, keyMessage } from '../../src/split/key.js';
+import { deriveKeys, keyMessage, sortByKey } from '../../src/split/key.js';
 import { ShortHasher } from '../../src/split/sha256.js';
 
 const hex = (message: Uint8Array) => {
@@ -44,4 +44,17 @@ t.test('split keys equal SHA-256 of the spec message, ids of any Unicode', async
     return ids.every((id, i) => Buffer.from(keys.subarray(i * 32, i * 32 + 32)).equals(createHash('sha256').update(keyMessage(seed, repeat, id)).digest()));
   }), { numRuns: 500 });
   t.pass('agreed');
+});
+
+t.test('sorting by key: ties in the first 4 bytes and very large tables fall back to full keys', async (t) => {
+  // Synthetic keys: rows 0..5 share their first 4 bytes in pairs and differ later.
+  const keys = new Uint8Array(6 * 32);
+  const prefixes = [7, 7, 3, 3, 9, 1];
+  prefixes.forEach((p, i) => { keys[i * 32 + 3] = p; keys[i * 32 + 31] = 10 - i; });
+  const ids = ['a', 'b', 'c', 'd', 'e', 'f'];
+  const rows = Int32Array.from([0, 1, 2, 3, 4, 5]);
+  const expected = [5, 3, 2, 1, 0, 4]; // prefix 1; prefix 3 by the last byte (row 3 < row 2); prefix 7 likewise; prefix 9
+  t.same(Array.from(sortByKey(rows, keys, ids)), expected);
+  const huge = Object.assign(new Array<string>(2 ** 21), ids); // as many ids as the packed sort allows
+  t.same(Array.from(sortByKey(rows, keys, huge)), expected, 'same order from the comparison sort');
 });
