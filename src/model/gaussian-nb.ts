@@ -4,6 +4,7 @@
  * (common practice), posteriors computed in log space.
  */
 import { classMoments, overallMoments } from './class-moments.js';
+import type { Matrix } from '../table/matrix.js';
 import type { ModelImpl } from './types.js';
 import { softmaxRows } from './types.js';
 
@@ -39,25 +40,29 @@ export const gaussianNb: ModelImpl<GaussianNbParams> = {
   fit: (X, y, options, ctx) => fromMoments(classMoments(X, y, ctx.classCount), options, ctx),
   fromMoments,
 
-  predict(p, X) {
-    const k = p.logPrior.length;
-    const { rows, cols, data } = X;
-    const scores = new Float64Array(rows * k);
-    for (let c = 0; c < k; c++) {
-      const lp = p.logPrior[c];
-      if (lp === null) { for (let r = 0; r < rows; r++) scores[r * k + c] = -Infinity; continue; }
-      const mean = Float64Array.from(p.mean[c]);
-      const inv = Float64Array.from(p.variance[c], (v) => 1 / v);
-      let logNorm = 0;
-      for (let j = 0; j < cols; j++) logNorm += Math.log(2 * Math.PI * p.variance[c][j]);
-      const base = lp - 0.5 * logNorm;
-      for (let r = 0; r < rows; r++) {
-        const b = r * cols;
-        let q = 0;
-        for (let j = 0; j < cols; j++) { const d = data[b + j] - mean[j]; q += d * d * inv[j]; }
-        scores[r * k + c] = base - 0.5 * q;
-      }
-    }
-    return softmaxRows(scores, rows, k);
-  },
+  predict: (p, X) => predictRows(p, X),
+  predictRows,
 };
+
+function predictRows(p: GaussianNbParams, X: Matrix, which?: Int32Array): Float64Array {
+  const k = p.logPrior.length;
+  const { cols, data } = X;
+  const rows = which ? which.length : X.rows;
+  const scores = new Float64Array(rows * k);
+  for (let c = 0; c < k; c++) {
+    const lp = p.logPrior[c];
+    if (lp === null) { for (let r = 0; r < rows; r++) scores[r * k + c] = -Infinity; continue; }
+    const mean = Float64Array.from(p.mean[c]);
+    const inv = Float64Array.from(p.variance[c], (v) => 1 / v);
+    let logNorm = 0;
+    for (let j = 0; j < cols; j++) logNorm += Math.log(2 * Math.PI * p.variance[c][j]);
+    const base = lp - 0.5 * logNorm;
+    for (let r = 0; r < rows; r++) {
+      const b = (which ? which[r] : r) * cols;
+      let q = 0;
+      for (let j = 0; j < cols; j++) { const d = data[b + j] - mean[j]; q += d * d * inv[j]; }
+      scores[r * k + c] = base - 0.5 * q;
+    }
+  }
+  return softmaxRows(scores, rows, k);
+}

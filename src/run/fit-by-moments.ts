@@ -59,6 +59,7 @@ export function fitByMoments(p: Parts, d: FoldData & { ids: readonly string[] },
     }
     const pipeline = prunePipeline({ steps, columns }, d.X.cols);
     const model = impl.fromMoments ? impl.fromMoments(m, options, { classCount: k }) : impl.fit(applyPipeline(pipeline, d.X, plan.train), takeInt(d.y, plan.train), options, { classCount: k });
-    return { pipeline, model, proba: impl.predict(model, applyPipeline(pipeline, d.X, plan.test)) };
+    const proba = steps.length === 0 && impl.predictRows ? impl.predictRows(model, d.X, plan.test) : impl.predict(model, applyPipeline(pipeline, d.X, plan.test));
+    return { pipeline, model, proba };
   });
 }

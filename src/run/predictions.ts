@@ -1,13 +1,14 @@
 /** predictions.csv: one line per tested id and repeat, sorted by repeat then id byte order. */
 import { predictedClasses } from '../metric/types.js';
 import { idOrder } from '../split/key.js';
-import { csvCell, csvLine } from '../table/csv-write.js';
+import { csvCell, csvLine, TextBuilder } from '../table/csv-write.js';
 import type { Table } from '../table/table.js';
 import type { CvResult } from './cross-validate.js';
 
 export function predictionsCsv(cv: CvResult, table: Table): string {
   const k = cv.classes.length;
-  let text = csvLine(['id', 'repeat', 'fold', 'truth', 'predicted', ...cv.classes.map((c) => `p_${c}`)]);
+  const out = new TextBuilder();
+  out.add(csvLine(['id', 'repeat', 'fold', 'truth', 'predicted', ...cv.classes.map((c) => `p_${c}`)]));
   const order = idOrder(table.ids);
   const quotedClass = cv.classes.map(csvCell);
   const quotedIds = table.ids.map(csvCell);
@@ -18,11 +19,10 @@ export function predictionsCsv(cv: CvResult, table: Table): string {
       const row = order[i];
       const fold = cv.testedIn[r][row];
       if (fold === 0) continue;
-      // One growing string (V8 joins the pieces once, at the end) keeps no array of 100,000 lines alive.
       let line = quotedIds[row] + repeat + fold + ',' + quotedClass[table.y[row]] + ',' + quotedClass[predicted[row]];
       for (let c = 0; c < k; c++) line += ',' + proba[row * k + c];
-      text += line + '\n';
+      out.add(line + '\n');
     }
   });
-  return text;
+  return out.text();
 }

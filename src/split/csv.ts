@@ -1,19 +1,20 @@
 /** The assignment CSV (`id,repeat,fold`), sorted by repeat then id byte order (spec §6). */
-import { csvCell } from '../table/csv-write.js';
+import { csvCell, TextBuilder } from '../table/csv-write.js';
 import type { Assignment } from './assignment.js';
 import { idOrder } from './key.js';
 
 export function assignmentCsv(a: Assignment): string {
   const order = idOrder(a.ids);
   const n = a.ids.length;
-  const parts: string[] = ['id,repeat,fold\n'];
+  const out = new TextBuilder();
+  out.add('id,repeat,fold\n');
   const quoted = a.ids.map(csvCell);
   for (let r = 1; r <= a.repeats; r++) {
     const base = (r - 1) * n;
     for (let k = 0; k < n; k++) {
       const row = order[k];
-      parts.push(`${quoted[row]},${r},${a.fold[base + row]}\n`);
+      out.add(`${quoted[row]},${r},${a.fold[base + row]}\n`);
     }
   }
-  return parts.join('');
+  return out.text();
 }

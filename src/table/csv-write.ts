@@ -6,3 +6,26 @@ export function csvCell(text: string): string {
 export function csvLine(cells: readonly string[]): string {
   return cells.map(csvCell).join(',') + '\n';
 }
+
+/**
+ * Builds a long text line by line into bytes. Each line's string dies young; keeping 100,000
+ * lines alive until a final join would make the garbage collector copy them again and again.
+ */
+export class TextBuilder {
+  private bytes = Buffer.allocUnsafe(1 << 16);
+  private length = 0;
+
+  add(text: string): void {
+    // A UTF-16 unit never takes more than 3 UTF-8 bytes.
+    if (this.length + text.length * 3 > this.bytes.length) {
+      const grown = Buffer.allocUnsafe(Math.max(this.bytes.length * 2, this.length + text.length * 3));
+      this.bytes.copy(grown, 0, 0, this.length);
+      this.bytes = grown;
+    }
+    this.length += this.bytes.write(text, this.length, 'utf8');
+  }
+
+  text(): string {
+    return this.bytes.toString('utf8', 0, this.length);
+  }
+}
