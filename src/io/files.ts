@@ -9,10 +9,17 @@ export interface ReadBytes {
   problem?: Problem;
 }
 
-/** `shared`: read into a SharedArrayBuffer, so worker threads can read the same bytes without a copy. */
-export async function readBytes(path: string, shownAs: string, where?: Partial<Problem>, options: { shared?: boolean } = {}): Promise<ReadBytes> {
+/**
+ * `shared`: read into a SharedArrayBuffer, so worker threads can read the same bytes without a
+ * copy. `hash`: how to hash them (default: here, now); a worker can hash while this thread parses.
+ */
+export async function readBytes(path: string, shownAs: string, where?: Partial<Problem>, options: { shared?: boolean; hash?: (bytes: Uint8Array) => () => string } = {}): Promise<ReadBytes> {
   try {
     const bytes = options.shared ? await readShared(path) : await readFile(path);
+    if (options.hash) {
+      const digest = options.hash(bytes);
+      return { bytes, get sha256() { return digest(); } };
+    }
     return { bytes, sha256: sha256Bytes(bytes) };
   } catch (e) {
     return { problem: fileProblem(e as NodeJS.ErrnoException, shownAs, where) };

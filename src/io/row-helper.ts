@@ -12,6 +12,8 @@ import type { RowHelper, RowsPart } from '../table/plain.js';
 export const SHARED_READ_BYTES = 8 * 1024 * 1024;
 
 export interface RowThread extends RowHelper {
+  /** Starts SHA-256 of bytes on the other thread; the returned function waits for the hex digest. */
+  sha256(bytes: Uint8Array): () => string;
   /** deriveKeys(ids, seed, repeat), the second half of the ids on the other thread. */
   keys(ids: readonly string[], seed: number, repeat: number): Uint8Array;
   close(): Promise<void>;
@@ -32,29 +34,40 @@ export function rowThreadsAvailable(size: number): boolean {
 export function startRowThread(): RowThread {
   const { port1, port2 } = new MessageChannel();
   const worker = new Worker(new URL('./row-worker.js', import.meta.url), { workerData: { port: port2 }, transferList: [port2] });
-  const waitFor = (done: Int32Array): Record<string, unknown> => {
-    // The worker always answers, errors included, so this loop ends.
-    while (Atomics.load(done, 0) === 0) Atomics.wait(done, 0, 0, 1000);
-    const reply = receiveMessageOnPort(port1)?.message as { error?: string } | undefined;
-    /* c8 ignore next -- a failure inside the worker is a bug in foldseal */
-    if (!reply || reply.error !== undefined) throw new Error(`foldseal: row thread failed: ${reply?.error ?? 'no reply'}`);
-    return reply;
+  // Jobs run in order and each answers once, errors included; answers are matched by id.
+  let nextId = 0;
+  const answers = new Map<number, Record<string, unknown>>();
+  const post = (job: Record<string, unknown>) => {
+    const id = nextId++;
+    const done = new Int32Array(new SharedArrayBuffer(4));
+    worker.postMessage({ ...job, id, done });
+    return () => {
+      while (Atomics.load(done, 0) === 0) Atomics.wait(done, 0, 0, 1000);
+      for (let m = receiveMessageOnPort(port1); m; m = receiveMessageOnPort(port1)) answers.set((m.message as { id: number }).id, m.message as Record<string, unknown>);
+      const reply = answers.get(id) as { error?: string } | undefined;
+      answers.delete(id);
+      /* c8 ignore next -- a failure inside the worker is a bug in foldseal */
+      if (!reply || reply.error !== undefined) throw new Error(`foldseal: row thread failed: ${reply?.error ?? 'no reply'}`);
+      return reply as Record<string, unknown>;
+    };
   };
   return {
     numbers: (length) => new Float64Array(new SharedArrayBuffer(length * 8)),
+    sha256(bytes) {
+      const wait = post({ kind: 'hash', bytes });
+      return () => wait().sha256 as string;
+    },
     start(t, numberCols, textCols, from, to, numbers) {
-      const done = new Int32Array(new SharedArrayBuffer(4));
       const table = { bytes: t.bytes, delimiter: t.delimiter, header: t.header, rows: t.rows, cols: t.cols, rowStart: t.rowStart, rowEnd: t.rowEnd };
-      worker.postMessage({ kind: 'rows', table, numberCols, textCols, from, to, numbers, done });
-      return () => (waitFor(done) as { part?: RowsPart }).part;
+      const wait = post({ kind: 'rows', table, numberCols, textCols, from, to, numbers });
+      return () => wait().part as RowsPart | undefined;
     },
     keys(ids, seed, repeat) {
       const out = new Uint8Array(new SharedArrayBuffer(ids.length * 32));
       const mid = ids.length >> 1;
-      const done = new Int32Array(new SharedArrayBuffer(4));
-      worker.postMessage({ kind: 'keys', ids: ids.slice(mid), seed, repeat, out: out.subarray(mid * 32), done });
+      const wait = post({ kind: 'keys', ids: ids.slice(mid), seed, repeat, out: out.subarray(mid * 32) });
       out.set(deriveKeys(ids.slice(0, mid), seed, repeat));
-      waitFor(done);
+      wait();
       return out;
     },
     async close() {

@@ -76,7 +76,7 @@ async function validateWithData(parsed: ParsedProtocol & { protocol: Protocol; s
   const p = parsed.protocol;
   const source = parsed.source;
   const problems: Problem[] = [...parsed.problems];
-  const data = await readBytes(paths.data, shown(paths.data), at(['data', 'file']), { shared: rowThread !== undefined });
+  const data = await readBytes(paths.data, shown(paths.data), at(['data', 'file']), rowThread ? { shared: true, hash: (bytes) => once(rowThread.sha256(bytes)) } : {});
   let pinned: { bytes: Uint8Array; sha256: string; shownAs: string } | undefined;
   if (paths.pinned) {
     const pin = await readBytes(paths.pinned, shown(paths.pinned), at(['split', 'pinned', 'file']));
@@ -111,6 +111,11 @@ async function validateWithData(parsed: ParsedProtocol & { protocol: Protocol; s
     newRows = nr.rows;
   }
   return { ...parsed, problems, paths, table: built.table, dataSha256: data.sha256, newRows, assignment: hasErrors(problems) ? undefined : semantic.assignment };
+}
+
+function once<T>(f: () => T): () => T {
+  let value: { v: T } | undefined;
+  return () => (value ??= { v: f() }).v;
 }
 
 /** Many ids: derive every repeat's split keys with the row thread's help (rules that hash group names derive their own). */

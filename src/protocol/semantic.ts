@@ -91,7 +91,10 @@ function missingValueProblems(p: Protocol, table: Table, at: At): Problem[] {
   if (hasImpute) return [];
   const { rows, cols, data } = table.X;
   const perColumn = new Int32Array(cols);
-  for (let k = 0; k < rows * cols; k++) if (data[k] !== data[k]) perColumn[k % cols]++;
+  for (let r = 0; r < rows; r++) {
+    const b = r * cols;
+    for (let j = 0; j < cols; j++) if (data[b + j] !== data[b + j]) perColumn[j]++;
+  }
   const out: Problem[] = [];
   perColumn.forEach((count, j) => {
     if (count > 0) out.push(error('missing-without-impute', `feature "${table.featureNames[j]}" has ${count} missing cell${count === 1 ? '' : 's'} and no impute step fills them`, { ...at(['preprocess'], true), hint: 'add `{impute: {by: median}}` to preprocess, or leave the column out' }));

@@ -54,3 +54,12 @@ t.test('split keys of many ids derived on two threads equal those from one', asy
   for (const threads of ['1', '2']) t.equal(run(threads, ['folds', 'p.yaml', '--out', `folds-${threads}.csv`], dir).status, 0);
   t.equal(readFileSync(join(dir, 'folds-2.csv'), 'utf8'), readFileSync(join(dir, 'folds-1.csv'), 'utf8'), 'assignment CSV identical');
 });
+
+t.test('a data hash computed on the second thread is checked like one computed here', async (t) => {
+  const dir = tempDir({ 'p.yaml': demo.replace(/sha256: "914f[0-9a-f]+"/, `sha256: "${'0'.repeat(64)}"`) });
+  const one = run('1', ['validate', 'p.yaml'], dir);
+  const two = run('2', ['validate', 'p.yaml'], dir);
+  t.equal(one.status, 1);
+  t.match(one.stdout + one.stderr, '914fdee0');
+  t.equal(two.stdout + two.stderr, one.stdout + one.stderr, 'same report');
+});
