@@ -49,19 +49,30 @@ function predictRows(p: GaussianNbParams, X: Matrix, which?: Int32Array): Float6
   const { cols, data } = X;
   const rows = which ? which.length : X.rows;
   const scores = new Float64Array(rows * k);
+  // Per class: means, inverse variances and the constant part of the log density, [class * cols + j].
+  const mean = new Float64Array(k * cols);
+  const inv = new Float64Array(k * cols);
+  const base = new Float64Array(k);
   for (let c = 0; c < k; c++) {
     const lp = p.logPrior[c];
-    if (lp === null) { for (let r = 0; r < rows; r++) scores[r * k + c] = -Infinity; continue; }
-    const mean = Float64Array.from(p.mean[c]);
-    const inv = Float64Array.from(p.variance[c], (v) => 1 / v);
+    if (lp === null) { base[c] = -Infinity; continue; }
     let logNorm = 0;
-    for (let j = 0; j < cols; j++) logNorm += Math.log(2 * Math.PI * p.variance[c][j]);
-    const base = lp - 0.5 * logNorm;
-    for (let r = 0; r < rows; r++) {
-      const b = (which ? which[r] : r) * cols;
+    for (let j = 0; j < cols; j++) {
+      mean[c * cols + j] = p.mean[c][j];
+      inv[c * cols + j] = 1 / p.variance[c][j];
+      logNorm += Math.log(2 * Math.PI * p.variance[c][j]);
+    }
+    base[c] = lp - 0.5 * logNorm;
+  }
+  // Row by row, every class while the row is in cache (rows come in id order, scattered in memory).
+  for (let r = 0; r < rows; r++) {
+    const b = (which ? which[r] : r) * cols;
+    for (let c = 0; c < k; c++) {
+      if (base[c] === -Infinity) { scores[r * k + c] = -Infinity; continue; }
+      const o = c * cols;
       let q = 0;
-      for (let j = 0; j < cols; j++) { const d = data[b + j] - mean[j]; q += d * d * inv[j]; }
-      scores[r * k + c] = base - 0.5 * q;
+      for (let j = 0; j < cols; j++) { const d = data[b + j] - mean[o + j]; q += d * d * inv[o + j]; }
+      scores[r * k + c] = base[c] - 0.5 * q;
     }
   }
   return softmaxRows(scores, rows, k);
