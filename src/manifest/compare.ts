@@ -2,7 +2,7 @@
 import type { Manifest } from './build.js';
 
 export interface Difference {
-  kind: 'protocol' | 'data' | 'assignment' | 'metric' | 'predictions' | 'file';
+  kind: 'protocol' | 'data' | 'assignment' | 'metric' | 'predictions' | 'file' | 'tool';
   message: string;
 }
 
@@ -19,6 +19,11 @@ export function compareRuns(recorded: Manifest, fresh: Manifest, tolerance: numb
   out.push(...metricDifferences(r.results, f.results, tolerance));
   for (const name of ['predictions.csv', 'applied.csv'] as const) {
     if (r.files[name] !== f.files[name]) out.push({ kind: 'predictions', message: `${name} differs (SHA-256 ${f.files[name] ?? 'absent'} now, ${r.files[name] ?? 'absent'} recorded)` });
+  }
+  // Fitted numbers may move in their last digits between foldseal versions; folds (split-v1) never do.
+  const fitted = out.some((d) => d.kind === 'metric' || d.kind === 'predictions');
+  if (fitted && r.tool?.version !== f.tool?.version) {
+    out.push({ kind: 'tool', message: `recorded with foldseal ${r.tool?.version}, re-run with ${f.tool?.version}: fitted values can differ in their last digits between versions (a split-v1 assignment cannot); set verify.tolerance, or re-run with the recorded version` });
   }
   return out;
 }
@@ -72,5 +77,6 @@ export function verdict(differences: readonly Difference[]): string {
   if (count('metric')) parts.push(`metrics (${count('metric')} values)`);
   if (count('predictions')) parts.push('predictions');
   if (count('file')) parts.push(`files (${count('file')})`);
+  if (count('tool')) parts.push('foldseal version');
   return `differs: ${parts.join(', ')}`;
 }
