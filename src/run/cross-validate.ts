@@ -158,10 +158,18 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
 function pooled(names: readonly MetricName[], table: Table, oof: Float64Array[], testedIn: Int32Array[], order: Int32Array, positive: number): Record<string, number | null>[] {
   const k = table.classes.length;
   return oof.map((proba, r) => {
-    const rows = Array.from(order).filter((i) => testedIn[r][i] > 0);
-    const idx = Int32Array.from(rows);
-    const p = new Float64Array(rows.length * k);
-    rows.forEach((row, i) => p.set(proba.subarray(row * k, (row + 1) * k), i * k));
+    const tested = testedIn[r];
+    let count = 0;
+    for (let i = 0; i < order.length; i++) if (tested[order[i]] > 0) count++;
+    const idx = new Int32Array(count);
+    const p = new Float64Array(count * k);
+    for (let i = 0, n = 0; i < order.length; i++) {
+      const row = order[i];
+      if (tested[row] === 0) continue;
+      idx[n] = row;
+      for (let c = 0; c < k; c++) p[n * k + c] = proba[row * k + c];
+      n++;
+    }
     const s = scored(takeInt(table.y, idx), p, k, positive);
     const out: Record<string, number | null> = {};
     for (const m of names) out[m] = metricFns[m](s);

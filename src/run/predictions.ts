@@ -1,7 +1,7 @@
 /** predictions.csv: one line per tested id and repeat, sorted by repeat then id byte order. */
 import { predictedClasses } from '../metric/types.js';
 import { idOrder } from '../split/key.js';
-import { csvCell, csvLine, TextBuilder } from '../table/csv-write.js';
+import { csvCell, csvCells, csvLine, TextBuilder } from '../table/csv-write.js';
 import type { Table } from '../table/table.js';
 import type { CvResult } from './cross-validate.js';
 
@@ -11,7 +11,7 @@ export function predictionsCsv(cv: CvResult, table: Table): string {
   out.add(csvLine(['id', 'repeat', 'fold', 'truth', 'predicted', ...cv.classes.map((c) => `p_${c}`)]));
   const order = idOrder(table.ids);
   const quotedClass = cv.classes.map(csvCell);
-  const quotedIds = table.ids.map(csvCell);
+  const quotedIds = csvCells(table.ids);
   cv.oof.forEach((proba, r) => {
     const predicted = predictedClasses(proba, k);
     const repeat = `,${r + 1},`;

@@ -1,5 +1,5 @@
 /** The assignment CSV (`id,repeat,fold`), sorted by repeat then id byte order (spec §6). */
-import { csvCell, TextBuilder } from '../table/csv-write.js';
+import { csvCells, TextBuilder } from '../table/csv-write.js';
 import type { Assignment } from './assignment.js';
 import { idOrder } from './key.js';
 
@@ -8,7 +8,7 @@ export function assignmentCsv(a: Assignment): string {
   const n = a.ids.length;
   const out = new TextBuilder();
   out.add('id,repeat,fold\n');
-  const quoted = a.ids.map(csvCell);
+  const quoted = csvCells(a.ids);
   for (let r = 1; r <= a.repeats; r++) {
     const base = (r - 1) * n;
     for (let k = 0; k < n; k++) {

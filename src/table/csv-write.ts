@@ -3,6 +3,18 @@ export function csvCell(text: string): string {
   return /[",\r\n]/.test(text) || text !== text.trim() ? `"${text.replaceAll('"', '""')}"` : text;
 }
 
+const quotedCache = new WeakMap<readonly string[], string[]>();
+
+/** csvCell of every value; cached per array (a table's ids are written to several files, never changed). */
+export function csvCells(values: readonly string[]): string[] {
+  let quoted = quotedCache.get(values);
+  if (!quoted) {
+    quoted = values.map(csvCell);
+    quotedCache.set(values, quoted);
+  }
+  return quoted;
+}
+
 export function csvLine(cells: readonly string[]): string {
   return cells.map(csvCell).join(',') + '\n';
 }
