@@ -88,7 +88,7 @@ type At = (path: (string | number)[], key?: boolean) => Partial<Problem>;
 
 function missingValueProblems(p: Protocol, table: Table, at: At): Problem[] {
   const hasImpute = p.preprocess.some((s) => s.step === 'impute');
-  if (hasImpute) return [];
+  if (hasImpute || table.hasMissing === false) return [];
   const { rows, cols, data } = table.X;
   const perColumn = new Int32Array(cols);
   for (let r = 0; r < rows; r++) {

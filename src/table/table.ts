@@ -32,6 +32,8 @@ export interface Table {
   rowLines: Int32Array;
   /** Text columns that the default feature rule left out. */
   ignoredColumns: string[];
+  /** Whether any feature cell is missing (NaN); false lets checks skip scanning X. Absent: unknown. */
+  hasMissing?: boolean;
 }
 
 export type RolePaths = Partial<Record<'id' | 'label' | 'group' | 'features', (string | number)[]>>;
@@ -126,7 +128,7 @@ export function buildTable(t: Grid, roles: DataRoles, file: string, locate: (rol
 
   const cols = featureCols.length;
   problems.push(...numberProblems(t, extracted, featureCols, missing, file));
-  const table: Table = { ids, labels, classes, y, groups, featureNames: featureCols.map((c) => t.header[c]), X: { rows, cols, data: extracted.numbers }, rowLines, ignoredColumns };
+  const table: Table = { ids, labels, classes, y, groups, featureNames: featureCols.map((c) => t.header[c]), X: { rows, cols, data: extracted.numbers }, rowLines, ignoredColumns, hasMissing: extracted.failed.length > 0 };
   return { table, problems };
 }
 
