@@ -2,7 +2,8 @@
 import { createHash } from 'node:crypto';
 import { workerData, parentPort, type MessagePort } from 'node:worker_threads';
 import { deriveKeys } from '../split/key.js';
-import { extractRows, type PlainTable } from '../table/plain.js';
+import type { PlainTable } from '../table/plain.js';
+import { extractRows } from '../table/plain-rows.js';
 
 const port = (workerData as { port: MessagePort }).port;
 

@@ -7,11 +7,13 @@
  */
 import { charColumn, decodeSpan, type Extracted, type Grid } from './grid.js';
 import { parseNumberBytes } from './number.js';
+import { decodeTexts, extractRows, type RowsPart } from './plain-rows.js';
+
+export type { RowsPart };
 
 const QUOTE = 0x22;
 const CR = 0x0d;
 const LF = 0x0a;
-const POW10 = [1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15];
 
 export interface PlainTable {
   bytes: Uint8Array;
@@ -95,13 +97,6 @@ function spanFinder(t: PlainTable): (row: number, col: number) => [number, numbe
   };
 }
 
-/** Rows [from, to) extracted elsewhere (another thread), into the shared numbers array. */
-export interface RowsPart {
-  failed: number[];
-  /** Start and end byte of each text cell, [(row - from) * textCols + k] pairs. */
-  spans: Int32Array;
-}
-
 /**
  * Lets the shell extract part of the rows on another thread while this one does the rest:
  * `numbers` allocates an array both can write, `start` begins rows [from, to) and returns a
@@ -140,76 +135,4 @@ function extractShared(t: PlainTable, numberCols: readonly number[], textCols: r
   const other = upper();
   if (!lower || !other) return undefined;
   return { numbers, failed: [...lower.failed, ...other.failed], texts: decodeTexts(t.bytes, [lower.spans, other.spans], textCols.length) };
-}
-
-/** Rows [from, to) into numbers (at their own row positions); failed cells ascending. */
-export function extractRows(t: PlainTable, numberCols: readonly number[], textCols: readonly number[], from: number, to: number, numbers: Float64Array): RowsPart | undefined {
-  const { bytes, delimiter, cols } = t;
-  const rows = to - from;
-  const width = numberCols.length;
-  const numberSlot = new Int32Array(cols).fill(-1);
-  numberCols.forEach((c, j) => { numberSlot[c] = j; });
-  const textSlot = new Int32Array(cols).fill(-1);
-  textCols.forEach((c, j) => { textSlot[c] = j; });
-  const failed: number[] = [];
-  const spans = new Int32Array(rows * textCols.length * 2);
-  for (let r = from; r < to; r++) {
-    let i = t.rowStart[r];
-    const end = t.rowEnd[r];
-    for (let c = 0; c < cols; c++) {
-      const start = i;
-      const j = numberSlot[c];
-      if (j >= 0) {
-        // The common shape [-]digits[.digits] with at most 15 digits is exact as mantissa / 10^k
-        // (Clinger 1990); anything else goes to the full parser.
-        let negative = false;
-        if (i < end && bytes[i] === 0x2d) { negative = true; i++; }
-        let mantissa = 0;
-        let digits = 0;
-        let scale = 0;
-        let b = i < end ? bytes[i] : -1;
-        while (b >= 0x30 && b <= 0x39) { mantissa = mantissa * 10 + (b - 0x30); digits++; b = ++i < end ? bytes[i] : -1; }
-        const intDigits = digits;
-        if (b === 0x2e) {
-          b = ++i < end ? bytes[i] : -1;
-          while (b >= 0x30 && b <= 0x39) { mantissa = mantissa * 10 + (b - 0x30); digits++; scale++; b = ++i < end ? bytes[i] : -1; }
-        }
-        let v: number;
-        if ((b === delimiter || b === -1) && digits > 0 && digits <= 15 && (intDigits > 0 || scale > 0)) {
-          v = mantissa / POW10[scale];
-          if (negative) v = -v;
-        } else {
-          while (i < end && bytes[i] !== delimiter) i++;
-          v = parseNumberBytes(bytes, start, i);
-          if (v !== v) failed.push(r * width + j);
-        }
-        numbers[r * width + j] = v;
-      } else {
-        while (i < end && bytes[i] !== delimiter) i++;
-      }
-      const k = textSlot[c];
-      if (k >= 0) { const o = ((r - from) * textCols.length + k) * 2; spans[o] = start; spans[o + 1] = i; }
-      if (c < cols - 1) {
-        if (i >= end) return undefined; // fewer cells than the header
-        i++;
-      }
-    }
-    if (i !== end) return undefined; // more cells than the header
-  }
-  // Cells were met in file order; listed feature order may differ within a row.
-  failed.sort((a, b) => a - b);
-  return { failed, spans };
-}
-
-/** Text of every text cell, per text column, from the row parts' spans in row order. */
-function decodeTexts(bytes: Uint8Array, parts: readonly Int32Array[], textCount: number): string[][] {
-  const rows = parts.reduce((sum, p) => sum + p.length / (2 * textCount || 1), 0);
-  const texts = Array.from({ length: textCount }, () => new Array<string>(rows));
-  let r = 0;
-  for (const spans of parts) {
-    for (let o = 0; o < spans.length; r++) {
-      for (let k = 0; k < textCount; k++, o += 2) texts[k][r] = decodeSpan(bytes, spans[o], spans[o + 1]);
-    }
-  }
-  return texts;
 }
