@@ -73,3 +73,4 @@ t.test('--format json prints the same findings as data', async (t) => {
   t.equal(r.code, 1);
   t.same(JSON.parse(r.stdout), [{ code: 'unknown-key', severity: 'error', message: 'unknown key "metrix" in the protocol', file: 'p.yaml', line: 13, col: 1, path: ['metrix'], hint: 'did you mean `metrics`?' }]);
 });
+check(t, 'select by variance after standardize (a warning)', { 'p.yaml': protocolText(csv, { extra: 'preprocess: [standardize, {select: {top: 2, by: variance}}]' }) }, ['p.yaml:13:49: warning: select by variance comes after standardize, where every column has variance 1: which columns it keeps is decided by rounding', '  hint: select by variance before standardize, or by t-test or f-test'], 0);
