@@ -43,6 +43,49 @@ export function classMoments(X: Matrix, y: Int32Array, classCount: number, rows?
   return { classCount, cols, n, mean, m2 };
 }
 
+/**
+ * classMoments of every fold's rows at once: fold[row] (1-based) names each row's part, and rows
+ * are visited in `order`. Each part's sums see its rows in that order, so the result equals
+ * classMoments(X, y, classCount, rows of part g in order) bit for bit, in two passes over the
+ * table instead of two per part.
+ */
+export function partMoments(X: Matrix, y: Int32Array, classCount: number, fold: Int32Array, parts: number, order: Int32Array): ClassMoments[] {
+  const { cols, data } = X;
+  const stride = classCount * cols;
+  const n = new Float64Array(parts * classCount);
+  const sum = new Float64Array(parts * stride);
+  for (let i = 0; i < order.length; i++) {
+    const r = order[i];
+    const g = fold[r] - 1;
+    const o = g * stride + y[r] * cols;
+    const b = r * cols;
+    n[g * classCount + y[r]]++;
+    for (let j = 0; j < cols; j++) sum[o + j] += data[b + j];
+  }
+  const mean = new Float64Array(parts * stride);
+  for (let g = 0; g < parts; g++) {
+    for (let c = 0; c < classCount; c++) {
+      const count = n[g * classCount + c];
+      const o = g * stride + c * cols;
+      for (let j = 0; j < cols; j++) mean[o + j] = count > 0 ? sum[o + j] / count : 0;
+    }
+  }
+  const m2 = new Float64Array(parts * stride);
+  for (let i = 0; i < order.length; i++) {
+    const r = order[i];
+    const o = (fold[r] - 1) * stride + y[r] * cols;
+    const b = r * cols;
+    for (let j = 0; j < cols; j++) { const d = data[b + j] - mean[o + j]; m2[o + j] += d * d; }
+  }
+  return Array.from({ length: parts }, (_, g) => ({
+    classCount,
+    cols,
+    n: n.slice(g * classCount, (g + 1) * classCount),
+    mean: mean.slice(g * stride, (g + 1) * stride),
+    m2: m2.slice(g * stride, (g + 1) * stride),
+  }));
+}
+
 /** Moments of the union of two disjoint parts. */
 export function mergeMoments(a: ClassMoments, b: ClassMoments): ClassMoments {
   const { classCount, cols } = a;

@@ -8,12 +8,12 @@
  * fitted pipeline instead. The values equal the row-by-row fit up to rounding (tests bound the
  * difference). Pure.
  */
-import { mergeMoments, classMoments, type ClassMoments } from '../model/class-moments.js';
+import { mergeMoments, partMoments, type ClassMoments } from '../model/class-moments.js';
 import { fitOptions, models } from '../model/registry.js';
 import { applyPipeline, prunePipeline, type FittedStep } from '../preprocess/pipeline.js';
 import { transforms } from '../preprocess/registry.js';
 import type { Protocol } from '../protocol/types.js';
-import { foldRows, type Assignment } from '../split/assignment.js';
+import type { Assignment } from '../split/assignment.js';
 import { idOrder } from '../split/key.js';
 import { takeInt } from '../table/matrix.js';
 import type { FoldData, FoldFit } from './fit-fold.js';
@@ -33,13 +33,12 @@ export function fitByMoments(p: Parts, d: FoldData & { ids: readonly string[] },
   const options = fitOptions(p.model.kind, p.model.options, d.classes);
   const order = idOrder(d.ids);
   const perRepeat = new Map<number, ClassMoments[]>();
-  const tested = new Map(plans.map((plan) => [`${plan.repeat}/${plan.fold}`, plan.test]));
+  const n = d.ids.length;
   const blocksOf = (repeat: number) => {
     let blocks = perRepeat.get(repeat);
     if (!blocks) {
       // Fold g's rows in id order, g = 1..K: the same rows and order the plans' test parts use.
-      const rowsOf = (g: number) => tested.get(`${repeat}/${g}`) ?? foldRows(a, repeat, g, order).test;
-      blocks = Array.from({ length: a.folds }, (_, g) => classMoments(d.X, d.y, k, rowsOf(g + 1)));
+      blocks = partMoments(d.X, d.y, k, a.fold.subarray((repeat - 1) * n, repeat * n), a.folds, order);
       perRepeat.set(repeat, blocks);
     }
     return blocks;

