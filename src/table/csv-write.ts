@@ -20,14 +20,29 @@ export function csvLine(cells: readonly string[]): string {
 }
 
 /**
- * Builds a long text line by line into bytes. Each line's string dies young; keeping 100,000
- * lines alive until a final join would make the garbage collector copy them again and again.
+ * Builds a long text line by line into bytes. Lines gather in a short string that is copied
+ * into the byte buffer every 64 K characters: keeping 100,000 lines alive until a final join
+ * would make the garbage collector copy them again and again, and one buffer write per line
+ * costs more than the line itself.
  */
 export class TextBuilder {
-  private bytes = Buffer.allocUnsafe(1 << 16);
+  private bytes = Buffer.allocUnsafe(1 << 20);
   private length = 0;
+  private pending = '';
 
   add(text: string): void {
+    this.pending += text;
+    if (this.pending.length >= 1 << 16) this.flush();
+  }
+
+  text(): string {
+    this.flush();
+    return this.bytes.toString('utf8', 0, this.length);
+  }
+
+  private flush(): void {
+    const text = this.pending;
+    this.pending = '';
     // A UTF-16 unit never takes more than 3 UTF-8 bytes.
     if (this.length + text.length * 3 > this.bytes.length) {
       const grown = Buffer.allocUnsafe(Math.max(this.bytes.length * 2, this.length + text.length * 3));
@@ -35,9 +50,5 @@ export class TextBuilder {
       this.bytes = grown;
     }
     this.length += this.bytes.write(text, this.length, 'utf8');
-  }
-
-  text(): string {
-    return this.bytes.toString('utf8', 0, this.length);
   }
 }
