@@ -40,39 +40,46 @@ export const gaussianNb: ModelImpl<GaussianNbParams> = {
   fit: (X, y, options, ctx) => fromMoments(classMoments(X, y, ctx.classCount), options, ctx),
   fromMoments,
 
-  predict: (p, X) => predictRows(p, X),
+  predict: (p, X) => predictRows([p], X),
   predictRows,
 };
 
-function predictRows(p: GaussianNbParams, X: Matrix, which?: Int32Array): Float64Array {
-  const k = p.logPrior.length;
+/** Rows which[i] (default: every row) scored by models[modelOf[i]] (default: the first). */
+function predictRows(models: GaussianNbParams[], X: Matrix, which?: Int32Array, modelOf?: Int32Array): Float64Array {
+  const k = models[0].logPrior.length;
   const { cols, data } = X;
   const rows = which ? which.length : X.rows;
   const scores = new Float64Array(rows * k);
-  // Per class: means, inverse variances and the constant part of the log density, [class * cols + j].
-  const mean = new Float64Array(k * cols);
-  const inv = new Float64Array(k * cols);
-  const base = new Float64Array(k);
-  for (let c = 0; c < k; c++) {
-    const lp = p.logPrior[c];
-    if (lp === null) { base[c] = -Infinity; continue; }
-    let logNorm = 0;
-    for (let j = 0; j < cols; j++) {
-      mean[c * cols + j] = p.mean[c][j];
-      inv[c * cols + j] = 1 / p.variance[c][j];
-      logNorm += Math.log(2 * Math.PI * p.variance[c][j]);
+  // Per model and class: means, inverse variances and the constant part of the log density,
+  // at [(model * k + class) * cols + j].
+  const mean = new Float64Array(models.length * k * cols);
+  const inv = new Float64Array(models.length * k * cols);
+  const base = new Float64Array(models.length * k);
+  models.forEach((p, m) => {
+    for (let c = 0; c < k; c++) {
+      const lp = p.logPrior[c];
+      const mc = m * k + c;
+      if (lp === null) { base[mc] = -Infinity; continue; }
+      let logNorm = 0;
+      for (let j = 0; j < cols; j++) {
+        mean[mc * cols + j] = p.mean[c][j];
+        inv[mc * cols + j] = 1 / p.variance[c][j];
+        logNorm += Math.log(2 * Math.PI * p.variance[c][j]);
+      }
+      base[mc] = lp - 0.5 * logNorm;
     }
-    base[c] = lp - 0.5 * logNorm;
-  }
+  });
   // Row by row, every class while the row is in cache (rows come in id order, scattered in memory).
   for (let r = 0; r < rows; r++) {
     const b = (which ? which[r] : r) * cols;
+    const first = (modelOf ? modelOf[r] : 0) * k;
     for (let c = 0; c < k; c++) {
-      if (base[c] === -Infinity) { scores[r * k + c] = -Infinity; continue; }
-      const o = c * cols;
+      const mc = first + c;
+      if (base[mc] === -Infinity) { scores[r * k + c] = -Infinity; continue; }
+      const o = mc * cols;
       let q = 0;
       for (let j = 0; j < cols; j++) { const d = data[b + j] - mean[o + j]; q += d * d * inv[o + j]; }
-      scores[r * k + c] = base[c] - 0.5 * q;
+      scores[r * k + c] = base[mc] - 0.5 * q;
     }
   }
   return softmaxRows(scores, rows, k);

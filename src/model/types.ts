@@ -16,8 +16,11 @@ export interface ModelImpl<P = unknown> {
   fit(X: Matrix, y: Int32Array, options: Record<string, unknown>, ctx: FitContext): P;
   /** Probabilities, row-major rows × classCount; each row sums to 1. */
   predict(params: P, X: Matrix): Float64Array;
-  /** Optional: predict(params, rows `which` of X) without copying those rows out first. */
-  predictRows?(params: P, X: Matrix, which: Int32Array): Float64Array;
+  /**
+   * Optional: the probabilities of rows which[i] of X under models[modelOf[i]], without
+   * copying the rows out — every fold's held-out rows in one call. Equals predict per model.
+   */
+  predictRows?(models: P[], X: Matrix, which: Int32Array, modelOf: Int32Array): Float64Array;
   /**
    * For models that learn from their training rows only through class moments: the same fit
    * from the moments. `fit` must equal fromMoments(classMoments(X, y)); the runner then fits
