@@ -16,6 +16,11 @@ export interface RowThread extends RowHelper {
   sha256(bytes: Uint8Array): () => string;
   /** deriveKeys(ids, seed, repeat), the second half of the ids on the other thread. */
   keys(ids: readonly string[], seed: number, repeat: number): Uint8Array;
+  /**
+   * Before parsing: the ids will be in column `idColumn` and need keys for these repeats. The
+   * other thread then derives the keys of the ids it parses right after parsing them.
+   */
+  expectKeys(plan: { idColumn: string; seed: number; repeats: number }): void;
   close(): Promise<void>;
 }
 
@@ -41,18 +46,24 @@ export function startRowThread(): RowThread {
     const id = nextId++;
     const done = new Int32Array(new SharedArrayBuffer(4));
     worker.postMessage({ ...job, id, done });
-    return () => {
-      while (Atomics.load(done, 0) === 0) Atomics.wait(done, 0, 0, 1000);
-      for (let m = receiveMessageOnPort(port1); m; m = receiveMessageOnPort(port1)) answers.set((m.message as { id: number }).id, m.message as Record<string, unknown>);
-      const reply = answers.get(id) as { error?: string } | undefined;
-      answers.delete(id);
-      /* c8 ignore next -- a failure inside the worker is a bug in foldseal */
-      if (!reply || reply.error !== undefined) throw new Error(`foldseal: row thread failed: ${reply?.error ?? 'no reply'}`);
-      return reply as Record<string, unknown>;
-    };
+    let reply: Record<string, unknown> | undefined;
+    return () => (reply ??= answerOf(id, done));
   };
+  const answerOf = (id: number, done: Int32Array): Record<string, unknown> => {
+    while (Atomics.load(done, 0) === 0) Atomics.wait(done, 0, 0, 1000);
+    for (let m = receiveMessageOnPort(port1); m; m = receiveMessageOnPort(port1)) answers.set((m.message as { id: number }).id, m.message as Record<string, unknown>);
+    const reply = answers.get(id) as { error?: string } | undefined;
+    answers.delete(id);
+    /* c8 ignore next -- a failure inside the worker is a bug in foldseal */
+    if (!reply || reply.error !== undefined) throw new Error(`foldseal: row thread failed: ${reply?.error ?? 'no reply'}`);
+    return reply as Record<string, unknown>;
+  };
+  let plan: { idColumn: string; seed: number; repeats: number } | undefined;
+  // Keys the other thread derived for the ids of rows [from, to), all repeats, once its rows parsed.
+  let early: { seed: number; from: number; to: number; out: Uint8Array; wait: () => unknown; parsed: boolean } | undefined;
   return {
     numbers: (length) => new Float64Array(new SharedArrayBuffer(length * 8)),
+    expectKeys(p) { plan = p; },
     sha256(bytes) {
       const wait = post({ kind: 'hash', bytes });
       return () => wait().sha256 as string;
@@ -60,10 +71,27 @@ export function startRowThread(): RowThread {
     start(t, numberCols, textCols, from, to, numbers) {
       const table = { bytes: t.bytes, delimiter: t.delimiter, header: t.header, rows: t.rows, cols: t.cols, rowStart: t.rowStart, rowEnd: t.rowEnd };
       const wait = post({ kind: 'rows', table, numberCols, textCols, from, to, numbers });
-      return () => wait().part as RowsPart | undefined;
+      const slot = plan ? textCols.indexOf(t.header.indexOf(plan.idColumn)) : -1;
+      if (plan && slot >= 0) {
+        const out = new Uint8Array(new SharedArrayBuffer(plan.repeats * (to - from) * 32));
+        early = { seed: plan.seed, from, to, out, wait: post({ kind: 'keys-of-rows', slot, textCount: textCols.length, seed: plan.seed, repeats: plan.repeats, out }), parsed: false };
+      }
+      return () => {
+        const part = wait().part as RowsPart | undefined;
+        if (early) early.parsed = part !== undefined;
+        return part;
+      };
     },
     keys(ids, seed, repeat) {
       const out = new Uint8Array(new SharedArrayBuffer(ids.length * 32));
+      if (early && early.parsed && early.seed === seed && early.to === ids.length) {
+        // The ids are the ones both threads just parsed: only the first part is left to derive here.
+        const { from, to } = early;
+        out.set(deriveKeys(ids.slice(0, from), seed, repeat));
+        early.wait();
+        out.set(early.out.subarray((repeat - 1) * (to - from) * 32, repeat * (to - from) * 32), from * 32);
+        return out;
+      }
       const mid = ids.length >> 1;
       const wait = post({ kind: 'keys', ids: ids.slice(mid), seed, repeat, out: out.subarray(mid * 32) });
       out.set(deriveKeys(ids.slice(0, mid), seed, repeat));

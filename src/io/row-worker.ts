@@ -3,7 +3,8 @@ import { createHash } from 'node:crypto';
 import { workerData, parentPort, type MessagePort } from 'node:worker_threads';
 import { deriveKeys } from '../split/key.js';
 import type { PlainTable } from '../table/plain.js';
-import { extractRows } from '../table/plain-rows.js';
+import { decodeSpan } from '../table/grid.js';
+import { extractRows, type RowsPart } from '../table/plain-rows.js';
 
 const port = (workerData as { port: MessagePort }).port;
 
@@ -11,13 +12,29 @@ type Job = { id: number; done: Int32Array } & (
   | { kind: 'hash'; bytes: Uint8Array }
   | { kind: 'rows'; table: PlainTable; numberCols: number[]; textCols: number[]; from: number; to: number; numbers: Float64Array }
   | { kind: 'keys'; ids: string[]; seed: number; repeat: number; out: Uint8Array }
+  | { kind: 'keys-of-rows'; slot: number; textCount: number; seed: number; repeats: number; out: Uint8Array }
 );
+
+// The last rows job's table and result, for the keys of the ids it parsed.
+let last: { table: PlainTable; part: RowsPart | undefined } | undefined;
 
 parentPort!.on('message', (job: Job) => {
   try {
     if (job.kind === 'hash') port.postMessage({ id: job.id, sha256: createHash('sha256').update(job.bytes).digest('hex') });
-    else if (job.kind === 'rows') port.postMessage({ id: job.id, part: extractRows(job.table, job.numberCols, job.textCols, job.from, job.to, job.numbers) });
-    else {
+    else if (job.kind === 'rows') {
+      const part = extractRows(job.table, job.numberCols, job.textCols, job.from, job.to, job.numbers);
+      last = { table: job.table, part };
+      port.postMessage({ id: job.id, part });
+    } else if (job.kind === 'keys-of-rows') {
+      // Ragged rows: nothing was parsed, and the caller does not use these keys.
+      if (last?.part) {
+        const spans = last.part.spans;
+        const ids: string[] = [];
+        for (let o = job.slot * 2; o < spans.length; o += job.textCount * 2) ids.push(decodeSpan(last.table.bytes, spans[o], spans[o + 1]));
+        for (let r = 0; r < job.repeats; r++) job.out.set(deriveKeys(ids, job.seed, r + 1), r * ids.length * 32);
+      }
+      port.postMessage({ id: job.id });
+    } else {
       job.out.set(deriveKeys(job.ids, job.seed, job.repeat));
       port.postMessage({ id: job.id });
     }

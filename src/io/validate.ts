@@ -8,7 +8,7 @@ import { error, hasErrors, type Problem } from '../problems/problem.js';
 import { locate } from '../protocol/document.js';
 import { parseProtocol, type ParsedProtocol } from '../protocol/parse.js';
 import { checkAgainstData } from '../protocol/semantic.js';
-import { isPinned, type Protocol } from '../protocol/types.js';
+import { isPinned, type Protocol, type RuleSplit } from '../protocol/types.js';
 import type { Assignment } from '../split/assignment.js';
 import { tableFromBytes } from '../table/load.js';
 import { knownColumns } from '../protocol/known-columns.js';
@@ -97,6 +97,7 @@ async function validateWithData(parsed: ParsedProtocol & { protocol: Protocol; s
   }
   const roleLocate = (role: 'id' | 'label' | 'group' | 'features', index?: number) =>
     locate(source, index === undefined ? ['data', role] : ['data', 'features', ...(Array.isArray(p.data.features) ? [] : ['exclude']), index]);
+  if (rowThread && hashesIds(p.split) && p.data.id !== undefined) rowThread.expectKeys({ idColumn: p.data.id, seed: p.split.seed ?? 0, repeats: p.split.repeats });
   const built = tableFromBytes(data.bytes!, shown(paths.data), dataRoles(p), p.data.format, roleLocate, rowThread);
   problems.push(...built.problems.map((q) => (q.file ? q : { ...q, file: parsed.file })));
   if (!built.table || hasErrors(built.problems) || (paths.pinned && !pinned)) {
@@ -113,6 +114,11 @@ async function validateWithData(parsed: ParsedProtocol & { protocol: Protocol; s
   return { ...parsed, problems, paths, table: built.table, dataSha256: data.sha256, newRows, assignment: hasErrors(problems) ? undefined : semantic.assignment };
 }
 
+/** Split rules whose keys are of ids (the grouped ones hash group names; the leave-out ones none). */
+function hashesIds(split: Protocol['split']): split is RuleSplit {
+  return !isPinned(split) && ['kfold', 'stratified-kfold', 'holdout'].includes(split.rule);
+}
+
 function once<T>(f: () => T): () => T {
   let value: { v: T } | undefined;
   return () => (value ??= { v: f() }).v;
@@ -120,7 +126,7 @@ function once<T>(f: () => T): () => T {
 
 /** Many ids: derive every repeat's split keys with the row thread's help (rules that hash group names derive their own). */
 function splitKeysOnTwoThreads(p: Protocol, ids: readonly string[], rowThread: RowThread): ((seed: number, repeat: number) => Uint8Array | undefined) | undefined {
-  if (isPinned(p.split) || ids.length < 10_000) return undefined;
+  if (!hashesIds(p.split) || ids.length < 10_000) return undefined;
   const seed = p.split.seed ?? 0;
   const keys = Array.from({ length: p.split.repeats }, (_, r) => rowThread.keys(ids, seed, r + 1));
   return (s, repeat) => (s === seed ? keys[repeat - 1] : undefined);
