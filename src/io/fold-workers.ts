@@ -5,6 +5,7 @@
  */
 import { availableParallelism } from 'node:os';
 import { Worker } from 'node:worker_threads';
+import { forcedThreads } from './threads.js';
 import { FitError } from '../model/types.js';
 import { TransformError } from '../preprocess/types.js';
 import type { Protocol } from '../protocol/types.js';
@@ -19,8 +20,8 @@ import { columnMajor, fitsByColumns } from '../preprocess/by-columns.js';
 const MIN_WORK = 2_000_000;
 
 export function threadCount(table: Table, folds: number): number {
-  const forced = Number(process.env.FOLDSEAL_THREADS);
-  if (Number.isInteger(forced) && forced >= 1) return forced;
+  const forced = forcedThreads();
+  if (forced !== undefined) return forced;
   // Workers load compiled JavaScript; from TypeScript sources (tests) the serial loop runs.
   if (!import.meta.url.endsWith('.js')) return 1;
   if (table.X.rows * table.X.cols * folds < MIN_WORK) return 1;

@@ -5,6 +5,7 @@
  */
 import { availableParallelism } from 'node:os';
 import { MessageChannel, receiveMessageOnPort, Worker } from 'node:worker_threads';
+import { forcedThreads } from './threads.js';
 import { deriveKeys } from '../split/key.js';
 import type { RowHelper, RowsPart } from '../table/plain.js';
 
@@ -30,8 +31,8 @@ export interface RowThread extends RowHelper {
  */
 export function rowThreadsAvailable(size: number): boolean {
   if (!import.meta.url.endsWith('.js')) return false;
-  const forced = Number(process.env.FOLDSEAL_THREADS);
-  if (Number.isInteger(forced) && forced >= 1) return forced >= 2;
+  const forced = forcedThreads();
+  if (forced !== undefined) return forced >= 2;
   return size >= SHARED_READ_BYTES && availableParallelism() >= 2;
 }
 

@@ -9,6 +9,7 @@ import { locate } from '../protocol/document.js';
 import { parseProtocol, type ParsedProtocol } from '../protocol/parse.js';
 import { checkAgainstData } from '../protocol/semantic.js';
 import { isPinned, type Protocol, type RuleSplit } from '../protocol/types.js';
+import { splitRules } from '../split/registry.js';
 import type { Assignment } from '../split/assignment.js';
 import { tableFromBytes } from '../table/load.js';
 import { knownColumns } from '../protocol/known-columns.js';
@@ -76,7 +77,7 @@ async function validateWithData(parsed: ParsedProtocol & { protocol: Protocol; s
   const p = parsed.protocol;
   const source = parsed.source;
   const problems: Problem[] = [...parsed.problems];
-  const data = await readBytes(paths.data, shown(paths.data), at(['data', 'file']), rowThread ? { shared: true, hash: (bytes) => once(rowThread.sha256(bytes)) } : {});
+  const data = await readBytes(paths.data, shown(paths.data), at(['data', 'file']), rowThread ? { shared: true, hash: (bytes) => rowThread.sha256(bytes) } : {});
   let pinned: { bytes: Uint8Array; sha256: string; shownAs: string } | undefined;
   if (paths.pinned) {
     const pin = await readBytes(paths.pinned, shown(paths.pinned), at(['split', 'pinned', 'file']));
@@ -114,14 +115,9 @@ async function validateWithData(parsed: ParsedProtocol & { protocol: Protocol; s
   return { ...parsed, problems, paths, table: built.table, dataSha256: data.sha256, newRows, assignment: hasErrors(problems) ? undefined : semantic.assignment };
 }
 
-/** Split rules whose keys are of ids (the grouped ones hash group names; the leave-out ones none). */
+/** A rule split whose keys are of ids (see SplitRuleImpl.keysIds). */
 function hashesIds(split: Protocol['split']): split is RuleSplit {
-  return !isPinned(split) && ['kfold', 'stratified-kfold', 'holdout'].includes(split.rule);
-}
-
-function once<T>(f: () => T): () => T {
-  let value: { v: T } | undefined;
-  return () => (value ??= { v: f() }).v;
+  return !isPinned(split) && splitRules[split.rule].keysIds === true;
 }
 
 /** Many ids: derive every repeat's split keys with the row thread's help (rules that hash group names derive their own). */

@@ -1,5 +1,5 @@
 /** Bernoulli naive Bayes: a value above `threshold` counts as present; presence rates smoothed additively. */
-import { classCounts, softmaxRows, type ModelImpl } from './types.js';
+import { classCounts, naiveBayesPosteriors, type ModelImpl } from './types.js';
 
 export interface BernoulliNbParams {
   threshold: number;
@@ -31,20 +31,15 @@ export const bernoulliNb: ModelImpl<BernoulliNbParams> = {
     return { threshold, logPrior, logP, logQ };
   },
   predict(p, X) {
-    const k = p.logPrior.length;
     const { rows, cols, data } = X;
-    const scores = new Float64Array(rows * k);
-    for (let c = 0; c < k; c++) {
-      const lp = p.logPrior[c];
-      const a = Float64Array.from(p.logP[c]);
-      const b = Float64Array.from(p.logQ[c]);
-      for (let r = 0; r < rows; r++) {
-        if (lp === null) { scores[r * k + c] = -Infinity; continue; }
-        let s = lp;
-        for (let j = 0; j < cols; j++) s += data[r * cols + j] > p.threshold ? a[j] : b[j];
-        scores[r * k + c] = s;
-      }
-    }
-    return softmaxRows(scores, rows, k);
+    const logP = p.logP.map((row) => Float64Array.from(row));
+    const logQ = p.logQ.map((row) => Float64Array.from(row));
+    return naiveBayesPosteriors(rows, p.logPrior, (r, c, start) => {
+      const a = logP[c];
+      const b = logQ[c];
+      let s = start;
+      for (let j = 0; j < cols; j++) s += data[r * cols + j] > p.threshold ? a[j] : b[j];
+      return s;
+    });
   },
 };

@@ -18,36 +18,18 @@ export interface ClassMoments {
   m2: Float64Array;
 }
 
-/** Two-pass moments (means first, then squared deviations from them) of `rows` (default: every row, in order). */
-export function classMoments(X: Matrix, y: Int32Array, classCount: number, rows?: Int32Array): ClassMoments {
-  const { cols, data } = X;
-  const count = rows ? rows.length : X.rows;
-  const n = new Float64Array(classCount);
-  const sum = new Float64Array(classCount * cols);
-  for (let i = 0; i < count; i++) {
-    const r = rows ? rows[i] : i;
-    const o = y[r] * cols;
-    const b = r * cols;
-    n[y[r]]++;
-    for (let j = 0; j < cols; j++) sum[o + j] += data[b + j];
-  }
-  const mean = new Float64Array(classCount * cols);
-  for (let c = 0; c < classCount; c++) for (let j = 0; j < cols; j++) mean[c * cols + j] = n[c] > 0 ? sum[c * cols + j] / n[c] : 0;
-  const m2 = new Float64Array(classCount * cols);
-  for (let i = 0; i < count; i++) {
-    const r = rows ? rows[i] : i;
-    const o = y[r] * cols;
-    const b = r * cols;
-    for (let j = 0; j < cols; j++) { const d = data[b + j] - mean[o + j]; m2[o + j] += d * d; }
-  }
-  return { classCount, cols, n, mean, m2 };
+/** Two-pass moments (means first, then squared deviations from them) of every row, in order. */
+export function classMoments(X: Matrix, y: Int32Array, classCount: number): ClassMoments {
+  const inOrder = new Int32Array(X.rows);
+  for (let r = 0; r < X.rows; r++) inOrder[r] = r;
+  return partMoments(X, y, classCount, new Int32Array(X.rows).fill(1), 1, inOrder)[0];
 }
 
 /**
- * classMoments of every fold's rows at once: fold[row] (1-based) names each row's part, and rows
- * are visited in `order`. Each part's sums see its rows in that order, so the result equals
- * classMoments(X, y, classCount, rows of part g in order) bit for bit, in two passes over the
- * table instead of two per part.
+ * Two-pass class moments of every fold's rows at once: fold[row] (1-based) names each row's
+ * part, and rows are visited in `order`. Each part's sums see its rows in that order, so the
+ * result equals the moments of part g's rows alone, taken in that order, bit for bit, in two
+ * passes over the table instead of two per part.
  */
 export function partMoments(X: Matrix, y: Int32Array, classCount: number, fold: Int32Array, parts: number, order: Int32Array): ClassMoments[] {
   const { cols, data } = X;

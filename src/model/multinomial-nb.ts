@@ -1,5 +1,5 @@
 /** Multinomial naive Bayes on non-negative counts with additive smoothing (default 1). */
-import { FitError, classCounts, softmaxRows, type ModelImpl } from './types.js';
+import { FitError, classCounts, naiveBayesPosteriors, type ModelImpl } from './types.js';
 
 export interface MultinomialNbParams {
   logPrior: (number | null)[];
@@ -28,19 +28,13 @@ export const multinomialNb: ModelImpl<MultinomialNbParams> = {
     return { logPrior, logProb };
   },
   predict(p, X) {
-    const k = p.logPrior.length;
     const { rows, cols, data } = X;
-    const scores = new Float64Array(rows * k);
-    for (let c = 0; c < k; c++) {
-      const lp = p.logPrior[c];
-      const w = Float64Array.from(p.logProb[c]);
-      for (let r = 0; r < rows; r++) {
-        if (lp === null) { scores[r * k + c] = -Infinity; continue; }
-        let s = lp;
-        for (let j = 0; j < cols; j++) s += data[r * cols + j] * w[j];
-        scores[r * k + c] = s;
-      }
-    }
-    return softmaxRows(scores, rows, k);
+    const logProb = p.logProb.map((row) => Float64Array.from(row));
+    return naiveBayesPosteriors(rows, p.logPrior, (r, c, start) => {
+      const w = logProb[c];
+      let s = start;
+      for (let j = 0; j < cols; j++) s += data[r * cols + j] * w[j];
+      return s;
+    });
   },
 };

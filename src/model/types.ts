@@ -60,3 +60,18 @@ export function softmaxRows(scores: Float64Array, rows: number, k: number): Floa
   }
   return out;
 }
+
+/**
+ * Naive Bayes class probabilities: for each class present in training, score(row, class, prior)
+ * adds the row's log-likelihood to the log prior it starts from; classes absent from training
+ * score -Infinity (probability 0).
+ */
+export function naiveBayesPosteriors(rows: number, logPrior: readonly (number | null)[], score: (row: number, c: number, start: number) => number): Float64Array {
+  const k = logPrior.length;
+  const scores = new Float64Array(rows * k);
+  for (let c = 0; c < k; c++) {
+    const lp = logPrior[c];
+    for (let r = 0; r < rows; r++) scores[r * k + c] = lp === null ? -Infinity : score(r, c, lp);
+  }
+  return softmaxRows(scores, rows, k);
+}

@@ -1,5 +1,5 @@
 /** Fill missing cells (NaN) with the training mean or median of the column's present values. */
-import { concatColumnParams, TransformError, type TransformImpl } from './types.js';
+import { TransformError, type TransformImpl } from './types.js';
 
 export interface ImputeParams { fill: number[] }
 interface ImputeStep { by: 'mean' | 'median' }
@@ -35,7 +35,6 @@ export const impute: TransformImpl<ImputeParams> = {
       for (let i = 0; i < n; i++) if (v[i] !== v[i]) v[i] = p[0];
     },
   },
-  concat: concatColumnParams,
   restrict(p, positions) {
     return { fill: positions.map((j) => p.fill[j]) };
   },

@@ -1,11 +1,10 @@
 /** log2(x + 1), for counts and intensities; negative input is rejected rather than turned into NaN. */
-import { concatColumnParams, TransformError, type TransformImpl } from './types.js';
+import { TransformError, type TransformImpl } from './types.js';
 
 export const log2p: TransformImpl<Record<string, never>> = {
   fit() {
     return {};
   },
-  concat: concatColumnParams,
   column: {
     fields: [],
     fit() {},

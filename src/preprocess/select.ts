@@ -5,7 +5,7 @@
  * undefined score (NaN: a constant feature) ranks last, an infinite one (no spread within
  * classes) first; equal scores keep the earlier column.
  */
-import { takeCols, type Matrix } from '../table/matrix.js';
+import { takeCols } from '../table/matrix.js';
 import { restrictMoments } from '../model/class-moments.js';
 import { featureScores, momentScores, scoreColumn, type ScoreBy } from './feature-scores.js';
 import type { TransformImpl } from './types.js';
@@ -31,12 +31,10 @@ export function topIndices(scores: Float64Array, top: number): number[] {
   return best.sort((a, b) => a - b);
 }
 
-const score = (X: Matrix, y: Int32Array, classCount: number, step: SelectStep) => featureScores(X, y, classCount, step.by);
 const fromScores = (scores: Float64Array, step: SelectStep): SelectParams => ({ keep: topIndices(scores, step.top), scores: Array.from(scores, (s) => (Number.isFinite(s) ? s : null)) });
 
 export const select: TransformImpl<SelectParams> = {
-  fit: (X, y, classCount, step: SelectStep) => fromScores(score(X, y, classCount, step), step),
-  score,
+  fit: (X, y, classCount, step: SelectStep) => fromScores(featureScores(X, y, classCount, step.by), step),
   moments: {
     fit: (m, step: SelectStep) => fromScores(momentScores(m, step.by), step),
     after: (p, m) => restrictMoments(m, p.keep),

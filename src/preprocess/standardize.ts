@@ -1,6 +1,6 @@
 /** Subtract the training mean, divide by the training standard deviation (divisor n); constant columns are only centred. */
 import { overallMoments } from '../model/class-moments.js';
-import { concatColumnParams, type TransformImpl } from './types.js';
+import type { TransformImpl } from './types.js';
 
 export interface StandardizeParams { mean: number[]; scale: number[] }
 
@@ -15,7 +15,6 @@ export const standardize: TransformImpl<StandardizeParams> = {
     const scale = Array.from(ss, (s) => { const sd = Math.sqrt(s / rows); return sd > 0 ? sd : 1; });
     return { mean: Array.from(mean), scale };
   },
-  concat: concatColumnParams,
   moments: {
     fit(m) {
       const { rows, mean, ss } = overallMoments(m);

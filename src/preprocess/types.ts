@@ -11,13 +11,9 @@ export interface TransformImpl<P = unknown> {
   kept?(params: P): number[];
   /** For column-wise transforms: the same transform on a subset of the input positions. */
   restrict?(params: P, positions: readonly number[]): P;
-  /** For column-wise transforms: parameters fitted on consecutive column blocks, joined in order. */
-  concat?(parts: readonly P[]): P;
-  /** For selections: each input column's score on the training rows (a column's score depends on that column only). */
-  score?(X: Matrix, y: Int32Array, classCount: number, step: any): Float64Array;
-  /** For selections: the parameters chosen from every column's score (fit = fromScores(score(...))). */
+  /** For selections: the parameters chosen from every column's score (fit = fromScores(scores of each column)). */
   fromScores?(scores: Float64Array, step: any): P;
-  /** For selections: score(...)'s value for one column, from its training values v[0, n) (see feature-scores.ts). */
+  /** For selections: one column's score, from its training values v[0, n) (see feature-scores.ts). */
   scoreColumn?(v: Float64Array, n: number, y: Int32Array, classCount: number, step: any, counts: Float64Array, mean: Float64Array, ss: Float64Array, present: readonly number[]): number;
   /** For column-wise transforms: the same fit and apply one column at a time (see by-columns.ts). */
   column?: ColumnKernel;
@@ -45,12 +41,6 @@ export interface ColumnKernel {
   apply(v: Float64Array, n: number, params: Float64Array): void;
 }
 
-/** concat for parameters that are records of per-column arrays (standardize, impute, log2p). */
-export function concatColumnParams<P extends { [K in keyof P]: number[] }>(parts: readonly P[]): P {
-  const out: Record<string, number[]> = {};
-  for (const key of Object.keys(parts[0] ?? {})) out[key] = parts.flatMap((p) => (p as Record<string, number[]>)[key]);
-  return out as P;
-}
 
 export class TransformError extends Error {
   constructor(readonly code: string, message: string, readonly hint?: string) {

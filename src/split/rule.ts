@@ -30,6 +30,8 @@ export interface SplitParams {
 
 /** A split rule: one repeat's fold per row (1-based), and the number of folds it produced. */
 export interface SplitRuleImpl {
+  /** True for rules that key rows by their ids (idKeysOf), so the shell may derive those keys ahead. */
+  keysIds?: true;
   fold(input: SplitInput, params: SplitParams): { fold: Int32Array; folds: number };
 }
 

@@ -12,6 +12,7 @@ export function testCount(m: number, micros: number): number {
 }
 
 export const holdout: SplitRuleImpl = {
+  keysIds: true,
   fold(input, p) {
     const n = input.ids.length;
     const keys = idKeysOf(input, p.seed, p.repeat);

@@ -3,6 +3,7 @@ import { keyPrefix32, sortByKey } from '../key.js';
 import { allRows, idKeysOf, type SplitRuleImpl } from '../rule.js';
 
 export const kfold: SplitRuleImpl = {
+  keysIds: true,
   fold(input, p) {
     const n = input.ids.length;
     const keys = idKeysOf(input, p.seed, p.repeat);

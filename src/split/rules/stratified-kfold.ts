@@ -8,6 +8,7 @@ import { idKeysOf, type SplitRuleImpl } from '../rule.js';
 import { rowsByClass } from './strata.js';
 
 export const stratifiedKfold: SplitRuleImpl = {
+  keysIds: true,
   fold(input, p) {
     const n = input.ids.length;
     const keys = idKeysOf(input, p.seed, p.repeat);
