@@ -8,6 +8,7 @@ import { isPinned } from '../protocol/types.js';
 import type { ValidationReport } from '../io/validate.js';
 import type { ManifestCheck } from '../manifest/check.js';
 import type { LockEntry, ParsedLock } from './lock.js';
+import { rowDigests } from '../table/row-digest.js';
 
 export interface ProtocolState {
   /** Path relative to the checked folder, with forward slashes (the lock's key). */
@@ -21,7 +22,8 @@ export interface GateInput {
   protocols: ProtocolState[];
   lock?: ParsedLock;
   lockFile: string;
-  sealed?: { ids: Set<string>; file: string };
+  /** Sealed ids, and the content digests of sealed rows (recorded in the lock and found in the data now). */
+  sealed?: { ids: Set<string>; file: string; digests?: Set<string> };
   manifests: { file: string; check: ManifestCheck }[];
   /** Only these protocol paths are reported on (for --staged); lock-wide findings still apply to them. */
   only?: Set<string>;
@@ -86,9 +88,22 @@ function drift(s: ProtocolState, locked: LockEntry): Problem[] {
   return out;
 }
 
-function sealedFindings(g: GateInput, inScope: (p: string) => boolean): Problem[] {
+/** Content digests of the rows whose id is sealed, over every protocol's data (what `lock` records). */
+export function sealedDigests(protocols: readonly ProtocolState[], sealed: Set<string>): Set<string> {
+  const out = new Set<string>();
+  for (const s of protocols) {
+    const t = s.report.table;
+    if (!t) continue;
+    const rows = t.ids.flatMap((id, r) => (sealed.has(id) ? [r] : []));
+    for (const d of rowDigests(t, rows)) out.add(d);
+  }
+  return out;
+}
+
+export function sealedFindings(g: Pick<GateInput, 'protocols' | 'sealed'>, inScope: (p: string) => boolean = () => true): Problem[] {
   const out: Problem[] = [];
   const sealed = g.sealed!.ids;
+  const digests = new Set([...(g.sealed!.digests ?? []), ...sealedDigests(g.protocols, sealed)]);
   for (const s of g.protocols) {
     const p = s.report.protocol;
     const t = s.report.table;
@@ -96,6 +111,11 @@ function sealedFindings(g: GateInput, inScope: (p: string) => boolean): Problem[
     const present = t.ids.filter((id) => sealed.has(id));
     if (!p.final) {
       if (present.length) out.push(error('sealed-rows-used', `${p.name} uses ${present.length} sealed id${present.length === 1 ? '' : 's'} from ${p.data.file} (reserved for the final evaluation): ${present.slice(0, LIST).join(', ')}${present.length > LIST ? ', …' : ''}`, { ...at(s, ['data', 'file']), hint: 'remove the sealed rows from this data, or mark the final protocol with final: true' }));
+      if (digests.size) {
+        const rowDigest = rowDigests(t);
+        const copied = t.ids.filter((id, r) => !sealed.has(id) && digests.has(rowDigest[r]));
+        if (copied.length) out.push(error('sealed-rows-copied', `${p.name} has ${copied.length} row${copied.length === 1 ? '' : 's'} in ${p.data.file} with the same label and feature values as sealed rows, under other ids: ${copied.slice(0, LIST).join(', ')}${copied.length > LIST ? ', …' : ''}`, { ...at(s, ['data', 'file']), hint: 'sealed rows stay sealed under a new id; remove them from this data' }));
+      }
       continue;
     }
     const holdoutLike = isPinned(p.split) || p.split.rule === 'holdout';

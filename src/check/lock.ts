@@ -22,11 +22,22 @@ export interface Policy {
   signers?: string[];
   /** No protocol may set verify.tolerance above 0. */
   'forbid-tolerance'?: boolean;
+  /** Folders (relative to the lock) the gate does not look into, besides dot-folders and node_modules. */
+  skip?: string[];
+  /** Folders the gate looks into although they would be skipped (a dot-folder, say). */
+  include?: string[];
+}
+
+export interface SealedEntry {
+  file: string;
+  sha256: string;
+  /** Content digests of the sealed rows (see row-digest.ts), recorded by foldseal lock: the same rows under new ids are still sealed. */
+  rows?: string[];
 }
 
 export interface Lock {
   'foldseal-lock': typeof LOCK_VERSION;
-  sealed?: { file: string; sha256: string };
+  sealed?: SealedEntry;
   policy?: Policy;
   protocols: Record<string, LockEntry>;
 }

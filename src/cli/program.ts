@@ -16,14 +16,16 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .exitOverride();
 
   const formatOption = () => new Option('--format <format>', 'output format').choices(['text', 'json']).default('text');
+  const outsideOption = () => new Option('--allow-outside', 'let the protocol name files outside its folder, the working folder and FOLDSEAL_TRUSTED (only for files you trust)');
 
   program
     .command('validate')
     .description('check protocols against the schema and their data; report every problem at file:line:col')
     .argument('<protocol...>', 'protocol YAML files')
     .addOption(formatOption())
+    .addOption(outsideOption())
     .addHelpText('after', '\nExamples:\n  foldseal validate protocols/demo.yaml\n  foldseal validate protocols/*.yaml --format json\n\nExit: 0 valid, 1 invalid, 2 usage error or unreadable file.')
-    .action(async (protocols: string[], o: { format: 'text' | 'json' }) => done(await (await import('./commands/validate.js')).validateCommand({ protocols, format: o.format }, io)));
+    .action(async (protocols: string[], o: { format: 'text' | 'json'; allowOutside?: boolean }) => done(await (await import('./commands/validate.js')).validateCommand({ protocols, ...o }, io)));
 
   program
     .command('hash')
@@ -49,19 +51,21 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .description('compute the fold assignment (split-v1) and write it as CSV id,repeat,fold; summary on stderr')
     .argument('<protocol>', 'protocol YAML file')
     .option('--out <file>', 'write the CSV here instead of stdout')
+    .addOption(outsideOption())
     .addHelpText('after', '\nExample:\n  foldseal folds protocols/demo.yaml --out demo.folds.csv')
-    .action(async (protocol: string, o: { out?: string }) => done(await (await import('./commands/folds.js')).foldsCommand({ protocol, out: o.out }, io)));
+    .action(async (protocol: string, o: { out?: string; allowOutside?: boolean }) => done(await (await import('./commands/folds.js')).foldsCommand({ protocol, ...o }, io)));
 
   program
     .command('run')
     .description('cross-validate: fit preprocessing and model inside every fold, score, write predictions and results')
     .argument('<protocol>', 'protocol YAML file')
     .option('--out <dir>', 'results folder (default: results/<protocol name>)')
-    .option('--force', 'replace an existing results folder')
+    .option('--force', 'replace an existing results folder that foldseal wrote (never any other folder)')
     .option('--refit', 'also fit one model on every labeled row and save it in models.json')
     .option('--key <file>', 'sign manifest.json with this Ed25519 private key (from foldseal keygen)')
-    .addHelpText('after', '\nExample:\n  foldseal run protocols/demo.yaml --out results/demo\n\nThe folder is written to a temporary sibling and renamed at the end, so it is never half-written.')
-    .action(async (protocol: string, o: { out?: string; force?: boolean; refit?: boolean; key?: string }) => done(await (await import('./commands/run.js')).runCommand({ protocol, ...o }, io)));
+    .addOption(outsideOption())
+    .addHelpText('after', '\nExample:\n  foldseal run protocols/demo.yaml --out results/demo\n\nThe folder is written to a temporary sibling and renamed at the end, so it is never half-written.\n--force replaces only a folder foldseal wrote (its manifest and the files it lists); any other non-empty folder is refused.')
+    .action(async (protocol: string, o: { out?: string; force?: boolean; refit?: boolean; key?: string; allowOutside?: boolean }) => done(await (await import('./commands/run.js')).runCommand({ protocol, ...o }, io)));
 
   program
     .command('apply')
@@ -90,10 +94,12 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .option('--rerun', 're-run the protocol on local data and compare assignment, metrics and predictions')
     .option('--data <file>', 'data file for the re-run (its content is compared by hash with the recorded one)')
     .option('--protocol <file>', 're-run this protocol file instead of the embedded copy')
+    .option('--allow-unsigned', 're-run a manifest that is not signed by a pinned key (a re-run reads the files it names)')
+    .option('--allow-outside', 'let the re-run read files outside the review folder (see README, Security model)')
     .option('--strict', 'a result file missing next to the manifest is an error')
     .addOption(formatOption())
     .addHelpText('after', '\nExamples:\n  foldseal verify results/demo/manifest.json --key author.pub\n  foldseal verify results/demo/manifest.json --key author.pub --rerun\n\nExit: 0 verified (identical), 1 a check failed or the re-run differs, 2 usage or unreadable input.')
-    .action(async (manifest: string, o: { key?: string; allowUnpinned?: boolean; rerun?: boolean; data?: string; protocol?: string; strict?: boolean; format: 'text' | 'json' }) => done(await (await import('./commands/verify.js')).verifyCommand({ manifest, ...o }, io)));
+    .action(async (manifest: string, o: { key?: string; allowUnpinned?: boolean; allowUnsigned?: boolean; allowOutside?: boolean; rerun?: boolean; data?: string; protocol?: string; strict?: boolean; format: 'text' | 'json' }) => done(await (await import('./commands/verify.js')).verifyCommand({ manifest, ...o }, io)));
 
   program
     .command('check')
@@ -101,15 +107,17 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .argument('[dir]', 'repository folder', '.')
     .addOption(formatOption())
     .option('--staged', 'only protocols touched by the staged git change, and those sharing their data')
+    .option('--allow-outside', 'let protocols name files outside DIR and FOLDSEAL_TRUSTED')
     .addHelpText('after', '\nExamples:\n  foldseal check\n  foldseal check --staged          # in a pre-commit hook\n  foldseal check . --format json   # for CI annotations\n\nExit: 0 clean, 1 findings, 2 usage error (a corrupt lock, not a git repository).')
-    .action(async (dir: string, o: { format: 'text' | 'json'; staged?: boolean }) => done(await (await import('./commands/check.js')).checkCommand({ dir, ...o }, io)));
+    .action(async (dir: string, o: { format: 'text' | 'json'; staged?: boolean; allowOutside?: boolean }) => done(await (await import('./commands/check.js')).checkCommand({ dir, ...o }, io)));
 
   program
     .command('lock')
     .description('record the current protocols, data hashes and fold assignments in foldseal.lock.json; prints what changed')
     .argument('[dir]', 'repository folder', '.')
+    .option('--allow-outside', 'let protocols name files outside DIR and FOLDSEAL_TRUSTED')
     .addHelpText('after', '\nExample:\n  foldseal lock && git add foldseal.lock.json\n\nThe lock keeps its sealed and policy sections; commit it so the change is reviewed.')
-    .action(async (dir: string) => done(await (await import('./commands/lock.js')).lockCommand({ dir }, io)));
+    .action(async (dir: string, o: { allowOutside?: boolean }) => done(await (await import('./commands/lock.js')).lockCommand({ dir, ...o }, io)));
 
   return program;
 }

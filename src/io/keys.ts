@@ -1,13 +1,14 @@
 /** Ed25519 key files at the edge: PKCS#8 PEM private keys (mode 0600) and SPKI PEM public keys. */
 import { createPrivateKey, createPublicKey, generateKeyPairSync, type KeyObject } from 'node:crypto';
-import { chmod, readFile, writeFile } from 'node:fs/promises';
+import { chmod, lstat, unlink, writeFile } from 'node:fs/promises';
 import { error, FoldsealError } from '../problems/problem.js';
 import { fingerprint } from '../manifest/sign.js';
-import { fileProblem } from './files.js';
+import { fileProblem, readRegularText } from './files.js';
+import { writeProblem } from './output-file.js';
 
 async function readPem(path: string): Promise<string> {
   try {
-    return await readFile(path, 'utf8');
+    return await readRegularText(path, 1 << 20);
   } catch (e) {
     throw new FoldsealError(fileProblem(e as NodeJS.ErrnoException, path, { file: path }), 2);
   }
@@ -43,22 +44,26 @@ export async function readPublicKey(path: string): Promise<KeyObject> {
   return key;
 }
 
+/** Writes PREFIX.key (mode 0600) and PREFIX.pub: both or neither, never over an existing file. */
 export async function writeKeyPair(prefix: string): Promise<string> {
   const { privateKey, publicKey } = generateKeyPairSync('ed25519');
   const keyPath = `${prefix}.key`;
   const pubPath = `${prefix}.pub`;
+  for (const path of [keyPath, pubPath]) {
+    if (await lstat(path).then(() => true, () => false)) throw new FoldsealError({ ...writeProblem(Object.assign(new Error(), { code: 'EEXIST' }), path), hint: 'choose another --out prefix; foldseal never overwrites a key' }, 2);
+  }
   try {
     await writeFile(keyPath, privateKey.export({ format: 'pem', type: 'pkcs8' }), { flag: 'wx', mode: 0o600 });
+    await chmod(keyPath, 0o600);
   } catch (e) {
-    if ((e as NodeJS.ErrnoException).code === 'EEXIST') throw new FoldsealError(error('refuse-overwrite', `${keyPath} already exists`, { hint: 'choose another --out prefix; foldseal never overwrites a key' }), 2);
-    throw new FoldsealError(fileProblem(e as NodeJS.ErrnoException, keyPath), 2);
+    throw new FoldsealError(writeProblem(e as NodeJS.ErrnoException, keyPath), 2);
   }
-  await chmod(keyPath, 0o600);
   try {
     await writeFile(pubPath, publicKey.export({ format: 'pem', type: 'spki' }), { flag: 'wx' });
   } catch (e) {
-    if ((e as NodeJS.ErrnoException).code === 'EEXIST') throw new FoldsealError(error('refuse-overwrite', `${pubPath} already exists`), 2);
-    throw e;
+    await unlink(keyPath).catch(() => undefined);
+    if ((e as NodeJS.ErrnoException).code !== 'EEXIST') await unlink(pubPath).catch(() => undefined);
+    throw new FoldsealError(writeProblem(e as NodeJS.ErrnoException, pubPath), 2);
   }
   return fingerprint(publicKey);
 }

@@ -1,21 +1,149 @@
-/** Writes a results folder atomically: everything goes to a sibling temp folder, renamed into place at the end. */
-import { existsSync } from 'node:fs';
-import { mkdir, mkdtemp, rename, rm, writeFile } from 'node:fs/promises';
+/**
+ * Writes a results folder without ever losing anything:
+ * - only a folder foldseal wrote (a manifest.json of ours, and nothing but the files it lists) is
+ *   replaced, and only with --force; any other non-empty folder is refused, --force or not;
+ * - the new folder is written to a hidden sibling, the old one is moved aside, the new one renamed
+ *   in, then the old one deleted: a crash leaves the old or the new complete folder (or, for the
+ *   instant between the two renames, the old one aside, which the next run puts back);
+ * - one writer at a time per folder: a lock file beside it holds the writer's pid.
+ */
+import { mkdir, mkdtemp, open, readdir, readFile, rename, rm, rmdir, lstat, unlink, writeFile } from 'node:fs/promises';
 import { basename, dirname, join } from 'node:path';
 import { error, FoldsealError } from '../problems/problem.js';
+import { writeProblem } from './output-file.js';
+
+const NEW = '.foldseal-new-';
+const OLD = '.foldseal-old-';
+const LIST = 5;
+
+type FolderState = { kind: 'absent' | 'empty' | 'ours' } | { kind: 'foreign'; why: string };
 
 export async function writeOutputDir(dir: string, files: Record<string, string | Uint8Array>, force: boolean, shownAs: string): Promise<void> {
-  if (existsSync(dir) && !force) {
-    throw new FoldsealError(error('refuse-overwrite', `${shownAs} already exists`, { hint: 'pass --force to replace it, or --out to choose another folder' }), 2);
-  }
-  await mkdir(dirname(dir), { recursive: true });
-  const temp = await mkdtemp(join(dirname(dir), `.${basename(dir)}.tmp-`));
+  const parent = dirname(dir);
+  const name = basename(dir);
   try {
-    for (const [name, content] of Object.entries(files)) await writeFile(join(temp, name), content);
-    if (existsSync(dir)) await rm(dir, { recursive: true, force: true });
-    await rename(temp, dir);
+    await mkdir(parent, { recursive: true });
   } catch (e) {
-    await rm(temp, { recursive: true, force: true });
-    throw e;
+    throw new FoldsealError(writeProblem(e as NodeJS.ErrnoException, shown(parent, shownAs, dir)), 2);
+  }
+  const release = await takeLock(parent, name, shownAs);
+  try {
+    await recover(parent, name, dir);
+    const state = await folderState(dir);
+    if (state.kind === 'foreign') {
+      throw new FoldsealError(error('refuse-foreign-folder', `${shownAs} ${state.why}, so foldseal will not replace it${force ? ' (--force replaces only a results folder foldseal wrote)' : ''}`, { file: shownAs, hint: 'choose an empty or new folder with --out' }), 2);
+    }
+    if (state.kind === 'ours' && !force) {
+      throw new FoldsealError(error('refuse-overwrite', `${shownAs} already exists`, { file: shownAs, hint: 'pass --force to replace it, or --out to choose another folder' }), 2);
+    }
+    let temp: string;
+    try {
+      temp = await mkdtemp(join(parent, `.${name}${NEW}`));
+    } catch (e) {
+      throw new FoldsealError(writeProblem(e as NodeJS.ErrnoException, shownAs), 2);
+    }
+    try {
+      for (const [file, content] of Object.entries(files)) await writeDurably(join(temp, file), content);
+      if (state.kind === 'ours') {
+        const aside = await mkdtemp(join(parent, `.${name}${OLD}`));
+        await rename(dir, join(aside, 'previous'));
+        await rename(temp, dir);
+        await rm(aside, { recursive: true, force: true });
+      } else {
+        if (state.kind === 'empty') await rmdir(dir);
+        await rename(temp, dir);
+      }
+    } catch (e) {
+      await rm(temp, { recursive: true, force: true });
+      if (e instanceof FoldsealError) throw e;
+      throw new FoldsealError(writeProblem(e as NodeJS.ErrnoException, shownAs), 2);
+    }
+  } finally {
+    await release();
+  }
+}
+
+function shown(path: string, shownDir: string, dir: string): string {
+  return path === dirname(dir) ? dirname(shownDir) || '.' : path;
+}
+
+async function writeDurably(path: string, content: string | Uint8Array): Promise<void> {
+  const file = await open(path, 'wx');
+  try {
+    await file.writeFile(content);
+    await file.sync();
+  } finally {
+    await file.close();
+  }
+}
+
+/** What is at `dir` now: nothing, an empty folder, a results folder of ours, or something else. */
+async function folderState(dir: string): Promise<FolderState> {
+  let st;
+  try {
+    st = await lstat(dir);
+  } catch {
+    return { kind: 'absent' };
+  }
+  if (!st.isDirectory()) return { kind: 'foreign', why: st.isSymbolicLink() ? 'is a symbolic link' : 'exists and is not a folder' };
+  const entries = (await readdir(dir, { withFileTypes: true })).map((e) => e.name).sort();
+  if (entries.length === 0) return { kind: 'empty' };
+  let listed: Set<string>;
+  try {
+    const manifest = JSON.parse(await readFile(join(dir, 'manifest.json'), 'utf8'));
+    if (!manifest || typeof manifest['foldseal-manifest'] !== 'number' || typeof manifest.files !== 'object' || manifest.files === null) throw new Error('not ours');
+    listed = new Set(['manifest.json', ...Object.keys(manifest.files)]);
+  } catch {
+    return { kind: 'foreign', why: `is a folder with ${entries.length} entr${entries.length === 1 ? 'y' : 'ies'} (${entries.slice(0, LIST).join(', ')}${entries.length > LIST ? ', …' : ''}) and no foldseal manifest` };
+  }
+  const extra: string[] = [];
+  for (const e of entries) {
+    const st = await lstat(join(dir, e));
+    if (!listed.has(e) || !st.isFile()) extra.push(e);
+  }
+  if (extra.length) return { kind: 'foreign', why: `holds ${extra.length} entr${extra.length === 1 ? 'y' : 'ies'} foldseal did not write (${extra.slice(0, LIST).join(', ')}${extra.length > LIST ? ', …' : ''})` };
+  return { kind: 'ours' };
+}
+
+/** Leftovers of runs that died: half-written new folders are deleted; an old folder moved aside is put back if nothing took its place. */
+async function recover(parent: string, name: string, dir: string): Promise<void> {
+  const entries = await readdir(parent).catch(() => [] as string[]);
+  for (const e of entries.sort()) {
+    if (e.startsWith(`.${name}${NEW}`)) await rm(join(parent, e), { recursive: true, force: true });
+    else if (e.startsWith(`.${name}${OLD}`)) {
+      const previous = join(parent, e, 'previous');
+      const present = await lstat(dir).then(() => true, () => false);
+      if (!present && (await lstat(previous).then((s) => s.isDirectory(), () => false))) await rename(previous, dir);
+      await rm(join(parent, e), { recursive: true, force: true });
+    }
+  }
+}
+
+/** A lock file `.NAME.foldseal-lock` holding the writer's pid; a lock whose process is gone is taken over. */
+async function takeLock(parent: string, name: string, shownAs: string): Promise<() => Promise<void>> {
+  const path = join(parent, `.${name}.foldseal-lock`);
+  for (let attempt = 0; attempt < 2; attempt++) {
+    try {
+      await writeFile(path, `${process.pid}\n`, { flag: 'wx' });
+      return () => unlink(path).catch(() => undefined);
+    } catch (e) {
+      if ((e as NodeJS.ErrnoException).code !== 'EEXIST') throw new FoldsealError(writeProblem(e as NodeJS.ErrnoException, shownAs), 2);
+    }
+    const owner = Number.parseInt(await readFile(path, 'utf8').catch(() => ''), 10);
+    if (Number.isInteger(owner) && owner > 0 && alive(owner)) {
+      throw new FoldsealError(error('output-busy', `another foldseal process (pid ${owner}) is writing ${shownAs}`, { file: shownAs, hint: `wait for it to finish; if no such process runs, delete ${join(dirname(shownAs), `.${name}.foldseal-lock`)}` }), 2);
+    }
+    await unlink(path).catch(() => undefined);
+  }
+  /* c8 ignore next -- two processes took over the same stale lock at the same instant */
+  throw new FoldsealError(error('output-busy', `another foldseal process is writing ${shownAs}`, { file: shownAs }), 2);
+}
+
+function alive(pid: number): boolean {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (e) {
+    return (e as NodeJS.ErrnoException).code === 'EPERM';
   }
 }

@@ -4,6 +4,8 @@ import type { CvHooks } from '../run/cross-validate.js';
 import { asUserError, runProtocol, type RunInput, type RunOutput } from '../run/run.js';
 import { crossValidateInWorkers } from './fold-workers.js';
 import { validateProtocol, type ValidationReport } from './validate.js';
+import type { PathPolicy } from './path-policy.js';
+import { lockedRepoProblems } from './repo-guard.js';
 
 export interface Produced {
   report: ValidationReport;
@@ -11,8 +13,18 @@ export interface Produced {
   out?: RunOutput;
 }
 
-export async function produceRun(protocolPath: string, options: { refit?: boolean; hooks?: CvHooks } = {}): Promise<Produced> {
-  const report = await validateProtocol(protocolPath);
+export interface ProduceOptions {
+  refit?: boolean;
+  hooks?: CvHooks;
+  /** Where the protocol's files may lie (default: protocolPolicy). */
+  access?: PathPolicy;
+  /** Apply a locked repository's rules (protocols the gate cannot see, sealed rows). */
+  repoRules?: boolean;
+}
+
+export async function produceRun(protocolPath: string, options: ProduceOptions = {}): Promise<Produced> {
+  const report = await validateProtocol(protocolPath, { access: options.access });
+  if (options.repoRules && report.protocol && !report.unreadable) report.problems.push(...(await lockedRepoProblems(protocolPath, report)));
   if (report.unreadable || hasErrors(report.problems) || !report.protocol || !report.table || !report.assignment) return { report };
   const input: RunInput = {
     protocol: report.protocol,

@@ -2,7 +2,7 @@
  * The imperative shell around validation: reads the protocol, its data, its pinned
  * file and new rows, hashes them, and hands everything to the pure checks.
  */
-import { readFile, stat } from 'node:fs/promises';
+import { stat } from 'node:fs/promises';
 import { dirname, relative, resolve } from 'node:path';
 import { error, hasErrors, type Problem } from '../problems/problem.js';
 import { locate } from '../protocol/document.js';
@@ -15,7 +15,9 @@ import { tableFromBytes } from '../table/load.js';
 import { knownColumns } from '../protocol/known-columns.js';
 import type { Table } from '../table/table.js';
 import { newRowsFromBytes, type NewRows } from '../table/new-rows.js';
-import { fileProblem, readBytes } from './files.js';
+import { fileProblem, readBytes, readRegularText } from './files.js';
+import { knownIdProblems, knownRows } from '../reconcile/known-ids.js';
+import { outsideProblem, protocolPolicy, type PathPolicy } from './path-policy.js';
 import { rowThreadsAvailable, startRowThread, type RowThread } from './row-helper.js';
 
 export interface ValidationReport extends ParsedProtocol {
@@ -35,11 +37,20 @@ export function shown(path: string): string {
   return rel && !rel.startsWith('..') ? rel : path;
 }
 
+/** The largest protocol file foldseal reads (a protocol is a page of YAML; anything larger is refused before parsing). */
+export const PROTOCOL_MAX_BYTES = 1 << 20;
+
+/** The file name endings of protocols: `run` accepts exactly what the repository gate looks at. */
+export const PROTOCOL_EXTENSION = /\.(ya?ml|json)$/i;
+
 export async function loadProtocol(path: string): Promise<ValidationReport> {
   const file = shown(resolve(path));
+  if (!PROTOCOL_EXTENSION.test(path)) {
+    return { file, problems: [error('protocol-extension', `${file} does not end in .yaml, .yml or .json`, { file, hint: 'rename it: the repository gate looks for protocols by these endings, and a protocol it cannot see cannot be checked' })], unreadable: true };
+  }
   let text: string;
   try {
-    text = await readFile(path, 'utf8');
+    text = await readRegularText(path, PROTOCOL_MAX_BYTES);
   } catch (e) {
     return { file, problems: [fileProblem(e as NodeJS.ErrnoException, file, { file })], unreadable: true };
   }
@@ -49,6 +60,8 @@ export async function loadProtocol(path: string): Promise<ValidationReport> {
 export interface ValidateOptions {
   /** Read the data from here instead of the protocol's data.file (the hash must still match). */
   dataOverride?: string;
+  /** Where the files the protocol names may lie (default: protocolPolicy of the protocol's path). */
+  access?: PathPolicy;
 }
 
 export async function validateProtocol(path: string, options: ValidateOptions = {}): Promise<ValidationReport> {
@@ -63,6 +76,13 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
     pinned: isPinned(p.split) ? resolve(base, p.split.pinned.file) : undefined,
     newRows: p.reconcile.newRows ? resolve(base, p.reconcile.newRows.file) : undefined,
   };
+  const access = options.access ?? protocolPolicy(path);
+  const outside = [
+    options.dataOverride ? undefined : outsideProblem(paths.data, access, p.data.file, 'data file', at(['data', 'file'])),
+    paths.pinned ? outsideProblem(paths.pinned, access, (p.split as { pinned: { file: string } }).pinned.file, 'pinned assignment file', at(['split', 'pinned', 'file'])) : undefined,
+    paths.newRows ? outsideProblem(paths.newRows, access, p.reconcile.newRows!.file, 'new-rows file', at(['reconcile', 'new-rows', 'file'])) : undefined,
+  ].filter((q): q is Problem => q !== undefined);
+  if (outside.length) return { ...parsed, problems: [...parsed.problems, ...outside], paths };
   // A large data file is parsed on two threads: start the second while the file is read.
   const size = await stat(paths.data).then((st) => st.size, () => 0);
   const rowThread = rowThreadsAvailable(size) ? startRowThread() : undefined;
@@ -111,6 +131,12 @@ async function validateWithData(parsed: ParsedProtocol & { protocol: Protocol; s
     const nr = newRowsFromBytes(newRowBytes, shown(paths.newRows!), built.table.featureNames, p.reconcile.newRows!.id ?? p.data.id, p.data.missing, knownColumns(p));
     problems.push(...nr.problems);
     newRows = nr.rows;
+    if (newRows) {
+      const t = built.table;
+      const digests = knownRows(t.ids, t.X, t.featureNames);
+      const rowOf = new Map(t.ids.map((id, r) => [id, r]));
+      problems.push(...knownIdProblems(newRows, shown(paths.newRows!), t.featureNames, new Map(Object.entries(digests)), (id) => ({ where: `${shown(paths.data)} line ${t.rowLines[rowOf.get(id)!]}` })));
+    }
   }
   return { ...parsed, problems, paths, table: built.table, dataSha256: data.sha256, newRows, assignment: hasErrors(problems) ? undefined : semantic.assignment };
 }

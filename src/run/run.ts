@@ -3,7 +3,7 @@ import { canonicalSha256 } from '../manifest/canonical.js';
 import { FitError } from '../model/types.js';
 import { TransformError } from '../preprocess/types.js';
 import { error, FoldsealError, type Problem } from '../problems/problem.js';
-import type { Protocol } from '../protocol/types.js';
+import { testsFoldOneOnly, type Protocol } from '../protocol/types.js';
 import type { Assignment } from '../split/assignment.js';
 import { assignmentCsv } from '../split/csv.js';
 import type { Table } from '../table/table.js';
@@ -13,6 +13,7 @@ import { columnMajor, fitPipelineOnRows, fitsByColumns } from '../preprocess/by-
 import { prunePipeline } from '../preprocess/pipeline.js';
 import { appliedCsv, applyRows, type AppliedRow } from '../reconcile/applied.js';
 import { heldOutFromOof } from '../reconcile/held-out.js';
+import { knownRows } from '../reconcile/known-ids.js';
 import { MODELS_VERSION, modelsJson, type ModelsFile, type SavedModel } from '../reconcile/models-file.js';
 import { idOrder } from '../split/key.js';
 import { takeInt } from '../table/matrix.js';
@@ -69,6 +70,7 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
     reconcile: { rule: p.reconcile.rule, tie: p.reconcile.tie ?? null },
     folds: cv.models,
     refit,
+    'known-rows': knownRows(input.table.ids, input.table.X, input.table.featureNames),
   };
   const files: Record<string, string> = { 'predictions.csv': predictions, 'models.json': modelsJson(saved) };
   let applied: AppliedRow[] | undefined;
@@ -110,7 +112,9 @@ export function asUserError(e: unknown, protocolFile: string): unknown {
 /** One pipeline and model fitted on every labeled row, visited in id order. */
 function fitOnAll(input: RunInput): SavedModel {
   const { protocol: p, table } = input;
-  const order = idOrder(table.ids);
+  // A final protocol tests fold 1 (the sealed rows): its refit model is fitted on the other rows only.
+  const all = idOrder(table.ids);
+  const order = testsFoldOneOnly(p) ? all.filter((row) => input.assignment.fold[row] !== 1) : all;
   return guardFit(input.protocolFile, () => {
     const y = takeInt(table.y, order);
     const { pipeline, X } = fitPipelineOnRows(p.preprocess, table.X, order, y, table.classes.length, table.featureNames, fitsByColumns(p.preprocess) ? columnMajor(table.X) : undefined);

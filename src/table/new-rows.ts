@@ -9,6 +9,8 @@ export interface NewRows {
   ids: string[];
   X: Matrix;
   ignoredColumns: string[];
+  /** Line in the file where each row starts (for messages). */
+  lines: Int32Array;
 }
 
 /** `known` names columns the protocol already accounts for (label, group, exclusions): ignored without a warning. */
@@ -41,5 +43,5 @@ export function newRowsFromBytes(bytes: Uint8Array, file: string, features: read
   problems.push(...numberProblems(grid, extracted, cols as number[], new Set(missing), file));
   const data = extracted.numbers;
   if (problems.some((p) => p.severity === 'error')) return { problems };
-  return { rows: { ids, X: { rows: t.rows, cols: features.length, data }, ignoredColumns }, problems };
+  return { rows: { ids, X: { rows: t.rows, cols: features.length, data }, ignoredColumns, lines: t.rowLine.slice(0, t.rows) }, problems };
 }

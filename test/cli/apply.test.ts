@@ -72,13 +72,13 @@ t.test('run with reconcile rule refit writes refit rows; majority-vote without a
   const d = tempDir();
   const demo = readFileSync(join(root, 'protocols', 'demo.yaml'), 'utf8').replaceAll('file: data/', `file: ${join(root, 'protocols', 'data')}/`);
   writeFileSync(join(d, 'refit.yaml'), demo.replace('rule: mean-probability', 'rule: refit'));
-  const r = cli(['run', 'refit.yaml', '--out', 'res'], d);
+  const r = cli(['run', 'refit.yaml', '--out', 'res', '--allow-outside'], d);
   t.equal(r.code, 0, r.stderr);
   const sources = readFileSync(join(d, 'res', 'applied.csv'), 'utf8').trimEnd().split('\n').slice(1).map((l) => l.split(',')[1]);
   t.same([...new Set(sources)].sort(), ['held-out', 'refit']);
   t.ok(JSON.parse(readFileSync(join(d, 'res', 'models.json'), 'utf8')).refit, 'the refit model is saved');
   writeFileSync(join(d, 'vote.yaml'), demo.replace('rule: mean-probability', 'rule: majority-vote'));
-  const v = cli(['validate', 'vote.yaml'], d);
+  const v = cli(['validate', 'vote.yaml', '--allow-outside'], d);
   t.equal(v.code, 1);
   t.match(v.stderr, /vote\.yaml:\d+:9: error: majority-vote over 10 fold models and 2 classes can tie, and reconcile\.tie is not set/);
   t.match(v.stderr, 'hint: add `tie: mean-probability`, `tie: abstain` or `tie: class-order`');

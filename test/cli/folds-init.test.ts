@@ -1,4 +1,4 @@
-import { readFileSync } from 'node:fs';
+import { mkdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import t from 'tap';
 import { cli, protocolText, sha256, smallCsv, tempDir } from '../helpers.js';
@@ -58,8 +58,12 @@ t.test('a valid pinned file is used as the assignment', async (t) => {
 
 t.test('init writes a protocol that validates as is, and refuses to overwrite', async (t) => {
   const dir = tempDir({ 'data/trial.csv': csv });
+  const missing = cli(['init', 'data/trial.csv', '--label', 'label', '--id', 'id', '--out', 'protocols/trial.yaml'], dir);
+  t.equal(missing.code, 2, 'a missing parent folder is not created behind the user\'s back');
+  t.equal(missing.stderr, 'protocols/trial.yaml: error: protocols/trial.yaml cannot be written: the folder protocols does not exist\n');
+  mkdirSync(join(dir, 'protocols'));
   const r = cli(['init', 'data/trial.csv', '--label', 'label', '--id', 'id', '--out', 'protocols/trial.yaml'], dir);
-  t.equal(r.code, 0, 'the protocols folder is created');
+  t.equal(r.code, 0, r.stderr);
   t.match(readFileSync(join(dir, 'protocols', 'trial.yaml'), 'utf8'), 'file: "../data/trial.csv"');
   const ok = cli(['init', 'data/trial.csv', '--label', 'label', '--id', 'id', '--group', 'g', '--out', 'trial.yaml'], dir);
   t.equal(ok.code, 0, ok.stderr);

@@ -5,7 +5,7 @@ import { join } from 'node:path';
 import t from 'tap';
 import { bin, root, sha256, tempDir } from '../helpers.js';
 
-const run = (threads: string, args: string[], cwd: string) => spawnSync(process.execPath, [bin, ...args], { cwd, encoding: 'utf8', env: { ...process.env, FOLDSEAL_THREADS: threads, NO_COLOR: '1' } });
+const run = (threads: string, args: string[], cwd: string) => spawnSync(process.execPath, [bin, ...args], { cwd, encoding: 'utf8', env: { ...process.env, FOLDSEAL_THREADS: threads, NO_COLOR: '1', FOLDSEAL_TRUSTED: join(root, 'protocols', 'data') } });
 const demoData = join(root, 'protocols', 'data');
 const demo = readFileSync(join(root, 'protocols', 'demo.yaml'), 'utf8').replaceAll('file: data/', `file: ${demoData}/`);
 // An impute step has no class-moment form, so these folds are fitted row by row, on the workers.

@@ -1,11 +1,12 @@
-import { readFile, writeFile } from 'node:fs/promises';
-import { join } from 'node:path';
+import { join, resolve } from 'node:path';
+import { writeOutputFile } from '../../io/output-file.js';
 import { error, FoldsealError, hasErrors, type Problem } from '../../problems/problem.js';
 import { sha256Bytes } from '../../io/hash.js';
-import { fileProblem } from '../../io/files.js';
+import { fileProblem, readRegular } from '../../io/files.js';
 import { shown } from '../../io/validate.js';
 import { applyRows, appliedCsv, disagreementReport } from '../../reconcile/applied.js';
 import { heldOutFromPredictions } from '../../reconcile/held-out.js';
+import { knownIdProblems } from '../../reconcile/known-ids.js';
 import { MODELS_VERSION, type ModelsFile } from '../../reconcile/models-file.js';
 import { tiePossible } from '../../reconcile/reconcile.js';
 import { RESULTS_VERSION } from '../../run/results.js';
@@ -25,7 +26,7 @@ export interface ApplyArgs {
 
 async function read(path: string): Promise<Buffer> {
   try {
-    return await readFile(path);
+    return await readRegular(path);
   } catch (e) {
     throw new FoldsealError(fileProblem(e as NodeJS.ErrnoException, shown(path), { file: shown(path) }), 2);
   }
@@ -69,6 +70,7 @@ export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<Exit
 
   const tableBytes = await read(args.table);
   const nr = newRowsFromBytes(tableBytes, shown(args.table), saved.features, saved.id ?? undefined, saved.missing, saved['known-columns']);
+  if (nr.rows) nr.problems.push(...knownIdProblems(nr.rows, shown(args.table), saved.features, new Map(Object.entries(saved['known-rows'] ?? {})), () => ({ where: `in the run of ${shown(args.results)}` })));
   reportProblems(io, nr.problems, 'text');
   if (hasErrors(nr.problems) || !nr.rows) return 1;
   let rows;
@@ -81,10 +83,10 @@ export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<Exit
   const comment = overridden ? `foldseal apply: rule ${rule}${tie ? `, tie ${tie}` : ''} (the protocol declares ${saved.reconcile.rule}${saved.reconcile.tie ? `, tie ${saved.reconcile.tie}` : ''})` : undefined;
   const csv = appliedCsv(rows, saved.classes, comment);
   if (args.out) {
-    await writeFile(args.out, csv);
+    await writeOutputFile(resolve(args.out), csv, shown(resolve(args.out)), true);
     if (overridden) {
       const sidecar = { 'foldseal-apply': 1, rule, tie, 'protocol-rule': saved.reconcile.rule, 'protocol-tie': saved.reconcile.tie, 'models-sha256': expected, 'table-sha256': sha256Bytes(tableBytes), 'output-sha256': sha256Bytes(csv) };
-      await writeFile(`${args.out}.json`, JSON.stringify(sidecar, null, 2) + '\n');
+      await writeOutputFile(resolve(`${args.out}.json`), JSON.stringify(sidecar, null, 2) + '\n', shown(resolve(`${args.out}.json`)), true);
     }
     io.err(`wrote ${args.out}${overridden ? ` and ${args.out}.json` : ''}\n`);
   } else io.out(csv);

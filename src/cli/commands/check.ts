@@ -11,11 +11,12 @@ export interface CheckArgs {
   dir: string;
   format: OutputFormat;
   staged?: boolean;
+  allowOutside?: boolean;
 }
 
 export async function checkCommand(args: CheckArgs, io: CommandIo): Promise<ExitCode> {
   const root = resolve(args.dir);
-  const repo = await readRepo(root);
+  const repo = await readRepo(root, Boolean(args.allowOutside));
   const input = repo.input;
   if (args.staged) input.only = stagedScope(root, input);
   const findings = [...repo.problems, ...gate(input)];
@@ -24,7 +25,7 @@ export async function checkCommand(args: CheckArgs, io: CommandIo): Promise<Exit
     reportProblems(io, findings, 'json');
   } else {
     reportProblems(io, findings, 'text');
-    io.err(`${checked} protocol${checked === 1 ? '' : 's'} checked: ${countSummary(findings)}\n`);
+    io.err(`${checked} protocol${checked === 1 ? '' : 's'} checked: ${countSummary(findings)}${skippedNote(repo.skipped)}\n`);
   }
   return hasErrors(findings) ? 1 : 0;
 }
@@ -51,4 +52,11 @@ function stagedScope(root: string, input: GateInput): Set<string> {
   }
   for (const p of protocols) { const data = dataOf(p); if (data && touchedData.has(resolve(data))) scope.add(p.path); }
   return scope;
+}
+
+/** The folders the gate did not look into, so nothing hides there unnoticed. */
+export function skippedNote(skipped: readonly string[]): string {
+  if (!skipped.length) return '';
+  const shownList = skipped.slice(0, 8).join(', ') + (skipped.length > 8 ? `, and ${skipped.length - 8} more` : '');
+  return `; not searched: ${shownList} (add folders to the lock's policy.include to search them)`;
 }

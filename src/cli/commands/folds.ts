@@ -1,6 +1,8 @@
-import { writeFile } from 'node:fs/promises';
+import { resolve } from 'node:path';
+import { writeOutputFile } from '../../io/output-file.js';
+import { protocolPolicy } from '../../io/path-policy.js';
 import { hasErrors } from '../../problems/problem.js';
-import { validateProtocol } from '../../io/validate.js';
+import { shown, validateProtocol } from '../../io/validate.js';
 import { testsFoldOneOnly } from '../../protocol/types.js';
 import { assignmentCsv } from '../../split/csv.js';
 import { foldCounts, sizeSpread } from '../../split/summary.js';
@@ -8,15 +10,15 @@ import type { CommandIo, ExitCode } from '../io.js';
 import { reportProblems } from '../report-problems.js';
 import { textTable } from '../text-table.js';
 
-export async function foldsCommand(args: { protocol: string; out?: string }, io: CommandIo): Promise<ExitCode> {
-  const report = await validateProtocol(args.protocol);
+export async function foldsCommand(args: { protocol: string; out?: string; allowOutside?: boolean }, io: CommandIo): Promise<ExitCode> {
+  const report = await validateProtocol(args.protocol, { access: protocolPolicy(args.protocol, Boolean(args.allowOutside)) });
   reportProblems(io, report.problems, 'text');
   if (report.unreadable) return 2;
   if (hasErrors(report.problems) || !report.assignment || !report.table || !report.protocol) return 1;
   const a = report.assignment;
   const t = report.table;
   const csv = assignmentCsv(a);
-  if (args.out) await writeFile(args.out, csv);
+  if (args.out) await writeOutputFile(resolve(args.out), csv, shown(resolve(args.out)), true);
   else io.out(csv);
   const counts = foldCounts(a, t.y, t.classes.length);
   const header = ['repeat', 'fold', 'rows', ...t.classes.map((c) => `n[${c}]`)];

@@ -1,6 +1,7 @@
-import { mkdir, writeFile } from 'node:fs/promises';
+import { writeOutputFile } from '../../io/output-file.js';
+import { protocolPolicy } from '../../io/path-policy.js';
 import { basename, dirname, extname, relative, resolve } from 'node:path';
-import { error, hasErrors } from '../../problems/problem.js';
+import { hasErrors } from '../../problems/problem.js';
 import { FoldsealError } from '../../problems/problem.js';
 import { readBytes } from '../../io/files.js';
 import { shown, validateProtocol } from '../../io/validate.js';
@@ -47,14 +48,10 @@ export async function initCommand(args: InitArgs, io: CommandIo): Promise<ExitCo
     // A fixed seed derived from the data hash: reproducible, and not chosen after seeing scores.
     seed: parseInt(read.sha256!.slice(0, 8), 16),
   });
-  await mkdir(dirname(out), { recursive: true });
-  try {
-    await writeFile(out, text, { flag: args.force ? 'w' : 'wx' });
-  } catch (e) {
-    if ((e as NodeJS.ErrnoException).code === 'EEXIST') throw new FoldsealError(error('refuse-overwrite', `${shown(out)} already exists`, { hint: 'pass --force to replace it, or --out to choose another name' }), 2);
-    throw e;
-  }
-  const report = await validateProtocol(out);
+  await writeOutputFile(out, text, shown(out), Boolean(args.force));
+  // The user named the data file: the protocol may point to it wherever it lies.
+  const policy = protocolPolicy(out);
+  const report = await validateProtocol(out, { access: { ...policy, roots: [...policy.roots, dirname(dataPath)] } });
   reportProblems(io, report.problems, 'text');
   io.err(`wrote ${shown(out)} (${t.ids.length} rows, ${t.classes.length} classes, ${t.X.cols} features)\n`);
   return hasErrors(report.problems) ? 1 : 0;

@@ -1,5 +1,7 @@
 import { existsSync } from 'node:fs';
-import { readFile, writeFile } from 'node:fs/promises';
+import { writeFile } from 'node:fs/promises';
+import { readRegularText } from '../../io/files.js';
+import { sealedDigests } from '../../check/gate.js';
 import { join, resolve } from 'node:path';
 import { LOCK_FILE, LOCK_VERSION, lockText, parseLock, type Lock } from '../../check/lock.js';
 import { FoldsealError, hasErrors } from '../../problems/problem.js';
@@ -8,9 +10,9 @@ import type { CommandIo, ExitCode } from '../io.js';
 import { reportProblems } from '../report-problems.js';
 
 /** Records every protocol's current state; the printed changes are what a reviewer approves. */
-export async function lockCommand(args: { dir: string }, io: CommandIo): Promise<ExitCode> {
+export async function lockCommand(args: { dir: string; allowOutside?: boolean }, io: CommandIo): Promise<ExitCode> {
   const root = resolve(args.dir);
-  const repo = await readRepo(root);
+  const repo = await readRepo(root, Boolean(args.allowOutside));
   const invalid = repo.input.protocols.flatMap((p) => p.report.problems.filter((q) => q.severity === 'error'));
   if (invalid.length) {
     reportProblems(io, invalid, 'text');
@@ -18,14 +20,18 @@ export async function lockCommand(args: { dir: string }, io: CommandIo): Promise
     return 1;
   }
   const lockPath = join(root, LOCK_FILE);
+  const changes: string[] = [];
   let old: Lock | undefined;
   if (existsSync(lockPath)) {
-    const parsed = parseLock(await readFile(lockPath, 'utf8'), LOCK_FILE);
+    const parsed = parseLock(await readRegularText(lockPath), LOCK_FILE);
     if (!parsed.lock) throw new FoldsealError(parsed.problems, 2);
     old = parsed.lock;
   }
-  const next: Lock = { 'foldseal-lock': LOCK_VERSION, sealed: old?.sealed, policy: old?.policy, protocols: {} };
-  const changes: string[] = [];
+  // Sealed rows are recorded by content too, so a copy under new ids is caught even after the final data moves.
+  const sealedIds = repo.input.sealed?.ids;
+  const sealed = old?.sealed && sealedIds ? { file: old.sealed.file, sha256: old.sealed.sha256, rows: [...new Set([...(old.sealed.rows ?? []), ...sealedDigests(repo.input.protocols, sealedIds)])].sort() } : old?.sealed;
+  if (sealed?.rows?.length && (old?.sealed?.rows?.length ?? 0) !== sealed.rows.length) changes.push(`sealed rows: ${sealed.rows.length} content digest${sealed.rows.length === 1 ? '' : 's'} recorded`);
+  const next: Lock = { 'foldseal-lock': LOCK_VERSION, sealed, policy: old?.policy, protocols: {} };
   for (const p of repo.input.protocols) {
     const entry = p.entry!;
     next.protocols[p.path] = entry;

@@ -2,6 +2,7 @@ import { dirname, relative, resolve } from 'node:path';
 import { readPrivateKey } from '../../io/keys.js';
 import { writeOutputDir } from '../../io/output-dir.js';
 import { produceRun } from '../../io/produce-run.js';
+import { protocolPolicy } from '../../io/path-policy.js';
 import { shown } from '../../io/validate.js';
 import { manifestForRun } from '../../manifest/for-run.js';
 import { disagreementReport } from '../../reconcile/applied.js';
@@ -16,6 +17,7 @@ export interface RunArgs {
   force?: boolean;
   refit?: boolean;
   key?: string;
+  allowOutside?: boolean;
 }
 
 export async function runCommand(args: RunArgs, io: CommandIo): Promise<ExitCode> {
@@ -27,7 +29,7 @@ export async function runCommand(args: RunArgs, io: CommandIo): Promise<ExitCode
     const now = Date.now();
     if (io.errIsTty && now - started > 1500 && now - lastShown > 200) { io.err(`\rfitting fold ${done}/${total}`); lastShown = now; }
   };
-  const { report, input, out } = await produceRun(args.protocol, { refit: args.refit, hooks: { onFold } });
+  const { report, input, out } = await produceRun(args.protocol, { refit: args.refit, hooks: { onFold }, access: protocolPolicy(args.protocol, Boolean(args.allowOutside)), repoRules: true });
   if (lastShown) io.err('\r\x1b[K');
   reportProblems(io, report.problems, 'text');
   if (report.unreadable) return 2;

@@ -1,10 +1,12 @@
 import { existsSync } from 'node:fs';
-import { mkdtemp, readFile, rm, writeFile } from 'node:fs/promises';
+import { mkdtemp, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { error, FoldsealError, hasErrors, warning, type Problem } from '../../problems/problem.js';
 import { sha256Bytes, sha256File } from '../../io/hash.js';
-import { fileProblem } from '../../io/files.js';
+import { fileProblem, readRegularText } from '../../io/files.js';
+import { isInside, outsideProblem, protocolPolicy, realPath, trustedFolders, type PathPolicy } from '../../io/path-policy.js';
+import { selfCheck } from '../../manifest/self-check.js';
 import { readPublicKey } from '../../io/keys.js';
 import { produceRun } from '../../io/produce-run.js';
 import { loadProtocol, shown } from '../../io/validate.js';
@@ -25,6 +27,10 @@ export interface VerifyArgs {
   protocol?: string;
   format: OutputFormat;
   allowUnpinned?: boolean;
+  /** Re-run although the manifest is not signed by a pinned key. */
+  allowUnsigned?: boolean;
+  /** Let the re-run read files outside the review folders. */
+  allowOutside?: boolean;
   strict?: boolean;
 }
 
@@ -32,7 +38,7 @@ export async function verifyCommand(args: VerifyArgs, io: CommandIo): Promise<Ex
   const file = shown(resolve(args.manifest));
   let text: string;
   try {
-    text = await readFile(args.manifest, 'utf8');
+    text = await readRegularText(args.manifest, MANIFEST_MAX_BYTES);
   } catch (e) {
     throw new FoldsealError(fileProblem(e as NodeJS.ErrnoException, file, { file }), 2);
   }
@@ -46,7 +52,15 @@ export async function verifyCommand(args: VerifyArgs, io: CommandIo): Promise<Ex
   if (usable) {
     lines.push(check.signedBy ? `signature: valid, signed by ${check.signedBy}${check.pinned ? '' : ' (embedded key, not pinned)'}` : 'signature: not verified');
     lines.push(`files: ${await checkSiblings(m, dirname(resolve(args.manifest)), Boolean(args.strict), problems)}`);
-    if (args.rerun) {
+    const inconsistent = selfCheck(m, file, await readFileOr(join(dirname(resolve(args.manifest)), 'results.json'), undefined));
+    problems.push(...inconsistent);
+    const trusted = check.pinned && check.signedBy !== undefined && !hasErrors(check.problems);
+    if (args.rerun && inconsistent.length) {
+      problems.push(error('rerun-failed', 'the manifest contradicts itself, so it was not re-run', { file }));
+    } else if (args.rerun && !trusted && !args.allowUnsigned) {
+      problems.push(error('rerun-untrusted', `the manifest is not ${check.signedBy ? 'signed by a pinned key' : 'validly signed'}, so its protocol was not re-run: a re-run reads the files the manifest names`, { file, hint: "pin the author's key with --key AUTHOR.pub, or pass --allow-unsigned if you trust where this manifest came from" }));
+      problems.push(error('rerun-failed', 'not re-run', { file }));
+    } else if (args.rerun) {
       const rerun = await rerunManifest(m, args, problems);
       differences = rerun.differences;
       lines.push(...rerun.lines);
@@ -67,6 +81,11 @@ export async function verifyCommand(args: VerifyArgs, io: CommandIo): Promise<Ex
 
 async function checkSiblings(m: Manifest & { files: Record<string, string> }, dir: string, strict: boolean, problems: Problem[]): Promise<string> {
   const parts: string[] = [];
+  const names = Object.keys(m.files);
+  if (names.length && names.every((name) => !existsSync(join(dir, name)))) {
+    problems.push(error('results-missing', `none of the ${names.length} result files the manifest lists (${names.join(', ')}) is next to it, so there is nothing left to vouch for`, { file: shown(join(dir, 'manifest.json')), hint: 'verify the manifest inside its results folder' }));
+    return names.map((name) => `${name} missing`).join(', ');
+  }
   for (const [name, sha] of Object.entries(m.files)) {
     const path = join(dir, name);
     if (!existsSync(path)) {
@@ -83,6 +102,7 @@ async function checkSiblings(m: Manifest & { files: Record<string, string> }, di
 
 async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Promise<{ differences: Difference[]; lines: string[] }> {
   const manifestDir = dirname(resolve(args.manifest));
+  const access = reviewPolicy(manifestDir, args);
   let doc: any;
   let base: string;
   if (args.protocol) {
@@ -98,6 +118,16 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
     base = resolve(manifestDir, m.protocol.location);
   }
   const protocolSha = canonicalSha256(doc);
+  // Nothing is read before every path the manifest (or protocol) names is known to lie inside the review folders.
+  const named: [string, string, string][] = [];
+  if (!args.data) named.push([resolve(base, doc.data.file), doc.data.file, 'data file']);
+  if (doc.split?.pinned) named.push([resolve(base, doc.split.pinned.file), doc.split.pinned.file, 'pinned assignment file']);
+  if (doc.reconcile?.['new-rows']) named.push([resolve(base, doc.reconcile['new-rows'].file), doc.reconcile['new-rows'].file, 'new-rows file']);
+  const outside = named.map(([path, as, what]) => outsideProblem(path, access, as, what, { file: shown(resolve(args.manifest)) })).filter((q): q is Problem => q !== undefined);
+  if (outside.length) {
+    problems.push(...outside, error('rerun-failed', 'the re-run would read files outside the review folders, so it was not started', { hint: 'pass --data FILE and --protocol FILE with your own copies, or --allow-outside if you trust this manifest' }));
+    return { differences: [], lines: [] };
+  }
   doc.data.file = args.data ? resolve(args.data) : resolve(base, doc.data.file);
   if (doc.split?.pinned) doc.split.pinned.file = resolve(base, doc.split.pinned.file);
   if (doc.reconcile?.['new-rows']) doc.reconcile['new-rows'].file = resolve(base, doc.reconcile['new-rows'].file);
@@ -114,7 +144,7 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
   try {
     const path = join(work, 'protocol.yaml');
     await writeFile(path, JSON.stringify(doc, null, 2));
-    const { report, input, out } = await produceRun(path, { refit: await recordedRefit(join(manifestDir, 'models.json')) });
+    const { report, input, out } = await produceRun(path, { refit: await recordedRefit(join(manifestDir, 'models.json')), access: { ...access, roots: [...access.roots, ...(args.data ? [dirname(resolve(args.data))] : [])] } });
     if (!input || !out) {
       problems.push(...report.problems.filter((p) => p.severity === 'error'), error('rerun-failed', 'the protocol did not validate on the local data, so it could not be re-run'));
       return { differences: [], lines: [] };
@@ -144,11 +174,36 @@ async function recordedRefit(modelsPath: string): Promise<boolean> {
   }
 }
 
-async function readFileOr(path: string, fallback: string): Promise<string> {
+async function readFileOr<T extends string | undefined>(path: string, fallback: T): Promise<string | T> {
   try {
-    return await readFile(path, 'utf8');
+    return await readRegularText(path);
   } catch {
     return fallback;
+  }
+}
+
+/** The largest manifest foldseal reads (a 1,000,000-row assignment is about 40 MB). */
+const MANIFEST_MAX_BYTES = 512 << 20;
+
+/**
+ * Where a re-run may read: the review folder of the manifest — the git work tree it lies in, else
+ * the working folder when it holds the manifest, else the manifest's own folder — and the folders
+ * of the files the user named (--protocol, --data), and the trusted folders.
+ */
+export function reviewPolicy(manifestDir: string, args: Pick<VerifyArgs, 'protocol' | 'data' | 'allowOutside'>): PathPolicy {
+  const roots = [gitTop(manifestDir) ?? (isInside(realPath(manifestDir), realPath(process.cwd())) ? process.cwd() : manifestDir)];
+  if (args.protocol) roots.push(...protocolPolicy(args.protocol).roots);
+  if (args.data) roots.push(dirname(resolve(args.data)));
+  return { roots: [...new Set([...roots, ...trustedFolders()])], allowOutside: Boolean(args.allowOutside) };
+}
+
+function gitTop(dir: string): string | undefined {
+  let at = realPath(dir);
+  for (;;) {
+    if (existsSync(join(at, '.git'))) return at;
+    const up = dirname(at);
+    if (up === at) return undefined;
+    at = up;
   }
 }
 
