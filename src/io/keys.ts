@@ -56,6 +56,7 @@ export async function writeKeyPair(prefix: string): Promise<string> {
     await writeFile(keyPath, privateKey.export({ format: 'pem', type: 'pkcs8' }), { flag: 'wx', mode: 0o600 });
     await chmod(keyPath, 0o600);
   } catch (e) {
+    if ((e as NodeJS.ErrnoException).code !== 'EEXIST') await unlink(keyPath).catch(() => undefined);
     throw new FoldsealError(writeProblem(e as NodeJS.ErrnoException, keyPath), 2);
   }
   try {

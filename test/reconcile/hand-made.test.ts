@@ -47,7 +47,7 @@ t.test('mean-probability averages the models (the hand-worked 0.5102)', async (t
 
 t.test('rows, sources and the report', async (t) => {
   const refit = fold(2.8, 9);
-  const rows = { ids: ['n-b', 'n-a', 'known'], X, ignoredColumns: [] };
+  const rows = { ids: ['n-b', 'n-a', 'known'], X, ignoredColumns: [], lines: new Int32Array([2, 3, 4]) };
   const heldOut = new Map([['known', { mean: Float64Array.from([0.9, 0.1]), tops: [0, 0, 1] }]]);
   const voted = applyRows({ kind: 'gaussian-nb', folds, refit, classes: ['no', 'yes'], rule: 'majority-vote', tie: 'abstain', rows, heldOut });
   t.same(voted.map((r) => [r.id, r.source, r.predicted]), [['known', 'held-out', 0], ['n-a', 'folds', -1], ['n-b', 'folds', 1]], 'sorted by id bytes; held-out ids keep their held-out value');
