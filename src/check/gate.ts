@@ -6,7 +6,8 @@ import { error, warning, type Problem } from '../problems/problem.js';
 import { locate, type SourceDocument } from '../protocol/document.js';
 import { isPinned } from '../protocol/types.js';
 import type { ValidationReport } from '../io/validate.js';
-import type { ManifestCheck } from '../manifest/check.js';
+import { rawFingerprint, type ManifestCheck } from '../manifest/check.js';
+import { parseKeyLines } from '../manifest/ssh.js';
 import type { LockEntry, ParsedLock } from './lock.js';
 import { rowDigests } from '../table/row-digest.js';
 
@@ -144,8 +145,18 @@ function policyFindings(g: GateInput, inScope: (p: string) => boolean): Problem[
     for (const m of g.manifests) {
       const by = m.check.signedBy;
       if (!by) out.push(error('policy-unsigned', 'this manifest has no valid signature, and the lock requires one', { file: m.file, hint: `sign with foldseal run --key; allowed signers: ${policy.signers.join(', ')}` }));
-      else if (!policy.signers.includes(by)) out.push(error('policy-signer', `this manifest is signed by ${by}, which is not an allowed signer in the lock`, { file: m.file }));
+      else if (!policy.signers.some((s) => signerMatches(s, by, m.check.sshFingerprint))) out.push(error('policy-signer', `this manifest is signed by ${by}, which is not an allowed signer in the lock`, { file: m.file }));
     }
   }
   return out;
+}
+
+/**
+ * A policy signer: the hex fingerprint foldseal keygen prints, OpenSSH's `SHA256:…` fingerprint,
+ * or an OpenSSH public key line (as in an allowed_signers file, principals first or not).
+ */
+export function signerMatches(entry: string, hex: string, sshFp: string | undefined): boolean {
+  const e = entry.trim();
+  if (e === hex || (sshFp !== undefined && e === sshFp)) return true;
+  return parseKeyLines(e).keys.some((k) => k.key.raw !== undefined && rawFingerprint(k.key.raw) === hex);
 }

@@ -2,7 +2,10 @@
 import { createPrivateKey, createPublicKey, generateKeyPairSync, type KeyObject } from 'node:crypto';
 import { chmod, lstat, unlink, writeFile } from 'node:fs/promises';
 import { error, FoldsealError } from '../problems/problem.js';
-import { fingerprint } from '../manifest/sign.js';
+import { fingerprint, rawPublicKey } from '../manifest/sign.js';
+import type { PinnedKey } from '../manifest/check.js';
+import { ed25519Blob, ed25519SignatureBlob, isOpensshPrivateKey, MANIFEST_NAMESPACE, parseKeyLines, parseOpensshPrivateKey, signatureFromBlob, SSH_ED25519, sshFingerprint, type SshPublicKey } from '../manifest/ssh.js';
+import { AgentError, agentIdentities, agentSign } from './ssh-agent.js';
 import { fileProblem, readRegularText } from './files.js';
 import { writeProblem } from './output-file.js';
 
@@ -18,30 +21,97 @@ function keyError(path: string, message: string, hint?: string): FoldsealError {
   return new FoldsealError(error('bad-key', message, { file: path, hint }), 2);
 }
 
-export async function readPrivateKey(path: string): Promise<{ privateKey: KeyObject; publicKey: KeyObject }> {
-  const pem = await readPem(path);
-  if (/-----BEGIN PUBLIC KEY-----/.test(pem)) throw keyError(path, `${path} is a public key; signing needs the private key`, 'pass the .key file that foldseal keygen wrote, not the .pub');
+/** How a manifest gets signed: a foldseal key embeds the signature; an SSH key writes manifest.json.sig. */
+export type SigningKey =
+  | { kind: 'raw'; privateKey: KeyObject; publicKey: KeyObject }
+  | { kind: 'ssh'; blob: Buffer; describe: string; sign: (data: Buffer) => Promise<Buffer> };
+
+/**
+ * The key `run --key PATH` signs with:
+ * - a PEM private key from foldseal keygen (the signature is embedded in manifest.json);
+ * - an unencrypted OpenSSH Ed25519 private key (~/.ssh/id_ed25519): an SSH signature;
+ * - an OpenSSH public key (~/.ssh/id_ed25519.pub): the same signature made by ssh-agent, so the
+ *   private key never touches foldseal.
+ */
+export async function readSigningKey(path: string, env: NodeJS.ProcessEnv = process.env): Promise<SigningKey> {
+  const text = await readPem(path);
+  if (isOpensshPrivateKey(text)) return opensshSigner(path, text);
+  if (/-----BEGIN PUBLIC KEY-----/.test(text)) throw keyError(path, `${path} is a public key; signing needs the private key`, 'pass the .key file that foldseal keygen wrote, not the .pub');
+  const lines = parseKeyLines(text);
+  if (lines.keys.length) return agentSigner(path, lines.keys[0].key, env);
   let key: KeyObject;
   try {
-    key = createPrivateKey(pem);
+    key = createPrivateKey(text);
   } catch {
-    throw keyError(path, `${path} is not a PEM private key`);
+    throw keyError(path, `${path} is not a private key foldseal reads (a PEM key from foldseal keygen, an OpenSSH private key, or an OpenSSH public key to sign through ssh-agent)`);
   }
-  if (key.asymmetricKeyType !== 'ed25519') throw keyError(path, `${path} is a ${key.asymmetricKeyType} key; foldseal signs with Ed25519`, 'make one with foldseal keygen');
-  return { privateKey: key, publicKey: createPublicKey(key) };
+  if (key.asymmetricKeyType !== 'ed25519') throw keyError(path, `${path} is a ${key.asymmetricKeyType} key; foldseal signs with Ed25519`, 'make one with foldseal keygen or ssh-keygen -t ed25519');
+  return { kind: 'raw', privateKey: key, publicKey: createPublicKey(key) };
 }
 
-export async function readPublicKey(path: string): Promise<KeyObject> {
-  const pem = await readPem(path);
-  if (/-----BEGIN (ENCRYPTED |)PRIVATE KEY-----/.test(pem)) throw keyError(path, `${path} is a private key; verifying needs only the public key`, 'pass the .pub file, and keep the .key file to yourself');
-  let key: KeyObject;
+function opensshSigner(path: string, text: string): SigningKey {
+  let parsed;
   try {
-    key = createPublicKey(pem);
-  } catch {
-    throw keyError(path, `${path} is not a PEM public key`);
+    parsed = parseOpensshPrivateKey(text);
+  } catch (e) {
+    throw keyError(path, `${path} is not a readable OpenSSH private key: ${(e as Error).message}`);
   }
-  if (key.asymmetricKeyType !== 'ed25519') throw keyError(path, `${path} is a ${key.asymmetricKeyType} key; foldseal manifests are signed with Ed25519`);
-  return key;
+  if (parsed.kind === 'encrypted') throw keyError(path, `${path} is protected by a passphrase (${parsed.cipher}); foldseal never asks for passphrases`, `load it into your agent (ssh-add ${path}) and pass the public key: --key ${path}.pub`);
+  if (parsed.kind === 'other') throw keyError(path, `${path} is a ${parsed.type} key; foldseal signs with Ed25519 keys only`, 'make one with ssh-keygen -t ed25519');
+  const privateKey = parsed.privateKey;
+  return { kind: 'ssh', blob: ed25519Blob(parsed.raw), describe: `${sshFingerprint(ed25519Blob(parsed.raw))}${parsed.comment ? ` (${parsed.comment})` : ''}`, sign: async (data) => ed25519SignatureBlob(privateKey, data) };
+}
+
+function agentSigner(path: string, key: SshPublicKey, env: NodeJS.ProcessEnv): SigningKey {
+  if (key.type !== SSH_ED25519) throw keyError(path, `${path} is a ${key.type} key; foldseal signs with Ed25519 keys only`, 'make one with ssh-keygen -t ed25519');
+  const socket = env.SSH_AUTH_SOCK;
+  if (!socket) throw keyError(path, `${path} is a public key, and signing with it needs ssh-agent, but SSH_AUTH_SOCK is not set`, 'start an agent (eval "$(ssh-agent)") and add the key (ssh-add), or pass the private key file');
+  const fp = sshFingerprint(key.blob);
+  return {
+    kind: 'ssh',
+    blob: key.blob,
+    describe: `${fp} (through ssh-agent)`,
+    sign: async (data) => {
+      try {
+        const held = await agentIdentities(socket);
+        if (!held.some((h) => h.blob.equals(key.blob))) throw new AgentError(`the agent does not hold the key ${fp}`);
+        const blob = await agentSign(socket, key.blob, data);
+        if (signatureFromBlob(blob).type !== SSH_ED25519) throw new AgentError('the agent answered with a signature of another type');
+        return blob;
+      } catch (e) {
+        if (e instanceof AgentError) throw keyError(path, `signing through ssh-agent failed: ${e.message}`, `add the key with ssh-add (ssh-add -l lists what the agent holds)`);
+        throw e;
+      }
+    },
+  };
+}
+
+/**
+ * The keys `verify --key FILE` (and the team policy) pin: a PEM public key from foldseal keygen,
+ * OpenSSH public key lines (a .pub file, an authorized_keys-style list), or git's allowed_signers
+ * file. Only Ed25519 keys are kept; lines limited to other namespaces are left out.
+ */
+export async function readPinnedKeys(path: string): Promise<PinnedKey[]> {
+  const text = await readPem(path);
+  if (/-----BEGIN (ENCRYPTED |OPENSSH |)PRIVATE KEY-----/.test(text)) throw keyError(path, `${path} is a private key; verifying needs only the public key`, 'pass the .pub file, and keep the private key to yourself');
+  if (/-----BEGIN PUBLIC KEY-----/.test(text)) {
+    let key: KeyObject;
+    try {
+      key = createPublicKey(text);
+    } catch {
+      throw keyError(path, `${path} is not a PEM public key`);
+    }
+    if (key.asymmetricKeyType !== 'ed25519') throw keyError(path, `${path} is a ${key.asymmetricKeyType} key; foldseal manifests are signed with Ed25519`);
+    return [{ raw: rawPublicKey(key) }];
+  }
+  const { keys, problems } = parseKeyLines(text);
+  if (problems.length) throw keyError(path, `${path} line ${problems[0].line} ${problems[0].message}`);
+  const usable = keys.filter((k) => k.key.type === SSH_ED25519 && !k.certAuthority && (!k.namespaces || k.namespaces.includes(MANIFEST_NAMESPACE)));
+  if (!usable.length) {
+    const types = [...new Set(keys.map((k) => k.key.type))];
+    throw keyError(path, keys.length ? `${path} holds no Ed25519 key usable for foldseal manifests (${types.join(', ')}${keys.some((k) => k.namespaces) ? '; or limited to other namespaces' : ''}); foldseal verifies Ed25519 signatures only` : `${path} holds no public key`);
+  }
+  return usable.map((k) => ({ raw: k.key.raw!, principals: k.principals }));
 }
 
 /** Writes PREFIX.key (mode 0600) and PREFIX.pub: both or neither, never over an existing file. */

@@ -92,7 +92,7 @@ async function folderState(dir: string): Promise<FolderState> {
   try {
     const manifest = JSON.parse(await readFile(join(dir, 'manifest.json'), 'utf8'));
     if (!manifest || typeof manifest['foldseal-manifest'] !== 'number' || typeof manifest.files !== 'object' || manifest.files === null) throw new Error('not ours');
-    listed = new Set(['manifest.json', ...Object.keys(manifest.files)]);
+    listed = new Set(['manifest.json', 'manifest.json.sig', ...Object.keys(manifest.files)]);
   } catch {
     return { kind: 'foreign', why: `is a folder with ${entries.length} entr${entries.length === 1 ? 'y' : 'ies'} (${entries.slice(0, LIST).join(', ')}${entries.length > LIST ? ', …' : ''}) and no foldseal manifest` };
   }

@@ -60,7 +60,8 @@ export async function readRepo(root: string, allowOutside = false): Promise<Repo
   if (lock?.lock?.policy?.signers) {
     for (const file of await findManifests(join(root, 'results'))) {
       const text = await readRegularText(file);
-      manifests.push({ file: shown(file), check: checkManifest(text, { file: shown(file), allowUnpinned: true }) });
+      const detached = await readRegularText(`${file}.sig`).catch(() => undefined);
+      manifests.push({ file: shown(file), check: checkManifest(text, { file: shown(file), allowUnpinned: true, detached }) });
     }
   }
   return { input: { protocols, lock, lockFile, sealed, manifests }, problems, skipped: discovered.skipped };

@@ -1,24 +1,41 @@
 /** Checks of a manifest's own bytes: JSON, version, schema, canonical form, signature. Pure (keys are passed in). */
-import { createPublicKey, type KeyObject } from 'node:crypto';
+import { createHash, createPublicKey, type KeyObject } from 'node:crypto';
 import { error, warning, type Problem } from '../problems/problem.js';
 import { schemaValidator } from '../protocol/schema.js';
 import { MANIFEST_VERSION, type Manifest } from './build.js';
 import { canonicalJson, NonJsonValueError } from './canonical.js';
 import { changedMembers, fingerprint, manifestText, memberDigests, signatureValid, type Signature } from './sign.js';
+import { ed25519Blob, MANIFEST_NAMESPACE, parseSshsig, SSH_ED25519, sshFingerprint, SshFormatError, sshsigValid, type Sshsig } from './ssh.js';
+
+/** A key the reviewer trusts: the raw Ed25519 key and, from an allowed_signers file, who it belongs to. */
+export interface PinnedKey {
+  raw: Buffer;
+  principals?: string[];
+}
 
 export interface ManifestCheck {
   manifest?: Manifest;
   problems: Problem[];
-  /** Fingerprint of the key the signature verified with. */
+  /** Fingerprint of the key the signature verified with (hex SHA-256 of the raw key). */
   signedBy?: string;
+  /** For an SSH signature (manifest.json.sig): OpenSSH's fingerprint of the key, and the principals the pinned file gives it. */
+  ssh?: { fingerprint: string; principals?: string[] };
+  /** OpenSSH's fingerprint (SHA256:…) of the signing key, however the manifest was signed. */
+  sshFingerprint?: string;
   pinned: boolean;
 }
 
 export interface CheckOptions {
   file: string;
-  /** The signer's public key as the reviewer has it; without it the embedded key is unpinned. */
-  publicKey?: KeyObject;
+  /** The signer's public key(s) as the reviewer has them; without them the embedded key is unpinned. */
+  pinned?: PinnedKey[];
   allowUnpinned?: boolean;
+  /** The text of manifest.json.sig next to the manifest (an SSH signature over the file's bytes), when there is one. */
+  detached?: string;
+}
+
+export function rawFingerprint(raw: Uint8Array): string {
+  return createHash('sha256').update(raw).digest('hex');
 }
 
 export function checkManifest(text: string, o: CheckOptions): ManifestCheck {
@@ -51,6 +68,14 @@ export function checkManifest(text: string, o: CheckOptions): ManifestCheck {
   if (text !== canonical) {
     problems.push(error('manifest-not-canonical', 'the file is not the canonical JSON foldseal writes (its bytes were changed after it was written)', { file, hint: 'a reformatted copy cannot be checked byte for byte; use the original file' }));
   }
+  if (signature && o.detached !== undefined) {
+    problems.push(error('signature-twice', 'the manifest carries a signature and has a manifest.json.sig beside it; a manifest is signed one way', { file }));
+    return { manifest, problems, pinned: false };
+  }
+  if (!signature && o.detached !== undefined) {
+    const d = checkDetached(text, o);
+    return { manifest, ...d, problems: [...problems, ...d.problems] };
+  }
   if (!signature) {
     problems.push((o.allowUnpinned ? warning : error)('manifest-unsigned', 'the manifest is not signed', { file, hint: 'the author signs with foldseal run --key PREFIX.key' }));
     return { manifest, problems, pinned: false };
@@ -71,27 +96,56 @@ export function checkManifest(text: string, o: CheckOptions): ManifestCheck {
     return { manifest, problems, pinned: false };
   }
   if (fingerprint(embedded) !== signature['key-sha256']) problems.push(error('signature-key-mismatch', 'the embedded public key does not match its recorded fingerprint', { file }));
-  let key = embedded;
-  if (o.publicKey) {
-    const given = fingerprint(o.publicKey);
-    if (given !== signature['key-sha256']) {
-      problems.push(error('signature-wrong-key', `the manifest is signed by key ${signature['key-sha256']}, not by the given key ${given}`, { file }));
-      return { manifest, problems, pinned: true };
-    }
-    key = o.publicKey;
+  const pinnedKeys = o.pinned ?? [];
+  if (pinnedKeys.length && !pinnedKeys.some((k) => rawFingerprint(k.raw) === signature['key-sha256'])) {
+    problems.push(error('signature-wrong-key', `the manifest is signed by key ${signature['key-sha256']}, not by the given key${pinnedKeys.length === 1 ? '' : 's'} ${pinnedKeys.map((k) => rawFingerprint(k.raw)).join(', ')}`, { file }));
+    return { manifest, problems, pinned: true };
   }
-  if (!signatureValid(manifest, key, signature.value)) {
+  const pinned = pinnedKeys.length > 0;
+  if (!signatureValid(manifest, embedded, signature.value)) {
     const changed = changedMembers(manifest, signature.members);
     problems.push(error('signature-invalid', changed.length ? `the signature does not match the content: ${changed[0]} changed after signing${changed.length > 1 ? ` (and ${changed.length - 1} more member${changed.length === 2 ? '' : 's'}: ${changed.slice(1, 6).join(', ')})` : ''}` : 'the signature does not match the content (the signature itself was changed)', { file }));
-    return { manifest, problems, pinned: Boolean(o.publicKey) };
+    return { manifest, problems, pinned };
   }
   // The member digests are diagnostics outside the signed bytes; with a valid signature they must
   // still equal the content's, or someone edited them.
   if (canonicalJson(signature.members) !== canonicalJson(memberDigests(manifest))) {
     problems.push(error('signature-members-edited', 'signature.members no longer matches the signed content (it was edited)', { file }));
   }
-  if (!o.publicKey) {
-    problems.push((o.allowUnpinned ? warning : error)('signature-unpinned', `the signature is valid for the key embedded in the manifest (${signature['key-sha256']}), but that key is not pinned`, { file, hint: "pass the author's public key with --key AUTHOR.pub (or --allow-unpinned to accept the embedded key)" }));
+  if (!pinned) problems.push(unpinnedProblem(signature['key-sha256'], file, o.allowUnpinned));
+  return { manifest, problems, signedBy: signature['key-sha256'], sshFingerprint: sshFingerprint(ed25519Blob(Buffer.from(signature['public-key'], 'base64'))), pinned };
+}
+
+function unpinnedProblem(fp: string, file: string, allowUnpinned?: boolean) {
+  return (allowUnpinned ? warning : error)('signature-unpinned', `the signature is valid for the key embedded in the manifest (${fp}), but that key is not pinned`, { file, hint: "pass the author's public key with --key AUTHOR.pub (an OpenSSH key line or an allowed_signers file will do), or --allow-unpinned to accept the embedded key" });
+}
+
+/**
+ * An SSH signature in manifest.json.sig: SSHSIG over the exact bytes of manifest.json, namespace
+ * foldseal-manifest, Ed25519 keys only. `ssh-keygen -Y verify` checks the same thing.
+ */
+function checkDetached(text: string, o: CheckOptions): Omit<ManifestCheck, 'manifest'> {
+  const file = `${o.file}.sig`;
+  const problems: Problem[] = [];
+  let sig: Sshsig;
+  try {
+    sig = parseSshsig(o.detached!);
+  } catch (e) {
+    if (!(e instanceof SshFormatError)) throw e;
+    return { problems: [error('signature-encoding', `manifest.json.sig is not an SSH signature: ${e.message}`, { file })], pinned: false };
   }
-  return { manifest, problems, signedBy: signature['key-sha256'], pinned: Boolean(o.publicKey) };
+  if (sig.publicKey.type !== SSH_ED25519) return { problems: [error('signature-key-type', `manifest.json.sig is made with a ${sig.publicKey.type} key; foldseal verifies Ed25519 signatures only`, { file, hint: 'sign with an Ed25519 key (ssh-keygen -t ed25519)' })], pinned: false };
+  if (sig.namespace !== MANIFEST_NAMESPACE) return { problems: [error('signature-namespace', `manifest.json.sig is a signature for namespace "${sig.namespace}", not "${MANIFEST_NAMESPACE}" (a signature made for another purpose)`, { file, hint: `sign with ssh-keygen -Y sign -n ${MANIFEST_NAMESPACE}` })], pinned: false };
+  const hex = rawFingerprint(sig.publicKey.raw!);
+  const ssh = { fingerprint: sshFingerprint(ed25519Blob(sig.publicKey.raw!)) };
+  const pinnedKeys = o.pinned ?? [];
+  const match = pinnedKeys.find((k) => k.raw.equals(sig.publicKey.raw!));
+  if (pinnedKeys.length && !match) {
+    return { problems: [error('signature-wrong-key', `manifest.json.sig is signed by key ${ssh.fingerprint}, not by the given key${pinnedKeys.length === 1 ? '' : 's'} ${pinnedKeys.map((k) => sshFingerprint(ed25519Blob(k.raw))).join(', ')}`, { file })], pinned: true, ssh };
+  }
+  if (!sshsigValid(sig, Buffer.from(text, 'utf8'))) {
+    return { problems: [error('signature-invalid', 'manifest.json.sig does not match the bytes of manifest.json (the manifest or the signature was changed after signing)', { file })], pinned: Boolean(match), ssh };
+  }
+  if (!match) problems.push(unpinnedProblem(ssh.fingerprint, file, o.allowUnpinned));
+  return { problems, signedBy: hex, ssh: { ...ssh, principals: match?.principals }, sshFingerprint: ssh.fingerprint, pinned: Boolean(match) };
 }

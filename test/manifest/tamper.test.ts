@@ -1,5 +1,5 @@
 /** Signed manifests against tampering (fast-check): every mutation must be rejected. */
-import { generateKeyPairSync } from 'node:crypto';
+import { generateKeyPairSync, type KeyObject } from 'node:crypto';
 import { join } from 'node:path';
 import fc from 'fast-check';
 import t from 'tap';
@@ -7,6 +7,7 @@ import { produceRun } from '../../src/io/produce-run.js';
 import { canonicalJson } from '../../src/manifest/canonical.js';
 import { checkManifest } from '../../src/manifest/check.js';
 import { manifestForRun } from '../../src/manifest/for-run.js';
+import { rawPublicKey } from '../../src/manifest/sign.js';
 import { root } from '../helpers.js';
 
 const keyA = generateKeyPairSync('ed25519');
@@ -14,7 +15,8 @@ const keyB = generateKeyPairSync('ed25519');
 const tool = { name: 'foldseal' as const, version: '0.0.0-test', node: 'v20', platform: 'test' };
 const { input, out } = await produceRun(join(root, 'protocols', 'demo.yaml'));
 const { text } = manifestForRun(input!, out!, { tool, created: '2026-12-01T00:00:00.000Z', protocolLocation: '../protocols', key: keyA });
-const rejected = (s: string, publicKey = keyA.publicKey) => checkManifest(s, { file: 'm.json', publicKey }).problems.some((p) => p.severity === 'error');
+const pin = (k: { publicKey: KeyObject }) => [{ raw: rawPublicKey(k.publicKey) }];
+const rejected = (s: string, publicKey = keyA.publicKey) => checkManifest(s, { file: 'm.json', pinned: pin({ publicKey }) }).problems.some((p) => p.severity === 'error');
 
 type Path = (string | number)[];
 function paths(value: unknown, prefix: Path = [], out: Path[] = []): Path[] {
@@ -33,8 +35,8 @@ const get = (o: any, p: Path) => p.reduce((x, k) => x[k], o);
 const set = (o: any, p: Path, v: unknown) => { get(o, p.slice(0, -1))[p[p.length - 1]] = v; };
 
 t.test('the untouched manifest verifies with key A and fails with key B', async (t) => {
-  t.same(checkManifest(text, { file: 'm.json', publicKey: keyA.publicKey }).problems, []);
-  const withB = checkManifest(text, { file: 'm.json', publicKey: keyB.publicKey });
+  t.same(checkManifest(text, { file: 'm.json', pinned: pin(keyA) }).problems, []);
+  const withB = checkManifest(text, { file: 'm.json', pinned: pin(keyB) });
   t.same(withB.problems.map((p) => p.code), ['signature-wrong-key']);
 });
 
@@ -71,10 +73,10 @@ t.test('1,200 generated mutations: none is accepted', async (t) => {
 t.test('a changed value is named by its member path', async (t) => {
   const m = structuredClone(base);
   m.results.summary.accuracy.mean = 0.99;
-  const problems = checkManifest(canonicalJson(m) + '\n', { file: 'm.json', publicKey: keyA.publicKey }).problems;
+  const problems = checkManifest(canonicalJson(m) + '\n', { file: 'm.json', pinned: pin(keyA) }).problems;
   t.same(problems.map((p) => p.message), ['the signature does not match the content: /results/summary changed after signing']);
   const reformatted = JSON.stringify(base, null, 2);
-  t.same(checkManifest(reformatted, { file: 'm.json', publicKey: keyA.publicKey }).problems.map((p) => p.code), ['manifest-not-canonical'], 'a pretty-printed copy is flagged, its signature still holds');
+  t.same(checkManifest(reformatted, { file: 'm.json', pinned: pin(keyA) }).problems.map((p) => p.code), ['manifest-not-canonical'], 'a pretty-printed copy is flagged, its signature still holds');
 });
 
 t.test('bad manifests', async (t) => {

@@ -1,5 +1,6 @@
 import { dirname, relative, resolve } from 'node:path';
-import { readPrivateKey } from '../../io/keys.js';
+import { readSigningKey } from '../../io/keys.js';
+import { encodeSshsig, MANIFEST_NAMESPACE, sshsigSignedData } from '../../manifest/ssh.js';
 import { writeOutputDir } from '../../io/output-dir.js';
 import { produceRun } from '../../io/produce-run.js';
 import { protocolPolicy } from '../../io/path-policy.js';
@@ -21,7 +22,7 @@ export interface RunArgs {
 }
 
 export async function runCommand(args: RunArgs, io: CommandIo): Promise<ExitCode> {
-  const key = args.key ? await readPrivateKey(args.key) : undefined;
+  const key = args.key ? await readSigningKey(args.key) : undefined;
   const started = Date.now();
   let lastShown = 0;
   const onFold = (done: number, total: number) => {
@@ -40,11 +41,17 @@ export async function runCommand(args: RunArgs, io: CommandIo): Promise<ExitCode
     tool: toolInfo(),
     created: new Date().toISOString(),
     protocolLocation: relative(dir, dirname(resolve(args.protocol))).split('\\').join('/') || '.',
-    key,
+    key: key?.kind === 'raw' ? key : undefined,
   });
-  await writeOutputDir(dir, { ...out.files, 'manifest.json': text }, Boolean(args.force), shown(dir));
+  const written: Record<string, string> = { ...out.files, 'manifest.json': text };
+  // An SSH key signs the manifest's bytes in manifest.json.sig, the file `ssh-keygen -Y verify` reads.
+  if (key?.kind === 'ssh') {
+    const bytes = Buffer.from(text, 'utf8');
+    written['manifest.json.sig'] = encodeSshsig(key.blob, MANIFEST_NAMESPACE, 'sha512', await key.sign(sshsigSignedData(MANIFEST_NAMESPACE, 'sha512', bytes)));
+  }
+  await writeOutputDir(dir, written, Boolean(args.force), shown(dir));
   io.out(cvTables(out.cv));
   if (out.applied) io.out(`\nnew rows (reconcile: ${input.protocol.reconcile.rule}):\n` + disagreementReport(out.applied, out.cv.classes));
-  io.out(`wrote ${[...Object.keys(out.files), 'manifest.json'].sort().join(', ')} to ${shown(dir)}${key ? ' (manifest signed)' : ''}\n`);
+  io.out(`wrote ${Object.keys(written).sort().join(', ')} to ${shown(dir)}${key?.kind === 'ssh' ? ` (manifest signed with SSH key ${key.describe})` : key ? ' (manifest signed)' : ''}\n`);
   return 0;
 }

@@ -7,12 +7,12 @@ import { sha256Bytes, sha256File } from '../../io/hash.js';
 import { fileProblem, readRegularText } from '../../io/files.js';
 import { isInside, outsideProblem, protocolPolicy, realPath, trustedFolders, type PathPolicy } from '../../io/path-policy.js';
 import { selfCheck } from '../../manifest/self-check.js';
-import { readPublicKey } from '../../io/keys.js';
+import { readPinnedKeys } from '../../io/keys.js';
 import { produceRun } from '../../io/produce-run.js';
 import { loadProtocol, shown } from '../../io/validate.js';
 import type { Manifest } from '../../manifest/build.js';
 import { canonicalSha256 } from '../../manifest/canonical.js';
-import { checkManifest } from '../../manifest/check.js';
+import { checkManifest, type ManifestCheck } from '../../manifest/check.js';
 import { compareRuns, verdict, type Difference } from '../../manifest/compare.js';
 import { manifestForRun } from '../../manifest/for-run.js';
 import type { CommandIo, ExitCode } from '../io.js';
@@ -42,15 +42,16 @@ export async function verifyCommand(args: VerifyArgs, io: CommandIo): Promise<Ex
   } catch (e) {
     throw new FoldsealError(fileProblem(e as NodeJS.ErrnoException, file, { file }), 2);
   }
-  const publicKey = args.key ? await readPublicKey(args.key) : undefined;
-  const check = checkManifest(text, { file, publicKey, allowUnpinned: args.allowUnpinned });
+  const pinned = args.key ? await readPinnedKeys(args.key) : undefined;
+  const detached = await readFileOr(`${resolve(args.manifest)}.sig`, undefined);
+  const check = checkManifest(text, { file, pinned, allowUnpinned: args.allowUnpinned, detached });
   const problems: Problem[] = [...check.problems];
   const lines: string[] = [];
   let differences: Difference[] = [];
   const m = check.manifest as any;
   const usable = m && !problems.some((p) => p.code === 'manifest-schema');
   if (usable) {
-    lines.push(check.signedBy ? `signature: valid, signed by ${check.signedBy}${check.pinned ? '' : ' (embedded key, not pinned)'}` : 'signature: not verified');
+    lines.push(signatureLine(check));
     lines.push(`files: ${await checkSiblings(m, dirname(resolve(args.manifest)), Boolean(args.strict), problems)}`);
     const inconsistent = selfCheck(m, file, await readFileOr(join(dirname(resolve(args.manifest)), 'results.json'), undefined));
     problems.push(...inconsistent);
@@ -70,7 +71,7 @@ export async function verifyCommand(args: VerifyArgs, io: CommandIo): Promise<Ex
   const reran = Boolean(args.rerun && usable) && !problems.some((p) => p.code === 'rerun-failed');
   const final = reran ? verdict(differences) : failed ? 'not verified' : 'verified';
   if (args.format === 'json') {
-    io.out(JSON.stringify({ verdict: final, 'signed-by': check.signedBy ?? null, pinned: check.pinned, problems, differences }, null, 2) + '\n');
+    io.out(JSON.stringify({ verdict: final, 'signed-by': check.signedBy ?? null, 'ssh-fingerprint': check.ssh?.fingerprint ?? null, principals: check.ssh?.principals ?? null, pinned: check.pinned, problems, differences }, null, 2) + '\n');
   } else {
     reportProblems(io, problems, 'text');
     for (const d of differences) io.out(`  ${d.kind}: ${d.message}\n`);
@@ -219,4 +220,13 @@ function countMetrics(results: any): number {
   let n = 0;
   for (const f of results.folds) n += Object.keys(f.metrics).length;
   return n + Object.keys(results.summary).length * 3;
+}
+
+function signatureLine(check: ManifestCheck): string {
+  if (!check.signedBy) return 'signature: not verified';
+  if (check.ssh) {
+    const who = check.ssh.principals?.length ? ` (${check.ssh.principals.join(', ')})` : '';
+    return `signature: valid SSH signature (manifest.json.sig), signed by ${check.ssh.fingerprint}${who}${check.pinned ? '' : ' (key in the signature, not pinned)'}`;
+  }
+  return `signature: valid, signed by ${check.signedBy}${check.pinned ? '' : ' (embedded key, not pinned)'}`;
 }
