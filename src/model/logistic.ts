@@ -1,13 +1,23 @@
 /**
  * L2-regularized logistic regression. Objective: Σ_i −log p(y_i | x_i) + (l2 / 2)·‖W‖², the
  * intercepts unpenalized. Two classes: one weight vector (sigmoid); more: one per class
- * (softmax), the last intercept fixed at 0 (it is not identifiable). Solver: Newton's method
- * with backtracking line search, deterministic, stopped when the largest absolute component of the
- * gradient of the mean loss (objective / rows) is below `tolerance` (default 1e-10) — then one more
- * step is taken — or when no step lowers the objective any further (the floating-point floor).
+ * (softmax), the last intercept fixed at 0 (it is not identifiable).
+ *
+ * Solver: Newton's method with backtracking line search, deterministic. Stopping rule (scale-aware):
+ * the Newton decrement λ² = gᵀH⁻¹g — twice the decrease of the objective the full step predicts,
+ * invariant to rescaling the features — is compared with the objective itself: once
+ * λ²/2 ≤ tolerance × (1 + objective), one more full step is taken (convergence is quadratic, so
+ * it lands at the floating-point floor) and the solver stops; it also stops when no step lowers
+ * the objective (the floor itself).
+ *
+ * Wide data (at least as many features as training rows): the optimal weights lie in the span of
+ * the training rows (stationarity: l2·w = −Xᵀr), so the fit is done exactly in an orthonormal
+ * basis Q of that span (r ≤ rows directions, modified Gram–Schmidt with re-orthogonalization) on
+ * the projected features XQᵀ, and w = Qᵀu. The penalty is unchanged (‖Qᵀu‖ = ‖u‖).
  */
 import { choleskySolve } from './linalg.js';
 import { FitError, classCounts, type ModelImpl } from './types.js';
+import type { Matrix } from '../table/matrix.js';
 
 export interface LogisticParams {
   classCount: number;
@@ -18,7 +28,8 @@ export interface LogisticParams {
   iterations: number;
 }
 
-const MAX_PARAMETERS = 1200;
+/** Parameters of the dense Newton system above which a tall fit is refused (its Hessian would not fit the time). */
+const MAX_PARAMETERS = 2000;
 
 export const logistic: ModelImpl<LogisticParams> = {
   fit(X, y, options, { classCount }) {
@@ -29,58 +40,31 @@ export const logistic: ModelImpl<LogisticParams> = {
     const present = Array.from(counts.keys()).filter((c) => counts[c] > 0);
     const C = present.length;
     const p = X.cols;
-    const width = p + 1;
-    if (C === 1) return { classCount, present, weights: [new Array(width).fill(0)], iterations: 0 };
-    const blocks = C === 2 ? 1 : C; // weight vectors
-    const dim = blocks * width - (C === 2 ? 0 : 1);
-    if (dim > MAX_PARAMETERS) throw new FitError('logistic-too-wide', `logistic would fit ${dim} parameters; at most ${MAX_PARAMETERS} are supported`, 'add a select step before the model');
+    if (C === 1) return { classCount, present, weights: [new Array(p + 1).fill(0)], iterations: 0 };
     const local = new Int32Array(classCount).fill(-1);
     present.forEach((c, i) => (local[c] = i));
     const yl = Int32Array.from(y, (c) => local[c]);
-    const theta = new Float64Array(blocks * width);
-    const objective = (t: Float64Array) => lossGradHess(X, yl, C, t, l2, false).loss;
-    let iterations = 0;
-    let polished = false;
-    for (;;) {
-      const { loss, grad, hess } = lossGradHess(X, yl, C, theta, l2, true);
-      const g = pack(grad, blocks, width, C);
-      let gmax = 0;
-      for (let i = 0; i < g.length; i++) gmax = Math.max(gmax, Math.abs(g[i]));
-      // The tolerance applies to the gradient of the mean loss, so it means the same for 100 rows as for 100,000.
-      // Once within tolerance, one more Newton step: convergence is quadratic, so it costs one
-      // iteration and lands at the floating-point floor instead of just inside the tolerance.
-      if (gmax / X.rows < tolerance) { if (polished) break; polished = true; }
-      if (iterations >= maxIterations) throw new FitError('logistic-no-convergence', `logistic did not reach gradient tolerance ${tolerance} in ${maxIterations} Newton steps (largest mean-loss gradient ${(gmax / X.rows).toExponential(3)})`, l2 === 0 ? 'the classes may be separable; set model.options.l2 above 0' : 'raise max-iterations or tolerance');
-      const h = packHessian(hess!, blocks, width, C, dim);
-      // A tiny ridge keeps the step defined when l2 = 0 and the Hessian is near singular.
-      let step = choleskySolve(h, g, dim);
-      for (let ridge = 1e-10; step === null && ridge < 1e6; ridge *= 100) {
-        for (let i = 0; i < dim; i++) h[i * dim + i] += ridge;
-        step = choleskySolve(h, g, dim);
-      }
-      /* c8 ignore next -- the ridge loop above makes the matrix positive definite */
-      if (step === null) throw new FitError('logistic-singular', 'logistic: the Newton system is singular');
-      let t = 1;
-      const candidate = new Float64Array(theta.length);
-      let slope = 0;
-      for (let i = 0; i < dim; i++) slope += g[i] * step[i];
-      let decreased = false;
-      // Inside the tolerance the full Newton step is taken as is: the loss change is then below
-      // rounding, so a line search could not tell a good step from a bad one.
-      if (polished) { unpack(theta, step, -1, candidate, blocks, width, C); decreased = true; }
-      for (let tries = 0; tries < 60 && !decreased; tries++) {
-        unpack(theta, step, -t, candidate, blocks, width, C);
-        if (objective(candidate) <= loss - 1e-4 * t * slope) { decreased = true; break; }
-        t /= 2;
-      }
-      // No step lowers the loss any more: we are at the floating-point floor of the optimum.
-      if (!decreased) break;
-      theta.set(candidate);
-      iterations++;
+    const blocks = C === 2 ? 1 : C;
+    if (p >= X.rows && l2 > 0) {
+      // Wide: fit in the span of the training rows.
+      const basis = rowBasis(X);
+      const F = project(X, basis);
+      const inner = newton(F, yl, C, l2, tolerance, maxIterations);
+      const weights = inner.weights.map((u) => {
+        const w = new Array<number>(p + 1).fill(0);
+        for (let k = 0; k < basis.rank; k++) {
+          const uk = u[k];
+          const o = k * p;
+          for (let j = 0; j < p; j++) w[j] += uk * basis.q[o + j];
+        }
+        w[p] = u[basis.rank];
+        return w;
+      });
+      return { classCount, present, weights, iterations: inner.iterations };
     }
-    const weights: number[][] = [];
-    for (let b = 0; b < blocks; b++) weights.push(Array.from(theta.subarray(b * width, (b + 1) * width)));
-    return { classCount, present, weights, iterations };
+    const dim = blocks * (p + 1) - (C === 2 ? 0 : 1);
+    if (dim > MAX_PARAMETERS) throw new FitError('logistic-too-wide', `logistic would fit ${dim} parameters by Newton's method on ${X.rows} rows; at most ${MAX_PARAMETERS} are supported when there are more rows than features`, 'add a select step before the model');
+    return { classCount, present, ...newton(X, yl, C, l2, tolerance, maxIterations) };
   },
 
   predict(m, X) {
@@ -118,6 +102,185 @@ function softmaxInto(data: Float64Array, base: number, p: number, w: Float64Arra
   let s = 0;
   for (let c = 0; c < w.length; c++) { out[c] = Math.exp(out[c] - max); s += out[c]; }
   for (let c = 0; c < w.length; c++) out[c] /= s;
+}
+
+/** Newton's method on the full parameter layout; weights[b] = p weights then the intercept. */
+function newton(X: Matrix, yl: Int32Array, C: number, l2: number, tolerance: number, maxIterations: number): { weights: number[][]; iterations: number } {
+  const p = X.cols;
+  const width = p + 1;
+  const blocks = C === 2 ? 1 : C;
+  const dim = blocks * width - (C === 2 ? 0 : 1);
+  const theta = new Float64Array(blocks * width);
+  const columns = C === 2 ? columnMajor(X) : undefined;
+  if (C === 2) {
+    // Start from the intercept-only optimum's neighbourhood: the log-odds of the classes.
+    let ones = 0;
+    for (let i = 0; i < yl.length; i++) ones += yl[i];
+    theta[p] = Math.log(ones / (yl.length - ones));
+  }
+  const evaluate = (t: Float64Array, derivatives: boolean) => (columns ? binaryLossGradHess(X, columns, yl, t, l2, derivatives) : lossGradHess(X, yl, C, t, l2, derivatives));
+  let iterations = 0;
+  let polished = false;
+  for (;;) {
+    const { loss, grad, hess } = evaluate(theta, true);
+    const g = pack(grad, blocks, width, C);
+    const h = packHessian(hess!, blocks, width, C, dim);
+    // A tiny ridge keeps the step defined when l2 = 0 and the Hessian is near singular.
+    let step = choleskySolve(h, g, dim);
+    for (let ridge = 1e-10; step === null && ridge < 1e6; ridge *= 100) {
+      for (let i = 0; i < dim; i++) h[i * dim + i] += ridge;
+      step = choleskySolve(h, g, dim);
+    }
+    /* c8 ignore next -- the ridge loop above makes the matrix positive definite */
+    if (step === null) throw new FitError('logistic-singular', 'logistic: the Newton system is singular');
+    let decrement = 0;
+    for (let i = 0; i < dim; i++) decrement += g[i] * step[i];
+    if (!Number.isFinite(loss) || !Number.isFinite(decrement)) throw new FitError('logistic-non-finite', 'logistic: the loss or its gradient is not finite (feature values too large for the model to compute with)', 'rescale the features (standardize, or log2p)');
+    if (decrement / 2 <= tolerance * (1 + loss)) {
+      if (polished) break;
+      polished = true;
+    }
+    if (iterations >= maxIterations) {
+      throw new FitError('logistic-no-convergence', `logistic did not converge in ${maxIterations} Newton steps (the next step would still lower the objective by ${(decrement / 2).toExponential(3)}, more than tolerance × (1 + objective) = ${(tolerance * (1 + loss)).toExponential(3)})`, l2 === 0 ? 'the classes may be separable; set model.options.l2 above 0' : 'raise model.options.max-iterations or tolerance');
+    }
+    const candidate = new Float64Array(theta.length);
+    let decreased = false;
+    // Inside the tolerance the full Newton step is taken as is: the loss change is then below
+    // rounding, so a line search could not tell a good step from a bad one.
+    if (polished) { unpack(theta, step, -1, candidate, blocks, width, C); decreased = true; }
+    for (let t = 1, tries = 0; tries < 60 && !decreased; tries++, t /= 2) {
+      unpack(theta, step, -t, candidate, blocks, width, C);
+      if (evaluate(candidate, false).loss <= loss - 1e-4 * t * decrement) decreased = true;
+    }
+    // No step lowers the loss any more: we are at the floating-point floor of the optimum.
+    if (!decreased) break;
+    theta.set(candidate);
+    iterations++;
+  }
+  const weights: number[][] = [];
+  for (let b = 0; b < blocks; b++) weights.push(Array.from(theta.subarray(b * width, (b + 1) * width)));
+  return { weights, iterations };
+}
+
+function columnMajor(X: Matrix): Float64Array {
+  const { rows, cols, data } = X;
+  const out = new Float64Array(rows * cols);
+  for (let r = 0; r < rows; r++) for (let j = 0; j < cols; j++) out[j * rows + r] = data[r * cols + j];
+  return out;
+}
+
+/**
+ * Two classes: loss, gradient and Hessian XᵀVX with X's columns contiguous, so each Hessian
+ * entry is one weighted dot product of two columns (the cost that matters on tall data).
+ */
+function binaryLossGradHess(X: Matrix, columns: Float64Array, y: Int32Array, theta: Float64Array, l2: number, withDerivatives: boolean) {
+  const n = X.rows;
+  const p = X.cols;
+  const width = p + 1;
+  const z = new Float64Array(n).fill(theta[p]);
+  for (let j = 0; j < p; j++) {
+    const w = theta[j];
+    if (w === 0) continue;
+    const o = j * n;
+    for (let i = 0; i < n; i++) z[i] += w * columns[o + i];
+  }
+  let loss = 0;
+  const r = withDerivatives ? new Float64Array(n) : undefined;
+  const v = withDerivatives ? new Float64Array(n) : undefined;
+  for (let i = 0; i < n; i++) {
+    const zi = z[i];
+    const t = y[i] === 1 ? 1 : 0;
+    // log(1 + e^z) − t·z, computed stably
+    loss += (zi > 0 ? zi + Math.log1p(Math.exp(-zi)) : Math.log1p(Math.exp(zi))) - t * zi;
+    if (withDerivatives) {
+      const q = 1 / (1 + Math.exp(-zi));
+      r![i] = q - t;
+      v![i] = q * (1 - q);
+    }
+  }
+  for (let j = 0; j < p; j++) loss += 0.5 * l2 * theta[j] * theta[j];
+  if (!withDerivatives) return { loss, grad: new Float64Array(0), hess: undefined };
+  const grad = new Float64Array(width);
+  const hess = new Float64Array(width * width);
+  for (let a = 0; a < p; a++) {
+    const oa = a * n;
+    let ga = 0;
+    for (let i = 0; i < n; i++) ga += r![i] * columns[oa + i];
+    grad[a] = ga + l2 * theta[a];
+  }
+  let gi = 0;
+  for (let i = 0; i < n; i++) gi += r![i];
+  grad[p] = gi;
+  // XᵀVX in blocks of rows, so the block's columns stay in cache while every pair is summed.
+  const BLOCK = 2048;
+  const vx = new Float64Array(BLOCK);
+  for (let i0 = 0; i0 < n; i0 += BLOCK) {
+    const len = Math.min(BLOCK, n - i0);
+    for (let a = 0; a <= p; a++) {
+      const oa = a * n + i0;
+      if (a < p) for (let i = 0; i < len; i++) vx[i] = v![i0 + i] * columns[oa + i];
+      else for (let i = 0; i < len; i++) vx[i] = v![i0 + i];
+      const row = a * width;
+      for (let b = 0; b < a; b++) {
+        const ob = b * n + i0;
+        let s = 0;
+        for (let i = 0; i < len; i++) s += vx[i] * columns[ob + i];
+        hess[row + b] += s;
+      }
+      let d = 0;
+      if (a < p) for (let i = 0; i < len; i++) d += vx[i] * columns[oa + i];
+      else for (let i = 0; i < len; i++) d += vx[i];
+      hess[row + a] += d;
+    }
+  }
+  for (let a = 0; a <= p; a++) for (let b = 0; b < a; b++) hess[b * width + a] = hess[a * width + b];
+  for (let a = 0; a < p; a++) hess[a * width + a] += l2;
+  return { loss, grad, hess };
+}
+
+/** An orthonormal basis (rank × p, row-major) of the span of X's rows: modified Gram–Schmidt, each vector orthogonalized twice. */
+function rowBasis(X: Matrix): { q: Float64Array; rank: number } {
+  const { rows, cols, data } = X;
+  const q = new Float64Array(rows * cols);
+  let rank = 0;
+  const v = new Float64Array(cols);
+  for (let r = 0; r < rows; r++) {
+    let norm0 = 0;
+    for (let j = 0; j < cols; j++) { v[j] = data[r * cols + j]; norm0 += v[j] * v[j]; }
+    if (norm0 === 0) continue;
+    for (let pass = 0; pass < 2; pass++) {
+      for (let k = 0; k < rank; k++) {
+        const o = k * cols;
+        let d = 0;
+        for (let j = 0; j < cols; j++) d += q[o + j] * v[j];
+        for (let j = 0; j < cols; j++) v[j] -= d * q[o + j];
+      }
+    }
+    let norm = 0;
+    for (let j = 0; j < cols; j++) norm += v[j] * v[j];
+    // A row (numerically) in the span of earlier rows adds no direction.
+    if (norm <= 1e-20 * norm0) continue;
+    const inv = 1 / Math.sqrt(norm);
+    const o = rank * cols;
+    for (let j = 0; j < cols; j++) q[o + j] = v[j] * inv;
+    rank++;
+  }
+  return { q: q.subarray(0, rank * cols), rank };
+}
+
+/** X Qᵀ: the rows' coordinates in the basis. */
+function project(X: Matrix, basis: { q: Float64Array; rank: number }): Matrix {
+  const { rows, cols, data } = X;
+  const out = new Float64Array(rows * basis.rank);
+  for (let r = 0; r < rows; r++) {
+    for (let k = 0; k < basis.rank; k++) {
+      let s = 0;
+      const o = k * cols;
+      for (let j = 0; j < cols; j++) s += data[r * cols + j] * basis.q[o + j];
+      out[r * basis.rank + k] = s;
+    }
+  }
+  return { rows, cols: basis.rank, data: out };
 }
 
 /** Loss, gradient and (optionally) Hessian over the full parameter layout blocks × (p + 1). */

@@ -11,13 +11,12 @@
 import { mergeMoments, partMoments, type ClassMoments } from '../model/class-moments.js';
 import { fitOptions, models } from '../model/registry.js';
 import type { ModelImpl } from '../model/types.js';
-import { applyPipeline, prunePipeline, type FittedStep } from '../preprocess/pipeline.js';
+import { applyPipeline, prunePipeline, type FittedPipeline, type FittedStep } from '../preprocess/pipeline.js';
 import { transforms } from '../preprocess/registry.js';
 import type { Protocol } from '../protocol/types.js';
 import type { Assignment } from '../split/assignment.js';
 import { idOrder } from '../split/key.js';
-import { takeInt } from '../table/matrix.js';
-import type { FoldData, FoldFit } from './fit-fold.js';
+import { fitModelAfterPipeline, type FoldData, type FoldFit } from './fit-fold.js';
 import type { FoldPlan } from './cross-validate.js';
 
 type Parts = Pick<Protocol, 'preprocess' | 'model'>;
@@ -28,7 +27,8 @@ export function canFitByMoments(p: Parts): boolean {
   return steps && (p.preprocess.length > 0 || models[p.model.kind].fromMoments !== undefined);
 }
 
-export function fitByMoments(p: Parts, d: FoldData & { ids: readonly string[] }, a: Assignment, plans: readonly FoldPlan[]): FoldFit[] {
+/** The pipelines of every plan, fitted from merged class moments; `modelFromMoments` also fits a moment model from the same moments. */
+export function momentPipelines(p: Parts, d: FoldData & { ids: readonly string[] }, a: Assignment, plans: readonly FoldPlan[]): { pipeline: FittedPipeline; model?: unknown }[] {
   const impl = models[p.model.kind];
   const k = d.classes.length;
   const options = fitOptions(p.model.kind, p.model.options, d.classes);
@@ -44,7 +44,7 @@ export function fitByMoments(p: Parts, d: FoldData & { ids: readonly string[] },
     }
     return blocks;
   };
-  const fitted = plans.map((plan) => {
+  return plans.map((plan) => {
     let moments: ClassMoments | undefined;
     blocksOf(plan.repeat).forEach((b, g) => { if (g + 1 !== plan.fold) moments = moments ? mergeMoments(moments, b) : b; });
     let m = moments!;
@@ -58,11 +58,23 @@ export function fitByMoments(p: Parts, d: FoldData & { ids: readonly string[] },
       steps.push({ step, params });
     }
     const pipeline = prunePipeline({ steps, columns }, d.X.cols);
-    const model = impl.fromMoments ? impl.fromMoments(m, options, { classCount: k }) : impl.fit(applyPipeline(pipeline, d.X, plan.train), takeInt(d.y, plan.train), options, { classCount: k });
-    return { pipeline, model };
+    return impl.fromMoments ? { pipeline, model: impl.fromMoments(m, options, { classCount: k }) } : { pipeline };
   });
+}
+
+export function fitByMoments(p: Parts, d: FoldData & { ids: readonly string[] }, a: Assignment, plans: readonly FoldPlan[]): FoldFit[] {
+  const impl = models[p.model.kind];
+  const pipelines = momentPipelines(p, d, a, plans);
+  // A model that needs rows gets the training rows through the fitted pipeline.
+  if (!impl.fromMoments) return pipelines.map((f, i) => fitModelAfterPipeline(p, d, f.pipeline, plans[i].train, plans[i].test));
+  const fitted = pipelines.map((f) => ({ pipeline: f.pipeline, model: f.model }));
   if (p.preprocess.length === 0 && impl.predictRows) return predictTogether(impl.predictRows, fitted, d, plans);
   return fitted.map((f, i) => ({ ...f, proba: impl.predict(f.model, applyPipeline(f.pipeline, d.X, plans[i].test)) }));
+}
+
+/** Whether the whole fold fit comes from moments (cheap per fold), or a model still fits on rows after moment pipelines. */
+export function modelFromMoments(p: Parts): boolean {
+  return models[p.model.kind].fromMoments !== undefined;
 }
 
 /** Every plan's test rows in one call (rows straight from X, no pipeline), split back by plan. */

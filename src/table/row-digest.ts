@@ -1,38 +1,62 @@
 /**
  * Content digests of rows, so a row is recognized by what it holds, not only by its id. Pure.
- * - sealed rows (`rowDigests`): SHA-256 over the label and the feature values in feature-name
- *   order (UTF-8 byte order), as `label\0name=value\0name=value…`;
- * - known rows of a run (`featureDigests`): the same without the label, first 16 hex digits.
- * Each value is in shortest round-trip form, `NA` when missing. The id is never part of it.
+ * Both read the feature values in feature-name order (UTF-8 byte order) as IEEE 754 doubles,
+ * 8 bytes little-endian each (−0 as 0, every NaN — a missing value — as the one quiet NaN
+ * 0x7ff8000000000000). The id is never part of a digest.
+ * - sealed rows (`rowDigests`): SHA-256 over the label's UTF-8 bytes, a 0 byte, then the values
+ *   (a security property: a copy under a new id must not slip through);
+ * - known rows of a run (`featureDigests`): a fast 64-bit hash of the values (two 32-bit
+ *   multiply–xor lanes), as 16 hex digits — a guard against mistakes (a new sample given a
+ *   training id), not against someone forging a collision.
  */
 import { createHash } from 'node:crypto';
 import { compareUtf8 } from '../util/bytes.js';
 import type { Matrix } from './matrix.js';
 import type { Table } from './table.js';
 
-function digests(X: Matrix, names: readonly string[], rows: Iterable<number>, prefix: (r: number) => string[], length: number): string[] {
-  const order = names.map((_, j) => j).sort((a, b) => compareUtf8(names[a], names[b]));
-  const cols = X.cols;
+function nameOrder(names: readonly string[]): number[] {
+  return names.map((_, j) => j).sort((a, b) => compareUtf8(names[a], names[b]));
+}
+
+/** The row's values in name order, canonical NaN and zero, into `out` (a Float64Array view over bytes). */
+function canonicalRow(X: Matrix, r: number, order: readonly number[], out: Float64Array): void {
+  const o = r * X.cols;
+  for (let k = 0; k < order.length; k++) {
+    const v = X.data[o + order[k]];
+    out[k] = Number.isNaN(v) ? NaN : v === 0 ? 0 : v;
+  }
+}
+
+export function rowDigests(table: Table, rows?: readonly number[]): string[] {
+  const order = nameOrder(table.featureNames);
+  const values = new Float64Array(order.length);
+  const bytes = new Uint8Array(values.buffer);
   const out: string[] = [];
-  for (const r of rows) {
-    const parts = prefix(r);
-    for (const j of order) {
-      const v = X.data[r * cols + j];
-      parts.push(`${names[j]}=${Number.isNaN(v) ? 'NA' : String(v)}`);
-    }
-    out.push(createHash('sha256').update(parts.join('\0')).digest('hex').slice(0, length));
+  for (const r of rows ?? Array.from({ length: table.X.rows }, (_, i) => i)) {
+    canonicalRow(table.X, r, order, values);
+    out.push(createHash('sha256').update(table.labels[r]).update(new Uint8Array([0])).update(bytes).digest('hex'));
   }
   return out;
 }
 
-function allRows(n: number): number[] {
-  return Array.from({ length: n }, (_, i) => i);
-}
-
-export function rowDigests(table: Table, rows?: readonly number[]): string[] {
-  return digests(table.X, table.featureNames, rows ?? allRows(table.X.rows), (r) => [table.labels[r]], 64);
-}
-
 export function featureDigests(X: Matrix, names: readonly string[]): string[] {
-  return digests(X, names, allRows(X.rows), () => [], 16);
+  const order = nameOrder(names);
+  const values = new Float64Array(order.length);
+  const words = new Uint32Array(values.buffer);
+  const out: string[] = new Array(X.rows);
+  for (let r = 0; r < X.rows; r++) {
+    canonicalRow(X, r, order, values);
+    let h1 = 0x811c9dc5 ^ order.length;
+    let h2 = 0x9747b28c;
+    for (let i = 0; i < words.length; i++) {
+      const w = words[i];
+      h1 = Math.imul(h1 ^ w, 0x01000193);
+      h2 = Math.imul(h2 ^ w, 0x5bd1e995);
+      h2 ^= h2 >>> 15;
+    }
+    h1 = Math.imul(h1 ^ (h1 >>> 16), 0x85ebca6b);
+    h2 = Math.imul(h2 ^ (h2 >>> 13), 0xc2b2ae35);
+    out[r] = (h1 >>> 0).toString(16).padStart(8, '0') + ((h2 ^ (h2 >>> 16)) >>> 0).toString(16).padStart(8, '0');
+  }
+  return out;
 }

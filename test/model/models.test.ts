@@ -61,5 +61,5 @@ t.test('fit errors are user errors with a code', async (t) => {
   t.throws(() => models['multinomial-nb'].fit(m([[1, -1], [2, 3]]), Int32Array.from([0, 1]), {}, { classCount: 2 }), FitError);
   const separable = m([[0], [1], [2], [3]]);
   t.throws(() => models.logistic.fit(separable, Int32Array.from([0, 0, 1, 1]), { l2: 0, 'max-iterations': 5 }, { classCount: 2 }), { code: 'logistic-no-convergence' });
-  t.throws(() => models.logistic.fit(matrix(2, 2000, new Float64Array(4000)), Int32Array.from([0, 1]), {}, { classCount: 2 }), { code: 'logistic-too-wide' });
+  t.throws(() => models.logistic.fit(matrix(2100, 2000, new Float64Array(2100 * 2000)), Int32Array.from({ length: 2100 }, (_, i) => i % 2), {}, { classCount: 2 }), { code: 'logistic-too-wide' });
 });

@@ -17,7 +17,7 @@ export function exportFolds(outDir) {
   for (const c of cases) {
     const protocol = join(work, `${c.name}.yaml`);
     writeFileSync(protocol, caseProtocol(c, work));
-    execFileSync(process.execPath, [bin, 'folds', protocol, '--out', join(outDir, `${c.name}.folds.csv`)], { stdio: ['ignore', 'ignore', 'inherit'] });
+    execFileSync(process.execPath, [bin, 'folds', protocol, '--allow-outside', '--out', join(outDir, `${c.name}.folds.csv`)], { stdio: ['ignore', 'ignore', 'inherit'] });
   }
 }
 

@@ -23,3 +23,11 @@ with open(os.path.join(here, "breast-cancer-train.csv"), "w") as f:
 unlabeled = lambda line: line.rsplit(",", 1)[0]
 with open(os.path.join(here, "breast-cancer-new.csv"), "w") as f:
     f.write("\n".join([unlabeled(header)] + [unlabeled(r) for r in rows[469:] + rows[10:15]]) + "\n")
+
+# For the wide logistic check (more features than training rows): the first 16 benign and the
+# first 14 malignant rows, in file order.
+benign = [r for r in rows if r.endswith(",benign")][:16]
+malignant = [r for r in rows if r.endswith(",malignant")][:14]
+wide = [r for r in rows if r in set(benign + malignant)]
+with open(os.path.join(here, "breast-cancer-wide.csv"), "w") as f:
+    f.write("\n".join([header] + wide) + "\n")
