@@ -11,7 +11,7 @@ import { TransformError } from '../preprocess/types.js';
 import type { Protocol } from '../protocol/types.js';
 import type { Assignment } from '../split/assignment.js';
 import type { Table } from '../table/table.js';
-import { assembleResult, crossValidate, planFolds, type CvHooks, type CvResult } from '../run/cross-validate.js';
+import { assembleResult, atFold, crossValidate, planFolds, type CvHooks, type CvResult } from '../run/cross-validate.js';
 import type { FoldFit } from '../run/fit-fold.js';
 import { canFitByMoments, modelFromMoments, momentPipelines } from '../run/fit-by-moments.js';
 import { columnMajor, fitsByColumns } from '../preprocess/by-columns.js';
@@ -60,7 +60,8 @@ export async function crossValidateInWorkers(p: Protocol, table: Table, a: Assig
       for (const w of workers) {
         w.on('message', (m: { index: number; fit?: FoldFit; error?: { kind: string; code: string; message: string; hint?: string } }) => {
           if (m.error) {
-            reject(m.error.kind === 'FitError' ? new FitError(m.error.code, m.error.message, m.error.hint) : m.error.kind === 'TransformError' ? new TransformError(m.error.code, m.error.message, m.error.hint) : new Error(m.error.message));
+            const e = m.error.kind === 'FitError' ? new FitError(m.error.code, m.error.message, m.error.hint) : m.error.kind === 'TransformError' ? new TransformError(m.error.code, m.error.message, m.error.hint) : new Error(m.error.message);
+            reject(atFold(e, plans[m.index].repeat, plans[m.index].fold));
             return;
           }
           fits[m.index] = m.fit!;

@@ -63,6 +63,10 @@ function predictRows(models: GaussianNbParams[], X: Matrix, which?: Int32Array, 
       let logNorm = 0;
       for (let j = 0; j < cols; j++) {
         mean[mc * cols + j] = p.mean[c][j];
+        // A variance of exactly 0 remains only when every feature is constant over the training
+        // part (the floor is a multiple of the largest variance): such a feature tells the
+        // classes nothing and is left out of the likelihood, so the prior decides.
+        if (p.variance[c][j] === 0) continue;
         inv[mc * cols + j] = 1 / p.variance[c][j];
         logNorm += Math.log(2 * Math.PI * p.variance[c][j]);
       }

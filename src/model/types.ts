@@ -27,6 +27,8 @@ export interface ModelImpl<P = unknown> {
    * folds from merged per-fold moments (see class-moments.ts).
    */
   fromMoments?(moments: ClassMoments, options: Record<string, unknown>, ctx: FitContext): P;
+  /** Optional: remarks on a fitted model worth a warning (e.g. every distance tied). */
+  notes?(params: P): string[];
 }
 
 /** Problems a fit can hit that are the user's to fix (not bugs). */

@@ -8,9 +8,12 @@ import { confusionRows } from '../metric/confusion.js';
 import { scored } from '../metric/types.js';
 import type { FittedPipeline } from '../preprocess/pipeline.js';
 import { columnMajor, fitsByColumns } from '../preprocess/by-columns.js';
-import { fitFold, type FoldData, type FoldFit } from './fit-fold.js';
+import { atFold, fitFold, type FoldData, type FoldFit } from './fit-fold.js';
+export { atFold } from './fit-fold.js';
 import { canFitByMoments, fitByMoments } from './fit-by-moments.js';
 import { warning, type Problem } from '../problems/problem.js';
+import { models } from '../model/registry.js';
+import { FitError } from '../model/types.js';
 import { testsFoldOneOnly, type MetricName, type Protocol } from '../protocol/types.js';
 import { foldRows, type Assignment } from '../split/assignment.js';
 import { idOrder } from '../split/key.js';
@@ -86,7 +89,12 @@ export function crossValidate(p: Protocol, table: Table, a: Assignment, hooks: C
   }
   const data: FoldData = { ...table, columns: fitsByColumns(p.preprocess) ? columnMajor(table.X) : undefined };
   const fits = plans.map((plan, i) => {
-    const fit = fitFold(p, data, plan.train, plan.test);
+    let fit: FoldFit;
+    try {
+      fit = fitFold(p, data, plan.train, plan.test);
+    } catch (e) {
+      throw atFold(e, plan.repeat, plan.fold);
+    }
     hooks.onFold?.(i + 1, plans.length);
     return fit;
   });
@@ -106,6 +114,14 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
   const testedIn: Int32Array[] = Array.from({ length: a.repeats }, () => new Int32Array(n));
   plans.forEach(({ repeat: r, fold: f, train, test }, index) => {
     const { pipeline, model: params, proba: foldProba } = fits[index];
+    const impl = models[p.model.kind];
+    for (const note of impl.notes?.(params) ?? []) warnings.push(warning('model-note', `${p.model.kind} in repeat ${r}, fold ${f}: ${note}`));
+    for (let i = 0; i < foldProba.length; i++) {
+      if (!Number.isFinite(foldProba[i])) {
+        const row = test[Math.floor(i / k)];
+        throw new FitError('non-finite-prediction', `${p.model.kind} gave a non-finite probability (${foldProba[i]}) for row "${table.ids[row]}" in repeat ${r}, fold ${f}: the features are too extreme or too degenerate for this model to compute with`, 'rescale the features (standardize, log2p), or drop constant and near-constant columns');
+      }
+    }
     const proba = oof[r - 1];
     const tested = testedIn[r - 1];
     const trainCounts = new Array<number>(k).fill(0);
@@ -181,3 +197,4 @@ function dedupe(problems: Problem[]): Problem[] {
   const seen = new Set<string>();
   return problems.filter((p) => (seen.has(p.message) ? false : (seen.add(p.message), true)));
 }
+

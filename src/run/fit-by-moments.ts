@@ -16,7 +16,7 @@ import { transforms } from '../preprocess/registry.js';
 import type { Protocol } from '../protocol/types.js';
 import type { Assignment } from '../split/assignment.js';
 import { idOrder } from '../split/key.js';
-import { fitModelAfterPipeline, type FoldData, type FoldFit } from './fit-fold.js';
+import { atFold, fitModelAfterPipeline, type FoldData, type FoldFit } from './fit-fold.js';
 import type { FoldPlan } from './cross-validate.js';
 
 type Parts = Pick<Protocol, 'preprocess' | 'model'>;
@@ -45,6 +45,13 @@ export function momentPipelines(p: Parts, d: FoldData & { ids: readonly string[]
     return blocks;
   };
   return plans.map((plan) => {
+    try {
+      return momentPipeline(plan);
+    } catch (e) {
+      throw atFold(e, plan.repeat, plan.fold);
+    }
+  });
+  function momentPipeline(plan: FoldPlan): { pipeline: FittedPipeline; model?: unknown } {
     let moments: ClassMoments | undefined;
     blocksOf(plan.repeat).forEach((b, g) => { if (g + 1 !== plan.fold) moments = moments ? mergeMoments(moments, b) : b; });
     let m = moments!;
@@ -59,14 +66,22 @@ export function momentPipelines(p: Parts, d: FoldData & { ids: readonly string[]
     }
     const pipeline = prunePipeline({ steps, columns }, d.X.cols);
     return impl.fromMoments ? { pipeline, model: impl.fromMoments(m, options, { classCount: k }) } : { pipeline };
-  });
+  }
 }
 
 export function fitByMoments(p: Parts, d: FoldData & { ids: readonly string[] }, a: Assignment, plans: readonly FoldPlan[]): FoldFit[] {
   const impl = models[p.model.kind];
   const pipelines = momentPipelines(p, d, a, plans);
   // A model that needs rows gets the training rows through the fitted pipeline.
-  if (!impl.fromMoments) return pipelines.map((f, i) => fitModelAfterPipeline(p, d, f.pipeline, plans[i].train, plans[i].test));
+  if (!impl.fromMoments) {
+    return pipelines.map((f, i) => {
+      try {
+        return fitModelAfterPipeline(p, d, f.pipeline, plans[i].train, plans[i].test);
+      } catch (e) {
+        throw atFold(e, plans[i].repeat, plans[i].fold);
+      }
+    });
+  }
   const fitted = pipelines.map((f) => ({ pipeline: f.pipeline, model: f.model }));
   if (p.preprocess.length === 0 && impl.predictRows) return predictTogether(impl.predictRows, fitted, d, plans);
   return fitted.map((f, i) => ({ ...f, proba: impl.predict(f.model, applyPipeline(f.pipeline, d.X, plans[i].test)) }));

@@ -2,6 +2,7 @@
 import type { Problem } from '../problems/problem.js';
 import { delimitedGrid, readDelimited } from './delimited.js';
 import { plainGrid, readPlain, type RowHelper } from './plain.js';
+import { contentProblems } from './content-check.js';
 import { buildTable, type DataRoles, type RolePaths, type TableResult } from './table.js';
 
 export function delimiterFor(file: string, format?: 'csv' | 'tsv'): number {
@@ -11,6 +12,8 @@ export function delimiterFor(file: string, format?: 'csv' | 'tsv'): number {
 
 export function tableFromBytes(bytes: Uint8Array, file: string, roles: DataRoles, format: 'csv' | 'tsv' | undefined, locate: (role: keyof RolePaths, index?: number) => Problem['position'], helper?: RowHelper): TableResult {
   const delimiter = delimiterFor(file, format);
+  const content = contentProblems(bytes, file);
+  if (content.length) return { problems: content };
   // Quote-free files (nearly every large numeric table) take the one-pass reader; the full
   // reader handles everything else and reports malformed files where they go wrong.
   const plain = readPlain(bytes, delimiter);

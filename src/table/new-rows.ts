@@ -2,6 +2,7 @@
 import { error, warning, type Problem } from '../problems/problem.js';
 import { cellPosition, delimitedGrid, readDelimited, textColumn } from './delimited.js';
 import { delimiterFor } from './load.js';
+import { contentProblems } from './content-check.js';
 import type { Matrix } from './matrix.js';
 import { numberProblems } from './numeric.js';
 
@@ -15,6 +16,8 @@ export interface NewRows {
 
 /** `known` names columns the protocol already accounts for (label, group, exclusions): ignored without a warning. */
 export function newRowsFromBytes(bytes: Uint8Array, file: string, features: readonly string[], idColumn: string | undefined, missing: readonly string[], known: readonly string[] = []): { rows?: NewRows; problems: Problem[] } {
+  const content = contentProblems(bytes, file);
+  if (content.length) return { problems: content };
   const read = readDelimited(bytes, delimiterFor(file), file);
   if (!read.table) return { problems: read.problems };
   const t = read.table;

@@ -89,11 +89,13 @@ export function buildTable(t: Grid, roles: DataRoles, file: string, locate: (rol
     });
     for (let c = 0; c < t.header.length; c++) {
       if (reserved.has(c) || exclude.has(t.header[c])) continue;
-      if (looksNumeric(t, c, missing)) featureCols.push(c);
-      else ignoredColumns.push(t.header[c]);
+      const kind = columnKind(t, c, missing);
+      if (kind === 'number') featureCols.push(c);
+      else if (kind === 'text') ignoredColumns.push(t.header[c]);
+      else problems.push(warning('data-empty-column', `column "${t.header[c]}" has no value in any row (every cell is missing), so it is not a feature`, { file, position: { line: 1, col: 1 }, hint: 'remove it from the file, or list it under data.features.exclude' }));
     }
   }
-  if (featureCols.length === 0 && problems.length === 0) problems.push(error('data-no-features', 'no numeric feature columns were found', { position: locate('features') }));
+  if (featureCols.length === 0 && !problems.some((q) => q.severity === 'error')) problems.push(error('data-no-features', 'no numeric feature columns were found', { position: locate('features') }));
 
   const rows = t.rows;
   const rowLines = t.rowLine;
@@ -132,15 +134,26 @@ export function buildTable(t: Grid, roles: DataRoles, file: string, locate: (rol
   return { table, problems };
 }
 
-function looksNumeric(t: Grid, c: number, missing: Set<string>): boolean {
-  // A column counts as numeric when its first non-missing cell is a number; later bad cells are then errors,
-  // so a typo like `12abc` is reported instead of silently dropping the column.
-  for (let r = 0; r < t.rows; r++) {
+/** Non-missing cells looked at to decide whether a column holds numbers (documented in docs/protocol.md). */
+const TYPE_SAMPLE = 100;
+
+/**
+ * 'number' when at least half of the column's first 100 non-missing cells are numbers (its bad
+ * cells are then errors at their positions, so a typo like `12abc`, even in the first row, is
+ * reported instead of silently dropping the column), 'text' otherwise, 'empty' when every cell
+ * is missing.
+ */
+function columnKind(t: Grid, c: number, missing: Set<string>): 'number' | 'text' | 'empty' {
+  let numbers = 0;
+  let seen = 0;
+  for (let r = 0; r < t.rows && seen < TYPE_SAMPLE; r++) {
     const v = t.number(r, c);
-    if (v === v) return true;
-    if (!missing.has(t.text(r, c))) return false;
+    if (v === v) { numbers++; seen++; continue; }
+    const text = t.text(r, c);
+    if (text === '' || missing.has(text)) continue;
+    seen++;
   }
-  return false;
+  return seen === 0 ? 'empty' : numbers * 2 >= seen ? 'number' : 'text';
 }
 
 function checkIds(t: Grid, ids: string[], idCol: number, file: string, problems: Problem[]): void {
