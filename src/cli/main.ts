@@ -26,4 +26,14 @@ export async function main(argv: string[]): Promise<ExitCode> {
   }
 }
 
-main(process.argv.slice(2)).then((code) => process.exit(code));
+/** Resolves once everything written to the stream so far has been handed to the system (a pipe may drain slowly). */
+function flushed(stream: NodeJS.WriteStream): Promise<void> {
+  return new Promise((resolve) => stream.write('', () => resolve()));
+}
+
+// Exit only after stdout and stderr have drained: exiting at once cuts output to a slow pipe.
+main(process.argv.slice(2)).then(async (code) => {
+  process.exitCode = code;
+  await Promise.all([flushed(process.stdout), flushed(process.stderr)]);
+  process.exit(code);
+});

@@ -2,6 +2,7 @@
 import { Command, Option } from 'commander';
 import { packageVersion } from '../util/package-root.js';
 import type { CommandIo, ExitCode } from './io.js';
+import { showAllProblems } from './report-problems.js';
 // Commands load when chosen: a quick `validate` does not pay for the runner and the signer.
 import type { ReconcileRule, TieRule } from '../protocol/types.js';
 
@@ -10,6 +11,8 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .description('Sealed, re-runnable cross-validation: hashed data, spec-defined folds, in-fold fitting, signed results.')
     .version(packageVersion(), '-V, --version', 'print the foldseal version')
     .helpOption('-h, --help', 'show help')
+    .option('--all-problems', `print every problem (by default, after ${50} of one kind the rest are counted)`)
+    .hook('preAction', (cmd) => { showAllProblems(Boolean(cmd.opts().allProblems)); })
     .showSuggestionAfterError(true)
     .configureOutput({ writeOut: (s) => io.out(s), writeErr: (s) => io.err(s) })
     // Set before the subcommands are added so they inherit it: main maps commander's exits to ours.

@@ -1,13 +1,15 @@
 /** Writing one output file (folds, apply, init): every failure a clear problem naming the path, never a stack trace; never half-written. */
 import { access, constants, lstat, open, rename, unlink } from 'node:fs/promises';
+import { existsSync } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import { randomBytes } from 'node:crypto';
 import { error, FoldsealError, type Problem } from '../problems/problem.js';
 
-export function writeProblem(e: NodeJS.ErrnoException, shownAs: string): Problem {
+export function writeProblem(e: NodeJS.ErrnoException, shownAs: string, path?: string): Problem {
   const code = e.code;
   const reason =
-    code === 'ENOENT' ? `cannot be written: the folder ${dirname(shownAs)} does not exist`
+    code === 'ENOENT' && path !== undefined && existsSync(dirname(path)) ? 'cannot be written: the folder exists but refuses new files'
+    : code === 'ENOENT' ? `cannot be written: the folder ${dirname(shownAs)} does not exist`
     : code === 'EISDIR' ? 'is a folder; give a file name'
     : code === 'ENOTDIR' ? `cannot be written: a part of the path ${shownAs} is a file, not a folder`
     : code === 'EACCES' || code === 'EPERM' ? 'cannot be written (permission denied)'
@@ -44,6 +46,6 @@ export async function writeOutputFile(path: string, content: string | Uint8Array
     await rename(temp, path);
   } catch (e) {
     await unlink(temp).catch(() => undefined);
-    throw new FoldsealError(writeProblem(e as NodeJS.ErrnoException, shownAs), 2);
+    throw new FoldsealError(writeProblem(e as NodeJS.ErrnoException, shownAs, path), 2);
   }
 }

@@ -1,6 +1,6 @@
 /** Reads a team repository for the gate: its protocols, lock, sealed list and signed manifests. */
 import { existsSync } from 'node:fs';
-import { readdir } from 'node:fs/promises';
+import { readdir, stat } from 'node:fs/promises';
 import { join, relative } from 'node:path';
 import { lockEntry } from '../check/entry.js';
 import type { GateInput, ProtocolState } from '../check/gate.js';
@@ -24,6 +24,9 @@ export interface Repo {
 /** `allowOutside`: protocols may name files outside the checked folder (and FOLDSEAL_TRUSTED). */
 export async function readRepo(root: string, allowOutside = false): Promise<Repo> {
   const problems: Problem[] = [];
+  const st = await stat(root).catch((e: NodeJS.ErrnoException) => e);
+  if (st instanceof Error) throw new FoldsealError(error('folder-missing', `${shown(root) || '.'} ${st.code === 'ENOENT' ? 'does not exist' : `cannot be read (${st.code})`}`, { file: shown(root) }), 2);
+  if (!st.isDirectory()) throw new FoldsealError(error('not-a-folder', `${shown(root)} is not a folder; give the repository folder`, { file: shown(root) }), 2);
   const lockPath = join(root, LOCK_FILE);
   const lockFile = shown(lockPath);
   let lock: ParsedLock | undefined;

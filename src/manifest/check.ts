@@ -1,6 +1,7 @@
 /** Checks of a manifest's own bytes: JSON, version, schema, canonical form, signature. Pure (keys are passed in). */
 import { createHash, createPublicKey, type KeyObject } from 'node:crypto';
 import { error, warning, type Problem } from '../problems/problem.js';
+import { MAX_NESTING, nestingDepth } from '../util/nesting.js';
 import { schemaValidator } from '../protocol/schema.js';
 import { MANIFEST_VERSION, type Manifest } from './build.js';
 import { canonicalJson, NonJsonValueError } from './canonical.js';
@@ -41,6 +42,7 @@ export function rawFingerprint(raw: Uint8Array): string {
 export function checkManifest(text: string, o: CheckOptions): ManifestCheck {
   const file = o.file;
   let manifest: Manifest;
+  if (nestingDepth(text, MAX_NESTING).depth > MAX_NESTING) return { problems: [error('manifest-too-deep', `the manifest nests more than ${MAX_NESTING} levels deep; no manifest foldseal writes does, so it was not read further`, { file })], pinned: false };
   try {
     manifest = JSON.parse(text) as Manifest;
   } catch (e) {

@@ -4,6 +4,7 @@
  */
 import { isMap, isPair, isScalar, isSeq, LineCounter, parseDocument, type Document, type Node, type Pair } from 'yaml';
 import { error, type Position, type Problem } from '../problems/problem.js';
+import { MAX_NESTING, nestingDepth } from '../util/nesting.js';
 
 export interface SourceDocument {
   file: string;
@@ -24,6 +25,13 @@ export interface ParsedYaml {
 const MAX_ALIAS_COUNT = 100;
 
 export function parseYaml(text: string, file: string): ParsedYaml {
+  const nested = nestingDepth(text, MAX_NESTING);
+  if (nested.depth > MAX_NESTING) {
+    const before = text.slice(0, nested.offset);
+    const line = before.split('\n').length;
+    const source: SourceDocument = { file, text, doc: parseDocument(''), lines: new LineCounter() };
+    return { source, value: undefined, problems: [error('yaml-too-deep', `brackets nest more than ${MAX_NESTING} levels deep here; foldseal refuses such documents (a resource-exhaustion guard)`, { file, position: { line, col: nested.offset - before.lastIndexOf('\n') } })] };
+  }
   const lines = new LineCounter();
   const doc = parseDocument(text, { lineCounter: lines, prettyErrors: false, uniqueKeys: true, strict: true });
   const source: SourceDocument = { file, text, doc, lines };
@@ -43,7 +51,10 @@ export function parseYaml(text: string, file: string): ParsedYaml {
     value = doc.toJS({ maxAliasCount: MAX_ALIAS_COUNT });
   } catch (e) {
     const message = e instanceof Error ? e.message : String(e);
-    if (/alias/i.test(message)) {
+    if (/^Unresolved alias/i.test(message)) {
+      const name = /: ([^\s:]+)$/.exec(message)?.[1];
+      problems.push(error('yaml-undefined-alias', `the alias ${name ? `*${name}` : ''} refers to an anchor that is not defined earlier in the document`.replace('alias  ', 'alias '), { file, position: firstAliasPosition(source), hint: name ? `define it first with &${name}, or write the value out` : undefined }));
+    } else if (/alias/i.test(message)) {
       problems.push(error('yaml-alias-limit', `aliases expand past the limit of ${MAX_ALIAS_COUNT} (a resource-exhaustion guard)`, { file, position: firstAliasPosition(source) }));
     } else throw e;
   }

@@ -2,7 +2,7 @@
 import { error, type Problem } from '../problems/problem.js';
 import type { Extracted, Grid } from './grid.js';
 
-const MAX_LISTED = 20;
+const MAX_LISTED = 1000;
 
 /** `columns` are the grid columns behind the extract's number columns, in the same order. */
 export function numberProblems(grid: Grid, extracted: Extracted, columns: readonly number[], missing: ReadonlySet<string>, file: string): Problem[] {

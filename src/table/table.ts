@@ -45,7 +45,7 @@ export interface TableResult {
   ragged?: true;
 }
 
-const MAX_CELL_PROBLEMS = 20;
+const MAX_CELL_PROBLEMS = 1000;
 const ASCII = /^[\x00-\x7f]*$/;
 
 export function buildTable(t: Grid, roles: DataRoles, file: string, locate: (role: keyof RolePaths, index?: number) => Problem['position']): TableResult {

@@ -358,7 +358,7 @@ t.test('verify checks the manifest against itself before any re-run', async (t) 
   const r = cli(['verify', 'manifest.json', '--allow-unpinned'], alone);
   t.equal(r.code, 1, 'a manifest without any of its result files is not verified');
   t.match(r.stderr, 'none of the 4 result files the manifest lists (applied.csv, models.json, predictions.csv, results.json) is next to it, so there is nothing left to vouch for');
-  t.match(r.stdout, /not verified\n$/);
+  t.match(r.stdout, /\nnot verified \(results-missing\)\n$/);
 });
 
 t.test('a new row under a training id must be that row: else an error at both places', async (t) => {

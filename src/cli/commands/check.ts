@@ -33,10 +33,16 @@ export async function checkCommand(args: CheckArgs, io: CommandIo): Promise<Exit
 /** Protocols touched by the staged change, plus every protocol that shares data with them. */
 function stagedScope(root: string, input: GateInput): Set<string> {
   let staged: string[];
+  const git = (args: string[]) => execFileSync('git', args, { cwd: root, encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'] });
   try {
-    staged = execFileSync('git', ['diff', '--cached', '--name-only', '--relative'], { cwd: root, encoding: 'utf8' }).split('\n').filter(Boolean);
+    git(['rev-parse', '--is-inside-work-tree']);
   } catch {
-    throw new FoldsealError(error('not-a-git-repo', `${root} is not inside a git work tree, so --staged has nothing to read`), 2);
+    throw new FoldsealError(error('not-a-git-repo', `${root} is not a git repository (nor inside one), so --staged has no staged change to read`, { hint: 'run foldseal check without --staged, or inside a git work tree' }), 2);
+  }
+  try {
+    staged = git(['diff', '--cached', '--name-only', '--relative']).split('\n').filter(Boolean);
+  } catch (e) {
+    throw new FoldsealError(error('git-failed', `git could not list the staged files: ${String((e as { stderr?: string }).stderr ?? '').trim().split('\n')[0]}`), 2);
   }
   const protocols = input.protocols;
   const dataOf = (p: ProtocolState) => p.report.paths?.data;

@@ -1,11 +1,12 @@
 import { existsSync } from 'node:fs';
-import { writeFile } from 'node:fs/promises';
+import { writeOutputFile } from '../../io/output-file.js';
 import { readRegularText } from '../../io/files.js';
 import { sealedDigests } from '../../check/gate.js';
 import { join, resolve } from 'node:path';
 import { LOCK_FILE, LOCK_VERSION, lockText, parseLock, type Lock } from '../../check/lock.js';
 import { FoldsealError, hasErrors } from '../../problems/problem.js';
 import { readRepo } from '../../io/repo.js';
+import { shown } from '../../io/validate.js';
 import type { CommandIo, ExitCode } from '../io.js';
 import { reportProblems } from '../report-problems.js';
 
@@ -49,7 +50,7 @@ export async function lockCommand(args: { dir: string; allowOutside?: boolean },
     if (what.length) changes.push(`~ ${p.path}: ${what.join(', ')}`);
   }
   for (const path of Object.keys(old?.protocols ?? {})) if (!next.protocols[path]) changes.push(`- ${path}: removed`);
-  await writeFile(lockPath, lockText(next));
+  await writeOutputFile(lockPath, lockText(next), shown(lockPath), true);
   io.out(changes.length ? changes.join('\n') + '\n' : 'no changes\n');
   io.err(`wrote ${LOCK_FILE} (${Object.keys(next.protocols).length} protocols)\n`);
   return hasErrors(repo.problems) ? 1 : 0;

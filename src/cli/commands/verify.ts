@@ -69,7 +69,10 @@ export async function verifyCommand(args: VerifyArgs, io: CommandIo): Promise<Ex
   }
   const failed = hasErrors(problems) || differences.length > 0;
   const reran = Boolean(args.rerun && usable) && !problems.some((p) => p.code === 'rerun-failed');
-  const final = reran ? verdict(differences) : failed ? 'not verified' : 'verified';
+  // The last line agrees with the exit code: an identical re-run of a manifest that failed another check is not "identical".
+  const errors = problems.filter((q) => q.severity === 'error' && q.code !== 'rerun-failed');
+  const reasons = [...new Set(errors.map((q) => q.code))].join(', ');
+  const final = reran && differences.length ? verdict(differences) : errors.length ? `not verified (${reasons})${reran ? '; the re-run itself was identical' : ''}` : reran ? verdict(differences) : failed ? 'not verified' : 'verified';
   if (args.format === 'json') {
     io.out(JSON.stringify({ verdict: final, 'signed-by': check.signedBy ?? null, 'ssh-fingerprint': check.ssh?.fingerprint ?? null, principals: check.ssh?.principals ?? null, pinned: check.pinned, problems, differences }, null, 2) + '\n');
   } else {
