@@ -120,6 +120,12 @@ async function validateWithData(parsed: ParsedProtocol & { protocol: Protocol; s
     locate(source, index === undefined ? ['data', role] : ['data', 'features', ...(Array.isArray(p.data.features) ? [] : ['exclude']), index]);
   if (rowThread && hashesIds(p.split) && p.data.id !== undefined) rowThread.expectKeys({ idColumn: p.data.id, seed: p.split.seed ?? 0, repeats: p.split.repeats });
   const built = tableFromBytes(data.bytes!, shown(paths.data), dataRoles(p), p.data.format, roleLocate, rowThread);
+  // A file that is not the recorded one is reported as that alone: its structural problems would
+  // only distract. (The hash is taken while the file is parsed, on the second thread for large files.)
+  if (data.sha256 !== p.data.sha256) {
+    problems.push(error('data-hash-mismatch', `the data file's SHA-256 is ${data.sha256}, not the ${p.data.sha256} this protocol records`, { ...at(['data', 'sha256']), hint: 'if the data changed on purpose, put the new hash here (`foldseal hash FILE`)' }));
+    return { ...parsed, problems, paths, dataSha256: data.sha256 };
+  }
   problems.push(...built.problems.map((q) => (q.file ? q : { ...q, file: parsed.file })));
   if (!built.table || hasErrors(built.problems) || (paths.pinned && !pinned)) {
     return { ...parsed, problems, paths, table: built.table, dataSha256: data.sha256 };
