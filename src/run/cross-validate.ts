@@ -148,6 +148,8 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
   const pooledByRepeat = pooled(p.metrics, table, oof, testedIn, order, positive);
   for (const m of p.metrics) {
     summary[m] = { ...meanSd(folds.map((f) => f.metrics[m])), pooled: meanOf(pooledByRepeat.map((v) => v[m])) };
+    const missing = summary[m].undefinedFolds;
+    if (missing) warnings.push(warning('metric-undefined-in-folds', `${m} is undefined in ${missing} of ${folds.length} folds (their test part lacks a class the metric needs); its mean and SD are over the other ${folds.length - missing} folds, while the pooled value uses every out-of-fold prediction`));
   }
   const counts = new Array<number>(k).fill(0);
   for (const c of table.y) counts[c]++;
