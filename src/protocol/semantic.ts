@@ -4,7 +4,7 @@
  */
 import { error, warning, type Problem } from '../problems/problem.js';
 import { assignFolds } from '../split/assign.js';
-import type { Assignment } from '../split/assignment.js';
+import { emptyFolds, type Assignment } from '../split/assignment.js';
 import { parsePinned } from '../split/pinned.js';
 import type { Table } from '../table/table.js';
 import { locate, type SourceDocument } from './document.js';
@@ -75,8 +75,14 @@ export function checkAgainstData(p: Protocol, source: SourceDocument, ev: DataEv
     if (problems.every((q) => q.severity !== 'error')) {
       assignment = assignFolds({ ids: table.ids, y: table.y, classCount: table.classes.length, groups: table.groups, idKeys: ev.idKeys }, s);
       if (s.rule === 'holdout') {
-        const test = assignment.fold.subarray(0, n).filter((f) => f === 1).length;
-        if (test === 0 || test === n) problems.push(error('empty-part', `test-fraction ${s.testFraction} leaves the ${test === 0 ? 'test' : 'training'} part empty for ${n} rows`, at(['split', 'test-fraction'])));
+        // Per repeat: a stable holdout draws each row independently, so any repeat can come out empty.
+        for (let r = 1; r <= assignment.repeats; r++) {
+          const test = assignment.fold.subarray((r - 1) * n, r * n).filter((f) => f === 1).length;
+          if (test === 0 || test === n) { problems.push(error('empty-part', `test-fraction ${s.testFraction} leaves the ${test === 0 ? 'test' : 'training'} part empty for ${n} rows${assignment.repeats > 1 ? ` in repeat ${r}` : ''}`, at(['split', 'test-fraction']))); break; }
+        }
+      } else {
+        const empty = emptyFolds(assignment);
+        if (empty.length) problems.push(error('empty-fold', `the split leaves ${empty.length} fold${empty.length === 1 ? '' : 's'} without a row (repeat ${empty[0].repeat}, fold ${empty[0].fold}${empty.length > 1 ? ', …' : ''})${s.assign === 'stable' ? '; assign: stable draws each row\'s fold on its own, so small data can leave a fold empty' : ''}`, { ...at(['split']), hint: 'use fewer folds, more rows, or assign: balanced' }));
       }
     }
   }

@@ -28,3 +28,15 @@ export function foldRows(a: Assignment, repeat: number, fold: number, order: Int
   }
   return { test, train };
 }
+
+/** (repeat, fold) pairs with no row: spec §8 rejects such an assignment (stable mode can draw one). */
+export function emptyFolds(a: Assignment): { repeat: number; fold: number }[] {
+  const n = a.ids.length;
+  const out: { repeat: number; fold: number }[] = [];
+  for (let r = 1; r <= a.repeats; r++) {
+    const seen = new Uint8Array(a.folds + 1);
+    for (let i = 0; i < n; i++) seen[a.fold[(r - 1) * n + i]] = 1;
+    for (let f = 1; f <= a.folds; f++) if (!seen[f]) out.push({ repeat: r, fold: f });
+  }
+  return out;
+}

@@ -29,7 +29,8 @@ export interface Grid {
   extract(numberCols: readonly number[], textCols: readonly number[]): Extracted | undefined;
 }
 
-const utf8 = new TextDecoder('utf-8');
+// ignoreBOM: a U+FEFF at the start of a cell is part of the cell (the spec strips a byte-order mark only at the start of a file).
+const utf8 = new TextDecoder('utf-8', { ignoreBOM: true });
 
 /** UTF-8 text of bytes [start, end); ASCII cells (nearly all ids and labels) skip the decoder. */
 export function decodeSpan(bytes: Uint8Array, start: number, end: number): string {

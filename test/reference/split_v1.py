@@ -31,6 +31,41 @@ def utf8(s):
     return s.encode("utf-8")
 
 
+# §6: white space for quoting, exactly as the spec lists it.
+WHITE = set(chr(c) for c in list(range(0x09, 0x0E)) + [0x20, 0xA0, 0x1680] + list(range(0x2000, 0x200B)) + [0x2028, 0x2029, 0x202F, 0x205F, 0x3000, 0xFEFF])
+
+
+def csv_cell(s):
+    if any(ch in s for ch in ',"\r\n') or (s and (s[0] in WHITE or s[-1] in WHITE)):
+        return '"' + s.replace('"', '""') + '"'
+    return s
+
+
+def rejection(v):
+    """Spec §8: the reason an input is rejected, as foldseal's problem code, or None."""
+    rule, rows = v["rule"], v["rows"]
+    labels = [r[1] for r in rows]
+    k = v.get("folds", 5)
+    if rule in ("kfold", "stratified-kfold") and k > len(rows):
+        return "too-many-folds"
+    groups = set(r[2] for r in rows) if rows and len(rows[0]) > 2 else set()
+    if rule == "grouped-kfold" and k > len(groups):
+        return "too-many-folds"
+    if rule == "leave-group-out" and len(groups) < 2:
+        return "too-few-groups"
+    if rule == "stratified-kfold" and v.get("assign", "balanced") == "balanced" and min(labels.count(c) for c in set(labels)) < k:
+        return "class-smaller-than-folds"
+    lines = assign(v)
+    for rep in range(1, v.get("repeats", 1) + 1):
+        folds = [int(l.rsplit(",", 2)[2]) for l in lines if int(l.rsplit(",", 2)[1]) == rep]
+        if rule == "holdout":
+            if folds.count(1) in (0, len(folds)):
+                return "empty-part"
+        elif rule in ("kfold", "stratified-kfold", "grouped-kfold") and set(folds) != set(range(1, k + 1)):
+            return "empty-fold"
+    return None
+
+
 def assign(v):
     rule = v["rule"]
     rows = v["rows"]
@@ -92,10 +127,14 @@ def assign(v):
             for i in ids:
                 fold[i] = gs.index(group[i]) + 1
         for i in sorted(ids, key=utf8):
-            out.append(f"{i},{rep},{fold[i]}")
+            out.append(f"{csv_cell(i)},{rep},{fold[i]}")
     return out
 
 
 if __name__ == "__main__":
     vectors = json.load(sys.stdin)
-    json.dump({v["name"]: assign(v) for v in vectors}, sys.stdout)
+    out = {}
+    for v in vectors:
+        reason = rejection(v)
+        out[v["name"]] = {"reject": reason} if reason else assign(v)
+    json.dump(out, sys.stdout)

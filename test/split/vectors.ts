@@ -12,7 +12,9 @@ export interface SpecVector {
   assign?: 'balanced' | 'stable';
   'test-fraction'?: number;
   rows: string[][];
-  expected: string[];
+  /** The assignment lines, or (for a rejected input) `reject`: the problem code. */
+  expected?: string[];
+  reject?: string;
 }
 
 export function specText(): string {
