@@ -87,9 +87,10 @@ export function buildTable(t: Grid, roles: DataRoles, file: string, locate: (rol
     (roles.features?.exclude ?? []).forEach((name, k) => {
       if (!columnIndex.has(name)) problems.push(warning('data-unknown-exclude', `excluded column "${name}" is not in the data file's header`, { position: locate('features', k) }));
     });
-    for (let c = 0; c < t.header.length; c++) {
-      if (reserved.has(c) || exclude.has(t.header[c])) continue;
-      const kind = columnKind(t, c, missing);
+    const candidates = t.header.map((_, c) => c).filter((c) => !reserved.has(c) && !exclude.has(t.header[c]));
+    const kinds = columnKinds(t, candidates, missing);
+    for (const [k, c] of candidates.entries()) {
+      const kind = kinds[k];
       if (kind === 'number') featureCols.push(c);
       else if (kind === 'text') ignoredColumns.push(t.header[c]);
       else problems.push(warning('data-empty-column', `column "${t.header[c]}" has no value in any row (every cell is missing), so it is not a feature`, { file, position: { line: 1, col: 1 }, hint: 'remove it from the file, or list it under data.features.exclude' }));
@@ -143,17 +144,24 @@ const TYPE_SAMPLE = 100;
  * reported instead of silently dropping the column), 'text' otherwise, 'empty' when every cell
  * is missing.
  */
-function columnKind(t: Grid, c: number, missing: Set<string>): 'number' | 'text' | 'empty' {
-  let numbers = 0;
-  let seen = 0;
-  for (let r = 0; r < t.rows && seen < TYPE_SAMPLE; r++) {
-    const v = t.number(r, c);
-    if (v === v) { numbers++; seen++; continue; }
-    const text = t.text(r, c);
-    if (text === '' || missing.has(text)) continue;
-    seen++;
+function columnKinds(t: Grid, cols: readonly number[], missing: Set<string>): ('number' | 'text' | 'empty')[] {
+  const numbers = new Int32Array(cols.length);
+  const seen = new Int32Array(cols.length);
+  let open = cols.length;
+  // Row by row, columns left to right: the readers find a row's cells in one pass that way.
+  for (let r = 0; r < t.rows && open > 0; r++) {
+    for (let k = 0; k < cols.length; k++) {
+      if (seen[k] >= TYPE_SAMPLE) continue;
+      const v = t.number(r, cols[k]);
+      if (v === v) numbers[k]++;
+      else {
+        const text = t.text(r, cols[k]);
+        if (text === '' || missing.has(text)) continue;
+      }
+      if (++seen[k] === TYPE_SAMPLE) open--;
+    }
   }
-  return seen === 0 ? 'empty' : numbers * 2 >= seen ? 'number' : 'text';
+  return cols.map((_, k) => (seen[k] === 0 ? 'empty' : numbers[k] * 2 >= seen[k] ? 'number' : 'text'));
 }
 
 function checkIds(t: Grid, ids: string[], idCol: number, file: string, problems: Problem[]): void {
