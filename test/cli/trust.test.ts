@@ -387,3 +387,15 @@ t.test('a new row under a training id must be that row: else an error at both pl
   t.equal(ok.code, 0, ok.stderr);
   t.match(ok.stdout, /^CS-0001,held-out,/m);
 });
+
+t.test("verify's last line agrees with its exit code", async (t) => {
+  const dir = project();
+  t.equal(cli(['keygen', '--out', 'author'], dir).code, 0);
+  t.equal(cli(['run', 'demo.yaml', '--out', 'res', '--key', 'author.key'], dir).code, 0);
+  const r = cli(['verify', 'res/manifest.json', '--rerun', '--allow-unsigned'], dir);
+  t.equal(r.code, 1, 'the signature is valid but not pinned');
+  t.match(r.stdout, /\nnot verified \(signature-unpinned\); the re-run itself was identical\n$/);
+  const pinned = cli(['verify', 'res/manifest.json', '--rerun', '--key', 'author.pub'], dir);
+  t.equal(pinned.code, 0);
+  t.match(pinned.stdout, /\nidentical\n$/);
+});
