@@ -3,7 +3,7 @@ import { canonicalSha256 } from '../manifest/canonical.js';
 import { isPinned, type Protocol } from '../protocol/types.js';
 import type { Assignment } from '../split/assignment.js';
 import { assignmentCsv } from '../split/csv.js';
-import { sha256Bytes } from '../io/hash.js';
+import { sha256Bytes } from '../util/sha256.js';
 import type { LockEntry } from './lock.js';
 
 export function lockEntry(p: Protocol, raw: unknown, dataSha256: string, a: Assignment): LockEntry {

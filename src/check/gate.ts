@@ -5,7 +5,7 @@
 import { error, warning, type Problem } from '../problems/problem.js';
 import { locate, type SourceDocument } from '../protocol/document.js';
 import { isPinned } from '../protocol/types.js';
-import type { ValidationReport } from '../io/validate.js';
+import type { ValidationReport } from '../protocol/report.js';
 import { rawFingerprint, type ManifestCheck } from '../manifest/check.js';
 import { parseKeyLines } from '../manifest/ssh.js';
 import type { LockEntry, ParsedLock } from './lock.js';

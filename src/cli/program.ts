@@ -1,6 +1,6 @@
 /** Command-line surface: names, options and help text. Each action calls a typed command function. */
 import { Command, Option } from 'commander';
-import { packageVersion } from '../util/package-root.js';
+import { packageVersion } from '../io/package-root.js';
 import type { CommandIo, ExitCode } from './io.js';
 import { showAllProblems } from './report-problems.js';
 // Commands load when chosen: a quick `validate` does not pay for the runner and the signer.

@@ -15,6 +15,4 @@ export async function sha256File(path: string): Promise<string> {
   });
 }
 
-export function sha256Bytes(bytes: Uint8Array | string): string {
-  return createHash('sha256').update(bytes).digest('hex');
-}
+export { sha256Bytes } from '../util/sha256.js';

@@ -8,6 +8,7 @@ import { LOCK_FILE, parseLock, parseSealed, type ParsedLock } from '../check/loc
 import { checkManifest } from '../manifest/check.js';
 import { error, FoldsealError, type Problem } from '../problems/problem.js';
 import { discoverProtocols } from './discover.js';
+import { MANIFEST_SCHEMA, schemaValidator } from './schemas.js';
 import { readRegular, readRegularText } from './files.js';
 import { outsideProblem, trustedFolders } from './path-policy.js';
 import { sha256Bytes } from './hash.js';
@@ -64,7 +65,7 @@ export async function readRepo(root: string, allowOutside = false): Promise<Repo
     for (const file of await findManifests(join(root, 'results'))) {
       const text = await readRegularText(file);
       const detached = await readRegularText(`${file}.sig`).catch(() => undefined);
-      manifests.push({ file: shown(file), check: checkManifest(text, { file: shown(file), allowUnpinned: true, detached }) });
+      manifests.push({ file: shown(file), check: checkManifest(text, { file: shown(file), allowUnpinned: true, detached, validate: schemaValidator(MANIFEST_SCHEMA) }) });
     }
   }
   return { input: { protocols, lock, lockFile, sealed, manifests }, problems, skipped: discovered.skipped };

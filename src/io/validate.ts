@@ -6,30 +6,21 @@ import { stat } from 'node:fs/promises';
 import { dirname, relative, resolve } from 'node:path';
 import { error, hasErrors, type Problem } from '../problems/problem.js';
 import { locate } from '../protocol/document.js';
-import { parseProtocol, type ParsedProtocol } from '../protocol/parse.js';
+import { parseProtocol, PROTOCOL_SCHEMA, type ParsedProtocol } from '../protocol/parse.js';
+import type { ValidationReport } from '../protocol/report.js';
+import { schemaValidator } from './schemas.js';
 import { checkAgainstData } from '../protocol/semantic.js';
 import { isPinned, type Protocol, type RuleSplit } from '../protocol/types.js';
 import { splitRules } from '../split/registry.js';
-import type { Assignment } from '../split/assignment.js';
 import { tableFromBytes } from '../table/load.js';
 import { knownColumns } from '../protocol/known-columns.js';
-import type { Table } from '../table/table.js';
 import { newRowsFromBytes, type NewRows } from '../table/new-rows.js';
 import { fileProblem, readBytes, readRegularText } from './files.js';
 import { knownIdProblems, knownRows } from '../reconcile/known-ids.js';
 import { outsideProblem, protocolPolicy, type PathPolicy } from './path-policy.js';
 import { rowThreadsAvailable, startRowThread, type RowThread } from './row-helper.js';
 
-export interface ValidationReport extends ParsedProtocol {
-  /** True when the protocol file itself could not be read (a usage-level failure). */
-  unreadable?: boolean;
-  table?: Table;
-  dataSha256?: string;
-  assignment?: Assignment;
-  newRows?: NewRows;
-  /** Absolute paths of the files the protocol names. */
-  paths?: { data: string; pinned?: string; newRows?: string };
-}
+export type { ValidationReport } from '../protocol/report.js';
 
 /** Path as shown in messages: relative to the working folder when that is shorter. */
 export function shown(path: string): string {
@@ -54,7 +45,7 @@ export async function loadProtocol(path: string): Promise<ValidationReport> {
   } catch (e) {
     return { file, problems: [fileProblem(e as NodeJS.ErrnoException, file, { file })], unreadable: true };
   }
-  return parseProtocol(text, file);
+  return parseProtocol(text, file, schemaValidator(PROTOCOL_SCHEMA));
 }
 
 export interface ValidateOptions {

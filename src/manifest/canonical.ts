@@ -5,7 +5,7 @@
  * (NaN, ±Infinity, undefined, class instances) fail loudly with their path, so they never reach
  * signed bytes.
  */
-import { sha256Bytes } from '../io/hash.js';
+import { sha256Bytes } from '../util/sha256.js';
 
 export function canonicalJson(value: unknown): string {
   const path: (string | number)[] = [];

@@ -2,7 +2,7 @@
 import { createHash, createPublicKey, type KeyObject } from 'node:crypto';
 import { error, warning, type Problem } from '../problems/problem.js';
 import { MAX_NESTING, nestingDepth } from '../util/nesting.js';
-import { schemaValidator } from '../protocol/schema.js';
+import type { ValidateFunction } from 'ajv/dist/2020.js';
 import { MANIFEST_VERSION, type Manifest } from './build.js';
 import { canonicalJson, NonJsonValueError } from './canonical.js';
 import { changedMembers, fingerprint, manifestText, memberDigests, signatureValid, type Signature } from './sign.js';
@@ -33,6 +33,8 @@ export interface CheckOptions {
   allowUnpinned?: boolean;
   /** The text of manifest.json.sig next to the manifest (an SSH signature over the file's bytes), when there is one. */
   detached?: string;
+  /** The manifest schema's validator (the shell loads it: io/schemas.ts). */
+  validate: ValidateFunction;
 }
 
 export function rawFingerprint(raw: Uint8Array): string {
@@ -53,7 +55,7 @@ export function checkManifest(text: string, o: CheckOptions): ManifestCheck {
     return { problems: [error('manifest-version', `manifest format ${JSON.stringify(manifest['foldseal-manifest'] ?? null)} is not one this foldseal reads (format ${MANIFEST_VERSION})`, { file })], pinned: false };
   }
   const problems: Problem[] = [];
-  const validate = schemaValidator('manifest.schema.json');
+  const validate = o.validate;
   if (!validate(manifest)) {
     for (const e of validate.errors ?? []) problems.push(error('manifest-schema', `${e.instancePath || '/'} ${e.message}${e.keyword === 'additionalProperties' ? ` (${String(e.params.additionalProperty)})` : ''}`, { file }));
     return { manifest, problems, pinned: false };

@@ -2,7 +2,7 @@
 import { error, warning, hasErrors, type Problem } from '../problems/problem.js';
 import { hasKey, locate, parseYaml, type SourceDocument } from './document.js';
 import { normalizeProtocol } from './normalize.js';
-import { schemaValidator } from './schema.js';
+import type { ValidateFunction } from 'ajv/dist/2020.js';
 import { schemaProblems } from './schema-problems.js';
 import { isPinned, ruleNeedsSeed, type Protocol } from './types.js';
 
@@ -17,14 +17,14 @@ export interface ParsedProtocol {
 
 export const PROTOCOL_SCHEMA = 'protocol.schema.json';
 
-export function parseProtocol(text: string, file: string): ParsedProtocol {
+/** `validate`: the protocol schema's validator (the shell loads it: io/schemas.ts). */
+export function parseProtocol(text: string, file: string, validate: ValidateFunction): ParsedProtocol {
   const { source, value, problems } = parseYaml(text, file);
   if (hasErrors(problems)) return { file, source, problems };
   if (value === null || value === undefined || typeof value !== 'object' || Array.isArray(value)) {
     problems.push(error('not-a-protocol', 'a protocol is a YAML mapping with the key `foldseal: 1` at the top', { file, position: { line: 1, col: 1 } }));
     return { file, source, problems };
   }
-  const validate = schemaValidator(PROTOCOL_SCHEMA);
   if (!validate(value)) {
     problems.push(...schemaProblems(validate.errors ?? [], source));
     return { file, source, raw: value, problems };

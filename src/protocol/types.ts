@@ -1,6 +1,6 @@
 /** The protocol after schema validation, with every documented default filled in. */
-export type SplitRule = 'holdout' | 'kfold' | 'stratified-kfold' | 'grouped-kfold' | 'leave-one-out' | 'leave-group-out';
-export type AssignMode = 'balanced' | 'stable';
+import type { RuleSplit, SplitRule } from '../split/types.js';
+export type { AssignMode, RuleSplit, SplitRule } from '../split/types.js';
 export type ModelKind = 'gaussian-nb' | 'multinomial-nb' | 'bernoulli-nb' | 'logistic' | 'knn' | 'shrunken-centroid';
 export type MetricName = 'accuracy' | 'balanced-accuracy' | 'precision' | 'recall' | 'f1' | 'mcc' | 'kappa' | 'roc-auc' | 'average-precision' | 'log-loss' | 'brier';
 export type ReconcileRule = 'mean-probability' | 'majority-vote' | 'refit';
@@ -15,15 +15,6 @@ export type PreprocessStep =
 export interface HashedFile {
   file: string;
   sha256: string;
-}
-
-export interface RuleSplit {
-  rule: SplitRule;
-  folds: number;
-  repeats: number;
-  seed?: number;
-  assign: AssignMode;
-  testFraction?: number;
 }
 
 export interface PinnedSplit {

@@ -7,7 +7,7 @@ import { testsFoldOneOnly, type Protocol } from '../protocol/types.js';
 import type { Assignment } from '../split/assignment.js';
 import { assignmentCsv } from '../split/csv.js';
 import type { Table } from '../table/table.js';
-import { sha256Bytes } from '../io/hash.js';
+import { sha256Bytes } from '../util/sha256.js';
 import { fitOptions, models } from '../model/registry.js';
 import { columnMajor, fitPipelineOnRows, fitsByColumns } from '../preprocess/by-columns.js';
 import { prunePipeline } from '../preprocess/pipeline.js';

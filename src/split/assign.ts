@@ -1,5 +1,5 @@
 /** Protocol split settings × table → Assignment for every repeat. Pure. */
-import type { RuleSplit } from '../protocol/types.js';
+import type { RuleSplit } from './types.js';
 import { SPLIT_VERSION, type Assignment } from './assignment.js';
 import { splitRules } from './registry.js';
 import type { SplitInput } from './rule.js';

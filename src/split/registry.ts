@@ -1,5 +1,5 @@
 /** split.rule → implementation. Adding a rule: one file in rules/ and one line here (and a section in docs/split-spec.md). */
-import type { SplitRule } from '../protocol/types.js';
+import type { SplitRule } from './types.js';
 import type { SplitRuleImpl } from './rule.js';
 import { groupedKfold } from './rules/grouped-kfold.js';
 import { holdout } from './rules/holdout.js';

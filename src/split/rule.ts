@@ -1,5 +1,5 @@
 import { deriveKeys } from './key.js';
-import type { AssignMode } from '../protocol/types.js';
+import type { AssignMode } from './types.js';
 
 /** What a split rule sees: ids, label codes (classes in UTF-8 byte order), optional group values. */
 export interface SplitInput {

@@ -3,7 +3,7 @@
  * ids and labels as strings, label codes as Int32Array, features as a row-major Matrix.
  */
 import { error, warning, type Problem } from '../problems/problem.js';
-import { idOrder } from '../split/key.js';
+import { idOrder } from '../util/id-order.js';
 import { compareUtf8 } from '../util/bytes.js';
 import type { Grid } from './grid.js';
 import type { Matrix } from './matrix.js';

@@ -6,17 +6,20 @@ import t from 'tap';
 import { produceRun } from '../../src/io/produce-run.js';
 import { canonicalJson } from '../../src/manifest/canonical.js';
 import { checkManifest } from '../../src/manifest/check.js';
-import { manifestForRun } from '../../src/manifest/for-run.js';
+import { manifestForRun } from '../../src/run/manifest-of-run.js';
 import { rawPublicKey } from '../../src/manifest/sign.js';
 import { root } from '../helpers.js';
+import { MANIFEST_SCHEMA, schemaValidator } from '../../src/io/schemas.js';
+
+const validate = schemaValidator(MANIFEST_SCHEMA);
 
 const keyA = generateKeyPairSync('ed25519');
 const keyB = generateKeyPairSync('ed25519');
 const tool = { name: 'foldseal' as const, version: '0.0.0-test', node: 'v20', platform: 'test' };
 const { input, out } = await produceRun(join(root, 'protocols', 'demo.yaml'));
-const { text } = manifestForRun(input!, out!, { tool, created: '2026-12-01T00:00:00.000Z', protocolLocation: '../protocols', key: keyA });
+const { text } = manifestForRun(input!, out!, { tool, created: '2026-12-01T00:00:00.000Z', protocolLocation: '../protocols', key: keyA, validate });
 const pin = (k: { publicKey: KeyObject }) => [{ raw: rawPublicKey(k.publicKey) }];
-const rejected = (s: string, publicKey = keyA.publicKey) => checkManifest(s, { file: 'm.json', pinned: pin({ publicKey }) }).problems.some((p) => p.severity === 'error');
+const rejected = (s: string, publicKey = keyA.publicKey) => checkManifest(s, { file: 'm.json', pinned: pin({ publicKey }), validate }).problems.some((p) => p.severity === 'error');
 
 type Path = (string | number)[];
 function paths(value: unknown, prefix: Path = [], out: Path[] = []): Path[] {
@@ -35,8 +38,8 @@ const get = (o: any, p: Path) => p.reduce((x, k) => x[k], o);
 const set = (o: any, p: Path, v: unknown) => { get(o, p.slice(0, -1))[p[p.length - 1]] = v; };
 
 t.test('the untouched manifest verifies with key A and fails with key B', async (t) => {
-  t.same(checkManifest(text, { file: 'm.json', pinned: pin(keyA) }).problems, []);
-  const withB = checkManifest(text, { file: 'm.json', pinned: pin(keyB) });
+  t.same(checkManifest(text, { file: 'm.json', pinned: pin(keyA), validate }).problems, []);
+  const withB = checkManifest(text, { file: 'm.json', pinned: pin(keyB), validate });
   t.same(withB.problems.map((p) => p.code), ['signature-wrong-key']);
 });
 
@@ -73,14 +76,14 @@ t.test('1,200 generated mutations: none is accepted', async (t) => {
 t.test('a changed value is named by its member path', async (t) => {
   const m = structuredClone(base);
   m.results.summary.accuracy.mean = 0.99;
-  const problems = checkManifest(canonicalJson(m) + '\n', { file: 'm.json', pinned: pin(keyA) }).problems;
+  const problems = checkManifest(canonicalJson(m) + '\n', { file: 'm.json', pinned: pin(keyA), validate }).problems;
   t.same(problems.map((p) => p.message), ['the signature does not match the content: /results/summary changed after signing']);
   const reformatted = JSON.stringify(base, null, 2);
-  t.same(checkManifest(reformatted, { file: 'm.json', pinned: pin(keyA) }).problems.map((p) => p.code), ['manifest-not-canonical'], 'a pretty-printed copy is flagged, its signature still holds');
+  t.same(checkManifest(reformatted, { file: 'm.json', pinned: pin(keyA), validate }).problems.map((p) => p.code), ['manifest-not-canonical'], 'a pretty-printed copy is flagged, its signature still holds');
 });
 
 t.test('bad manifests', async (t) => {
-  const codes = (s: string) => checkManifest(s, { file: 'm.json' }).problems.map((p) => p.code);
+  const codes = (s: string) => checkManifest(s, { file: 'm.json', validate }).problems.map((p) => p.code);
   t.same(codes(text.slice(0, 200)), ['manifest-not-json'], 'truncated');
   t.same(codes('[1,2]'), ['manifest-not-object']);
   t.same(codes(text.replace(/"accuracy":0\.\d+/, '"accuracy":1e999')), ['manifest-not-json'], 'a number that overflows to Infinity');
@@ -89,7 +92,7 @@ t.test('bad manifests', async (t) => {
   const unsigned = structuredClone(base);
   delete unsigned.signature;
   t.same(codes(canonicalJson(unsigned) + '\n'), ['manifest-unsigned']);
-  t.same(checkManifest(canonicalJson(unsigned) + '\n', { file: 'm.json', allowUnpinned: true }).problems.map((p) => p.severity), ['warning']);
+  t.same(checkManifest(canonicalJson(unsigned) + '\n', { file: 'm.json', allowUnpinned: true, validate }).problems.map((p) => p.severity), ['warning']);
   t.same(codes(text), ['signature-unpinned'], 'valid but unpinned without --key');
   const forged = structuredClone(base);
   forged.signature['key-sha256'] = '0'.repeat(64);

@@ -3,7 +3,7 @@ import { join } from 'node:path';
 import t from 'tap';
 import { protocolReference } from '../../src/protocol/reference-doc.js';
 import { parse } from 'yaml';
-import { compileValidator, precompiledValidator, readSchema } from '../../src/protocol/schema.js';
+import { compileValidator, precompiledValidator, readSchema } from '../../src/io/schemas.js';
 import { root } from '../helpers.js';
 
 type S = Record<string, any>;

@@ -8,7 +8,7 @@ import { shown, validateProtocol } from '../../io/validate.js';
 import { DEFAULT_MISSING } from '../../protocol/types.js';
 import { protocolTemplate, slugFrom } from '../../protocol/template.js';
 import { tableFromBytes } from '../../table/load.js';
-import { schemaPath } from '../../protocol/schema.js';
+import { schemaPath } from '../../io/schemas.js';
 import type { CommandIo, ExitCode } from '../io.js';
 import { reportProblems } from '../report-problems.js';
 

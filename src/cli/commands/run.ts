@@ -3,9 +3,10 @@ import { readSigningKey } from '../../io/keys.js';
 import { encodeSshsig, MANIFEST_NAMESPACE, sshsigSignedData } from '../../manifest/ssh.js';
 import { writeOutputDir } from '../../io/output-dir.js';
 import { produceRun } from '../../io/produce-run.js';
+import { MANIFEST_SCHEMA, schemaValidator } from '../../io/schemas.js';
 import { protocolPolicy } from '../../io/path-policy.js';
 import { shown } from '../../io/validate.js';
-import { manifestForRun } from '../../manifest/for-run.js';
+import { manifestForRun } from '../../run/manifest-of-run.js';
 import { disagreementReport } from '../../reconcile/applied.js';
 import { cvTables } from '../cv-table.js';
 import type { CommandIo, ExitCode } from '../io.js';
@@ -42,6 +43,7 @@ export async function runCommand(args: RunArgs, io: CommandIo): Promise<ExitCode
     created: new Date().toISOString(),
     protocolLocation: relative(dir, dirname(resolve(args.protocol))).split('\\').join('/') || '.',
     key: key?.kind === 'raw' ? key : undefined,
+    validate: schemaValidator(MANIFEST_SCHEMA),
   });
   const written: Record<string, string> = { ...out.files, 'manifest.json': text };
   // An SSH key signs the manifest's bytes in manifest.json.sig, the file `ssh-keygen -Y verify` reads.

@@ -8,13 +8,14 @@ import { fileProblem, readRegularText } from '../../io/files.js';
 import { isInside, outsideProblem, protocolPolicy, realPath, trustedFolders, type PathPolicy } from '../../io/path-policy.js';
 import { selfCheck } from '../../manifest/self-check.js';
 import { readPinnedKeys } from '../../io/keys.js';
+import { MANIFEST_SCHEMA, schemaValidator } from '../../io/schemas.js';
 import { produceRun } from '../../io/produce-run.js';
 import { loadProtocol, shown } from '../../io/validate.js';
 import type { Manifest } from '../../manifest/build.js';
 import { canonicalSha256 } from '../../manifest/canonical.js';
 import { checkManifest, type ManifestCheck } from '../../manifest/check.js';
 import { compareRuns, verdict, type Difference } from '../../manifest/compare.js';
-import { manifestForRun } from '../../manifest/for-run.js';
+import { manifestForRun } from '../../run/manifest-of-run.js';
 import type { CommandIo, ExitCode } from '../io.js';
 import { reportProblems, type OutputFormat } from '../report-problems.js';
 import { toolInfo } from '../tool-info.js';
@@ -44,7 +45,7 @@ export async function verifyCommand(args: VerifyArgs, io: CommandIo): Promise<Ex
   }
   const pinned = args.key ? await readPinnedKeys(args.key) : undefined;
   const detached = await readFileOr(`${resolve(args.manifest)}.sig`, undefined);
-  const check = checkManifest(text, { file, pinned, allowUnpinned: args.allowUnpinned, detached });
+  const check = checkManifest(text, { file, pinned, allowUnpinned: args.allowUnpinned, detached, validate: schemaValidator(MANIFEST_SCHEMA) });
   const problems: Problem[] = [...check.problems];
   const lines: string[] = [];
   let differences: Difference[] = [];
@@ -153,7 +154,7 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
       problems.push(...report.problems.filter((p) => p.severity === 'error'), error('rerun-failed', 'the protocol did not validate on the local data, so it could not be re-run'));
       return { differences: [], lines: [] };
     }
-    const fresh = manifestForRun(input, out, { tool: toolInfo(), created: '', protocolLocation: m.protocol.location }).manifest as any;
+    const fresh = manifestForRun(input, out, { tool: toolInfo(), created: '', protocolLocation: m.protocol.location, validate: schemaValidator(MANIFEST_SCHEMA) }).manifest as any;
     fresh.protocol.sha256 = protocolSha;
     const differences = compareRuns(m, fresh, doc.verify?.tolerance ?? 0);
     const recordedPredictions = await readFileOr(join(manifestDir, 'predictions.csv'), '');

@@ -9,8 +9,10 @@ import { existsSync, readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { join } from 'node:path';
 import type { ValidateFunction } from 'ajv/dist/2020.js';
-import { packageRoot } from '../util/package-root.js';
-import { AJV_OPTIONS, compiledValidatorPath } from './schema-options.js';
+import { packageRoot } from './package-root.js';
+import { AJV_OPTIONS, compiledValidatorPath } from '../protocol/schema-options.js';
+
+export const MANIFEST_SCHEMA = 'manifest.schema.json';
 
 export function schemaPath(name: string): string {
   return join(packageRoot(), 'schema', name);

@@ -1,10 +1,10 @@
 /** Wraps a run's outputs in a manifest (and signs it when a key is given). Pure: time, tool and keys come in. */
 import type { KeyObject } from 'node:crypto';
-import { schemaValidator } from '../protocol/schema.js';
-import type { RunInput, RunOutput } from '../run/run.js';
-import { buildManifest, MANIFEST_FILES, type Manifest, type ToolInfo } from './build.js';
-import { canonicalSha256 } from './canonical.js';
-import { manifestText, signManifest } from './sign.js';
+import type { ValidateFunction } from 'ajv/dist/2020.js';
+import type { RunInput, RunOutput } from './run.js';
+import { buildManifest, MANIFEST_FILES, type Manifest, type ToolInfo } from '../manifest/build.js';
+import { canonicalSha256 } from '../manifest/canonical.js';
+import { manifestText, signManifest } from '../manifest/sign.js';
 
 export interface ManifestMeta {
   tool: ToolInfo;
@@ -12,6 +12,8 @@ export interface ManifestMeta {
   /** Folder of the protocol file relative to the results folder. */
   protocolLocation: string;
   key?: { privateKey: KeyObject; publicKey: KeyObject };
+  /** The manifest schema's validator: a manifest foldseal writes must pass it (io/schemas.ts loads it). */
+  validate: ValidateFunction;
 }
 
 export function manifestForRun(input: RunInput, out: RunOutput, meta: ManifestMeta): { manifest: Manifest; text: string } {
@@ -29,7 +31,7 @@ export function manifestForRun(input: RunInput, out: RunOutput, meta: ManifestMe
     files,
   });
   if (meta.key) manifest = signManifest(manifest, meta.key.privateKey, meta.key.publicKey);
-  const validate = schemaValidator('manifest.schema.json');
+  const validate = meta.validate;
   /* c8 ignore next 3 -- a manifest that fails its own schema is a bug in foldseal, reported as one */
   if (!validate(manifest)) {
     throw new Error(`foldseal wrote a manifest that fails schema/manifest.schema.json: ${JSON.stringify(validate.errors)}`);

@@ -1,0 +1,16 @@
+/** What validating a protocol against its data yields: the parse, the table, the assignment and the problems. Types only. */
+import type { Assignment } from '../split/assignment.js';
+import type { NewRows } from '../table/new-rows.js';
+import type { Table } from '../table/table.js';
+import type { ParsedProtocol } from './parse.js';
+
+export interface ValidationReport extends ParsedProtocol {
+  /** True when the protocol file itself could not be read (a usage-level failure). */
+  unreadable?: boolean;
+  table?: Table;
+  dataSha256?: string;
+  assignment?: Assignment;
+  newRows?: NewRows;
+  /** Absolute paths of the files the protocol names. */
+  paths?: { data: string; pinned?: string; newRows?: string };
+}

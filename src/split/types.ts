@@ -1,0 +1,12 @@
+/** The settings a split rule is given (the protocol's split section, normalized). Types only. */
+export type SplitRule = 'holdout' | 'kfold' | 'stratified-kfold' | 'grouped-kfold' | 'leave-one-out' | 'leave-group-out';
+export type AssignMode = 'balanced' | 'stable';
+
+export interface RuleSplit {
+  rule: SplitRule;
+  folds: number;
+  repeats: number;
+  seed?: number;
+  assign: AssignMode;
+  testFraction?: number;
+}
