@@ -50,3 +50,11 @@ t.test('no import cycle between folders', async (t) => {
   for (const folder of edges.keys()) visit(folder, folder, [folder]);
   t.same(cycles, []);
 });
+
+t.test('every code of the problem catalogue is used, and every code used is in it (the compiler checks the second)', async (t) => {
+  const catalogue = readFileSync(join(src, 'problems', 'codes.ts'), 'utf8');
+  const codes = [...catalogue.matchAll(/^ {2}'([a-z0-9-]+)':/gm)].map((m) => m[1]);
+  t.ok(codes.length > 100, `${codes.length} codes`);
+  const rest = files(src).filter((f) => !f.endsWith('codes.ts')).map((f) => readFileSync(f, 'utf8')).join('\n');
+  t.same(codes.filter((c) => !rest.includes(`'${c}'`)), [], 'no code only in the catalogue');
+});

@@ -1,7 +1,6 @@
 /** Worker thread entry: fits the folds it is sent on the shared table (see fold-workers.ts). */
 import { parentPort, workerData } from 'node:worker_threads';
 import { FitError } from '../model/types.js';
-import { TransformError } from '../preprocess/types.js';
 import { fitFold, fitModelAfterPipeline, type FoldData } from '../run/fit-fold.js';
 import type { FittedPipeline } from '../preprocess/pipeline.js';
 
@@ -13,7 +12,7 @@ parentPort!.on('message', (job: { index: number; train: Int32Array; test: Int32A
     const fit = job.pipeline ? fitModelAfterPipeline(w.protocol, table, job.pipeline, job.train, job.test) : fitFold(w.protocol, table, job.train, job.test);
     parentPort!.postMessage({ index: job.index, fit }, [fit.proba.buffer as ArrayBuffer]);
   } catch (e) {
-    const user = e instanceof FitError || e instanceof TransformError;
+    const user = e instanceof FitError;
     parentPort!.postMessage({ index: job.index, error: { kind: user ? e.name : 'bug', code: user ? e.code : '', message: user ? e.message : String((e as Error).stack ?? e), hint: user ? e.hint : undefined } });
   }
 });

@@ -4,14 +4,14 @@
  * bytes; this vouches that the bytes tell one consistent story. Pure.
  */
 import { createHash } from 'node:crypto';
-import { error, type Problem } from '../problems/problem.js';
+import { error, type Problem, type ProblemCode } from '../problems/problem.js';
 import { csvCells } from '../table/csv-write.js';
 import { canonicalJson, canonicalSha256 } from './canonical.js';
 
 /** `resultsJson`: the text of results.json next to the manifest, when it is there. */
 export function selfCheck(m: any, file: string, resultsJson?: string): Problem[] {
   const out: Problem[] = [];
-  const bad = (code: string, message: string) => out.push(error(code, message, { file }));
+  const bad = (code: ProblemCode, message: string) => out.push(error(code, message, { file }));
   const protocolSha = canonicalSha256(m.protocol.document);
   if (protocolSha !== m.protocol.sha256) bad('manifest-protocol-hash', `protocol.sha256 is ${m.protocol.sha256}, but the embedded protocol document hashes to ${protocolSha}`);
   const triples = m.split.assignment as [string, number, number][];

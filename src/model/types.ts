@@ -31,13 +31,7 @@ export interface ModelImpl<P = unknown> {
   notes?(params: P): string[];
 }
 
-/** Problems a fit can hit that are the user's to fix (not bugs). */
-export class FitError extends Error {
-  constructor(readonly code: string, message: string, readonly hint?: string) {
-    super(message);
-    this.name = 'FitError';
-  }
-}
+export { FitError } from '../problems/problem.js';
 
 export function classCounts(y: Int32Array, classCount: number): Float64Array {
   const c = new Float64Array(classCount);

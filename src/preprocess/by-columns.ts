@@ -11,7 +11,8 @@ import { takeRows, type Matrix } from '../table/matrix.js';
 import { presentClasses } from './feature-scores.js';
 import { assertFinite, fitPipeline, type FittedPipeline, type FittedStep } from './pipeline.js';
 import { transforms } from './registry.js';
-import { TransformError, type ColumnKernel, type TransformImpl } from './types.js';
+import { FitError } from '../problems/problem.js';
+import type { ColumnKernel, TransformImpl } from './types.js';
 
 type Selection = Required<Pick<TransformImpl, 'scoreColumn' | 'fromScores' | 'kept'>>;
 interface ColumnPlan { prefix: { step: PreprocessStep; kernel: ColumnKernel }[]; at: number; selection: Selection }
@@ -57,7 +58,7 @@ export function fitPipelineOnRows(steps: readonly PreprocessStep[], source: Matr
     } catch (e) {
       // A kernel cannot name the column or row that failed: the whole-matrix fit below fails
       // the same way and says where.
-      if (!(e instanceof TransformError)) throw e;
+      if (!(e instanceof FitError)) throw e;
     }
   }
   return fitPipeline(steps, takeRows(source, rows), y, classCount, names);

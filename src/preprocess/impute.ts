@@ -1,11 +1,12 @@
 /** Fill missing cells (NaN) with the training mean or median of the column's present values. */
-import { TransformError, type TransformImpl } from './types.js';
+import { FitError } from '../problems/problem.js';
+import type { TransformImpl } from './types.js';
 
 export interface ImputeParams { fill: number[] }
 interface ImputeStep { by: 'mean' | 'median' }
 
 function fillValue(present: number[], step: ImputeStep, column: number): number {
-  if (present.length === 0) throw new TransformError('impute-empty-column', `feature ${column + 1} has no present value in a training part, so there is nothing to impute from`);
+  if (present.length === 0) throw new FitError('impute-empty-column', `feature ${column + 1} has no present value in a training part, so there is nothing to impute from`);
   if (step.by === 'mean') return present.reduce((a, b) => a + b, 0) / present.length;
   present.sort((a, b) => a - b);
   const h = present.length >> 1;

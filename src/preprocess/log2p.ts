@@ -1,5 +1,6 @@
 /** log2(x + 1), for counts and intensities; negative input is rejected rather than turned into NaN. */
-import { TransformError, type TransformImpl } from './types.js';
+import { FitError } from '../problems/problem.js';
+import type { TransformImpl } from './types.js';
 
 export const log2p: TransformImpl<Record<string, never>> = {
   fit() {
@@ -11,7 +12,7 @@ export const log2p: TransformImpl<Record<string, never>> = {
     apply(v, n) {
       for (let i = 0; i < n; i++) {
         // The position is not known here; the whole-matrix apply re-raises this with it.
-        if (v[i] < 0) throw new TransformError('log2p-negative', `log2p got the negative value ${v[i]}`);
+        if (v[i] < 0) throw new FitError('log2p-negative', `log2p got the negative value ${v[i]}`);
         v[i] = Math.log2(v[i] + 1);
       }
     },
@@ -23,7 +24,7 @@ export const log2p: TransformImpl<Record<string, never>> = {
     const out = new Float64Array(X.data.length);
     for (let k = 0; k < out.length; k++) {
       const v = X.data[k];
-      if (v < 0) throw new TransformError('log2p-negative', `log2p got the negative value ${v} (feature ${(k % X.cols) + 1}, row ${Math.floor(k / X.cols) + 1} of the part)`, 'log2p is for non-negative data such as counts; put it before standardize');
+      if (v < 0) throw new FitError('log2p-negative', `log2p got the negative value ${v} (feature ${(k % X.cols) + 1}, row ${Math.floor(k / X.cols) + 1} of the part)`, 'log2p is for non-negative data such as counts; put it before standardize');
       out[k] = Math.log2(v + 1);
     }
     return { rows: X.rows, cols: X.cols, data: out };

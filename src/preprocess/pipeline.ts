@@ -3,7 +3,7 @@ import type { PreprocessStep } from '../protocol/types.js';
 import type { Matrix } from '../table/matrix.js';
 import { takeCells, takeCols, takeRows } from '../table/matrix.js';
 import { transforms } from './registry.js';
-import { TransformError } from './types.js';
+import { FitError } from '../problems/problem.js';
 
 export interface FittedStep {
   step: PreprocessStep;
@@ -46,7 +46,7 @@ export function assertFinite(X: Matrix, columns: readonly string[]): void {
   for (let k = 0; k < X.data.length; k++) {
     if (!Number.isFinite(X.data[k])) {
       const what = X.data[k] !== X.data[k] ? 'a missing value' : 'an infinite value';
-      throw new TransformError('non-finite-feature', `feature "${columns[k % X.cols]}" has ${what} after preprocessing (row ${Math.floor(k / X.cols) + 1} of the part)`, 'add an impute step, or check the input for overflow');
+      throw new FitError('non-finite-feature', `feature "${columns[k % X.cols]}" has ${what} after preprocessing (row ${Math.floor(k / X.cols) + 1} of the part)`, 'add an impute step, or check the input for overflow');
     }
   }
 }

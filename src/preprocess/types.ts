@@ -42,9 +42,4 @@ export interface ColumnKernel {
 }
 
 
-export class TransformError extends Error {
-  constructor(readonly code: string, message: string, readonly hint?: string) {
-    super(message);
-    this.name = 'TransformError';
-  }
-}
+

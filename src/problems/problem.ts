@@ -2,6 +2,9 @@
  * The one error model of foldseal. Every detector returns Problems as data;
  * only formatters (text, JSON) turn them into words on a screen.
  */
+import { PROBLEM_CODES, type ProblemCode } from './codes.js';
+
+export type { ProblemCode } from './codes.js';
 export type Severity = 'error' | 'warning';
 
 export interface Position {
@@ -10,8 +13,8 @@ export interface Position {
 }
 
 export interface Problem {
-  /** Stable machine code, kebab-case, e.g. `unknown-key`. */
-  code: string;
+  /** Stable machine code from the catalogue (codes.ts), e.g. `unknown-key`. */
+  code: ProblemCode;
   severity: Severity;
   message: string;
   /** File the problem is in, as the user named it (or as resolved from the protocol). */
@@ -22,12 +25,28 @@ export interface Problem {
   hint?: string;
 }
 
-export function error(code: string, message: string, extra: Partial<Problem> = {}): Problem {
-  return { code, severity: 'error', message, ...extra };
+function withDefaultHint(code: ProblemCode, extra: Partial<Problem>): Partial<Problem> {
+  const hint = (PROBLEM_CODES[code] as { hint?: string }).hint;
+  return extra.hint === undefined && hint !== undefined ? { ...extra, hint } : extra;
 }
 
-export function warning(code: string, message: string, extra: Partial<Problem> = {}): Problem {
-  return { code, severity: 'warning', message, ...extra };
+export function error(code: ProblemCode, message: string, extra: Partial<Problem> = {}): Problem {
+  return { code, severity: 'error', message, ...withDefaultHint(code, extra) };
+}
+
+export function warning(code: ProblemCode, message: string, extra: Partial<Problem> = {}): Problem {
+  return { code, severity: 'warning', message, ...withDefaultHint(code, extra) };
+}
+
+/**
+ * A fit or a transform that cannot be done on this data (not a bug): the one error class of the
+ * fitting code. The shell turns it into a located problem.
+ */
+export class FitError extends Error {
+  constructor(readonly code: ProblemCode, message: string, readonly hint?: string) {
+    super(message);
+    this.name = 'FitError';
+  }
 }
 
 export function hasErrors(problems: readonly Problem[]): boolean {

@@ -1,7 +1,6 @@
 /** One fold: fit the pipeline and the model on the training rows, predict the test rows. Pure. */
 import { fitOptions, models } from '../model/registry.js';
 import { FitError } from '../model/types.js';
-import { TransformError } from '../preprocess/types.js';
 import { fitPipelineOnRows } from '../preprocess/by-columns.js';
 import { applyPipeline, prunePipeline, type FittedPipeline } from '../preprocess/pipeline.js';
 import type { Protocol } from '../protocol/types.js';
@@ -44,6 +43,5 @@ export function fitModelAfterPipeline(p: Pick<Protocol, 'model'>, d: FoldData, p
 /** A fit or transform failure of one fold, its message naming the repeat and fold. */
 export function atFold(e: unknown, repeat: number, fold: number): unknown {
   if (e instanceof FitError) return new FitError(e.code, `${e.message} (repeat ${repeat}, fold ${fold})`, e.hint);
-  if (e instanceof TransformError) return new TransformError(e.code, `${e.message} (repeat ${repeat}, fold ${fold})`, e.hint);
   return e;
 }

@@ -1,7 +1,6 @@
 /** A validated protocol and its data → every output file of a run, as text. Pure. */
 import { canonicalSha256 } from '../manifest/canonical.js';
 import { FitError } from '../model/types.js';
-import { TransformError } from '../preprocess/types.js';
 import { error, FoldsealError, type Problem } from '../problems/problem.js';
 import { testsFoldOneOnly, type Protocol } from '../protocol/types.js';
 import type { Assignment } from '../split/assignment.js';
@@ -106,7 +105,7 @@ export function guardFit<T>(protocolFile: string, f: () => T): T {
 
 /** A fit or transform failure is the user's to fix: it becomes a located FoldsealError; anything else stays a bug. */
 export function asUserError(e: unknown, protocolFile: string): unknown {
-  return e instanceof FitError || e instanceof TransformError ? new FoldsealError(error(e.code, e.message, { file: protocolFile, hint: e.hint }), 1) : e;
+  return e instanceof FitError ? new FoldsealError(error(e.code, e.message, { file: protocolFile, hint: e.hint }), 1) : e;
 }
 
 /** One pipeline and model fitted on every labeled row, visited in id order. */
