@@ -14,7 +14,10 @@ const out = join(here, 'out', 'logistic');
 mkdirSync(out, { recursive: true });
 const [rows = 200000, features = 50] = process.argv.slice(2).map(Number);
 let s = 20261202;
-const rnd = () => { s = (s * 1103515245 + 12345) % 2147483648; return s / 2147483648; };
+const rnd = () => {
+  s = (s * 1103515245 + 12345) % 2147483648;
+  return s / 2147483648;
+};
 const gauss = () => Math.sqrt(-2 * Math.log(rnd() + 1e-12)) * Math.cos(2 * Math.PI * rnd());
 const lines = ['id,label,' + Array.from({ length: features }, (_, j) => `f${j}`).join(',')];
 for (let i = 0; i < rows; i++) {
@@ -25,13 +28,23 @@ for (let i = 0; i < rows; i++) {
 const data = join(out, 'tall.csv');
 writeFileSync(data, lines.join('\n') + '\n');
 const sha = createHash('sha256').update(readFileSync(data)).digest('hex');
-writeFileSync(join(out, 'tall.yaml'), `foldseal: 1\nname: logistic-tall\ndata: {file: tall.csv, sha256: "${sha}", id: id, label: label}\nsplit: {rule: stratified-kfold, folds: 10, seed: 1}\npreprocess: [standardize]\nmodel: {kind: logistic, options: {l2: 1}}\nmetrics: [accuracy, roc-auc, log-loss]\n`);
+writeFileSync(
+  join(out, 'tall.yaml'),
+  `foldseal: 1\nname: logistic-tall\ndata: {file: tall.csv, sha256: "${sha}", id: id, label: label}\nsplit: {rule: stratified-kfold, folds: 10, seed: 1}\npreprocess: [standardize]\nmodel: {kind: logistic, options: {l2: 1}}\nmetrics: [accuracy, roc-auc, log-loss]\n`,
+);
 const bin = join(here, '..', 'dist', 'src', 'cli', 'main.js');
 const t0 = performance.now();
 execFileSync(process.execPath, [bin, 'run', join(out, 'tall.yaml'), '--out', join(out, 'res'), '--force'], { stdio: 'ignore' });
 const ours = (performance.now() - t0) / 1000;
 execFileSync(process.execPath, [bin, 'folds', join(out, 'tall.yaml'), '--out', join(out, 'folds.csv')], { stdio: 'ignore' });
-const ref = (tol) => execFileSync('/usr/bin/python3', [join(here, 'logistic_reference.py'), data, join(out, 'folds.csv'), join(out, 'res', 'predictions.csv'), String(tol)], { encoding: 'utf8' }).trim().split(' ');
+const ref = (tol) =>
+  execFileSync(
+    '/usr/bin/python3',
+    [join(here, 'logistic_reference.py'), data, join(out, 'folds.csv'), join(out, 'res', 'predictions.csv'), String(tol)],
+    { encoding: 'utf8' },
+  )
+    .trim()
+    .split(' ');
 const [fast, fastDiff] = ref(1e-4);
 const [tight, tightDiff] = ref(1e-10);
 console.log(`${rows} × ${features}, 10-fold, standardize + logistic (l2 1)`);

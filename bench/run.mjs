@@ -27,9 +27,13 @@ function time(cmd, args) {
 
 const scratch = mkdtempSync(join(tmpdir(), 'foldseal-bench-'));
 const rows = [];
-for (const [name, file, label] of [['a', 'a-100k-x50.csv', '100,000 × 50, stratified 10-fold, gaussian-nb'], ['b', 'b-200-x20000.csv', '200 × 20,000, 10 × 5-fold, standardize + top-100 f-test + gaussian-nb']]) {
+for (const [name, file, label] of [
+  ['a', 'a-100k-x50.csv', '100,000 × 50, stratified 10-fold, gaussian-nb'],
+  ['b', 'b-200-x20000.csv', '200 × 20,000, 10 × 5-fold, standardize + top-100 f-test + gaussian-nb'],
+]) {
   const ours = time(process.execPath, [bin, 'run', join(out, `${name}.yaml`), '--out', join(scratch, name), '--force']);
   const theirs = time(python, [join(here, 'reference.py'), name, join(out, file), join(scratch, `${name}-ref.csv`)]);
   rows.push({ name, label, ours, theirs, ratio: ours / theirs });
 }
-for (const r of rows) console.log(`(${r.name}) ${r.label}: foldseal ${r.ours.toFixed(2)} s, reference ${r.theirs.toFixed(2)} s, ratio ${r.ratio.toFixed(2)}`);
+for (const r of rows)
+  console.log(`(${r.name}) ${r.label}: foldseal ${r.ours.toFixed(2)} s, reference ${r.theirs.toFixed(2)} s, ratio ${r.ratio.toFixed(2)}`);

@@ -10,7 +10,9 @@ import standaloneCode from 'ajv/dist/standalone/index.js';
 import { AJV_OPTIONS, compiledValidatorPath } from '../dist/src/protocol/schema-options.js';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
-for (const name of readdirSync(join(root, 'schema')).filter((f) => f.endsWith('.schema.json')).sort()) {
+for (const name of readdirSync(join(root, 'schema'))
+  .filter((f) => f.endsWith('.schema.json'))
+  .sort()) {
   const bytes = readFileSync(join(root, 'schema', name));
   const ajv = new Ajv2020({ ...AJV_OPTIONS, code: { source: true } });
   const validate = ajv.compile(JSON.parse(bytes.toString('utf8')));

@@ -10,9 +10,14 @@ import { root } from './helpers.js';
 
 const src = join(root, 'src');
 function files(dir: string): string[] {
-  return readdirSync(dir, { withFileTypes: true }).flatMap((e) => (e.isDirectory() ? files(join(dir, e.name)) : e.name.endsWith('.ts') ? [join(dir, e.name)] : []));
+  return readdirSync(dir, { withFileTypes: true }).flatMap((e) =>
+    e.isDirectory() ? files(join(dir, e.name)) : e.name.endsWith('.ts') ? [join(dir, e.name)] : [],
+  );
 }
-const folderOf = (file: string) => { const rel = relative(src, file).split('/'); return rel.length > 1 ? rel[0] : '(entry)'; };
+const folderOf = (file: string) => {
+  const rel = relative(src, file).split('/');
+  return rel.length > 1 ? rel[0] : '(entry)';
+};
 const SHELL = new Set(['cli', 'io', '(entry)']);
 const IMPURE_MODULES = /^node:(fs|fs\/promises|child_process|worker_threads|net|os|module|readline|http|https)$/;
 const IMPURE_CALLS = /\bprocess\.(env|cwd|exit|argv|stdout|stderr|pid|kill)\b|\bDate\.now\(|\bnew Date\(|\bperformance\.now\(/;
@@ -27,7 +32,10 @@ for (const file of files(src)) {
     const spec = m[1];
     if (spec.startsWith('.')) {
       const target = folderOf(join(file, '..', spec));
-      if (target !== folder) { if (!edges.has(folder)) edges.set(folder, new Set()); edges.get(folder)!.add(target); }
+      if (target !== folder) {
+        if (!edges.has(folder)) edges.set(folder, new Set());
+        edges.get(folder)!.add(target);
+      }
       if (!SHELL.has(folder) && (target === 'cli' || target === 'io')) problems.push(`${relative(root, file)} (core) imports ${spec}`);
       if (folder === 'io' && target === 'cli') problems.push(`${relative(root, file)} (io) imports ${spec}`);
     } else if (!SHELL.has(folder) && IMPURE_MODULES.test(spec)) problems.push(`${relative(root, file)} (core) imports ${spec}`);
@@ -55,6 +63,13 @@ t.test('every code of the problem catalogue is used, and every code used is in i
   const catalogue = readFileSync(join(src, 'problems', 'codes.ts'), 'utf8');
   const codes = [...catalogue.matchAll(/^ {2}'([a-z0-9-]+)':/gm)].map((m) => m[1]);
   t.ok(codes.length > 100, `${codes.length} codes`);
-  const rest = files(src).filter((f) => !f.endsWith('codes.ts')).map((f) => readFileSync(f, 'utf8')).join('\n');
-  t.same(codes.filter((c) => !rest.includes(`'${c}'`)), [], 'no code only in the catalogue');
+  const rest = files(src)
+    .filter((f) => !f.endsWith('codes.ts'))
+    .map((f) => readFileSync(f, 'utf8'))
+    .join('\n');
+  t.same(
+    codes.filter((c) => !rest.includes(`'${c}'`)),
+    [],
+    'no code only in the catalogue',
+  );
 });

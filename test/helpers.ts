@@ -42,12 +42,14 @@ export function smallCsv(rows = 20): string {
 
 /** A protocol text for `data.csv` with the given body lines replacing the defaults. */
 export function protocolText(csv: string, overrides: Partial<Record<'split' | 'model' | 'extra' | 'data', string>> = {}): string {
-  return [
-    'foldseal: 1',
-    'name: t',
-    overrides.data ?? `data:\n  file: data.csv\n  sha256: "${sha256(csv)}"\n  id: id\n  label: label`,
-    overrides.split ?? 'split:\n  rule: stratified-kfold\n  folds: 2\n  seed: 7',
-    overrides.model ?? 'model: {kind: gaussian-nb}',
-    overrides.extra ?? '',
-  ].join('\n') + '\n';
+  return (
+    [
+      'foldseal: 1',
+      'name: t',
+      overrides.data ?? `data:\n  file: data.csv\n  sha256: "${sha256(csv)}"\n  id: id\n  label: label`,
+      overrides.split ?? 'split:\n  rule: stratified-kfold\n  folds: 2\n  seed: 7',
+      overrides.model ?? 'model: {kind: gaussian-nb}',
+      overrides.extra ?? '',
+    ].join('\n') + '\n'
+  );
 }

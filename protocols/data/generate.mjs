@@ -19,7 +19,20 @@ const normal = () => {
 const fixed = (x, d) => x.toFixed(d);
 
 const trays = Array.from({ length: 12 }, (_, i) => `T${String(i + 1).padStart(2, '0')}`);
-const header = ['seedling_id', 'tray', 'bench', 'leaf_area_cm2', 'chlorophyll_spad', 'lesion_day3_mm', 'lesion_day7_mm', 'phenol_index', 'root_mass_g', 'stomata_per_mm2', 'height_cm', 'resistant'];
+const header = [
+  'seedling_id',
+  'tray',
+  'bench',
+  'leaf_area_cm2',
+  'chlorophyll_spad',
+  'lesion_day3_mm',
+  'lesion_day7_mm',
+  'phenol_index',
+  'root_mass_g',
+  'stomata_per_mm2',
+  'height_cm',
+  'resistant',
+];
 
 function seedling(id, tray) {
   const resistant = rand() < 0.42;

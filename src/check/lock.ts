@@ -51,23 +51,42 @@ export interface ParsedLock {
 export function parseLock(text: string, file: string): ParsedLock {
   // JSON is YAML: the YAML parser keeps positions for located findings.
   const parsed = parseYaml(text, file);
-  if (parsed.problems.some((p) => p.severity === 'error')) return { problems: parsed.problems.map((p) => ({ ...p, code: 'lock-corrupt', message: `the lock is not valid JSON: ${p.message}` })) };
+  if (parsed.problems.some((p) => p.severity === 'error'))
+    return { problems: parsed.problems.map((p) => ({ ...p, code: 'lock-corrupt', message: `the lock is not valid JSON: ${p.message}` })) };
   const v = parsed.value as Lock | undefined;
   const at = { file, position: { line: 1, col: 1 } };
   if (!v || typeof v !== 'object' || Array.isArray(v)) return { problems: [error('lock-corrupt', 'the lock is not a JSON object', at)] };
-  if (v['foldseal-lock'] !== LOCK_VERSION) return { problems: [error('lock-corrupt', `lock format ${JSON.stringify(v['foldseal-lock'] ?? null)} is not one this foldseal reads (${LOCK_VERSION})`, at)] };
-  if (!v.protocols || typeof v.protocols !== 'object') return { problems: [error('lock-corrupt', 'the lock has no "protocols" object', at)] };
+  if (v['foldseal-lock'] !== LOCK_VERSION)
+    return {
+      problems: [
+        error(
+          'lock-corrupt',
+          `lock format ${JSON.stringify(v['foldseal-lock'] ?? null)} is not one this foldseal reads (${LOCK_VERSION})`,
+          at,
+        ),
+      ],
+    };
+  if (!v.protocols || typeof v.protocols !== 'object')
+    return { problems: [error('lock-corrupt', 'the lock has no "protocols" object', at)] };
   return { lock: v, source: parsed.source, problems: [] };
 }
 
 export function lockText(lock: Lock): string {
-  const sorted: Lock = { 'foldseal-lock': LOCK_VERSION, ...(lock.sealed ? { sealed: lock.sealed } : {}), ...(lock.policy ? { policy: lock.policy } : {}), protocols: Object.fromEntries(Object.entries(lock.protocols).sort(([a], [b]) => (a < b ? -1 : 1))) };
+  const sorted: Lock = {
+    'foldseal-lock': LOCK_VERSION,
+    ...(lock.sealed ? { sealed: lock.sealed } : {}),
+    ...(lock.policy ? { policy: lock.policy } : {}),
+    protocols: Object.fromEntries(Object.entries(lock.protocols).sort(([a], [b]) => (a < b ? -1 : 1))),
+  };
   return JSON.stringify(sorted, null, 2) + '\n';
 }
 
 /** Sealed ids: one per line, or a CSV whose first column is headed `id`. */
 export function parseSealed(text: string): Set<string> {
-  const lines = text.split(/\r?\n/).map((l) => l.trim()).filter((l) => l !== '');
+  const lines = text
+    .split(/\r?\n/)
+    .map((l) => l.trim())
+    .filter((l) => l !== '');
   const body = lines[0]?.split(',')[0] === 'id' ? lines.slice(1) : lines;
   return new Set(body.map((l) => l.split(',')[0]));
 }

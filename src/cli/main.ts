@@ -8,7 +8,9 @@ import { reportProblems } from './report-problems.js';
 
 export async function main(argv: string[]): Promise<ExitCode> {
   let code: ExitCode = 0;
-  const program = buildProgram(processIo, (c) => { code = c; });
+  const program = buildProgram(processIo, (c) => {
+    code = c;
+  });
   try {
     await program.parseAsync(argv, { from: 'user' });
     return code;
@@ -20,8 +22,10 @@ export async function main(argv: string[]): Promise<ExitCode> {
       reportProblems(processIo, e.problems, 'text');
       return e.exitCode;
     }
-    const detail = e instanceof Error ? e.stack ?? e.message : String(e);
-    processIo.err(`foldseal: internal error — this is a bug in foldseal, not in your input. Please report it with the text below.\n${detail}\n`);
+    const detail = e instanceof Error ? (e.stack ?? e.message) : String(e);
+    processIo.err(
+      `foldseal: internal error — this is a bug in foldseal, not in your input. Please report it with the text below.\n${detail}\n`,
+    );
     return 3;
   }
 }

@@ -12,14 +12,20 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .version(packageVersion(), '-V, --version', 'print the foldseal version')
     .helpOption('-h, --help', 'show help')
     .option('--all-problems', `print every problem (by default, after ${50} of one kind the rest are counted)`)
-    .hook('preAction', (cmd) => { showAllProblems(Boolean(cmd.opts().allProblems)); })
+    .hook('preAction', (cmd) => {
+      showAllProblems(Boolean(cmd.opts().allProblems));
+    })
     .showSuggestionAfterError(true)
     .configureOutput({ writeOut: (s) => io.out(s), writeErr: (s) => io.err(s) })
     // Set before the subcommands are added so they inherit it: main maps commander's exits to ours.
     .exitOverride();
 
   const formatOption = () => new Option('--format <format>', 'output format').choices(['text', 'json']).default('text');
-  const outsideOption = () => new Option('--allow-outside', 'let the protocol name files outside its folder, the working folder and FOLDSEAL_TRUSTED (only for files you trust)');
+  const outsideOption = () =>
+    new Option(
+      '--allow-outside',
+      'let the protocol name files outside its folder, the working folder and FOLDSEAL_TRUSTED (only for files you trust)',
+    );
 
   program
     .command('validate')
@@ -27,8 +33,13 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .argument('<protocol...>', 'protocol YAML files')
     .addOption(formatOption())
     .addOption(outsideOption())
-    .addHelpText('after', '\nExamples:\n  foldseal validate protocols/demo.yaml\n  foldseal validate protocols/*.yaml --format json\n\nExit: 0 valid, 1 invalid, 2 usage error or unreadable file.')
-    .action(async (protocols: string[], o: { format: 'text' | 'json'; allowOutside?: boolean }) => done(await (await import('./commands/validate.js')).validateCommand({ protocols, ...o }, io)));
+    .addHelpText(
+      'after',
+      '\nExamples:\n  foldseal validate protocols/demo.yaml\n  foldseal validate protocols/*.yaml --format json\n\nExit: 0 valid, 1 invalid, 2 usage error or unreadable file.',
+    )
+    .action(async (protocols: string[], o: { format: 'text' | 'json'; allowOutside?: boolean }) =>
+      done(await (await import('./commands/validate.js')).validateCommand({ protocols, ...o }, io)),
+    );
 
   program
     .command('hash')
@@ -47,7 +58,9 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .option('--out <file>', 'where to write the protocol (default: <data name>.protocol.yaml)')
     .option('--force', 'replace an existing protocol file')
     .addHelpText('after', '\nExample:\n  foldseal init data/trial.csv --label outcome --id plot_id --out protocols/trial.yaml')
-    .action(async (data: string, o: { label: string; id?: string; group?: string; out?: string; force?: boolean }) => done(await (await import('./commands/init.js')).initCommand({ data, ...o }, io)));
+    .action(async (data: string, o: { label: string; id?: string; group?: string; out?: string; force?: boolean }) =>
+      done(await (await import('./commands/init.js')).initCommand({ data, ...o }, io)),
+    );
 
   program
     .command('folds')
@@ -56,7 +69,9 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .option('--out <file>', 'write the CSV here instead of stdout')
     .addOption(outsideOption())
     .addHelpText('after', '\nExample:\n  foldseal folds protocols/demo.yaml --out demo.folds.csv')
-    .action(async (protocol: string, o: { out?: string; allowOutside?: boolean }) => done(await (await import('./commands/folds.js')).foldsCommand({ protocol, ...o }, io)));
+    .action(async (protocol: string, o: { out?: string; allowOutside?: boolean }) =>
+      done(await (await import('./commands/folds.js')).foldsCommand({ protocol, ...o }, io)),
+    );
 
   program
     .command('run')
@@ -67,8 +82,13 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .option('--refit', 'also fit one model on every labeled row and save it in models.json')
     .option('--key <file>', 'sign manifest.json with this Ed25519 private key (from foldseal keygen)')
     .addOption(outsideOption())
-    .addHelpText('after', '\nExample:\n  foldseal run protocols/demo.yaml --out results/demo\n\nThe folder is written to a temporary sibling and renamed at the end, so it is never half-written.\n--force replaces only a folder foldseal wrote (its manifest and the files it lists); any other non-empty folder is refused.')
-    .action(async (protocol: string, o: { out?: string; force?: boolean; refit?: boolean; key?: string; allowOutside?: boolean }) => done(await (await import('./commands/run.js')).runCommand({ protocol, ...o }, io)));
+    .addHelpText(
+      'after',
+      '\nExample:\n  foldseal run protocols/demo.yaml --out results/demo\n\nThe folder is written to a temporary sibling and renamed at the end, so it is never half-written.\n--force replaces only a folder foldseal wrote (its manifest and the files it lists); any other non-empty folder is refused.',
+    )
+    .action(async (protocol: string, o: { out?: string; force?: boolean; refit?: boolean; key?: string; allowOutside?: boolean }) =>
+      done(await (await import('./commands/run.js')).runCommand({ protocol, ...o }, io)),
+    );
 
   program
     .command('apply')
@@ -76,16 +96,26 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .argument('<results-dir>', 'folder written by foldseal run')
     .argument('<table>', 'CSV or TSV with the id column and the feature columns')
     .option('--out <file>', 'write the predictions here instead of stdout')
-    .addOption(new Option('--rule <rule>', 'reconcile rule (default: the protocol\'s)').choices(['mean-probability', 'majority-vote', 'refit']))
+    .addOption(
+      new Option('--rule <rule>', "reconcile rule (default: the protocol's)").choices(['mean-probability', 'majority-vote', 'refit']),
+    )
     .addOption(new Option('--tie <rule>', 'tie rule for majority-vote').choices(['mean-probability', 'abstain', 'class-order']))
-    .addHelpText('after', '\nExamples:\n  foldseal apply results/demo protocols/data/seedlings-new.csv --out applied.csv\n  foldseal apply results/demo new.csv --rule majority-vote --tie abstain --out voted.csv\n\nmodels.json and predictions.csv are checked against the hashes in results.json first.')
-    .action(async (results: string, table: string, o: { out?: string; rule?: ReconcileRule; tie?: TieRule }) => done(await (await import('./commands/apply.js')).applyCommand({ results, table, ...o }, io)));
+    .addHelpText(
+      'after',
+      '\nExamples:\n  foldseal apply results/demo protocols/data/seedlings-new.csv --out applied.csv\n  foldseal apply results/demo new.csv --rule majority-vote --tie abstain --out voted.csv\n\nmodels.json and predictions.csv are checked against the hashes in results.json first.',
+    )
+    .action(async (results: string, table: string, o: { out?: string; rule?: ReconcileRule; tie?: TieRule }) =>
+      done(await (await import('./commands/apply.js')).applyCommand({ results, table, ...o }, io)),
+    );
 
   program
     .command('keygen')
     .description('make an Ed25519 key pair for signing manifests; prints the key fingerprint')
     .requiredOption('--out <prefix>', 'writes PREFIX.key (private, mode 0600) and PREFIX.pub (public)')
-    .addHelpText('after', '\nExample:\n  foldseal keygen --out ~/.foldseal/lab\n\nThe fingerprint is the SHA-256 of the raw 32-byte public key; publish it with the .pub file.')
+    .addHelpText(
+      'after',
+      '\nExample:\n  foldseal keygen --out ~/.foldseal/lab\n\nThe fingerprint is the SHA-256 of the raw 32-byte public key; publish it with the .pub file.',
+    )
     .action(async (o: { out: string }) => done(await (await import('./commands/keygen.js')).keygenCommand(o, io)));
 
   program
@@ -101,8 +131,26 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .option('--allow-outside', 'let the re-run read files outside the review folder (see README, Security model)')
     .option('--strict', 'a result file missing next to the manifest is an error')
     .addOption(formatOption())
-    .addHelpText('after', '\nExamples:\n  foldseal verify results/demo/manifest.json --key author.pub\n  foldseal verify results/demo/manifest.json --key author.pub --rerun\n\nExit: 0 verified (identical), 1 a check failed or the re-run differs, 2 usage or unreadable input.')
-    .action(async (manifest: string, o: { key?: string; allowUnpinned?: boolean; allowUnsigned?: boolean; allowOutside?: boolean; rerun?: boolean; data?: string; protocol?: string; strict?: boolean; format: 'text' | 'json' }) => done(await (await import('./commands/verify.js')).verifyCommand({ manifest, ...o }, io)));
+    .addHelpText(
+      'after',
+      '\nExamples:\n  foldseal verify results/demo/manifest.json --key author.pub\n  foldseal verify results/demo/manifest.json --key author.pub --rerun\n\nExit: 0 verified (identical), 1 a check failed or the re-run differs, 2 usage or unreadable input.',
+    )
+    .action(
+      async (
+        manifest: string,
+        o: {
+          key?: string;
+          allowUnpinned?: boolean;
+          allowUnsigned?: boolean;
+          allowOutside?: boolean;
+          rerun?: boolean;
+          data?: string;
+          protocol?: string;
+          strict?: boolean;
+          format: 'text' | 'json';
+        },
+      ) => done(await (await import('./commands/verify.js')).verifyCommand({ manifest, ...o }, io)),
+    );
 
   program
     .command('check')
@@ -111,16 +159,26 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .addOption(formatOption())
     .option('--staged', 'only protocols touched by the staged git change, and those sharing their data')
     .option('--allow-outside', 'let protocols name files outside DIR and FOLDSEAL_TRUSTED')
-    .addHelpText('after', '\nExamples:\n  foldseal check\n  foldseal check --staged          # in a pre-commit hook\n  foldseal check . --format json   # for CI annotations\n\nExit: 0 clean, 1 findings, 2 usage error (a corrupt lock, not a git repository).')
-    .action(async (dir: string, o: { format: 'text' | 'json'; staged?: boolean; allowOutside?: boolean }) => done(await (await import('./commands/check.js')).checkCommand({ dir, ...o }, io)));
+    .addHelpText(
+      'after',
+      '\nExamples:\n  foldseal check\n  foldseal check --staged          # in a pre-commit hook\n  foldseal check . --format json   # for CI annotations\n\nExit: 0 clean, 1 findings, 2 usage error (a corrupt lock, not a git repository).',
+    )
+    .action(async (dir: string, o: { format: 'text' | 'json'; staged?: boolean; allowOutside?: boolean }) =>
+      done(await (await import('./commands/check.js')).checkCommand({ dir, ...o }, io)),
+    );
 
   program
     .command('lock')
     .description('record the current protocols, data hashes and fold assignments in foldseal.lock.json; prints what changed')
     .argument('[dir]', 'repository folder', '.')
     .option('--allow-outside', 'let protocols name files outside DIR and FOLDSEAL_TRUSTED')
-    .addHelpText('after', '\nExample:\n  foldseal lock && git add foldseal.lock.json\n\nThe lock keeps its sealed and policy sections; commit it so the change is reviewed.')
-    .action(async (dir: string, o: { allowOutside?: boolean }) => done(await (await import('./commands/lock.js')).lockCommand({ dir, ...o }, io)));
+    .addHelpText(
+      'after',
+      '\nExample:\n  foldseal lock && git add foldseal.lock.json\n\nThe lock keeps its sealed and policy sections; commit it so the change is reviewed.',
+    )
+    .action(async (dir: string, o: { allowOutside?: boolean }) =>
+      done(await (await import('./commands/lock.js')).lockCommand({ dir, ...o }, io)),
+    );
 
   return program;
 }

@@ -7,7 +7,15 @@ export type OutputFormat = 'text' | 'json';
 export const SHOWN_PER_CODE = 50;
 
 /** Codes that explain most of what follows them: shown first (a missing column or a wrong file makes later problems moot). */
-const FIRST = ['file-missing', 'file-unreadable', 'file-not-regular', 'data-not-a-table', 'data-invalid-utf8', 'data-hash-mismatch', 'data-missing-column'];
+const FIRST = [
+  'file-missing',
+  'file-unreadable',
+  'file-not-regular',
+  'data-not-a-table',
+  'data-invalid-utf8',
+  'data-hash-mismatch',
+  'data-missing-column',
+];
 
 let showAll = false;
 
@@ -19,8 +27,14 @@ export function showAllProblems(all: boolean): void {
 /** Most useful first, then by file and position. */
 export function orderProblems(problems: readonly Problem[]): Problem[] {
   const sorted = sortProblems(problems);
-  const rank = (p: Problem) => { const i = FIRST.indexOf(p.code); return i < 0 ? FIRST.length : i; };
-  return sorted.map((p, i) => [p, i] as const).sort((a, b) => rank(a[0]) - rank(b[0]) || a[1] - b[1]).map(([p]) => p);
+  const rank = (p: Problem) => {
+    const i = FIRST.indexOf(p.code);
+    return i < 0 ? FIRST.length : i;
+  };
+  return sorted
+    .map((p, i) => [p, i] as const)
+    .sort((a, b) => rank(a[0]) - rank(b[0]) || a[1] - b[1])
+    .map(([p]) => p);
 }
 
 /** Problems go to stderr as text, or to stdout as JSON (so `--format json` output can be piped). */
@@ -38,7 +52,9 @@ export function reportProblems(io: CommandIo, problems: readonly Problem[], form
     perCode.set(p.code, n);
     if (showAll || n <= SHOWN_PER_CODE) shown.push(p);
   }
-  const hidden = [...perCode].filter(([, n]) => !showAll && n > SHOWN_PER_CODE).map(([code, n]) => `${n - SHOWN_PER_CODE} more ${code} problem${n - SHOWN_PER_CODE === 1 ? '' : 's'}`);
+  const hidden = [...perCode]
+    .filter(([, n]) => !showAll && n > SHOWN_PER_CODE)
+    .map(([code, n]) => `${n - SHOWN_PER_CODE} more ${code} problem${n - SHOWN_PER_CODE === 1 ? '' : 's'}`);
   io.err(formatProblemsText(shown) + '\n' + (hidden.length ? `… and ${hidden.join(', ')} not shown (--all-problems shows them)\n` : ''));
 }
 

@@ -54,7 +54,10 @@ export async function discoverProtocols(root: string, rules: FolderRules = {}): 
     for (const e of entries) {
       const path = join(dir, e.name);
       if (e.isDirectory()) {
-        if (folderSkipped(rel(path), rules)) { if (e.name !== '.git') skipped.push(rel(path)); continue; }
+        if (folderSkipped(rel(path), rules)) {
+          if (e.name !== '.git') skipped.push(rel(path));
+          continue;
+        }
         await walk(path);
       } else if (PROTOCOL_EXTENSION.test(e.name) && (e.isFile() || e.isSymbolicLink())) {
         if (await isProtocol(path)) found.push(rel(path));
@@ -67,7 +70,14 @@ export async function discoverProtocols(root: string, rules: FolderRules = {}): 
 
 async function isProtocol(path: string): Promise<boolean> {
   const st = await lstat(path).catch(() => undefined);
-  if (st?.isSymbolicLink() && !(await realpath(path).then(() => true, () => false))) return false;
+  if (
+    st?.isSymbolicLink() &&
+    !(await realpath(path).then(
+      () => true,
+      () => false,
+    ))
+  )
+    return false;
   let text: string;
   try {
     text = await readRegularText(path, PROTOCOL_MAX_BYTES);
@@ -79,7 +89,7 @@ async function isProtocol(path: string): Promise<boolean> {
     const parsed = parseYaml(text, path);
     if (parsed.problems.some((p) => p.severity === 'error')) return /foldseal/i.test(text);
     const v = parsed.value;
-    return v !== null && typeof v === 'object' && !Array.isArray(v) && Object.prototype.hasOwnProperty.call(v, 'foldseal');
+    return v !== null && typeof v === 'object' && !Array.isArray(v) && Object.hasOwn(v, 'foldseal');
   } catch {
     return /foldseal/i.test(text);
   }

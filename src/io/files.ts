@@ -14,12 +14,22 @@ export interface ReadBytes {
  * `shared`: read into a SharedArrayBuffer, so worker threads can read the same bytes without a
  * copy. `hash`: how to hash them (default: here, now); a worker can hash while this thread parses.
  */
-export async function readBytes(path: string, shownAs: string, where?: Partial<Problem>, options: { shared?: boolean; hash?: (bytes: Uint8Array) => () => string } = {}): Promise<ReadBytes> {
+export async function readBytes(
+  path: string,
+  shownAs: string,
+  where?: Partial<Problem>,
+  options: { shared?: boolean; hash?: (bytes: Uint8Array) => () => string } = {},
+): Promise<ReadBytes> {
   try {
     const bytes = options.shared ? await readShared(path) : await readRegular(path);
     if (options.hash) {
       const digest = options.hash(bytes);
-      return { bytes, get sha256() { return digest(); } };
+      return {
+        bytes,
+        get sha256() {
+          return digest();
+        },
+      };
     }
     return { bytes, sha256: sha256Bytes(bytes) };
   } catch (e) {
@@ -29,13 +39,28 @@ export async function readBytes(path: string, shownAs: string, where?: Partial<P
 
 export function fileProblem(e: NodeJS.ErrnoException, shownAs: string, where: Partial<Problem> = {}): Problem {
   const reason =
-    e.code === 'ENOENT' ? 'does not exist'
-    : e.code === 'EISDIR' ? 'is a folder, not a file'
-    : e.code === 'EACCES' ? 'cannot be read (permission denied)'
-    : e.code === NOT_REGULAR ? `is not a regular file (${e.message}); foldseal reads only plain files`
-    : e.code === TOO_LARGE ? `is larger than ${e.message}`
-    : `cannot be read (${e.code ?? e.message})`;
-  return error(e.code === 'ENOENT' ? 'file-missing' : e.code === NOT_REGULAR ? 'file-not-regular' : e.code === TOO_LARGE ? 'file-too-large' : 'file-unreadable', `file ${shownAs} ${reason}`, where);
+    e.code === 'ENOENT'
+      ? 'does not exist'
+      : e.code === 'EISDIR'
+        ? 'is a folder, not a file'
+        : e.code === 'EACCES'
+          ? 'cannot be read (permission denied)'
+          : e.code === NOT_REGULAR
+            ? `is not a regular file (${e.message}); foldseal reads only plain files`
+            : e.code === TOO_LARGE
+              ? `is larger than ${e.message}`
+              : `cannot be read (${e.code ?? e.message})`;
+  return error(
+    e.code === 'ENOENT'
+      ? 'file-missing'
+      : e.code === NOT_REGULAR
+        ? 'file-not-regular'
+        : e.code === TOO_LARGE
+          ? 'file-too-large'
+          : 'file-unreadable',
+    `file ${shownAs} ${reason}`,
+    where,
+  );
 }
 
 const NOT_REGULAR = 'FOLDSEAL_NOT_REGULAR';
@@ -57,7 +82,10 @@ async function openRegular(path: string) {
   if (!st.isFile()) {
     await file.close();
     if (st.isDirectory()) throw failure('EISDIR', 'is a folder');
-    throw failure(NOT_REGULAR, st.isFIFO() ? 'a FIFO' : st.isSocket() ? 'a socket' : st.isCharacterDevice() || st.isBlockDevice() ? 'a device' : 'not a plain file');
+    throw failure(
+      NOT_REGULAR,
+      st.isFIFO() ? 'a FIFO' : st.isSocket() ? 'a socket' : st.isCharacterDevice() || st.isBlockDevice() ? 'a device' : 'not a plain file',
+    );
   }
   return { file, size: st.size };
 }

@@ -45,7 +45,16 @@ export async function crossValidateInWorkers(p: Protocol, table: Table, a: Assig
     columns = new SharedArrayBuffer(table.X.data.byteLength);
     columnMajor(table.X, new Float64Array(columns));
   }
-  const workerData = { protocol: { preprocess: p.preprocess, model: p.model }, rows: table.X.rows, cols: table.X.cols, data, columns, y, classes: table.classes, featureNames: table.featureNames };
+  const workerData = {
+    protocol: { preprocess: p.preprocess, model: p.model },
+    rows: table.X.rows,
+    cols: table.X.cols,
+    data,
+    columns,
+    y,
+    classes: table.classes,
+    featureNames: table.featureNames,
+  };
   const fits: FoldFit[] = new Array(plans.length);
   const workers = Array.from({ length: threads }, () => new Worker(new URL('./fold-worker.js', import.meta.url), { workerData }));
   try {
@@ -60,7 +69,10 @@ export async function crossValidateInWorkers(p: Protocol, table: Table, a: Assig
       for (const w of workers) {
         w.on('message', (m: { index: number; fit?: FoldFit; error?: { kind: string; code: string; message: string; hint?: string } }) => {
           if (m.error) {
-            const e = m.error.kind === 'FitError' ? new FitError(m.error.code as ProblemCode, m.error.message, m.error.hint) : new Error(m.error.message);
+            const e =
+              m.error.kind === 'FitError'
+                ? new FitError(m.error.code as ProblemCode, m.error.message, m.error.hint)
+                : new Error(m.error.message);
             reject(atFold(e, plans[m.index].repeat, plans[m.index].fold));
             return;
           }

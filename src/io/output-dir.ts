@@ -18,7 +18,12 @@ const LIST = 5;
 
 type FolderState = { kind: 'absent' | 'empty' | 'ours' } | { kind: 'foreign'; why: string };
 
-export async function writeOutputDir(dir: string, files: Record<string, string | Uint8Array>, force: boolean, shownAs: string): Promise<void> {
+export async function writeOutputDir(
+  dir: string,
+  files: Record<string, string | Uint8Array>,
+  force: boolean,
+  shownAs: string,
+): Promise<void> {
   const parent = dirname(dir);
   const name = basename(dir);
   try {
@@ -31,10 +36,23 @@ export async function writeOutputDir(dir: string, files: Record<string, string |
     await recover(parent, name, dir);
     const state = await folderState(dir);
     if (state.kind === 'foreign') {
-      throw new FoldsealError(error('refuse-foreign-folder', `${shownAs} ${state.why}, so foldseal will not replace it${force ? ' (--force replaces only a results folder foldseal wrote)' : ''}`, { file: shownAs, hint: 'choose an empty or new folder with --out' }), 2);
+      throw new FoldsealError(
+        error(
+          'refuse-foreign-folder',
+          `${shownAs} ${state.why}, so foldseal will not replace it${force ? ' (--force replaces only a results folder foldseal wrote)' : ''}`,
+          { file: shownAs, hint: 'choose an empty or new folder with --out' },
+        ),
+        2,
+      );
     }
     if (state.kind === 'ours' && !force) {
-      throw new FoldsealError(error('refuse-overwrite', `${shownAs} already exists`, { file: shownAs, hint: 'pass --force to replace it, or --out to choose another folder' }), 2);
+      throw new FoldsealError(
+        error('refuse-overwrite', `${shownAs} already exists`, {
+          file: shownAs,
+          hint: 'pass --force to replace it, or --out to choose another folder',
+        }),
+        2,
+      );
     }
     let temp: string;
     try {
@@ -79,7 +97,7 @@ async function writeDurably(path: string, content: string | Uint8Array): Promise
 
 /** What is at `dir` now: nothing, an empty folder, a results folder of ours, or something else. */
 async function folderState(dir: string): Promise<FolderState> {
-  let st;
+  let st: Awaited<ReturnType<typeof lstat>>;
   try {
     st = await lstat(dir);
   } catch {
@@ -91,17 +109,25 @@ async function folderState(dir: string): Promise<FolderState> {
   let listed: Set<string>;
   try {
     const manifest = JSON.parse(await readFile(join(dir, 'manifest.json'), 'utf8'));
-    if (!manifest || typeof manifest['foldseal-manifest'] !== 'number' || typeof manifest.files !== 'object' || manifest.files === null) throw new Error('not ours');
+    if (!manifest || typeof manifest['foldseal-manifest'] !== 'number' || typeof manifest.files !== 'object' || manifest.files === null)
+      throw new Error('not ours');
     listed = new Set(['manifest.json', 'manifest.json.sig', ...Object.keys(manifest.files)]);
   } catch {
-    return { kind: 'foreign', why: `is a folder with ${entries.length} entr${entries.length === 1 ? 'y' : 'ies'} (${entries.slice(0, LIST).join(', ')}${entries.length > LIST ? ', …' : ''}) and no foldseal manifest` };
+    return {
+      kind: 'foreign',
+      why: `is a folder with ${entries.length} entr${entries.length === 1 ? 'y' : 'ies'} (${entries.slice(0, LIST).join(', ')}${entries.length > LIST ? ', …' : ''}) and no foldseal manifest`,
+    };
   }
   const extra: string[] = [];
   for (const e of entries) {
     const st = await lstat(join(dir, e));
     if (!listed.has(e) || !st.isFile()) extra.push(e);
   }
-  if (extra.length) return { kind: 'foreign', why: `holds ${extra.length} entr${extra.length === 1 ? 'y' : 'ies'} foldseal did not write (${extra.slice(0, LIST).join(', ')}${extra.length > LIST ? ', …' : ''})` };
+  if (extra.length)
+    return {
+      kind: 'foreign',
+      why: `holds ${extra.length} entr${extra.length === 1 ? 'y' : 'ies'} foldseal did not write (${extra.slice(0, LIST).join(', ')}${extra.length > LIST ? ', …' : ''})`,
+    };
   return { kind: 'ours' };
 }
 
@@ -112,8 +138,18 @@ async function recover(parent: string, name: string, dir: string): Promise<void>
     if (e.startsWith(`.${name}${NEW}`)) await rm(join(parent, e), { recursive: true, force: true });
     else if (e.startsWith(`.${name}${OLD}`)) {
       const previous = join(parent, e, 'previous');
-      const present = await lstat(dir).then(() => true, () => false);
-      if (!present && (await lstat(previous).then((s) => s.isDirectory(), () => false))) await rename(previous, dir);
+      const present = await lstat(dir).then(
+        () => true,
+        () => false,
+      );
+      if (
+        !present &&
+        (await lstat(previous).then(
+          (s) => s.isDirectory(),
+          () => false,
+        ))
+      )
+        await rename(previous, dir);
       await rm(join(parent, e), { recursive: true, force: true });
     }
   }
@@ -131,7 +167,13 @@ async function takeLock(parent: string, name: string, shownAs: string): Promise<
     }
     const owner = Number.parseInt(await readFile(path, 'utf8').catch(() => ''), 10);
     if (Number.isInteger(owner) && owner > 0 && alive(owner)) {
-      throw new FoldsealError(error('output-busy', `another foldseal process (pid ${owner}) is writing ${shownAs}`, { file: shownAs, hint: `wait for it to finish; if no such process runs, delete ${join(dirname(shownAs), `.${name}.foldseal-lock`)}` }), 2);
+      throw new FoldsealError(
+        error('output-busy', `another foldseal process (pid ${owner}) is writing ${shownAs}`, {
+          file: shownAs,
+          hint: `wait for it to finish; if no such process runs, delete ${join(dirname(shownAs), `.${name}.foldseal-lock`)}`,
+        }),
+        2,
+      );
     }
     await unlink(path).catch(() => undefined);
   }

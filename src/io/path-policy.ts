@@ -17,7 +17,10 @@ export interface PathPolicy {
 
 /** Folders listed in FOLDSEAL_TRUSTED (separated by the platform's path-list separator, ':' on POSIX). */
 export function trustedFolders(env: NodeJS.ProcessEnv = process.env): string[] {
-  return (env.FOLDSEAL_TRUSTED ?? '').split(process.platform === 'win32' ? ';' : ':').filter(Boolean).map((d) => resolve(d));
+  return (env.FOLDSEAL_TRUSTED ?? '')
+    .split(process.platform === 'win32' ? ';' : ':')
+    .filter(Boolean)
+    .map((d) => resolve(d));
 }
 
 /** The path with symbolic links resolved as far as it exists (a missing tail is kept as written). */
@@ -48,12 +51,22 @@ export function protocolPolicy(protocolPath: string, allowOutside = false, cwd =
 }
 
 /** A problem when `path` (named at `where`) lies outside every root of the policy. */
-export function outsideProblem(path: string, policy: PathPolicy, shownAs: string, what: string, where: Partial<Problem>): Problem | undefined {
+export function outsideProblem(
+  path: string,
+  policy: PathPolicy,
+  shownAs: string,
+  what: string,
+  where: Partial<Problem>,
+): Problem | undefined {
   if (policy.allowOutside) return undefined;
   const real = realPath(path);
   if (policy.roots.some((root) => isInside(real, realPath(root)))) return undefined;
-  return error('path-outside', `the ${what} ${shownAs} lies outside ${policy.roots.length === 1 ? 'the folder' : 'the folders'} foldseal may read for this file (${policy.roots.map((r) => r).join(', ')})`, {
-    ...where,
-    hint: 'keep data next to the protocol, run from the project folder, list the folder in FOLDSEAL_TRUSTED, or pass --allow-outside if you trust the file that names this path',
-  });
+  return error(
+    'path-outside',
+    `the ${what} ${shownAs} lies outside ${policy.roots.length === 1 ? 'the folder' : 'the folders'} foldseal may read for this file (${policy.roots.map((r) => r).join(', ')})`,
+    {
+      ...where,
+      hint: 'keep data next to the protocol, run from the project folder, list the folder in FOLDSEAL_TRUSTED, or pass --allow-outside if you trust the file that names this path',
+    },
+  );
 }

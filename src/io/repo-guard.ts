@@ -35,23 +35,45 @@ export async function lockedRepoProblems(protocolPath: string, report: Validatio
     return [warning('lock-unreadable', `${lockFile} cannot be read, so the team's rules were not applied to this run`, { file: lockFile })];
   }
   const parsed = parseLock(text, lockFile);
-  if (!parsed.lock) return [warning('lock-corrupt', `${lockFile} is not a lock this foldseal reads, so the team's rules were not applied to this run`, { file: lockFile })];
+  if (!parsed.lock)
+    return [
+      warning('lock-corrupt', `${lockFile} is not a lock this foldseal reads, so the team's rules were not applied to this run`, {
+        file: lockFile,
+      }),
+    ];
   const lock = parsed.lock;
   const rel = relative(root, realPath(protocolPath)).split('\\').join('/');
   const rootShown = root === realPath(process.cwd()) ? '.' : shown(root);
   const out: Problem[] = [];
   if (pathSkipped(rel, { skip: lock.policy?.skip, include: lock.policy?.include })) {
-    out.push(error('protocol-unchecked', `${report.file} lies in a folder that the repository gate of ${rootShown} does not search, so its runs would escape the gate`, { file: report.file, hint: "move it, or add its folder to the lock's policy.include" }));
+    out.push(
+      error(
+        'protocol-unchecked',
+        `${report.file} lies in a folder that the repository gate of ${rootShown} does not search, so its runs would escape the gate`,
+        { file: report.file, hint: "move it, or add its folder to the lock's policy.include" },
+      ),
+    );
   }
   const s = lock.sealed;
   if (s && report.protocol && report.table) {
     const file = join(root, s.file);
-    if (!isInside(realPath(file), realPath(root))) return [...out, error('path-outside', `the sealed-ids file ${s.file} named by the lock lies outside ${rootShown}`, { file: lockFile })];
+    if (!isInside(realPath(file), realPath(root)))
+      return [
+        ...out,
+        error('path-outside', `the sealed-ids file ${s.file} named by the lock lies outside ${rootShown}`, { file: lockFile }),
+      ];
     let ids: Set<string>;
     try {
       ids = parseSealed((await readRegular(file)).toString('utf8'));
     } catch {
-      return [...out, error('sealed-missing', `the sealed-ids file ${s.file} named by the lock cannot be read, so this run cannot show it keeps off the sealed rows`, { file: lockFile })];
+      return [
+        ...out,
+        error(
+          'sealed-missing',
+          `the sealed-ids file ${s.file} named by the lock cannot be read, so this run cannot show it keeps off the sealed rows`,
+          { file: lockFile },
+        ),
+      ];
     }
     out.push(...sealedFindings({ protocols: [{ path: rel, report }], sealed: { ids, file: shown(file), digests: new Set(s.rows ?? []) } }));
   }

@@ -26,8 +26,15 @@ export interface Repo {
 export async function readRepo(root: string, allowOutside = false): Promise<Repo> {
   const problems: Problem[] = [];
   const st = await stat(root).catch((e: NodeJS.ErrnoException) => e);
-  if (st instanceof Error) throw new FoldsealError(error('folder-missing', `${shown(root) || '.'} ${st.code === 'ENOENT' ? 'does not exist' : `cannot be read (${st.code})`}`, { file: shown(root) }), 2);
-  if (!st.isDirectory()) throw new FoldsealError(error('not-a-folder', `${shown(root)} is not a folder; give the repository folder`, { file: shown(root) }), 2);
+  if (st instanceof Error)
+    throw new FoldsealError(
+      error('folder-missing', `${shown(root) || '.'} ${st.code === 'ENOENT' ? 'does not exist' : `cannot be read (${st.code})`}`, {
+        file: shown(root),
+      }),
+      2,
+    );
+  if (!st.isDirectory())
+    throw new FoldsealError(error('not-a-folder', `${shown(root)} is not a folder; give the repository folder`, { file: shown(root) }), 2);
   const lockPath = join(root, LOCK_FILE);
   const lockFile = shown(lockPath);
   let lock: ParsedLock | undefined;
@@ -42,7 +49,10 @@ export async function readRepo(root: string, allowOutside = false): Promise<Repo
   const access = { roots: [root, ...trustedFolders()], allowOutside };
   for (const path of discovered.found) {
     const report = await validateProtocol(join(root, path), { access });
-    const entry = report.protocol && report.assignment && report.dataSha256 ? lockEntry(report.protocol, report.raw, report.dataSha256, report.assignment) : undefined;
+    const entry =
+      report.protocol && report.assignment && report.dataSha256
+        ? lockEntry(report.protocol, report.raw, report.dataSha256, report.assignment)
+        : undefined;
     protocols.push({ path, report, entry });
   }
   let sealed: GateInput['sealed'];
@@ -53,7 +63,14 @@ export async function readRepo(root: string, allowOutside = false): Promise<Repo
     try {
       if (outside) throw outside;
       const bytes = await readRegular(file);
-      if (sha256Bytes(bytes) !== s.sha256) problems.push(error('sealed-hash-mismatch', `the sealed-ids file ${s.file} has SHA-256 ${sha256Bytes(bytes)}, not the ${s.sha256} the lock records`, { file: lockFile }));
+      if (sha256Bytes(bytes) !== s.sha256)
+        problems.push(
+          error(
+            'sealed-hash-mismatch',
+            `the sealed-ids file ${s.file} has SHA-256 ${sha256Bytes(bytes)}, not the ${s.sha256} the lock records`,
+            { file: lockFile },
+          ),
+        );
       sealed = { ids: parseSealed(bytes.toString('utf8')), file: shown(file), digests: new Set(s.rows ?? []) };
     } catch (e) {
       if (e === outside) problems.push(outside!);
@@ -65,7 +82,10 @@ export async function readRepo(root: string, allowOutside = false): Promise<Repo
     for (const file of await findManifests(join(root, 'results'))) {
       const text = await readRegularText(file);
       const detached = await readRegularText(`${file}.sig`).catch(() => undefined);
-      manifests.push({ file: shown(file), check: checkManifest(text, { file: shown(file), allowUnpinned: true, detached, validate: schemaValidator(MANIFEST_SCHEMA) }) });
+      manifests.push({
+        file: shown(file),
+        check: checkManifest(text, { file: shown(file), allowUnpinned: true, detached, validate: schemaValidator(MANIFEST_SCHEMA) }),
+      });
     }
   }
   return { input: { protocols, lock, lockFile, sealed, manifests }, problems, skipped: discovered.skipped };
@@ -75,7 +95,8 @@ async function findManifests(dir: string): Promise<string[]> {
   if (!existsSync(dir)) return [];
   const out: string[] = [];
   for (const e of await readdir(dir, { withFileTypes: true, recursive: true })) {
-    if (e.isFile() && e.name === 'manifest.json') out.push(join((e as unknown as { parentPath?: string; path: string }).parentPath ?? (e as unknown as { path: string }).path, e.name));
+    if (e.isFile() && e.name === 'manifest.json')
+      out.push(join((e as unknown as { parentPath?: string; path: string }).parentPath ?? (e as unknown as { path: string }).path, e.name));
   }
   return out.sort();
 }

@@ -52,7 +52,8 @@ export function startRowThread(): RowThread {
   };
   const answerOf = (id: number, done: Int32Array): Record<string, unknown> => {
     while (Atomics.load(done, 0) === 0) Atomics.wait(done, 0, 0, 1000);
-    for (let m = receiveMessageOnPort(port1); m; m = receiveMessageOnPort(port1)) answers.set((m.message as { id: number }).id, m.message as Record<string, unknown>);
+    for (let m = receiveMessageOnPort(port1); m; m = receiveMessageOnPort(port1))
+      answers.set((m.message as { id: number }).id, m.message as Record<string, unknown>);
     const reply = answers.get(id) as { error?: string } | undefined;
     answers.delete(id);
     /* c8 ignore next -- a failure inside the worker is a bug in foldseal */
@@ -64,18 +65,35 @@ export function startRowThread(): RowThread {
   let early: { seed: number; from: number; to: number; out: Uint8Array; wait: () => unknown; parsed: boolean } | undefined;
   return {
     numbers: (length) => new Float64Array(new SharedArrayBuffer(length * 8)),
-    expectKeys(p) { plan = p; },
+    expectKeys(p) {
+      plan = p;
+    },
     sha256(bytes) {
       const wait = post({ kind: 'hash', bytes });
       return () => wait().sha256 as string;
     },
     start(t, numberCols, textCols, from, to, numbers) {
-      const table = { bytes: t.bytes, delimiter: t.delimiter, header: t.header, rows: t.rows, cols: t.cols, rowStart: t.rowStart, rowEnd: t.rowEnd };
+      const table = {
+        bytes: t.bytes,
+        delimiter: t.delimiter,
+        header: t.header,
+        rows: t.rows,
+        cols: t.cols,
+        rowStart: t.rowStart,
+        rowEnd: t.rowEnd,
+      };
       const wait = post({ kind: 'rows', table, numberCols, textCols, from, to, numbers });
       const slot = plan ? textCols.indexOf(t.header.indexOf(plan.idColumn)) : -1;
       if (plan && slot >= 0) {
         const out = new Uint8Array(new SharedArrayBuffer(plan.repeats * (to - from) * 32));
-        early = { seed: plan.seed, from, to, out, wait: post({ kind: 'keys-of-rows', slot, textCount: textCols.length, seed: plan.seed, repeats: plan.repeats, out }), parsed: false };
+        early = {
+          seed: plan.seed,
+          from,
+          to,
+          out,
+          wait: post({ kind: 'keys-of-rows', slot, textCount: textCols.length, seed: plan.seed, repeats: plan.repeats, out }),
+          parsed: false,
+        };
       }
       return () => {
         const part = wait().part as RowsPart | undefined;
@@ -85,7 +103,7 @@ export function startRowThread(): RowThread {
     },
     keys(ids, seed, repeat) {
       const out = new Uint8Array(new SharedArrayBuffer(ids.length * 32));
-      if (early && early.parsed && early.seed === seed && early.to === ids.length) {
+      if (early?.parsed && early.seed === seed && early.to === ids.length) {
         // The ids are the ones both threads just parsed: only the first part is left to derive here.
         const { from, to } = early;
         out.set(deriveKeys(ids.slice(0, from), seed, repeat));

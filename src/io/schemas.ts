@@ -39,7 +39,9 @@ export function precompiledValidator(name: string): ValidateFunction | undefined
   const file = join(packageRoot(), compiledValidatorPath(name));
   if (!existsSync(file)) return undefined;
   const mod = require(file) as { validate: ValidateFunction; schemaSha256: string };
-  const now = createHash('sha256').update(readFileSync(schemaPath(name))).digest('hex');
+  const now = createHash('sha256')
+    .update(readFileSync(schemaPath(name)))
+    .digest('hex');
   return mod.schemaSha256 === now ? mod.validate : undefined;
 }
 

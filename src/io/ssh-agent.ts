@@ -32,7 +32,10 @@ function request(socket: string, message: Buffer): Promise<Buffer> {
     const conn = createConnection(socket);
     const chunks: Buffer[] = [];
     let size = 0;
-    const timer = setTimeout(() => { conn.destroy(); reject(new AgentError(`the agent at ${socket} did not answer within ${TIMEOUT_MS / 1000} s (is it waiting for a confirmation?)`)); }, TIMEOUT_MS);
+    const timer = setTimeout(() => {
+      conn.destroy();
+      reject(new AgentError(`the agent at ${socket} did not answer within ${TIMEOUT_MS / 1000} s (is it waiting for a confirmation?)`));
+    }, TIMEOUT_MS);
     conn.on('connect', () => conn.write(message));
     conn.on('data', (d: Buffer) => {
       chunks.push(d);
@@ -44,8 +47,14 @@ function request(socket: string, message: Buffer): Promise<Buffer> {
         resolve(all.subarray(4, 4 + all.readUInt32BE(0)));
       }
     });
-    conn.on('error', (e: NodeJS.ErrnoException) => { clearTimeout(timer); reject(new AgentError(`cannot reach the agent at ${socket} (${e.code ?? e.message})`)); });
-    conn.on('close', () => { clearTimeout(timer); reject(new AgentError(`the agent at ${socket} closed the connection without an answer`)); });
+    conn.on('error', (e: NodeJS.ErrnoException) => {
+      clearTimeout(timer);
+      reject(new AgentError(`cannot reach the agent at ${socket} (${e.code ?? e.message})`));
+    });
+    conn.on('close', () => {
+      clearTimeout(timer);
+      reject(new AgentError(`the agent at ${socket} closed the connection without an answer`));
+    });
   });
 }
 
@@ -74,7 +83,8 @@ export async function agentIdentities(socket: string): Promise<{ blob: Buffer; c
 /** The agent's signature blob (string type, string signature) of `data` with the key `blob`. */
 export async function agentSign(socket: string, blob: Buffer, data: Buffer): Promise<Buffer> {
   const reply = await request(socket, frame(SIGN_REQUEST, str(blob), str(data), Buffer.alloc(4)));
-  if (reply[0] === FAILURE) throw new AgentError('the agent refused to sign (the key may have been removed, or a confirmation was declined)');
+  if (reply[0] === FAILURE)
+    throw new AgentError('the agent refused to sign (the key may have been removed, or a confirmation was declined)');
   if (reply[0] !== SIGN_RESPONSE) throw new AgentError(`the agent sent an unexpected reply (type ${reply[0]})`);
   return Buffer.from(readString(reply, 1)[0]);
 }

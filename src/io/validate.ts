@@ -37,7 +37,16 @@ export const PROTOCOL_EXTENSION = /\.(ya?ml|json)$/i;
 export async function loadProtocol(path: string): Promise<ValidationReport> {
   const file = shown(resolve(path));
   if (!PROTOCOL_EXTENSION.test(path)) {
-    return { file, problems: [error('protocol-extension', `${file} does not end in .yaml, .yml or .json`, { file, hint: 'rename it: the repository gate looks for protocols by these endings, and a protocol it cannot see cannot be checked' })], unreadable: true };
+    return {
+      file,
+      problems: [
+        error('protocol-extension', `${file} does not end in .yaml, .yml or .json`, {
+          file,
+          hint: 'rename it: the repository gate looks for protocols by these endings, and a protocol it cannot see cannot be checked',
+        }),
+      ],
+      unreadable: true,
+    };
   }
   let text: string;
   try {
@@ -70,12 +79,25 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
   const access = options.access ?? protocolPolicy(path);
   const outside = [
     options.dataOverride ? undefined : outsideProblem(paths.data, access, p.data.file, 'data file', at(['data', 'file'])),
-    paths.pinned ? outsideProblem(paths.pinned, access, (p.split as { pinned: { file: string } }).pinned.file, 'pinned assignment file', at(['split', 'pinned', 'file'])) : undefined,
-    paths.newRows ? outsideProblem(paths.newRows, access, p.reconcile.newRows!.file, 'new-rows file', at(['reconcile', 'new-rows', 'file'])) : undefined,
+    paths.pinned
+      ? outsideProblem(
+          paths.pinned,
+          access,
+          (p.split as { pinned: { file: string } }).pinned.file,
+          'pinned assignment file',
+          at(['split', 'pinned', 'file']),
+        )
+      : undefined,
+    paths.newRows
+      ? outsideProblem(paths.newRows, access, p.reconcile.newRows!.file, 'new-rows file', at(['reconcile', 'new-rows', 'file']))
+      : undefined,
   ].filter((q): q is Problem => q !== undefined);
   if (outside.length) return { ...parsed, problems: [...parsed.problems, ...outside], paths };
   // A large data file is parsed on two threads: start the second while the file is read.
-  const size = await stat(paths.data).then((st) => st.size, () => 0);
+  const size = await stat(paths.data).then(
+    (st) => st.size,
+    () => 0,
+  );
   const rowThread = rowThreadsAvailable(size) ? startRowThread() : undefined;
   try {
     return await validateWithData({ ...parsed, protocol: p, source }, paths, at, rowThread);
@@ -84,11 +106,21 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
   }
 }
 
-async function validateWithData(parsed: ParsedProtocol & { protocol: Protocol; source: NonNullable<ParsedProtocol['source']> }, paths: { data: string; pinned?: string; newRows?: string }, at: (docPath: (string | number)[]) => Partial<Problem>, rowThread: RowThread | undefined): Promise<ValidationReport> {
+async function validateWithData(
+  parsed: ParsedProtocol & { protocol: Protocol; source: NonNullable<ParsedProtocol['source']> },
+  paths: { data: string; pinned?: string; newRows?: string },
+  at: (docPath: (string | number)[]) => Partial<Problem>,
+  rowThread: RowThread | undefined,
+): Promise<ValidationReport> {
   const p = parsed.protocol;
   const source = parsed.source;
   const problems: Problem[] = [...parsed.problems];
-  const data = await readBytes(paths.data, shown(paths.data), at(['data', 'file']), rowThread ? { shared: true, hash: (bytes) => rowThread.sha256(bytes) } : {});
+  const data = await readBytes(
+    paths.data,
+    shown(paths.data),
+    at(['data', 'file']),
+    rowThread ? { shared: true, hash: (bytes) => rowThread.sha256(bytes) } : {},
+  );
   let pinned: { bytes: Uint8Array; sha256: string; shownAs: string } | undefined;
   if (paths.pinned) {
     const pin = await readBytes(paths.pinned, shown(paths.pinned), at(['split', 'pinned', 'file']));
@@ -100,7 +132,13 @@ async function validateWithData(parsed: ParsedProtocol & { protocol: Protocol; s
     const nr = await readBytes(paths.newRows, shown(paths.newRows), at(['reconcile', 'new-rows', 'file']));
     if (nr.problem) problems.push(nr.problem);
     else if (nr.sha256 !== p.reconcile.newRows.sha256) {
-      problems.push(error('new-rows-hash-mismatch', `the new-rows file's SHA-256 is ${nr.sha256}, not the ${p.reconcile.newRows.sha256} this protocol records`, at(['reconcile', 'new-rows', 'sha256'])));
+      problems.push(
+        error(
+          'new-rows-hash-mismatch',
+          `the new-rows file's SHA-256 is ${nr.sha256}, not the ${p.reconcile.newRows.sha256} this protocol records`,
+          at(['reconcile', 'new-rows', 'sha256']),
+        ),
+      );
     } else newRowBytes = nr.bytes;
   }
   if (data.problem) {
@@ -108,34 +146,67 @@ async function validateWithData(parsed: ParsedProtocol & { protocol: Protocol; s
     return { ...parsed, problems, paths };
   }
   const roleLocate = (role: 'id' | 'label' | 'group' | 'features', index?: number) =>
-    locate(source, index === undefined ? ['data', role] : ['data', 'features', ...(Array.isArray(p.data.features) ? [] : ['exclude']), index]);
-  if (rowThread && hashesIds(p.split) && p.data.id !== undefined) rowThread.expectKeys({ idColumn: p.data.id, seed: p.split.seed ?? 0, repeats: p.split.repeats });
+    locate(
+      source,
+      index === undefined ? ['data', role] : ['data', 'features', ...(Array.isArray(p.data.features) ? [] : ['exclude']), index],
+    );
+  if (rowThread && hashesIds(p.split) && p.data.id !== undefined)
+    rowThread.expectKeys({ idColumn: p.data.id, seed: p.split.seed ?? 0, repeats: p.split.repeats });
   const built = tableFromBytes(data.bytes!, shown(paths.data), dataRoles(p), p.data.format, roleLocate, rowThread);
   // A file that is not the recorded one is reported as that alone: its structural problems would
   // only distract. (The hash is taken while the file is parsed, on the second thread for large files.)
   if (data.sha256 !== p.data.sha256) {
-    problems.push(error('data-hash-mismatch', `the data file's SHA-256 is ${data.sha256}, not the ${p.data.sha256} this protocol records`, { ...at(['data', 'sha256']), hint: 'if the data changed on purpose, put the new hash here (`foldseal hash FILE`)' }));
+    problems.push(
+      error('data-hash-mismatch', `the data file's SHA-256 is ${data.sha256}, not the ${p.data.sha256} this protocol records`, {
+        ...at(['data', 'sha256']),
+        hint: 'if the data changed on purpose, put the new hash here (`foldseal hash FILE`)',
+      }),
+    );
     return { ...parsed, problems, paths, dataSha256: data.sha256 };
   }
   problems.push(...built.problems.map((q) => (q.file ? q : { ...q, file: parsed.file })));
   if (!built.table || hasErrors(built.problems) || (paths.pinned && !pinned)) {
     return { ...parsed, problems, paths, table: built.table, dataSha256: data.sha256 };
   }
-  const semantic = checkAgainstData(p, source, { table: built.table, sha256: data.sha256!, pinned, idKeys: rowThread && splitKeysOnTwoThreads(p, built.table.ids, rowThread) });
+  const semantic = checkAgainstData(p, source, {
+    table: built.table,
+    sha256: data.sha256!,
+    pinned,
+    idKeys: rowThread && splitKeysOnTwoThreads(p, built.table.ids, rowThread),
+  });
   problems.push(...semantic.problems);
   let newRows: NewRows | undefined;
   if (newRowBytes) {
-    const nr = newRowsFromBytes(newRowBytes, shown(paths.newRows!), built.table.featureNames, p.reconcile.newRows!.id ?? p.data.id, p.data.missing, knownColumns(p));
+    const nr = newRowsFromBytes(
+      newRowBytes,
+      shown(paths.newRows!),
+      built.table.featureNames,
+      p.reconcile.newRows!.id ?? p.data.id,
+      p.data.missing,
+      knownColumns(p),
+    );
     problems.push(...nr.problems);
     newRows = nr.rows;
     if (newRows) {
       const t = built.table;
       const digests = knownRows(t.ids, t.X, t.featureNames);
       const rowOf = new Map(t.ids.map((id, r) => [id, r]));
-      problems.push(...knownIdProblems(newRows, shown(paths.newRows!), t.featureNames, new Map(Object.entries(digests)), (id) => ({ where: `${shown(paths.data)} line ${t.rowLines[rowOf.get(id)!]}` })));
+      problems.push(
+        ...knownIdProblems(newRows, shown(paths.newRows!), t.featureNames, new Map(Object.entries(digests)), (id) => ({
+          where: `${shown(paths.data)} line ${t.rowLines[rowOf.get(id)!]}`,
+        })),
+      );
     }
   }
-  return { ...parsed, problems, paths, table: built.table, dataSha256: data.sha256, newRows, assignment: hasErrors(problems) ? undefined : semantic.assignment };
+  return {
+    ...parsed,
+    problems,
+    paths,
+    table: built.table,
+    dataSha256: data.sha256,
+    newRows,
+    assignment: hasErrors(problems) ? undefined : semantic.assignment,
+  };
 }
 
 /** A rule split whose keys are of ids (see SplitRuleImpl.keysIds). */
@@ -144,7 +215,11 @@ function hashesIds(split: Protocol['split']): split is RuleSplit {
 }
 
 /** Many ids: derive every repeat's split keys with the row thread's help (rules that hash group names derive their own). */
-function splitKeysOnTwoThreads(p: Protocol, ids: readonly string[], rowThread: RowThread): ((seed: number, repeat: number) => Uint8Array | undefined) | undefined {
+function splitKeysOnTwoThreads(
+  p: Protocol,
+  ids: readonly string[],
+  rowThread: RowThread,
+): ((seed: number, repeat: number) => Uint8Array | undefined) | undefined {
   if (!hashesIds(p.split) || ids.length < 10_000) return undefined;
   const seed = p.split.seed ?? 0;
   const keys = Array.from({ length: p.split.repeats }, (_, r) => rowThread.keys(ids, seed, r + 1));

@@ -27,7 +27,11 @@ function write(value: unknown, path: (string | number)[]): string {
     // JSON.stringify already writes them canonically once their numbers are known to be finite.
     if (flat(value)) return JSON.stringify(value);
     const parts = new Array<string>(value.length);
-    for (let i = 0; i < value.length; i++) { path.push(i); parts[i] = write(value[i], path); path.pop(); }
+    for (let i = 0; i < value.length; i++) {
+      path.push(i);
+      parts[i] = write(value[i], path);
+      path.pop();
+    }
     return `[${parts.join(',')}]`;
   }
   if (typeof value === 'object' && Object.getPrototypeOf(value) === Object.prototype) {
@@ -35,7 +39,11 @@ function write(value: unknown, path: (string | number)[]): string {
     // Default string order compares UTF-16 code units, as §3.2.3 requires.
     const names = Object.keys(record).sort();
     const parts = new Array<string>(names.length);
-    for (let i = 0; i < names.length; i++) { path.push(names[i]); parts[i] = `${JSON.stringify(names[i])}:${write(record[names[i]], path)}`; path.pop(); }
+    for (let i = 0; i < names.length; i++) {
+      path.push(names[i]);
+      parts[i] = `${JSON.stringify(names[i])}:${write(record[names[i]], path)}`;
+      path.pop();
+    }
     return `{${parts.join(',')}}`;
   }
   return fail(path, typeof value);
@@ -60,7 +68,10 @@ function fail(path: readonly (string | number)[], what: string): never {
 }
 
 export class NonJsonValueError extends Error {
-  constructor(readonly path: string, readonly what: string) {
+  constructor(
+    readonly path: string,
+    readonly what: string,
+  ) {
     super(`value at ${path} is ${what}, which has no JSON form`);
     this.name = 'NonJsonValueError';
   }

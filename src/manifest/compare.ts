@@ -13,17 +13,26 @@ export function compareRuns(recorded: Manifest, fresh: Manifest, tolerance: numb
   const out: Difference[] = [];
   const r = recorded as any;
   const f = fresh as any;
-  if (r.protocol.sha256 !== f.protocol.sha256) out.push({ kind: 'protocol', message: `protocol SHA-256 ${f.protocol.sha256} differs from the recorded ${r.protocol.sha256}` });
-  if (r.data.sha256 !== f.data.sha256) out.push({ kind: 'data', message: `data SHA-256 ${f.data.sha256} differs from the recorded ${r.data.sha256}` });
+  if (r.protocol.sha256 !== f.protocol.sha256)
+    out.push({ kind: 'protocol', message: `protocol SHA-256 ${f.protocol.sha256} differs from the recorded ${r.protocol.sha256}` });
+  if (r.data.sha256 !== f.data.sha256)
+    out.push({ kind: 'data', message: `data SHA-256 ${f.data.sha256} differs from the recorded ${r.data.sha256}` });
   out.push(...assignmentDifferences(r.split.assignment as Triple[], f.split.assignment as Triple[]));
   out.push(...metricDifferences(r.results, f.results, tolerance));
   for (const name of ['predictions.csv', 'applied.csv'] as const) {
-    if (r.files[name] !== f.files[name]) out.push({ kind: 'predictions', message: `${name} differs (SHA-256 ${f.files[name] ?? 'absent'} now, ${r.files[name] ?? 'absent'} recorded)` });
+    if (r.files[name] !== f.files[name])
+      out.push({
+        kind: 'predictions',
+        message: `${name} differs (SHA-256 ${f.files[name] ?? 'absent'} now, ${r.files[name] ?? 'absent'} recorded)`,
+      });
   }
   // Fitted numbers may move in their last digits between foldseal versions; folds (split-v1) never do.
   const fitted = out.some((d) => d.kind === 'metric' || d.kind === 'predictions');
   if (fitted && r.tool?.version !== f.tool?.version) {
-    out.push({ kind: 'tool', message: `recorded with foldseal ${r.tool?.version}, re-run with ${f.tool?.version}: fitted values can differ in their last digits between versions (a split-v1 assignment cannot); set verify.tolerance, or re-run with the recorded version` });
+    out.push({
+      kind: 'tool',
+      message: `recorded with foldseal ${r.tool?.version}, re-run with ${f.tool?.version}: fitted values can differ in their last digits between versions (a split-v1 assignment cannot); set verify.tolerance, or re-run with the recorded version`,
+    });
   }
   return out;
 }
@@ -40,7 +49,11 @@ function assignmentDifferences(recorded: Triple[], fresh: Triple[]): Difference[
   }
   const added = fresh.length - (recorded.length - missing);
   const out: Difference[] = [];
-  if (moved.length) out.push({ kind: 'assignment', message: `${moved.length} id${moved.length === 1 ? '' : 's'} moved to another fold: ${moved.slice(0, MAX_IDS).join(', ')}${moved.length > MAX_IDS ? ', …' : ''}` });
+  if (moved.length)
+    out.push({
+      kind: 'assignment',
+      message: `${moved.length} id${moved.length === 1 ? '' : 's'} moved to another fold: ${moved.slice(0, MAX_IDS).join(', ')}${moved.length > MAX_IDS ? ', …' : ''}`,
+    });
   if (missing || added) out.push({ kind: 'assignment', message: `${missing} recorded assignments are missing now and ${added} are new` });
   return out;
 }
@@ -54,7 +67,8 @@ function metricDifferences(recorded: any, fresh: any, tolerance: number): Differ
     const now = freshFolds.get(`${fold.repeat}/${fold.fold}`);
     for (const [m, v] of Object.entries(fold.metrics as Record<string, number | null>)) {
       const w = now?.metrics?.[m] ?? null;
-      if (!now || differs(v, w)) out.push({ kind: 'metric', message: `repeat ${fold.repeat} fold ${fold.fold} ${m}: ${show(w)} now, ${show(v)} recorded` });
+      if (!now || differs(v, w))
+        out.push({ kind: 'metric', message: `repeat ${fold.repeat} fold ${fold.fold} ${m}: ${show(w)} now, ${show(v)} recorded` });
     }
   }
   for (const [m, s] of Object.entries(recorded.summary as Record<string, Record<string, number | null>>)) {

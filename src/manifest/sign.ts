@@ -33,9 +33,12 @@ export function fingerprint(publicKey: KeyObject): string {
 export function memberDigests(manifest: Manifest): Record<string, string> {
   const out: Record<string, string> = {};
   const walk = (value: unknown, path: string, depth: number) => {
-    out[path || '/'] = createHash('sha256').update(canonicalJson(value ?? null)).digest('hex');
+    out[path || '/'] = createHash('sha256')
+      .update(canonicalJson(value ?? null))
+      .digest('hex');
     if (depth === 2 || value === null || typeof value !== 'object' || Array.isArray(value)) return;
-    for (const [k, v] of Object.entries(value as Record<string, unknown>).sort(([a], [b]) => (a < b ? -1 : 1))) walk(v, `${path}/${k.replaceAll('~', '~0').replaceAll('/', '~1')}`, depth + 1);
+    for (const [k, v] of Object.entries(value as Record<string, unknown>).sort(([a], [b]) => (a < b ? -1 : 1)))
+      walk(v, `${path}/${k.replaceAll('~', '~0').replaceAll('/', '~1')}`, depth + 1);
   };
   const { signature: _omit, ...rest } = manifest;
   void _omit;
@@ -45,7 +48,13 @@ export function memberDigests(manifest: Manifest): Record<string, string> {
 
 export function signManifest(manifest: Manifest, privateKey: KeyObject, publicKey: KeyObject): Manifest {
   const value = edSign(null, signingBytes(manifest), privateKey).toString('base64');
-  const signature: Signature = { algorithm: 'Ed25519', 'key-sha256': fingerprint(publicKey), 'public-key': rawPublicKey(publicKey).toString('base64'), value, members: memberDigests(manifest) };
+  const signature: Signature = {
+    algorithm: 'Ed25519',
+    'key-sha256': fingerprint(publicKey),
+    'public-key': rawPublicKey(publicKey).toString('base64'),
+    value,
+    members: memberDigests(manifest),
+  };
   return { ...manifest, signature };
 }
 

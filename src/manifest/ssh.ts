@@ -145,7 +145,10 @@ export function parseKeyLines(text: string): { keys: KeyLine[]; problems: KeyLin
     const type = tokens[k];
     const data = tokens[k + 1];
     if (!type || !KEY_TYPE.test(type) || !data) {
-      problems.push({ line, message: 'is not a public key line (TYPE BASE64 [comment]) nor an allowed_signers line (PRINCIPALS [OPTIONS] TYPE BASE64)' });
+      problems.push({
+        line,
+        message: 'is not a public key line (TYPE BASE64 [comment]) nor an allowed_signers line (PRINCIPALS [OPTIONS] TYPE BASE64)',
+      });
       return;
     }
     let key: SshPublicKey;
@@ -202,7 +205,15 @@ export interface Sshsig {
 }
 
 export function encodeSshsig(publicKeyBlob: Uint8Array, namespace: string, hash: HashAlgorithm, signatureBlob: Uint8Array): string {
-  const blob = Buffer.concat([Buffer.from(MAGIC), uint32(1), sshString(publicKeyBlob), sshString(namespace), sshString(''), sshString(hash), sshString(signatureBlob)]);
+  const blob = Buffer.concat([
+    Buffer.from(MAGIC),
+    uint32(1),
+    sshString(publicKeyBlob),
+    sshString(namespace),
+    sshString(''),
+    sshString(hash),
+    sshString(signatureBlob),
+  ]);
   const b64 = blob.toString('base64');
   const lines: string[] = [];
   for (let i = 0; i < b64.length; i += 70) lines.push(b64.slice(i, i + 70));
@@ -211,7 +222,8 @@ export function encodeSshsig(publicKeyBlob: Uint8Array, namespace: string, hash:
 
 export function parseSshsig(text: string): Sshsig {
   const body = text.trim();
-  if (!body.startsWith(ARMOR_BEGIN) || !body.endsWith(ARMOR_END)) throw new SshFormatError(`it is not an armoured SSH signature (${ARMOR_BEGIN} … ${ARMOR_END})`);
+  if (!body.startsWith(ARMOR_BEGIN) || !body.endsWith(ARMOR_END))
+    throw new SshFormatError(`it is not an armoured SSH signature (${ARMOR_BEGIN} … ${ARMOR_END})`);
   const b64 = body.slice(ARMOR_BEGIN.length, -ARMOR_END.length).replace(/\s+/g, '');
   if (!/^[A-Za-z0-9+/]*={0,2}$/.test(b64)) throw new SshFormatError('its body is not base64');
   const r = new Reader(Buffer.from(b64, 'base64'));
@@ -282,7 +294,11 @@ export function parseOpensshPrivateKey(text: string): OpensshPrivateKey {
   const pub = p.string();
   const secret = p.string();
   const comment = p.text();
-  if (type !== SSH_ED25519 || secret.length !== 64 || !pub.equals(publicKey.raw!) || !secret.subarray(32).equals(pub)) throw new SshFormatError('its private part does not match its public key');
-  const privateKey = createPrivateKey({ key: { kty: 'OKP', crv: 'Ed25519', d: secret.subarray(0, 32).toString('base64url'), x: pub.toString('base64url') }, format: 'jwk' });
+  if (type !== SSH_ED25519 || secret.length !== 64 || !pub.equals(publicKey.raw!) || !secret.subarray(32).equals(pub))
+    throw new SshFormatError('its private part does not match its public key');
+  const privateKey = createPrivateKey({
+    key: { kty: 'OKP', crv: 'Ed25519', d: secret.subarray(0, 32).toString('base64url'), x: pub.toString('base64url') },
+    format: 'jwk',
+  });
   return { kind: 'ed25519', privateKey, raw: pub, comment };
 }

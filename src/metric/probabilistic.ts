@@ -27,8 +27,15 @@ export const brier: Metric = (s) => {
   const rows = s.truth.length;
   let total = 0;
   for (let r = 0; r < rows; r++) {
-    if (k === 2) { const d = s.proba[r * k + s.positive] - (s.truth[r] === s.positive ? 1 : 0); total += d * d; continue; }
-    for (let c = 0; c < k; c++) { const d = s.proba[r * k + c] - (s.truth[r] === c ? 1 : 0); total += d * d; }
+    if (k === 2) {
+      const d = s.proba[r * k + s.positive] - (s.truth[r] === s.positive ? 1 : 0);
+      total += d * d;
+      continue;
+    }
+    for (let c = 0; c < k; c++) {
+      const d = s.proba[r * k + c] - (s.truth[r] === c ? 1 : 0);
+      total += d * d;
+    }
   }
   return total / rows;
 };

@@ -14,7 +14,10 @@ function sortedByClass(score: Float64Array, positive: Uint8Array): { pos: Float6
   const neg = new Float64Array(score.length - n1);
   let a = 0;
   let b = 0;
-  for (let i = 0; i < score.length; i++) { if (positive[i]) pos[a++] = score[i]; else neg[b++] = score[i]; }
+  for (let i = 0; i < score.length; i++) {
+    if (positive[i]) pos[a++] = score[i];
+    else neg[b++] = score[i];
+  }
   return { pos: pos.sort(), neg: neg.sort() };
 }
 
@@ -51,8 +54,15 @@ export function averagePrecisionOf(score: Float64Array, positive: Uint8Array): n
   let ap = 0;
   while (i >= 0) {
     const v = j >= 0 && neg[j] > pos[i] ? neg[j] : pos[i];
-    while (i >= 0 && pos[i] === v) { tp++; seen++; i--; }
-    while (j >= 0 && neg[j] === v) { seen++; j--; }
+    while (i >= 0 && pos[i] === v) {
+      tp++;
+      seen++;
+      i--;
+    }
+    while (j >= 0 && neg[j] === v) {
+      seen++;
+      j--;
+    }
     const r = tp / total;
     ap += (r - lastRecall) * (tp / seen);
     lastRecall = r;
@@ -64,18 +74,27 @@ function column(s: Scored, c: number): { score: Float64Array; positive: Uint8Arr
   const rows = s.truth.length;
   const score = new Float64Array(rows);
   const positive = new Uint8Array(rows);
-  for (let r = 0; r < rows; r++) { score[r] = s.proba[r * s.classCount + c]; positive[r] = s.truth[r] === c ? 1 : 0; }
+  for (let r = 0; r < rows; r++) {
+    score[r] = s.proba[r * s.classCount + c];
+    positive[r] = s.truth[r] === c ? 1 : 0;
+  }
   return { score, positive };
 }
 
 function oneVsRest(s: Scored, f: (score: Float64Array, positive: Uint8Array) => number | null): number | null {
-  if (s.classCount === 2) { const { score, positive } = column(s, s.positive); return f(score, positive); }
+  if (s.classCount === 2) {
+    const { score, positive } = column(s, s.positive);
+    return f(score, positive);
+  }
   let total = 0;
   let used = 0;
   for (let c = 0; c < s.classCount; c++) {
     const { score, positive } = column(s, c);
     const v = f(score, positive);
-    if (v !== null) { total += v; used++; }
+    if (v !== null) {
+      total += v;
+      used++;
+    }
   }
   return used === 0 ? null : total / used;
 }

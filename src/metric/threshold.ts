@@ -14,13 +14,21 @@ function margins(s: Scored) {
   const truth = new Float64Array(k);
   const pred = new Float64Array(k);
   let diag = 0;
-  for (let r = 0; r < k; r++) for (let c = 0; c < k; c++) { truth[r] += m[r * k + c]; pred[c] += m[r * k + c]; if (r === c) diag += m[r * k + c]; }
+  for (let r = 0; r < k; r++)
+    for (let c = 0; c < k; c++) {
+      truth[r] += m[r * k + c];
+      pred[c] += m[r * k + c];
+      if (r === c) diag += m[r * k + c];
+    }
   return { k, m, truth, pred, diag, n: s.truth.length };
 }
 
 function perClass(s: Scored, f: (tp: number, fp: number, fn: number) => number): number {
   const { k, m, truth, pred } = margins(s);
-  if (k === 2) { const c = s.positive; return f(m[c * k + c], pred[c] - m[c * k + c], truth[c] - m[c * k + c]); }
+  if (k === 2) {
+    const c = s.positive;
+    return f(m[c * k + c], pred[c] - m[c * k + c], truth[c] - m[c * k + c]);
+  }
   let total = 0;
   let used = 0;
   for (let c = 0; c < k; c++) {
@@ -37,7 +45,11 @@ export const balancedAccuracy: Metric = (s) => {
   const { k, m, truth } = margins(s);
   let total = 0;
   let used = 0;
-  for (let c = 0; c < k; c++) if (truth[c] > 0) { total += m[c * k + c] / truth[c]; used++; }
+  for (let c = 0; c < k; c++)
+    if (truth[c] > 0) {
+      total += m[c * k + c] / truth[c];
+      used++;
+    }
   return total / used;
 };
 
@@ -50,7 +62,11 @@ export const mcc: Metric = (s) => {
   let tp = 0;
   let tt = 0;
   let pp = 0;
-  for (let c = 0; c < k; c++) { tp += truth[c] * pred[c]; tt += truth[c] * truth[c]; pp += pred[c] * pred[c]; }
+  for (let c = 0; c < k; c++) {
+    tp += truth[c] * pred[c];
+    tt += truth[c] * truth[c];
+    pp += pred[c] * pred[c];
+  }
   const denominator = Math.sqrt((n * n - pp) * (n * n - tt));
   return denominator === 0 ? 0 : (diag * n - tp) / denominator;
 };

@@ -31,7 +31,14 @@ export function classMoments(X: Matrix, y: Int32Array, classCount: number): Clas
  * result equals the moments of part g's rows alone, taken in that order, bit for bit, in two
  * passes over the table instead of two per part.
  */
-export function partMoments(X: Matrix, y: Int32Array, classCount: number, fold: Int32Array, parts: number, order: Int32Array): ClassMoments[] {
+export function partMoments(
+  X: Matrix,
+  y: Int32Array,
+  classCount: number,
+  fold: Int32Array,
+  parts: number,
+  order: Int32Array,
+): ClassMoments[] {
   const { cols, data } = X;
   const stride = classCount * cols;
   const n = new Float64Array(parts * classCount);
@@ -57,7 +64,10 @@ export function partMoments(X: Matrix, y: Int32Array, classCount: number, fold: 
     const r = order[i];
     const o = (fold[r] - 1) * stride + y[r] * cols;
     const b = r * cols;
-    for (let j = 0; j < cols; j++) { const d = data[b + j] - mean[o + j]; m2[o + j] += d * d; }
+    for (let j = 0; j < cols; j++) {
+      const d = data[b + j] - mean[o + j];
+      m2[o + j] += d * d;
+    }
   }
   return Array.from({ length: parts }, (_, g) => ({
     classCount,

@@ -59,7 +59,10 @@ function predictRows(models: GaussianNbParams[], X: Matrix, which?: Int32Array, 
     for (let c = 0; c < k; c++) {
       const lp = p.logPrior[c];
       const mc = m * k + c;
-      if (lp === null) { base[mc] = -Infinity; continue; }
+      if (lp === null) {
+        base[mc] = -Infinity;
+        continue;
+      }
       let logNorm = 0;
       for (let j = 0; j < cols; j++) {
         mean[mc * cols + j] = p.mean[c][j];
@@ -79,10 +82,16 @@ function predictRows(models: GaussianNbParams[], X: Matrix, which?: Int32Array, 
     const first = (modelOf ? modelOf[r] : 0) * k;
     for (let c = 0; c < k; c++) {
       const mc = first + c;
-      if (base[mc] === -Infinity) { scores[r * k + c] = -Infinity; continue; }
+      if (base[mc] === -Infinity) {
+        scores[r * k + c] = -Infinity;
+        continue;
+      }
       const o = mc * cols;
       let q = 0;
-      for (let j = 0; j < cols; j++) { const d = data[b + j] - mean[o + j]; q += d * d * inv[o + j]; }
+      for (let j = 0; j < cols; j++) {
+        const d = data[b + j] - mean[o + j];
+        q += d * d * inv[o + j];
+      }
       scores[r * k + c] = base[mc] - 0.5 * q;
     }
   }

@@ -22,13 +22,19 @@ export const knn: ModelImpl<KnnParams> = {
     // Every training row the same: every distance ties, so the neighbours are simply the first k rows in id order.
     const first = p.X[0];
     const allSame = p.X.every((row) => row.every((v, j) => v === first[j]));
-    return allSame && p.X.length > p.k ? ['every training row has the same feature values, so all distances tie and the k neighbours are the first k training rows in id order'] : [];
+    return allSame && p.X.length > p.k
+      ? [
+          'every training row has the same feature values, so all distances tie and the k neighbours are the first k training rows in id order',
+        ]
+      : [];
   },
   predict(p, X) {
     const n = p.y.length;
     const cols = X.cols;
     const train = new Float64Array(n * cols);
-    p.X.forEach((row, i) => train.set(row, i * cols));
+    p.X.forEach((row, i) => {
+      train.set(row, i * cols);
+    });
     const out = new Float64Array(X.rows * p.classCount);
     const dist = new Float64Array(n);
     const order = new Int32Array(n);
@@ -36,7 +42,10 @@ export const knn: ModelImpl<KnnParams> = {
       const b = r * cols;
       for (let i = 0; i < n; i++) {
         let s = 0;
-        for (let j = 0; j < cols; j++) { const d = X.data[b + j] - train[i * cols + j]; s += d * d; }
+        for (let j = 0; j < cols; j++) {
+          const d = X.data[b + j] - train[i * cols + j];
+          s += d * d;
+        }
         dist[i] = s;
         order[i] = i;
       }

@@ -42,7 +42,9 @@ export const logistic: ModelImpl<LogisticParams> = {
     const p = X.cols;
     if (C === 1) return { classCount, present, weights: [new Array(p + 1).fill(0)], iterations: 0 };
     const local = new Int32Array(classCount).fill(-1);
-    present.forEach((c, i) => (local[c] = i));
+    present.forEach((c, i) => {
+      local[c] = i;
+    });
     const yl = Int32Array.from(y, (c) => local[c]);
     const blocks = C === 2 ? 1 : C;
     if (p >= X.rows && l2 > 0) {
@@ -63,7 +65,12 @@ export const logistic: ModelImpl<LogisticParams> = {
       return { classCount, present, weights, iterations: inner.iterations };
     }
     const dim = blocks * (p + 1) - (C === 2 ? 0 : 1);
-    if (dim > MAX_PARAMETERS) throw new FitError('logistic-too-wide', `logistic would fit ${dim} parameters by Newton's method on ${X.rows} rows; at most ${MAX_PARAMETERS} are supported when there are more rows than features`, 'add a select step before the model');
+    if (dim > MAX_PARAMETERS)
+      throw new FitError(
+        'logistic-too-wide',
+        `logistic would fit ${dim} parameters by Newton's method on ${X.rows} rows; at most ${MAX_PARAMETERS} are supported when there are more rows than features`,
+        'add a select step before the model',
+      );
     return { classCount, present, ...newton(X, yl, C, l2, tolerance, maxIterations) };
   },
 
@@ -75,7 +82,10 @@ export const logistic: ModelImpl<LogisticParams> = {
     const p = X.cols;
     for (let r = 0; r < X.rows; r++) {
       const o = r * m.classCount;
-      if (C === 1) { out[o + m.present[0]] = 1; continue; }
+      if (C === 1) {
+        out[o + m.present[0]] = 1;
+        continue;
+      }
       if (C === 2) {
         const z = linear(X.data, r * p, p, w[0]);
         const q = 1 / (1 + Math.exp(-z));
@@ -98,14 +108,27 @@ function linear(data: Float64Array, base: number, p: number, w: Float64Array): n
 
 function softmaxInto(data: Float64Array, base: number, p: number, w: Float64Array[], out: Float64Array): void {
   let max = -Infinity;
-  for (let c = 0; c < w.length; c++) { out[c] = linear(data, base, p, w[c]); if (out[c] > max) max = out[c]; }
+  for (let c = 0; c < w.length; c++) {
+    out[c] = linear(data, base, p, w[c]);
+    if (out[c] > max) max = out[c];
+  }
   let s = 0;
-  for (let c = 0; c < w.length; c++) { out[c] = Math.exp(out[c] - max); s += out[c]; }
+  for (let c = 0; c < w.length; c++) {
+    out[c] = Math.exp(out[c] - max);
+    s += out[c];
+  }
   for (let c = 0; c < w.length; c++) out[c] /= s;
 }
 
 /** Newton's method on the full parameter layout; weights[b] = p weights then the intercept. */
-function newton(X: Matrix, yl: Int32Array, C: number, l2: number, tolerance: number, maxIterations: number): { weights: number[][]; iterations: number } {
+function newton(
+  X: Matrix,
+  yl: Int32Array,
+  C: number,
+  l2: number,
+  tolerance: number,
+  maxIterations: number,
+): { weights: number[][]; iterations: number } {
   const p = X.cols;
   const width = p + 1;
   const blocks = C === 2 ? 1 : C;
@@ -118,7 +141,8 @@ function newton(X: Matrix, yl: Int32Array, C: number, l2: number, tolerance: num
     for (let i = 0; i < yl.length; i++) ones += yl[i];
     theta[p] = Math.log(ones / (yl.length - ones));
   }
-  const evaluate = (t: Float64Array, derivatives: boolean) => (columns ? binaryLossGradHess(X, columns, yl, t, l2, derivatives) : lossGradHess(X, yl, C, t, l2, derivatives));
+  const evaluate = (t: Float64Array, derivatives: boolean) =>
+    columns ? binaryLossGradHess(X, columns, yl, t, l2, derivatives) : lossGradHess(X, yl, C, t, l2, derivatives);
   let iterations = 0;
   let polished = false;
   for (;;) {
@@ -135,19 +159,31 @@ function newton(X: Matrix, yl: Int32Array, C: number, l2: number, tolerance: num
     if (step === null) throw new FitError('logistic-singular', 'logistic: the Newton system is singular');
     let decrement = 0;
     for (let i = 0; i < dim; i++) decrement += g[i] * step[i];
-    if (!Number.isFinite(loss) || !Number.isFinite(decrement)) throw new FitError('logistic-non-finite', 'logistic: the loss or its gradient is not finite (feature values too large for the model to compute with)', 'rescale the features (standardize, or log2p)');
+    if (!Number.isFinite(loss) || !Number.isFinite(decrement))
+      throw new FitError(
+        'logistic-non-finite',
+        'logistic: the loss or its gradient is not finite (feature values too large for the model to compute with)',
+        'rescale the features (standardize, or log2p)',
+      );
     if (decrement / 2 <= tolerance * (1 + loss)) {
       if (polished) break;
       polished = true;
     }
     if (iterations >= maxIterations) {
-      throw new FitError('logistic-no-convergence', `logistic did not converge in ${maxIterations} Newton steps (the next step would still lower the objective by ${(decrement / 2).toExponential(3)}, more than tolerance × (1 + objective) = ${(tolerance * (1 + loss)).toExponential(3)})`, l2 === 0 ? 'the classes may be separable; set model.options.l2 above 0' : 'raise model.options.max-iterations or tolerance');
+      throw new FitError(
+        'logistic-no-convergence',
+        `logistic did not converge in ${maxIterations} Newton steps (the next step would still lower the objective by ${(decrement / 2).toExponential(3)}, more than tolerance × (1 + objective) = ${(tolerance * (1 + loss)).toExponential(3)})`,
+        l2 === 0 ? 'the classes may be separable; set model.options.l2 above 0' : 'raise model.options.max-iterations or tolerance',
+      );
     }
     const candidate = new Float64Array(theta.length);
     let decreased = false;
     // Inside the tolerance the full Newton step is taken as is: the loss change is then below
     // rounding, so a line search could not tell a good step from a bad one.
-    if (polished) { unpack(theta, step, -1, candidate, blocks, width, C); decreased = true; }
+    if (polished) {
+      unpack(theta, step, -1, candidate, blocks, width, C);
+      decreased = true;
+    }
     for (let t = 1, tries = 0; tries < 60 && !decreased; tries++, t /= 2) {
       unpack(theta, step, -t, candidate, blocks, width, C);
       if (evaluate(candidate, false).loss <= loss - 1e-4 * t * decrement) decreased = true;
@@ -266,7 +302,10 @@ function rowBasis(X: Matrix): { q: Float64Array; rank: number } {
   const v = new Float64Array(cols);
   for (let r = 0; r < rows; r++) {
     let norm0 = 0;
-    for (let j = 0; j < cols; j++) { v[j] = data[r * cols + j]; norm0 += v[j] * v[j]; }
+    for (let j = 0; j < cols; j++) {
+      v[j] = data[r * cols + j];
+      norm0 += v[j] * v[j];
+    }
     if (norm0 === 0) continue;
     for (let pass = 0; pass < 2; pass++) {
       for (let k = 0; k < rank; k++) {
@@ -304,7 +343,14 @@ function project(X: Matrix, basis: { q: Float64Array; rank: number }): Matrix {
 }
 
 /** Loss, gradient and (optionally) Hessian over the full parameter layout blocks × (p + 1). */
-function lossGradHess(X: { rows: number; cols: number; data: Float64Array }, y: Int32Array, C: number, theta: Float64Array, l2: number, withDerivatives: boolean) {
+function lossGradHess(
+  X: { rows: number; cols: number; data: Float64Array },
+  y: Int32Array,
+  C: number,
+  theta: Float64Array,
+  l2: number,
+  withDerivatives: boolean,
+) {
   const p = X.cols;
   const width = p + 1;
   const blocks = C === 2 ? 1 : C;
@@ -355,7 +401,10 @@ function lossGradHess(X: { rows: number; cols: number; data: Float64Array }, y: 
     for (let j = 0; j < p; j++) {
       const k = b * width + j;
       loss += 0.5 * l2 * theta[k] * theta[k];
-      if (withDerivatives) { grad[k] += l2 * theta[k]; hess![k * dimFull + k] += l2; }
+      if (withDerivatives) {
+        grad[k] += l2 * theta[k];
+        hess![k * dimFull + k] += l2;
+      }
     }
   }
   if (hess) for (let a = 0; a < dimFull; a++) for (let b = a + 1; b < dimFull; b++) hess[a * dimFull + b] = hess[b * dimFull + a];

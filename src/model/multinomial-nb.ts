@@ -10,7 +10,13 @@ export const multinomialNb: ModelImpl<MultinomialNbParams> = {
   fit(X, y, options, { classCount }) {
     const alpha = (options.smoothing as number | undefined) ?? 1;
     const { rows, cols, data } = X;
-    for (let k = 0; k < data.length; k++) if (data[k] < 0) throw new FitError('negative-counts', `multinomial-nb needs non-negative counts; feature ${(k % cols) + 1} has ${data[k]}`, 'use gaussian-nb for measurements, or drop standardize before multinomial-nb');
+    for (let k = 0; k < data.length; k++)
+      if (data[k] < 0)
+        throw new FitError(
+          'negative-counts',
+          `multinomial-nb needs non-negative counts; feature ${(k % cols) + 1} has ${data[k]}`,
+          'use gaussian-nb for measurements, or drop standardize before multinomial-nb',
+        );
     const n = classCounts(y, classCount);
     const count = new Float64Array(classCount * cols);
     for (let r = 0; r < rows; r++) {

@@ -25,11 +25,16 @@ const fromMoments: NonNullable<ModelImpl<ShrunkenCentroidParams>['fromMoments']>
   const s = Array.from(within, (w) => Math.sqrt(w / (rows - present)));
   const s0 = median(s);
   const scale = s.map((v) => v + s0);
-  if (scale.some((v) => v === 0)) throw new FitError('constant-features', 'shrunken-centroid: every feature is constant within classes in this training part');
+  if (scale.some((v) => v === 0))
+    throw new FitError('constant-features', 'shrunken-centroid: every feature is constant within classes in this training part');
   const centroid: (number[] | null)[] = [];
   const logPrior: (number | null)[] = [];
   for (let c = 0; c < classCount; c++) {
-    if (n[c] === 0) { centroid.push(null); logPrior.push(null); continue; }
+    if (n[c] === 0) {
+      centroid.push(null);
+      logPrior.push(null);
+      continue;
+    }
     const m = Math.sqrt(1 / n[c] - 1 / rows);
     const row: number[] = [];
     for (let j = 0; j < cols; j++) {
@@ -55,9 +60,15 @@ export const shrunkenCentroid: ModelImpl<ShrunkenCentroidParams> = {
       const cen = p.centroid[c];
       const lp = p.logPrior[c];
       for (let r = 0; r < rows; r++) {
-        if (cen === null || lp === null) { scores[r * k + c] = -Infinity; continue; }
+        if (cen === null || lp === null) {
+          scores[r * k + c] = -Infinity;
+          continue;
+        }
         let q = 0;
-        for (let j = 0; j < cols; j++) { const d = data[r * cols + j] - cen[j]; q += d * d * inv2[j]; }
+        for (let j = 0; j < cols; j++) {
+          const d = data[r * cols + j] - cen[j];
+          q += d * d * inv2[j];
+        }
         scores[r * k + c] = -0.5 * (q - 2 * lp);
       }
     }

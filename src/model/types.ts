@@ -62,7 +62,11 @@ export function softmaxRows(scores: Float64Array, rows: number, k: number): Floa
  * adds the row's log-likelihood to the log prior it starts from; classes absent from training
  * score -Infinity (probability 0).
  */
-export function naiveBayesPosteriors(rows: number, logPrior: readonly (number | null)[], score: (row: number, c: number, start: number) => number): Float64Array {
+export function naiveBayesPosteriors(
+  rows: number,
+  logPrior: readonly (number | null)[],
+  score: (row: number, c: number, start: number) => number,
+): Float64Array {
   const k = logPrior.length;
   const scores = new Float64Array(rows * k);
   for (let c = 0; c < k; c++) {

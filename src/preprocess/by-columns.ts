@@ -15,7 +15,11 @@ import { FitError } from '../problems/problem.js';
 import type { ColumnKernel, TransformImpl } from './types.js';
 
 type Selection = Required<Pick<TransformImpl, 'scoreColumn' | 'fromScores' | 'kept'>>;
-interface ColumnPlan { prefix: { step: PreprocessStep; kernel: ColumnKernel }[]; at: number; selection: Selection }
+interface ColumnPlan {
+  prefix: { step: PreprocessStep; kernel: ColumnKernel }[];
+  at: number;
+  selection: Selection;
+}
 
 function columnPlan(steps: readonly PreprocessStep[]): ColumnPlan | undefined {
   const at = steps.findIndex((step) => transforms[step.step].kept);
@@ -37,7 +41,10 @@ export function fitsByColumns(steps: readonly PreprocessStep[]): boolean {
 }
 
 /** The same cells, column-major: out[j * rows + r] = X(r, j). */
-export function columnMajor(X: Matrix, out: Float64Array<ArrayBufferLike> = new Float64Array(X.rows * X.cols)): Float64Array<ArrayBufferLike> {
+export function columnMajor(
+  X: Matrix,
+  out: Float64Array<ArrayBufferLike> = new Float64Array(X.rows * X.cols),
+): Float64Array<ArrayBufferLike> {
   const { rows, cols, data } = X;
   for (let r = 0; r < rows; r++) {
     const b = r * cols;
@@ -50,7 +57,15 @@ export function columnMajor(X: Matrix, out: Float64Array<ArrayBufferLike> = new 
  * Fit `steps` on the training `rows` of source. `columns` is source in column-major order
  * (see columnMajor); without it, or when the steps do not allow it, the whole-matrix fit runs.
  */
-export function fitPipelineOnRows(steps: readonly PreprocessStep[], source: Matrix, rows: Int32Array, y: Int32Array, classCount: number, names: readonly string[], columns?: Float64Array): { pipeline: FittedPipeline; X: Matrix } {
+export function fitPipelineOnRows(
+  steps: readonly PreprocessStep[],
+  source: Matrix,
+  rows: Int32Array,
+  y: Int32Array,
+  classCount: number,
+  names: readonly string[],
+  columns?: Float64Array,
+): { pipeline: FittedPipeline; X: Matrix } {
   const plan = columns ? columnPlan(steps) : undefined;
   if (plan && columns) {
     try {
@@ -64,7 +79,16 @@ export function fitPipelineOnRows(steps: readonly PreprocessStep[], source: Matr
   return fitPipeline(steps, takeRows(source, rows), y, classCount, names);
 }
 
-function byColumns(steps: readonly PreprocessStep[], plan: ColumnPlan, source: Matrix, columns: Float64Array, rows: Int32Array, y: Int32Array, classCount: number, names: readonly string[]): { pipeline: FittedPipeline; X: Matrix } {
+function byColumns(
+  steps: readonly PreprocessStep[],
+  plan: ColumnPlan,
+  source: Matrix,
+  columns: Float64Array,
+  rows: Int32Array,
+  y: Int32Array,
+  classCount: number,
+  names: readonly string[],
+): { pipeline: FittedPipeline; X: Matrix } {
   const n = rows.length;
   const width = source.cols;
   const v = new Float64Array(n);
@@ -111,7 +135,16 @@ function byColumns(steps: readonly PreprocessStep[], plan: ColumnPlan, source: M
     });
     for (let i = 0; i < n; i++) current[i * keep.length + q] = v[i];
   });
-  const rest = fitPipeline(steps.slice(plan.at + 1), { rows: n, cols: keep.length, data: current }, y, classCount, keep.map((j) => names[j]));
+  const rest = fitPipeline(
+    steps.slice(plan.at + 1),
+    { rows: n, cols: keep.length, data: current },
+    y,
+    classCount,
+    keep.map((j) => names[j]),
+  );
   if (rest.pipeline.steps.length === 0) assertFinite(rest.X, rest.pipeline.columns);
-  return { pipeline: { steps: [...fitted, { step: selectStep, params: chosen }, ...rest.pipeline.steps], columns: rest.pipeline.columns }, X: rest.X };
+  return {
+    pipeline: { steps: [...fitted, { step: selectStep, params: chosen }, ...rest.pipeline.steps], columns: rest.pipeline.columns },
+    X: rest.X,
+  };
 }

@@ -30,7 +30,10 @@ export function featureScores(X: Matrix, y: Int32Array, classCount: number, by: 
   for (let r = 0; r < rows; r++) {
     const o = y[r] * cols;
     const b = r * cols;
-    for (let j = 0; j < cols; j++) { const d = data[b + j] - mean[o + j]; ss[o + j] += d * d; }
+    for (let j = 0; j < cols; j++) {
+      const d = data[b + j] - mean[o + j];
+      ss[o + j] += d * d;
+    }
   }
   const present = presentClasses(n);
   const out = new Float64Array(cols);
@@ -57,7 +60,17 @@ export function presentClasses(n: Float64Array): number[] {
  * One column's score from its values v[0, rows). `counts` are the rows per class; `mean` and
  * `ss` are scratch space of classCount numbers each (reused across columns: no allocation).
  */
-export function scoreColumn(v: Float64Array, rows: number, y: Int32Array, classCount: number, by: ScoreBy, counts: Float64Array, mean: Float64Array, ss: Float64Array, present: readonly number[]): number {
+export function scoreColumn(
+  v: Float64Array,
+  rows: number,
+  y: Int32Array,
+  classCount: number,
+  by: ScoreBy,
+  counts: Float64Array,
+  mean: Float64Array,
+  ss: Float64Array,
+  present: readonly number[],
+): number {
   mean.fill(0);
   ss.fill(0);
   for (let i = 0; i < rows; i++) mean[y[i]] += v[i];
@@ -67,12 +80,25 @@ export function scoreColumn(v: Float64Array, rows: number, y: Int32Array, classC
     if (counts[c] > 0) mean[c] /= counts[c];
   }
   overall /= rows;
-  for (let i = 0; i < rows; i++) { const d = v[i] - mean[y[i]]; ss[y[i]] += d * d; }
+  for (let i = 0; i < rows; i++) {
+    const d = v[i] - mean[y[i]];
+    ss[y[i]] += d * d;
+  }
   return scoreOf(by, present, counts, mean, ss, 0, 1, overall, rows);
 }
 
 /** The score of column j from class statistics stored at [class * stride + j]. */
-function scoreOf(by: ScoreBy, present: readonly number[], n: Float64Array, mean: Float64Array, ss: Float64Array, j: number, stride: number, overall: number, rows: number): number {
+function scoreOf(
+  by: ScoreBy,
+  present: readonly number[],
+  n: Float64Array,
+  mean: Float64Array,
+  ss: Float64Array,
+  j: number,
+  stride: number,
+  overall: number,
+  rows: number,
+): number {
   let within = 0;
   let between = 0;
   for (const c of present) {
@@ -87,5 +113,5 @@ function scoreOf(by: ScoreBy, present: readonly number[], n: Float64Array, mean:
     const vb = ss[b * stride + j] / (n[b] - 1) / n[b];
     return Math.abs(mean[a * stride + j] - mean[b * stride + j]) / Math.sqrt(va + vb);
   }
-  return (between / (present.length - 1)) / (within / (rows - present.length));
+  return between / (present.length - 1) / (within / (rows - present.length));
 }

@@ -2,11 +2,19 @@
 import { FitError } from '../problems/problem.js';
 import type { TransformImpl } from './types.js';
 
-export interface ImputeParams { fill: number[] }
-interface ImputeStep { by: 'mean' | 'median' }
+export interface ImputeParams {
+  fill: number[];
+}
+interface ImputeStep {
+  by: 'mean' | 'median';
+}
 
 function fillValue(present: number[], step: ImputeStep, column: number): number {
-  if (present.length === 0) throw new FitError('impute-empty-column', `feature ${column + 1} has no present value in a training part, so there is nothing to impute from`);
+  if (present.length === 0)
+    throw new FitError(
+      'impute-empty-column',
+      `feature ${column + 1} has no present value in a training part, so there is nothing to impute from`,
+    );
   if (step.by === 'mean') return present.reduce((a, b) => a + b, 0) / present.length;
   present.sort((a, b) => a - b);
   const h = present.length >> 1;
@@ -19,7 +27,10 @@ export const impute: TransformImpl<ImputeParams> = {
     const fill: number[] = [];
     for (let j = 0; j < cols; j++) {
       const present: number[] = [];
-      for (let r = 0; r < rows; r++) { const v = data[r * cols + j]; if (v === v) present.push(v); }
+      for (let r = 0; r < rows; r++) {
+        const v = data[r * cols + j];
+        if (v === v) present.push(v);
+      }
       fill.push(fillValue(present, step, j));
     }
     return { fill };

@@ -24,7 +24,12 @@ export const log2p: TransformImpl<Record<string, never>> = {
     const out = new Float64Array(X.data.length);
     for (let k = 0; k < out.length; k++) {
       const v = X.data[k];
-      if (v < 0) throw new FitError('log2p-negative', `log2p got the negative value ${v} (feature ${(k % X.cols) + 1}, row ${Math.floor(k / X.cols) + 1} of the part)`, 'log2p is for non-negative data such as counts; put it before standardize');
+      if (v < 0)
+        throw new FitError(
+          'log2p-negative',
+          `log2p got the negative value ${v} (feature ${(k % X.cols) + 1}, row ${Math.floor(k / X.cols) + 1} of the part)`,
+          'log2p is for non-negative data such as counts; put it before standardize',
+        );
       out[k] = Math.log2(v + 1);
     }
     return { rows: X.rows, cols: X.cols, data: out };

@@ -18,7 +18,13 @@ export interface FittedPipeline {
   input?: number[];
 }
 
-export function fitPipeline(steps: readonly PreprocessStep[], X: Matrix, y: Int32Array, classCount: number, names: readonly string[]): { pipeline: FittedPipeline; X: Matrix } {
+export function fitPipeline(
+  steps: readonly PreprocessStep[],
+  X: Matrix,
+  y: Int32Array,
+  classCount: number,
+  names: readonly string[],
+): { pipeline: FittedPipeline; X: Matrix } {
   let current = X;
   let columns = [...names];
   const fitted: FittedStep[] = [];
@@ -36,7 +42,13 @@ export function fitPipeline(steps: readonly PreprocessStep[], X: Matrix, y: Int3
 
 /** `rows`: apply to just these rows of X (read straight from X, no copy of unused columns). */
 export function applyPipeline(p: FittedPipeline, X: Matrix, rows?: Int32Array): Matrix {
-  let current = rows ? (p.input ? takeCells(X, rows, Int32Array.from(p.input)) : takeRows(X, rows)) : p.input ? takeCols(X, Int32Array.from(p.input)) : X;
+  let current = rows
+    ? p.input
+      ? takeCells(X, rows, Int32Array.from(p.input))
+      : takeRows(X, rows)
+    : p.input
+      ? takeCols(X, Int32Array.from(p.input))
+      : X;
   for (const s of p.steps) current = transforms[s.step.step].apply(s.params, current);
   if (p.steps.length) assertFinite(current, p.columns);
   return current;
@@ -46,7 +58,11 @@ export function assertFinite(X: Matrix, columns: readonly string[]): void {
   for (let k = 0; k < X.data.length; k++) {
     if (!Number.isFinite(X.data[k])) {
       const what = X.data[k] !== X.data[k] ? 'a missing value' : 'an infinite value';
-      throw new FitError('non-finite-feature', `feature "${columns[k % X.cols]}" has ${what} after preprocessing (row ${Math.floor(k / X.cols) + 1} of the part)`, 'add an impute step, or check the input for overflow');
+      throw new FitError(
+        'non-finite-feature',
+        `feature "${columns[k % X.cols]}" has ${what} after preprocessing (row ${Math.floor(k / X.cols) + 1} of the part)`,
+        'add an impute step, or check the input for overflow',
+      );
     }
   }
 }
@@ -74,7 +90,9 @@ export function prunePipeline(p: FittedPipeline, inputWidth: number): FittedPipe
     const impl = transforms[s.step.step];
     if (impl.kept) return;
     const positions: number[] = [];
-    inputs[t].forEach((orig, k) => { if (survives[orig]) positions.push(k); });
+    inputs[t].forEach((orig, k) => {
+      if (survives[orig]) positions.push(k);
+    });
     steps.push({ step: s.step, params: impl.restrict!(s.params, positions) });
   });
   // Selections keep input order, so the survivors' original order is the model's column order.

@@ -10,8 +10,14 @@ import { restrictMoments } from '../model/class-moments.js';
 import { featureScores, momentScores, scoreColumn, type ScoreBy } from './feature-scores.js';
 import type { TransformImpl } from './types.js';
 
-export interface SelectParams { keep: number[]; scores: (number | null)[] }
-interface SelectStep { top: number; by: ScoreBy }
+export interface SelectParams {
+  keep: number[];
+  scores: (number | null)[];
+}
+interface SelectStep {
+  top: number;
+  by: ScoreBy;
+}
 
 /** Positions of the `top` highest scores (undefined scores last, ties to the earlier position), ascending. */
 export function topIndices(scores: Float64Array, top: number): number[] {
@@ -24,14 +30,21 @@ export function topIndices(scores: Float64Array, top: number): number[] {
     if (best.length === top && !better(j, best[top - 1])) continue;
     let lo = 0;
     let hi = best.length;
-    while (lo < hi) { const mid = (lo + hi) >> 1; if (better(best[mid], j)) lo = mid + 1; else hi = mid; }
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1;
+      if (better(best[mid], j)) lo = mid + 1;
+      else hi = mid;
+    }
     best.splice(lo, 0, j);
     if (best.length > top) best.pop();
   }
   return best.sort((a, b) => a - b);
 }
 
-const fromScores = (scores: Float64Array, step: SelectStep): SelectParams => ({ keep: topIndices(scores, step.top), scores: Array.from(scores, (s) => (Number.isFinite(s) ? s : null)) });
+const fromScores = (scores: Float64Array, step: SelectStep): SelectParams => ({
+  keep: topIndices(scores, step.top),
+  scores: Array.from(scores, (s) => (Number.isFinite(s) ? s : null)),
+});
 
 export const select: TransformImpl<SelectParams> = {
   fit: (X, y, classCount, step: SelectStep) => fromScores(featureScores(X, y, classCount, step.by), step),
@@ -39,7 +52,8 @@ export const select: TransformImpl<SelectParams> = {
     fit: (m, step: SelectStep) => fromScores(momentScores(m, step.by), step),
     after: (p, m) => restrictMoments(m, p.keep),
   },
-  scoreColumn: (v, n, y, classCount, step: SelectStep, counts, mean, ss, present) => scoreColumn(v, n, y, classCount, step.by, counts, mean, ss, present),
+  scoreColumn: (v, n, y, classCount, step: SelectStep, counts, mean, ss, present) =>
+    scoreColumn(v, n, y, classCount, step.by, counts, mean, ss, present),
   fromScores,
   apply(p, X) {
     return takeCols(X, Int32Array.from(p.keep));

@@ -2,7 +2,10 @@
 import { overallMoments } from '../model/class-moments.js';
 import type { TransformImpl } from './types.js';
 
-export interface StandardizeParams { mean: number[]; scale: number[] }
+export interface StandardizeParams {
+  mean: number[];
+  scale: number[];
+}
 
 export const standardize: TransformImpl<StandardizeParams> = {
   fit(X) {
@@ -11,14 +14,27 @@ export const standardize: TransformImpl<StandardizeParams> = {
     for (let r = 0; r < rows; r++) for (let j = 0; j < cols; j++) mean[j] += data[r * cols + j];
     for (let j = 0; j < cols; j++) mean[j] /= rows;
     const ss = new Float64Array(cols);
-    for (let r = 0; r < rows; r++) for (let j = 0; j < cols; j++) { const d = data[r * cols + j] - mean[j]; ss[j] += d * d; }
-    const scale = Array.from(ss, (s) => { const sd = Math.sqrt(s / rows); return sd > 0 ? sd : 1; });
+    for (let r = 0; r < rows; r++)
+      for (let j = 0; j < cols; j++) {
+        const d = data[r * cols + j] - mean[j];
+        ss[j] += d * d;
+      }
+    const scale = Array.from(ss, (s) => {
+      const sd = Math.sqrt(s / rows);
+      return sd > 0 ? sd : 1;
+    });
     return { mean: Array.from(mean), scale };
   },
   moments: {
     fit(m) {
       const { rows, mean, ss } = overallMoments(m);
-      return { mean: Array.from(mean), scale: Array.from(ss, (s) => { const sd = Math.sqrt(s / rows); return sd > 0 ? sd : 1; }) };
+      return {
+        mean: Array.from(mean),
+        scale: Array.from(ss, (s) => {
+          const sd = Math.sqrt(s / rows);
+          return sd > 0 ? sd : 1;
+        }),
+      };
     },
     // z = (x − mean) / scale moves every class mean the same way and scales spreads by 1/scale².
     after(p, m) {
@@ -42,7 +58,10 @@ export const standardize: TransformImpl<StandardizeParams> = {
       for (let i = 0; i < n; i++) sum += v[i];
       const mean = sum / n;
       let ss = 0;
-      for (let i = 0; i < n; i++) { const d = v[i] - mean; ss += d * d; }
+      for (let i = 0; i < n; i++) {
+        const d = v[i] - mean;
+        ss += d * d;
+      }
       const sd = Math.sqrt(ss / n);
       out[0] = mean;
       out[1] = sd > 0 ? sd : 1;

@@ -14,7 +14,17 @@ export interface TransformImpl<P = unknown> {
   /** For selections: the parameters chosen from every column's score (fit = fromScores(scores of each column)). */
   fromScores?(scores: Float64Array, step: any): P;
   /** For selections: one column's score, from its training values v[0, n) (see feature-scores.ts). */
-  scoreColumn?(v: Float64Array, n: number, y: Int32Array, classCount: number, step: any, counts: Float64Array, mean: Float64Array, ss: Float64Array, present: readonly number[]): number;
+  scoreColumn?(
+    v: Float64Array,
+    n: number,
+    y: Int32Array,
+    classCount: number,
+    step: any,
+    counts: Float64Array,
+    mean: Float64Array,
+    ss: Float64Array,
+    present: readonly number[],
+  ): number;
   /** For column-wise transforms: the same fit and apply one column at a time (see by-columns.ts). */
   column?: ColumnKernel;
   /** For steps that learn only class moments of their input (see run/fit-by-moments.ts). */
@@ -40,6 +50,3 @@ export interface ColumnKernel {
   /** Transforms v[0, n) in place, given the column's field values. */
   apply(v: Float64Array, n: number, params: Float64Array): void;
 }
-
-
-

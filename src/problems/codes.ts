@@ -129,7 +129,7 @@ export const PROBLEM_CODES = {
   'results-missing': {},
   'results-version': {},
   'rule-changed': {},
-  'schema': {},
+  schema: {},
   'sealed-hash-mismatch': {},
   'sealed-missing': {},
   'sealed-rows-copied': {},

@@ -2,11 +2,7 @@ import type { Problem } from './problem.js';
 
 /** `PATH:LINE:COL: error: MESSAGE`, then an indented hint line when there is one. */
 export function formatProblemText(p: Problem): string {
-  const where = p.file
-    ? p.position
-      ? `${p.file}:${p.position.line}:${p.position.col}: `
-      : `${p.file}: `
-    : '';
+  const where = p.file ? (p.position ? `${p.file}:${p.position.line}:${p.position.col}: ` : `${p.file}: `) : '';
   const head = `${where}${p.severity}: ${p.message}`;
   return p.hint ? `${head}\n  hint: ${p.hint}` : head;
 }

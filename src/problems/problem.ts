@@ -43,7 +43,11 @@ export function warning(code: ProblemCode, message: string, extra: Partial<Probl
  * fitting code. The shell turns it into a located problem.
  */
 export class FitError extends Error {
-  constructor(readonly code: ProblemCode, message: string, readonly hint?: string) {
+  constructor(
+    readonly code: ProblemCode,
+    message: string,
+    readonly hint?: string,
+  ) {
     super(message);
     this.name = 'FitError';
   }

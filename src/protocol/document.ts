@@ -30,7 +30,17 @@ export function parseYaml(text: string, file: string): ParsedYaml {
     const before = text.slice(0, nested.offset);
     const line = before.split('\n').length;
     const source: SourceDocument = { file, text, doc: parseDocument(''), lines: new LineCounter() };
-    return { source, value: undefined, problems: [error('yaml-too-deep', `brackets nest more than ${MAX_NESTING} levels deep here; foldseal refuses such documents (a resource-exhaustion guard)`, { file, position: { line, col: nested.offset - before.lastIndexOf('\n') } })] };
+    return {
+      source,
+      value: undefined,
+      problems: [
+        error(
+          'yaml-too-deep',
+          `brackets nest more than ${MAX_NESTING} levels deep here; foldseal refuses such documents (a resource-exhaustion guard)`,
+          { file, position: { line, col: nested.offset - before.lastIndexOf('\n') } },
+        ),
+      ],
+    };
   }
   const lines = new LineCounter();
   const doc = parseDocument(text, { lineCounter: lines, prettyErrors: false, uniqueKeys: true, strict: true });
@@ -39,11 +49,23 @@ export function parseYaml(text: string, file: string): ParsedYaml {
   for (const e of doc.errors) {
     const pos = lines.linePos(e.pos[0]);
     const duplicate = e.code === 'DUPLICATE_KEY';
-    problems.push(error(duplicate ? 'yaml-duplicate-key' : 'yaml-syntax', duplicate ? `key ${keyAt(text, e.pos[0])}appears twice in the same mapping` : firstLine(e.message), { file, position: { line: pos.line, col: pos.col } }));
+    problems.push(
+      error(
+        duplicate ? 'yaml-duplicate-key' : 'yaml-syntax',
+        duplicate ? `key ${keyAt(text, e.pos[0])}appears twice in the same mapping` : firstLine(e.message),
+        { file, position: { line: pos.line, col: pos.col } },
+      ),
+    );
   }
   for (const w of doc.warnings) {
     const pos = lines.linePos(w.pos[0]);
-    problems.push({ code: 'yaml-warning', severity: 'warning', message: firstLine(w.message), file, position: { line: pos.line, col: pos.col } });
+    problems.push({
+      code: 'yaml-warning',
+      severity: 'warning',
+      message: firstLine(w.message),
+      file,
+      position: { line: pos.line, col: pos.col },
+    });
   }
   if (problems.some((p) => p.severity === 'error')) return { source, value: undefined, problems };
   let value: unknown;
@@ -53,9 +75,23 @@ export function parseYaml(text: string, file: string): ParsedYaml {
     const message = e instanceof Error ? e.message : String(e);
     if (/^Unresolved alias/i.test(message)) {
       const name = /: ([^\s:]+)$/.exec(message)?.[1];
-      problems.push(error('yaml-undefined-alias', `the alias ${name ? `*${name}` : ''} refers to an anchor that is not defined earlier in the document`.replace('alias  ', 'alias '), { file, position: firstAliasPosition(source), hint: name ? `define it first with &${name}, or write the value out` : undefined }));
+      problems.push(
+        error(
+          'yaml-undefined-alias',
+          `the alias ${name ? `*${name}` : ''} refers to an anchor that is not defined earlier in the document`.replace(
+            'alias  ',
+            'alias ',
+          ),
+          { file, position: firstAliasPosition(source), hint: name ? `define it first with &${name}, or write the value out` : undefined },
+        ),
+      );
     } else if (/alias/i.test(message)) {
-      problems.push(error('yaml-alias-limit', `aliases expand past the limit of ${MAX_ALIAS_COUNT} (a resource-exhaustion guard)`, { file, position: firstAliasPosition(source) }));
+      problems.push(
+        error('yaml-alias-limit', `aliases expand past the limit of ${MAX_ALIAS_COUNT} (a resource-exhaustion guard)`, {
+          file,
+          position: firstAliasPosition(source),
+        }),
+      );
     } else throw e;
   }
   return { source, value, problems };
@@ -71,7 +107,7 @@ function firstLine(message: string): string {
 }
 
 function firstAliasPosition(source: SourceDocument): Position | undefined {
-  const m = /(^|[\s\[{,])\*[^\s,\]}]/m.exec(source.text);
+  const m = /(^|[\s[{,])\*[^\s,\]}]/m.exec(source.text);
   return m ? offsetPosition(source, m.index + m[1].length) : undefined;
 }
 
@@ -95,10 +131,13 @@ export function locate(source: SourceDocument, path: DocPath, key = false): Posi
       node = node.items[step];
       keyNode = undefined;
     } else break;
-    if (node === null || node === undefined) { node = keyNode; break; }
+    if (node === null || node === undefined) {
+      node = keyNode;
+      break;
+    }
     last = node;
   }
-  const target = (key && keyNode ? keyNode : node ?? last) as Node | undefined;
+  const target = (key && keyNode ? keyNode : (node ?? last)) as Node | undefined;
   const range = target && (target as Node).range;
   return range ? offsetPosition(source, range[0]) : { line: 1, col: 1 };
 }

@@ -7,7 +7,14 @@ export function normalizeProtocol(raw: any): Protocol {
   const s = raw.split ?? {};
   const split: Protocol['split'] = s.pinned
     ? { pinned: { file: s.pinned.file, sha256: s.pinned.sha256 } }
-    : { rule: s.rule, folds: s.folds ?? 5, repeats: s.repeats ?? 1, seed: s.seed, assign: s.assign ?? 'balanced', testFraction: s['test-fraction'] };
+    : {
+        rule: s.rule,
+        folds: s.folds ?? 5,
+        repeats: s.repeats ?? 1,
+        seed: s.seed,
+        assign: s.assign ?? 'balanced',
+        testFraction: s['test-fraction'],
+      };
   const preprocess: PreprocessStep[] = (raw.preprocess ?? []).map((p: any): PreprocessStep => {
     if (p === 'standardize' || p === 'log2p') return { step: p };
     if (p.impute) return { step: 'impute', by: p.impute.by };
@@ -20,11 +27,25 @@ export function normalizeProtocol(raw: any): Protocol {
     name: raw.name,
     description: raw.description,
     final: raw.final ?? false,
-    data: { file: d.file, sha256: d.sha256, format: d.format, id: d.id, label: d.label, positive: d.positive, group: d.group, features: d.features, missing: d.missing ?? DEFAULT_MISSING },
+    data: {
+      file: d.file,
+      sha256: d.sha256,
+      format: d.format,
+      id: d.id,
+      label: d.label,
+      positive: d.positive,
+      group: d.group,
+      features: d.features,
+      missing: d.missing ?? DEFAULT_MISSING,
+    },
     split,
     preprocess,
     model: { kind: raw.model.kind, options: raw.model.options ?? {} },
-    reconcile: { rule: r.rule ?? 'mean-probability', tie: r.tie, newRows: nr ? { file: nr.file, sha256: nr.sha256, id: nr.id } : undefined },
+    reconcile: {
+      rule: r.rule ?? 'mean-probability',
+      tie: r.tie,
+      newRows: nr ? { file: nr.file, sha256: nr.sha256, id: nr.id } : undefined,
+    },
     metrics: raw.metrics ?? DEFAULT_METRICS,
     verify: { tolerance: raw.verify?.tolerance ?? 0 },
   };

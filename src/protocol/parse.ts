@@ -22,7 +22,12 @@ export function parseProtocol(text: string, file: string, validate: ValidateFunc
   const { source, value, problems } = parseYaml(text, file);
   if (hasErrors(problems)) return { file, source, problems };
   if (value === null || value === undefined || typeof value !== 'object' || Array.isArray(value)) {
-    problems.push(error('not-a-protocol', 'a protocol is a YAML mapping with the key `foldseal: 1` at the top', { file, position: { line: 1, col: 1 } }));
+    problems.push(
+      error('not-a-protocol', 'a protocol is a YAML mapping with the key `foldseal: 1` at the top', {
+        file,
+        position: { line: 1, col: 1 },
+      }),
+    );
     return { file, source, problems };
   }
   if (!validate(value)) {
@@ -42,34 +47,73 @@ function structureProblems(p: Protocol, source: SourceDocument): Problem[] {
   const has = (key: string) => hasKey(source, ['split'], key);
   if (!isPinned(p.split)) {
     if (!has('rule')) {
-      out.push(error('missing-field', 'split needs either `rule` (with its settings) or `pinned`', { ...at(['split'], true), hint: 'e.g. rule: stratified-kfold, folds: 5, seed: 20261201' }));
+      out.push(
+        error('missing-field', 'split needs either `rule` (with its settings) or `pinned`', {
+          ...at(['split'], true),
+          hint: 'e.g. rule: stratified-kfold, folds: 5, seed: 20261201',
+        }),
+      );
       return out;
     }
     const { rule } = p.split;
     if (ruleNeedsSeed(rule) && p.split.seed === undefined) {
-      out.push(error('missing-seed', `split rule ${rule} draws its folds from a seed, and none is given`, { ...at(['split'], true), hint: 'add `seed:` with any non-negative integer; foldseal never picks one for you' }));
+      out.push(
+        error('missing-seed', `split rule ${rule} draws its folds from a seed, and none is given`, {
+          ...at(['split'], true),
+          hint: 'add `seed:` with any non-negative integer; foldseal never picks one for you',
+        }),
+      );
     }
-    if (!ruleNeedsSeed(rule) && has('seed')) out.push(warning('unused-field', `split rule ${rule} does not use a seed`, at(['split', 'seed'], true)));
+    if (!ruleNeedsSeed(rule) && has('seed'))
+      out.push(warning('unused-field', `split rule ${rule} does not use a seed`, at(['split', 'seed'], true)));
     if (rule === 'holdout') {
-      if (p.split.testFraction === undefined) out.push(error('missing-field', 'split rule holdout needs `test-fraction`', at(['split'], true)));
-      else if (!hasSixDecimals(p.split.testFraction)) out.push(error('bad-format', `test-fraction ${p.split.testFraction} has more than 6 decimal places`, at(['split', 'test-fraction'])));
-      if (has('folds')) out.push(warning('unused-field', 'split rule holdout does not use `folds` (fold 1 is the test part, fold 2 the training part)', at(['split', 'folds'], true)));
-    } else if (has('test-fraction')) out.push(error('unused-field', `test-fraction belongs to the holdout rule, not ${rule}`, at(['split', 'test-fraction'], true)));
-    if ((rule === 'leave-one-out' || rule === 'leave-group-out')) {
-      if (has('folds')) out.push(warning('unused-field', `split rule ${rule} sets the number of folds itself`, at(['split', 'folds'], true)));
-      if (p.split.repeats > 1) out.push(error('out-of-range', `split rule ${rule} has exactly one assignment; repeats must be 1`, at(['split', 'repeats'])));
+      if (p.split.testFraction === undefined)
+        out.push(error('missing-field', 'split rule holdout needs `test-fraction`', at(['split'], true)));
+      else if (!hasSixDecimals(p.split.testFraction))
+        out.push(
+          error('bad-format', `test-fraction ${p.split.testFraction} has more than 6 decimal places`, at(['split', 'test-fraction'])),
+        );
+      if (has('folds'))
+        out.push(
+          warning(
+            'unused-field',
+            'split rule holdout does not use `folds` (fold 1 is the test part, fold 2 the training part)',
+            at(['split', 'folds'], true),
+          ),
+        );
+    } else if (has('test-fraction'))
+      out.push(error('unused-field', `test-fraction belongs to the holdout rule, not ${rule}`, at(['split', 'test-fraction'], true)));
+    if (rule === 'leave-one-out' || rule === 'leave-group-out') {
+      if (has('folds'))
+        out.push(warning('unused-field', `split rule ${rule} sets the number of folds itself`, at(['split', 'folds'], true)));
+      if (p.split.repeats > 1)
+        out.push(error('out-of-range', `split rule ${rule} has exactly one assignment; repeats must be 1`, at(['split', 'repeats'])));
       if (has('assign')) out.push(warning('unused-field', `split rule ${rule} does not use \`assign\``, at(['split', 'assign'], true)));
     }
   } else {
     for (const key of ['rule', 'folds', 'repeats', 'seed', 'assign', 'test-fraction']) {
-      if (has(key)) out.push(error('pinned-with-rule', `split has both \`pinned\` and \`${key}\`; a pinned assignment replaces the rule`, at(['split', key], true)));
+      if (has(key))
+        out.push(
+          error(
+            'pinned-with-rule',
+            `split has both \`pinned\` and \`${key}\`; a pinned assignment replaces the rule`,
+            at(['split', key], true),
+          ),
+        );
     }
   }
   if (p.reconcile.tie !== undefined && p.reconcile.rule !== 'majority-vote') {
-    out.push(warning('unused-field', `reconcile.tie only applies to majority-vote, not ${p.reconcile.rule}`, at(['reconcile', 'tie'], true)));
+    out.push(
+      warning('unused-field', `reconcile.tie only applies to majority-vote, not ${p.reconcile.rule}`, at(['reconcile', 'tie'], true)),
+    );
   }
   if (p.data.id === undefined) {
-    out.push(warning('no-id-column', 'data.id is not set: row numbers become the ids, so the folds depend on row order', { ...at(['data'], true), hint: 'name a column with a stable unique id per row' }));
+    out.push(
+      warning('no-id-column', 'data.id is not set: row numbers become the ids, so the folds depend on row order', {
+        ...at(['data'], true),
+        hint: 'name a column with a stable unique id per row',
+      }),
+    );
   }
   return out;
 }

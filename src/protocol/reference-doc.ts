@@ -22,10 +22,18 @@ export function protocolReference(schema: Schema): string {
     const kind = branch.if.properties.kind.const as string;
     const opts = branch.then.properties.options.properties as Record<string, Schema>;
     lines.push(`### \`${kind}\``, '');
-    for (const [name, s] of Object.entries(opts)) lines.push(`- \`model.options.${name}\` (${typeOf(s)}${'default' in s ? `, default \`${JSON.stringify(s.default)}\`` : ''}): ${s.description}`);
+    for (const [name, s] of Object.entries(opts))
+      lines.push(
+        `- \`model.options.${name}\` (${typeOf(s)}${'default' in s ? `, default \`${JSON.stringify(s.default)}\`` : ''}): ${s.description}`,
+      );
     lines.push('');
   }
-  return lines.join('\n').replace(/\n{3,}/g, '\n\n').trimEnd() + '\n';
+  return (
+    lines
+      .join('\n')
+      .replace(/\n{3,}/g, '\n\n')
+      .trimEnd() + '\n'
+  );
 }
 
 function walk(s: Schema, path: string, lines: string[], required: string[]): void {
@@ -48,7 +56,9 @@ function describeBranch(b: Schema): string {
   if (b.enum) return `${b.enum.map((v: string) => `\`${v}\``).join(' or ')} — ${b.description}`;
   const key = b.required[0] as string;
   const inner = b.properties[key] as Schema;
-  const fields = Object.entries(inner.properties as Record<string, Schema>).map(([k, v]) => `\`${k}\`${v.enum ? ` (${v.enum.join(' | ')})` : ''}: ${v.description}`);
+  const fields = Object.entries(inner.properties as Record<string, Schema>).map(
+    ([k, v]) => `\`${k}\`${v.enum ? ` (${v.enum.join(' | ')})` : ''}: ${v.description}`,
+  );
   return `\`{${key}: {…}}\` — ${b.description} ${fields.join('; ')}`;
 }
 

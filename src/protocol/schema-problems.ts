@@ -12,10 +12,13 @@ export function schemaProblems(errors: readonly Err[], source: SourceDocument): 
 
 function pathOf(instancePath: string): (string | number)[] {
   if (instancePath === '') return [];
-  return instancePath.slice(1).split('/').map((s) => {
-    const t = s.replace(/~1/g, '/').replace(/~0/g, '~');
-    return /^\d+$/.test(t) ? Number(t) : t;
-  });
+  return instancePath
+    .slice(1)
+    .split('/')
+    .map((s) => {
+      const t = s.replace(/~1/g, '/').replace(/~0/g, '~');
+      return /^\d+$/.test(t) ? Number(t) : t;
+    });
 }
 
 /** Keep, for each `oneOf`, only the errors of the branch that fits the value's shape. */
@@ -23,7 +26,12 @@ function collapse(errors: readonly Err[]): Err[] {
   const wrappers = errors.filter((e) => e.keyword === 'oneOf');
   const dropped = new Set<Err>();
   for (const w of wrappers) {
-    const inside = errors.filter((e) => e !== w && e.schemaPath.startsWith(w.schemaPath + '/') && (e.instancePath === w.instancePath || e.instancePath.startsWith(w.instancePath + '/')));
+    const inside = errors.filter(
+      (e) =>
+        e !== w &&
+        e.schemaPath.startsWith(w.schemaPath + '/') &&
+        (e.instancePath === w.instancePath || e.instancePath.startsWith(w.instancePath + '/')),
+    );
     const branches = (w.schema as Record<string, unknown>[]) ?? [];
     const value = w.data;
     const fit = branches.findIndex((b) => branchFits(b, value));
@@ -72,13 +80,19 @@ function toProblem(e: Err, source: SourceDocument): Problem {
     case 'additionalProperties': {
       const extra = String(e.params.additionalProperty);
       const allowed = Object.keys(((e.parentSchema as Record<string, any>)?.properties ?? {}) as object);
-      return error('unknown-key', `unknown key "${extra}" in ${name}`, { ...at([...path, extra], true), hint: didYouMean(extra, allowed) ?? (allowed.length ? `allowed keys: ${allowed.join(', ')}` : undefined) });
+      return error('unknown-key', `unknown key "${extra}" in ${name}`, {
+        ...at([...path, extra], true),
+        hint: didYouMean(extra, allowed) ?? (allowed.length ? `allowed keys: ${allowed.join(', ')}` : undefined),
+      });
     }
     case 'required':
       return error('missing-field', `${name} is missing the required field "${e.params.missingProperty}"`, at(path, true));
     case 'enum': {
       const options = (e.params.allowedValues as unknown[]).map(String);
-      return error('not-allowed-value', `${show(e.data)} is not an allowed value of ${name}`, { ...at(path), hint: (typeof e.data === 'string' ? didYouMean(e.data, options) : undefined) ?? `one of: ${options.join(', ')}` });
+      return error('not-allowed-value', `${show(e.data)} is not an allowed value of ${name}`, {
+        ...at(path),
+        hint: (typeof e.data === 'string' ? didYouMean(e.data, options) : undefined) ?? `one of: ${options.join(', ')}`,
+      });
     }
     case 'const':
       return error('not-allowed-value', `${name} must be ${show(e.params.allowedValue)}, not ${show(e.data)}`, at(path));
@@ -86,7 +100,10 @@ function toProblem(e: Err, source: SourceDocument): Problem {
       return error('wrong-type', `${name} must be ${article(String(e.params.type))}, not ${typeName(e.data)}`, at(path));
     case 'pattern':
       return error('bad-format', `${show(e.data)} is not a valid ${name}`, { ...at(path), hint: patternHint(path) });
-    case 'minimum': case 'maximum': case 'exclusiveMinimum': case 'exclusiveMaximum': {
+    case 'minimum':
+    case 'maximum':
+    case 'exclusiveMinimum':
+    case 'exclusiveMaximum': {
       const op = { minimum: '≥', maximum: '≤', exclusiveMinimum: '>', exclusiveMaximum: '<' }[e.keyword as 'minimum'];
       return error('out-of-range', `${name} must be ${op} ${e.params.limit}, not ${show(e.data)}`, at(path));
     }
@@ -95,9 +112,17 @@ function toProblem(e: Err, source: SourceDocument): Problem {
     case 'minItems':
       return error('empty-value', `${name} must list at least ${e.params.limit} item${e.params.limit === 1 ? '' : 's'}`, at(path));
     case 'uniqueItems':
-      return error('duplicate-item', `${name} lists the same item twice (items ${e.params.j + 1} and ${e.params.i + 1})`, at([...path, e.params.i as number]));
+      return error(
+        'duplicate-item',
+        `${name} lists the same item twice (items ${e.params.j + 1} and ${e.params.i + 1})`,
+        at([...path, e.params.i as number]),
+      );
     case 'oneOf':
-      return error('wrong-shape', `${name} has the wrong form: ${String((e.parentSchema as Record<string, any>)?.description ?? 'see docs/protocol.md')}`, at(path));
+      return error(
+        'wrong-shape',
+        `${name} has the wrong form: ${String((e.parentSchema as Record<string, any>)?.description ?? 'see docs/protocol.md')}`,
+        at(path),
+      );
     /* c8 ignore next 2 -- every keyword the protocol schema uses is worded above; this guards future schema edits */
     default:
       return error('schema', `${name} ${e.message ?? 'is invalid'}`, at(path));
@@ -105,7 +130,14 @@ function toProblem(e: Err, source: SourceDocument): Problem {
 }
 
 function article(type: string): string {
-  const words: Record<string, string> = { integer: 'an integer', object: 'a mapping', array: 'a list', string: 'a string', number: 'a number', boolean: 'true or false' };
+  const words: Record<string, string> = {
+    integer: 'an integer',
+    object: 'a mapping',
+    array: 'a list',
+    string: 'a string',
+    number: 'a number',
+    boolean: 'true or false',
+  };
   return words[type] ?? type;
 }
 

@@ -30,15 +30,31 @@ export function checkAgainstData(p: Protocol, source: SourceDocument, ev: DataEv
   const at = (path: (string | number)[], key = false) => ({ file, path, position: locate(source, path, key) });
   const { table } = ev;
   if (ev.sha256 !== p.data.sha256) {
-    problems.push(error('data-hash-mismatch', `the data file's SHA-256 is ${ev.sha256}, not the ${p.data.sha256} this protocol records`, { ...at(['data', 'sha256']), hint: 'if the data changed on purpose, put the new hash here (`foldseal hash FILE`)' }));
+    problems.push(
+      error('data-hash-mismatch', `the data file's SHA-256 is ${ev.sha256}, not the ${p.data.sha256} this protocol records`, {
+        ...at(['data', 'sha256']),
+        hint: 'if the data changed on purpose, put the new hash here (`foldseal hash FILE`)',
+      }),
+    );
   }
   const classCounts = new Int32Array(table.classes.length);
   for (let i = 0; i < table.y.length; i++) classCounts[table.y[i]]++;
   if (p.data.positive !== undefined && !table.classes.includes(p.data.positive)) {
-    problems.push(error('unknown-class', `positive class "${p.data.positive}" is not a label value`, { ...at(['data', 'positive']), hint: `classes are: ${table.classes.join(', ')}` }));
+    problems.push(
+      error('unknown-class', `positive class "${p.data.positive}" is not a label value`, {
+        ...at(['data', 'positive']),
+        hint: `classes are: ${table.classes.join(', ')}`,
+      }),
+    );
   }
   if (table.ignoredColumns.length && !Array.isArray(p.data.features)) {
-    problems.push(warning('text-columns-ignored', `text column${table.ignoredColumns.length === 1 ? '' : 's'} left out of the features: ${table.ignoredColumns.join(', ')}`, at(['data', 'label'], true)));
+    problems.push(
+      warning(
+        'text-columns-ignored',
+        `text column${table.ignoredColumns.length === 1 ? '' : 's'} left out of the features: ${table.ignoredColumns.join(', ')}`,
+        at(['data', 'label'], true),
+      ),
+    );
   }
   problems.push(...missingValueProblems(p, table, at));
   problems.push(...preprocessProblems(p, table, at));
@@ -48,7 +64,13 @@ export function checkAgainstData(p: Protocol, source: SourceDocument, ev: DataEv
   if (isPinned(p.split)) {
     const pin = ev.pinned!;
     if (pin.sha256 !== p.split.pinned.sha256) {
-      problems.push(error('pinned-hash-mismatch', `the pinned file's SHA-256 is ${pin.sha256}, not the ${p.split.pinned.sha256} this protocol records`, at(['split', 'pinned', 'sha256'])));
+      problems.push(
+        error(
+          'pinned-hash-mismatch',
+          `the pinned file's SHA-256 is ${pin.sha256}, not the ${p.split.pinned.sha256} this protocol records`,
+          at(['split', 'pinned', 'sha256']),
+        ),
+      );
     }
     const parsed = parsePinned(pin.bytes, pin.shownAs, table.ids);
     problems.push(...parsed.problems);
@@ -62,27 +84,69 @@ export function checkAgainstData(p: Protocol, source: SourceDocument, ev: DataEv
       problems.push(error('missing-group', `split rule ${s.rule} needs data.group to name the group column`, at(['split', 'rule'])));
     } else if (groupRule) {
       const groupCount = new Set(table.groups).size;
-      if (s.rule === 'grouped-kfold' && s.folds > groupCount) problems.push(error('too-many-folds', `folds is ${s.folds} but the data has only ${groupCount} groups`, { file, path: ['split', 'folds'], position: folds() }));
-      if (s.rule === 'leave-group-out' && groupCount < 2) problems.push(error('too-few-groups', `leave-group-out needs at least 2 groups; the data has ${groupCount}`, at(['data', 'group'])));
+      if (s.rule === 'grouped-kfold' && s.folds > groupCount)
+        problems.push(
+          error('too-many-folds', `folds is ${s.folds} but the data has only ${groupCount} groups`, {
+            file,
+            path: ['split', 'folds'],
+            position: folds(),
+          }),
+        );
+      if (s.rule === 'leave-group-out' && groupCount < 2)
+        problems.push(
+          error('too-few-groups', `leave-group-out needs at least 2 groups; the data has ${groupCount}`, at(['data', 'group'])),
+        );
     }
     if ((s.rule === 'kfold' || s.rule === 'stratified-kfold') && s.folds > n) {
-      problems.push(error('too-many-folds', `folds is ${s.folds} but the data has only ${n} rows`, { file, path: ['split', 'folds'], position: folds() }));
+      problems.push(
+        error('too-many-folds', `folds is ${s.folds} but the data has only ${n} rows`, {
+          file,
+          path: ['split', 'folds'],
+          position: folds(),
+        }),
+      );
     } else if (s.rule === 'stratified-kfold' && s.assign === 'balanced') {
       table.classes.forEach((c, k) => {
-        if (classCounts[k] < s.folds) problems.push(error('class-smaller-than-folds', `class "${c}" has ${classCounts[k]} row${classCounts[k] === 1 ? '' : 's'}, fewer than the ${s.folds} folds, so some folds would have none of it`, { file, path: ['split', 'folds'], position: folds(), hint: `use at most ${Math.min(...classCounts)} folds` }));
+        if (classCounts[k] < s.folds)
+          problems.push(
+            error(
+              'class-smaller-than-folds',
+              `class "${c}" has ${classCounts[k]} row${classCounts[k] === 1 ? '' : 's'}, fewer than the ${s.folds} folds, so some folds would have none of it`,
+              { file, path: ['split', 'folds'], position: folds(), hint: `use at most ${Math.min(...classCounts)} folds` },
+            ),
+          );
       });
     }
     if (problems.every((q) => q.severity !== 'error')) {
-      assignment = assignFolds({ ids: table.ids, y: table.y, classCount: table.classes.length, groups: table.groups, idKeys: ev.idKeys }, s);
+      assignment = assignFolds(
+        { ids: table.ids, y: table.y, classCount: table.classes.length, groups: table.groups, idKeys: ev.idKeys },
+        s,
+      );
       if (s.rule === 'holdout') {
         // Per repeat: a stable holdout draws each row independently, so any repeat can come out empty.
         for (let r = 1; r <= assignment.repeats; r++) {
           const test = assignment.fold.subarray((r - 1) * n, r * n).filter((f) => f === 1).length;
-          if (test === 0 || test === n) { problems.push(error('empty-part', `test-fraction ${s.testFraction} leaves the ${test === 0 ? 'test' : 'training'} part empty for ${n} rows${assignment.repeats > 1 ? ` in repeat ${r}` : ''}`, at(['split', 'test-fraction']))); break; }
+          if (test === 0 || test === n) {
+            problems.push(
+              error(
+                'empty-part',
+                `test-fraction ${s.testFraction} leaves the ${test === 0 ? 'test' : 'training'} part empty for ${n} rows${assignment.repeats > 1 ? ` in repeat ${r}` : ''}`,
+                at(['split', 'test-fraction']),
+              ),
+            );
+            break;
+          }
         }
       } else {
         const empty = emptyFolds(assignment);
-        if (empty.length) problems.push(error('empty-fold', `the split leaves ${empty.length} fold${empty.length === 1 ? '' : 's'} without a row (repeat ${empty[0].repeat}, fold ${empty[0].fold}${empty.length > 1 ? ', …' : ''})${s.assign === 'stable' ? '; assign: stable draws each row\'s fold on its own, so small data can leave a fold empty' : ''}`, { ...at(['split']), hint: 'use fewer folds, more rows, or assign: balanced' }));
+        if (empty.length)
+          problems.push(
+            error(
+              'empty-fold',
+              `the split leaves ${empty.length} fold${empty.length === 1 ? '' : 's'} without a row (repeat ${empty[0].repeat}, fold ${empty[0].fold}${empty.length > 1 ? ', …' : ''})${s.assign === 'stable' ? "; assign: stable draws each row's fold on its own, so small data can leave a fold empty" : ''}`,
+              { ...at(['split']), hint: 'use fewer folds, more rows, or assign: balanced' },
+            ),
+          );
       }
     }
   }
@@ -103,7 +167,14 @@ function missingValueProblems(p: Protocol, table: Table, at: At): Problem[] {
   }
   const out: Problem[] = [];
   perColumn.forEach((count, j) => {
-    if (count > 0) out.push(error('missing-without-impute', `feature "${table.featureNames[j]}" has ${count} missing cell${count === 1 ? '' : 's'} and no impute step fills them`, { ...at(['preprocess'], true), hint: 'add `{impute: {by: median}}` to preprocess, or leave the column out' }));
+    if (count > 0)
+      out.push(
+        error(
+          'missing-without-impute',
+          `feature "${table.featureNames[j]}" has ${count} missing cell${count === 1 ? '' : 's'} and no impute step fills them`,
+          { ...at(['preprocess'], true), hint: 'add `{impute: {by: median}}` to preprocess, or leave the column out' },
+        ),
+      );
   });
   return out.slice(0, 10);
 }
@@ -113,11 +184,30 @@ function preprocessProblems(p: Protocol, table: Table, at: At): Problem[] {
   let width = table.X.cols;
   p.preprocess.forEach((s, i) => {
     if (s.step !== 'select') return;
-    if (s.top > width) out.push(error('select-too-many', `select keeps the top ${s.top} features but only ${width} are there`, at(['preprocess', i, 'select', 'top'])));
-    if (s.by === 't-test' && table.classes.length !== 2) out.push(error('t-test-needs-two-classes', `the t-test score needs exactly 2 classes; the label has ${table.classes.length}`, { ...at(['preprocess', i, 'select', 'by']), hint: 'use by: f-test for more classes' }));
+    if (s.top > width)
+      out.push(
+        error(
+          'select-too-many',
+          `select keeps the top ${s.top} features but only ${width} are there`,
+          at(['preprocess', i, 'select', 'top']),
+        ),
+      );
+    if (s.by === 't-test' && table.classes.length !== 2)
+      out.push(
+        error('t-test-needs-two-classes', `the t-test score needs exactly 2 classes; the label has ${table.classes.length}`, {
+          ...at(['preprocess', i, 'select', 'by']),
+          hint: 'use by: f-test for more classes',
+        }),
+      );
     // Standardized columns all have variance 1: the "top" ones would differ only by rounding.
     if (s.by === 'variance' && p.preprocess.slice(0, i).some((earlier) => earlier.step === 'standardize')) {
-      out.push(warning('variance-after-standardize', 'select by variance comes after standardize, where every column has variance 1: which columns it keeps is decided by rounding', { ...at(['preprocess', i, 'select', 'by']), hint: 'select by variance before standardize, or by t-test or f-test' }));
+      out.push(
+        warning(
+          'variance-after-standardize',
+          'select by variance comes after standardize, where every column has variance 1: which columns it keeps is decided by rounding',
+          { ...at(['preprocess', i, 'select', 'by']), hint: 'select by variance before standardize, or by t-test or f-test' },
+        ),
+      );
     }
     width = Math.min(width, s.top);
   });
@@ -128,8 +218,11 @@ function modelProblems(p: Protocol, table: Table, at: At): Problem[] {
   const out: Problem[] = [];
   const priors = p.model.options.priors as Record<string, number> | undefined;
   if (p.model.kind === 'gaussian-nb' && priors) {
-    for (const c of table.classes) if (!(c in priors)) out.push(error('priors-incomplete', `priors give no value for class "${c}"`, at(['model', 'options', 'priors'])));
-    for (const c of Object.keys(priors)) if (!table.classes.includes(c)) out.push(error('unknown-class', `priors name "${c}", which is not a class`, at(['model', 'options', 'priors', c], true)));
+    for (const c of table.classes)
+      if (!(c in priors)) out.push(error('priors-incomplete', `priors give no value for class "${c}"`, at(['model', 'options', 'priors'])));
+    for (const c of Object.keys(priors))
+      if (!table.classes.includes(c))
+        out.push(error('unknown-class', `priors name "${c}", which is not a class`, at(['model', 'options', 'priors', c], true)));
     const sum = Object.values(priors).reduce((a, b) => a + b, 0);
     if (Math.abs(sum - 1) > 1e-9) out.push(error('priors-sum', `priors sum to ${sum}, not 1`, at(['model', 'options', 'priors'])));
   }
@@ -149,12 +242,21 @@ function assignmentProblems(p: Protocol, table: Table, a: Assignment, at: At): P
   }
   if (p.model.kind === 'knn') {
     const k = (p.model.options.k as number | undefined) ?? 5;
-    if (k > smallestTrain) out.push(error('knn-k-too-large', `knn k is ${k} but the smallest training part has ${smallestTrain} rows`, at(['model', 'options', 'k'])));
+    if (k > smallestTrain)
+      out.push(
+        error('knn-k-too-large', `knn k is ${k} but the smallest training part has ${smallestTrain} rows`, at(['model', 'options', 'k'])),
+      );
   }
   if (p.reconcile.rule === 'majority-vote' && p.reconcile.tie === undefined) {
     const models = testsFoldOneOnly(p) ? a.repeats : a.folds * a.repeats;
     if (models % 2 === 0 || table.classes.length > 2) {
-      out.push(error('tie-rule-needed', `majority-vote over ${models} fold models and ${table.classes.length} classes can tie, and reconcile.tie is not set`, { ...at(['reconcile', 'rule']), hint: 'add `tie: mean-probability`, `tie: abstain` or `tie: class-order`' }));
+      out.push(
+        error(
+          'tie-rule-needed',
+          `majority-vote over ${models} fold models and ${table.classes.length} classes can tie, and reconcile.tie is not set`,
+          { ...at(['reconcile', 'rule']), hint: 'add `tie: mean-probability`, `tie: abstain` or `tie: class-order`' },
+        ),
+      );
     }
   }
   return out;

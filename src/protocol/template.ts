@@ -15,7 +15,7 @@ export interface TemplateInput {
 export function protocolTemplate(t: TemplateInput): string {
   const smallest = Math.min(...t.classCounts);
   const grouped = t.group !== undefined;
-  const folds = Math.max(2, Math.min(5, grouped ? t.groupCount ?? 5 : smallest));
+  const folds = Math.max(2, Math.min(5, grouped ? (t.groupCount ?? 5) : smallest));
   const q = (s: string) => JSON.stringify(s);
   const lines = [
     `# yaml-language-server: $schema=${t.schemaPath}`,
@@ -45,6 +45,10 @@ export function protocolTemplate(t: TemplateInput): string {
 
 /** A slug from a file name: lower case, hyphens for everything else. */
 export function slugFrom(stem: string): string {
-  const s = stem.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-+|-+$/g, '').slice(0, 64);
+  const s = stem
+    .toLowerCase()
+    .replace(/[^a-z0-9]+/g, '-')
+    .replace(/^-+|-+$/g, '')
+    .slice(0, 64);
   return s || 'protocol';
 }

@@ -2,7 +2,18 @@
 import type { RuleSplit, SplitRule } from '../split/types.js';
 export type { AssignMode, RuleSplit, SplitRule } from '../split/types.js';
 export type ModelKind = 'gaussian-nb' | 'multinomial-nb' | 'bernoulli-nb' | 'logistic' | 'knn' | 'shrunken-centroid';
-export type MetricName = 'accuracy' | 'balanced-accuracy' | 'precision' | 'recall' | 'f1' | 'mcc' | 'kappa' | 'roc-auc' | 'average-precision' | 'log-loss' | 'brier';
+export type MetricName =
+  | 'accuracy'
+  | 'balanced-accuracy'
+  | 'precision'
+  | 'recall'
+  | 'f1'
+  | 'mcc'
+  | 'kappa'
+  | 'roc-auc'
+  | 'average-precision'
+  | 'log-loss'
+  | 'brier';
 export type ReconcileRule = 'mean-probability' | 'majority-vote' | 'refit';
 export type TieRule = 'mean-probability' | 'abstain' | 'class-order';
 

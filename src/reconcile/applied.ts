@@ -40,9 +40,25 @@ export function applyRows(a: ApplyInput): AppliedRow[] {
     const known = a.heldOut.get(id);
     if (known) {
       const predicted = predictedClasses(known.mean, k)[0];
-      return { id, source: 'held-out', predicted, agreement: known.tops.filter((t) => t === predicted).length / known.tops.length, values: known.mean, tops: known.tops, tied: false };
+      return {
+        id,
+        source: 'held-out',
+        predicted,
+        agreement: known.tops.filter((t) => t === predicted).length / known.tops.length,
+        values: known.mean,
+        tops: known.tops,
+        tied: false,
+      };
     }
-    return { id, source: a.rule === 'refit' ? 'refit' : 'folds', predicted: r.predicted[i], agreement: r.agreement[i], values: r.values.slice(i * k, (i + 1) * k), tops: r.top.map((t) => t[i]), tied: r.tied[i] === 1 };
+    return {
+      id,
+      source: a.rule === 'refit' ? 'refit' : 'folds',
+      predicted: r.predicted[i],
+      agreement: r.agreement[i],
+      values: r.values.slice(i * k, (i + 1) * k),
+      tops: r.top.map((t) => t[i]),
+      tied: r.tied[i] === 1,
+    };
   });
   return out.sort((x, y) => compareUtf8(x.id, y.id));
 }
@@ -52,7 +68,9 @@ export function appliedCsv(rows: readonly AppliedRow[], classes: readonly string
   if (comment) parts.push(`# ${comment}\n`);
   parts.push(csvLine(['id', 'source', 'predicted', 'agreement', ...classes.map((c) => `p_${c}`)]));
   for (const r of rows) {
-    parts.push(`${csvCell(r.id)},${r.source},${r.predicted === -1 ? '' : csvCell(classes[r.predicted])},${r.agreement},${Array.from(r.values, String).join(',')}\n`);
+    parts.push(
+      `${csvCell(r.id)},${r.source},${r.predicted === -1 ? '' : csvCell(classes[r.predicted])},${r.agreement},${Array.from(r.values, String).join(',')}\n`,
+    );
   }
   return parts.join('');
 }
@@ -60,10 +78,14 @@ export function appliedCsv(rows: readonly AppliedRow[], classes: readonly string
 /** Text for the terminal: how many rows the fold models disagree on, and the lowest-agreement ones. */
 export function disagreementReport(rows: readonly AppliedRow[], classes: readonly string[], limit = 10): string {
   const split = rows.filter((r) => r.agreement < 1 || r.tied);
-  const lines = [`${split.length} of ${rows.length} rows have fold models that disagree (agreement < 1)${rows.some((r) => r.tied) ? `; ${rows.filter((r) => r.tied).length} tied votes` : ''}`];
+  const lines = [
+    `${split.length} of ${rows.length} rows have fold models that disagree (agreement < 1)${rows.some((r) => r.tied) ? `; ${rows.filter((r) => r.tied).length} tied votes` : ''}`,
+  ];
   const worst = [...split].sort((a, b) => a.agreement - b.agreement || compareUtf8(a.id, b.id)).slice(0, limit);
   for (const r of worst) {
-    lines.push(`  ${r.id}  ${r.source}  agreement ${r.agreement.toFixed(2)}  predicted ${r.predicted === -1 ? '(abstained)' : classes[r.predicted]}  models: ${r.tops.map((t) => classes[t]).join(' ')}`);
+    lines.push(
+      `  ${r.id}  ${r.source}  agreement ${r.agreement.toFixed(2)}  predicted ${r.predicted === -1 ? '(abstained)' : classes[r.predicted]}  models: ${r.tops.map((t) => classes[t]).join(' ')}`,
+    );
   }
   return lines.join('\n') + '\n';
 }

@@ -12,7 +12,12 @@ export interface HeldOut {
 }
 
 /** From the runner's out-of-fold arrays (rows never tested are skipped). */
-export function heldOutFromOof(ids: readonly string[], oof: readonly Float64Array[], testedIn: readonly Int32Array[], k: number): Map<string, HeldOut> {
+export function heldOutFromOof(
+  ids: readonly string[],
+  oof: readonly Float64Array[],
+  testedIn: readonly Int32Array[],
+  k: number,
+): Map<string, HeldOut> {
   const out = new Map<string, HeldOut>();
   ids.forEach((id, row) => {
     const sum = new Float64Array(k);
@@ -36,7 +41,10 @@ export function heldOutFromPredictions(text: Uint8Array, classes: readonly strin
   const byId = new Map<string, Float64Array[]>();
   for (let r = 0; r < t.rows; r++) {
     const v = new Float64Array(k);
-    for (let c = 0; c < k; c++) { const cell = r * t.cols + 5 + c; v[c] = parseNumberBytes(t.bytes, t.starts[cell], t.ends[cell]); }
+    for (let c = 0; c < k; c++) {
+      const cell = r * t.cols + 5 + c;
+      v[c] = parseNumberBytes(t.bytes, t.starts[cell], t.ends[cell]);
+    }
     const list = byId.get(ids[r]) ?? [];
     list.push(v);
     byId.set(ids[r], list);

@@ -10,7 +10,13 @@ import type { NewRows } from '../table/new-rows.js';
 /** Where the training row of an id is, for the message: a file and line, or a description. */
 export type TrainingPlace = (id: string) => { where: string; file?: string; line?: number };
 
-export function knownIdProblems(rows: NewRows, file: string, features: readonly string[], known: ReadonlyMap<string, string>, place: TrainingPlace): Problem[] {
+export function knownIdProblems(
+  rows: NewRows,
+  file: string,
+  features: readonly string[],
+  known: ReadonlyMap<string, string>,
+  place: TrainingPlace,
+): Problem[] {
   const out: Problem[] = [];
   let digests: string[] | undefined;
   rows.ids.forEach((id, r) => {
@@ -19,11 +25,13 @@ export function knownIdProblems(rows: NewRows, file: string, features: readonly 
     digests ??= featureDigests(rows.X, features);
     if (digests[r] === recorded) return;
     const p = place(id);
-    out.push(error('new-row-known-id', `new row "${id}" has the id of a row of the cross-validation (${p.where}) but different feature values`, {
-      file,
-      position: { line: rows.lines[r], col: 1 },
-      hint: 'give the new sample an id of its own: a row under a training id would get that row\'s held-out prediction',
-    }));
+    out.push(
+      error('new-row-known-id', `new row "${id}" has the id of a row of the cross-validation (${p.where}) but different feature values`, {
+        file,
+        position: { line: rows.lines[r], col: 1 },
+        hint: "give the new sample an id of its own: a row under a training id would get that row's held-out prediction",
+      }),
+    );
   });
   return out;
 }
@@ -32,6 +40,8 @@ export function knownIdProblems(rows: NewRows, file: string, features: readonly 
 export function knownRows(ids: readonly string[], X: NewRows['X'], features: readonly string[]): Record<string, string> {
   const d = featureDigests(X, features);
   const out: Record<string, string> = {};
-  ids.forEach((id, r) => { out[id] = d[r]; });
+  ids.forEach((id, r) => {
+    out[id] = d[r];
+  });
   return out;
 }

@@ -29,7 +29,15 @@ export function foldProbabilities(kind: ModelKind, saved: readonly SavedModel[],
   return saved.map((s) => models[kind].predict(s.model, applyPipeline(s.pipeline, X)));
 }
 
-export function reconcile(kind: ModelKind, folds: readonly SavedModel[], refit: SavedModel | null, X: Matrix, classCount: number, rule: ReconcileRule, tie: TieRule | null): Reconciled {
+export function reconcile(
+  kind: ModelKind,
+  folds: readonly SavedModel[],
+  refit: SavedModel | null,
+  X: Matrix,
+  classCount: number,
+  rule: ReconcileRule,
+  tie: TieRule | null,
+): Reconciled {
   const rows = X.rows;
   const k = classCount;
   const perModel = foldProbabilities(kind, folds, X);
@@ -53,7 +61,10 @@ export function reconcile(kind: ModelKind, folds: readonly SavedModel[], refit: 
       for (let c = 0; c < k; c++) most = Math.max(most, count(top, r, c));
       const leaders: number[] = [];
       for (let c = 0; c < k; c++) if (count(top, r, c) === most) leaders.push(c);
-      if (leaders.length === 1) { predicted[r] = leaders[0]; continue; }
+      if (leaders.length === 1) {
+        predicted[r] = leaders[0];
+        continue;
+      }
       tied[r] = 1;
       if (tie === 'abstain') predicted[r] = -1;
       else if (tie === 'class-order') predicted[r] = leaders[0];

@@ -76,7 +76,8 @@ export interface FoldPlan {
 export function planFolds(p: Protocol, table: Table, a: Assignment): FoldPlan[] {
   const order = idOrder(table.ids);
   const plans: FoldPlan[] = [];
-  for (let r = 1; r <= a.repeats; r++) for (const f of evaluatedFolds(p, a)) plans.push({ repeat: r, fold: f, ...foldRows(a, r, f, order) });
+  for (let r = 1; r <= a.repeats; r++)
+    for (const f of evaluatedFolds(p, a)) plans.push({ repeat: r, fold: f, ...foldRows(a, r, f, order) });
   return plans;
 }
 
@@ -115,11 +116,16 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
   plans.forEach(({ repeat: r, fold: f, train, test }, index) => {
     const { pipeline, model: params, proba: foldProba } = fits[index];
     const impl = models[p.model.kind];
-    for (const note of impl.notes?.(params) ?? []) warnings.push(warning('model-note', `${p.model.kind} in repeat ${r}, fold ${f}: ${note}`));
+    for (const note of impl.notes?.(params) ?? [])
+      warnings.push(warning('model-note', `${p.model.kind} in repeat ${r}, fold ${f}: ${note}`));
     for (let i = 0; i < foldProba.length; i++) {
       if (!Number.isFinite(foldProba[i])) {
         const row = test[Math.floor(i / k)];
-        throw new FitError('non-finite-prediction', `${p.model.kind} gave a non-finite probability (${foldProba[i]}) for row "${table.ids[row]}" in repeat ${r}, fold ${f}: the features are too extreme or too degenerate for this model to compute with`, 'rescale the features (standardize, log2p), or drop constant and near-constant columns');
+        throw new FitError(
+          'non-finite-prediction',
+          `${p.model.kind} gave a non-finite probability (${foldProba[i]}) for row "${table.ids[row]}" in repeat ${r}, fold ${f}: the features are too extreme or too degenerate for this model to compute with`,
+          'rescale the features (standardize, log2p), or drop constant and near-constant columns',
+        );
       }
     }
     const proba = oof[r - 1];
@@ -127,7 +133,13 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
     const trainCounts = new Array<number>(k).fill(0);
     for (let i = 0; i < train.length; i++) trainCounts[table.y[train[i]]]++;
     trainCounts.forEach((c, cls) => {
-      if (c === 0) warnings.push(warning('class-absent-from-training', `class "${table.classes[cls]}" has no row in the training part of repeat ${r}, fold ${f}; that fold's model gives it probability 0`));
+      if (c === 0)
+        warnings.push(
+          warning(
+            'class-absent-from-training',
+            `class "${table.classes[cls]}" has no row in the training part of repeat ${r}, fold ${f}; that fold's model gives it probability 0`,
+          ),
+        );
     });
     const yTest = takeInt(table.y, test);
     for (let i = 0; i < test.length; i++) {
@@ -141,7 +153,16 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
     const majority = trainCounts.indexOf(Math.max(...trainCounts));
     const testClassCounts = new Array<number>(k).fill(0);
     for (let i = 0; i < yTest.length; i++) testClassCounts[yTest[i]]++;
-    folds.push({ repeat: r, fold: f, trainRows: train.length, testRows: test.length, testClassCounts, metrics: values, baselineAccuracy: testClassCounts[majority] / test.length, confusion: confusionRows(s) });
+    folds.push({
+      repeat: r,
+      fold: f,
+      trainRows: train.length,
+      testRows: test.length,
+      testClassCounts,
+      metrics: values,
+      baselineAccuracy: testClassCounts[majority] / test.length,
+      confusion: confusionRows(s),
+    });
     fitted.push({ repeat: r, fold: f, pipeline, model: params });
   });
   const summary: Record<string, MetricSummary> = {};
@@ -149,23 +170,38 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
   for (const m of p.metrics) {
     summary[m] = { ...meanSd(folds.map((f) => f.metrics[m])), pooled: meanOf(pooledByRepeat.map((v) => v[m])) };
     const missing = summary[m].undefinedFolds;
-    if (missing) warnings.push(warning('metric-undefined-in-folds', `${m} is undefined in ${missing} of ${folds.length} folds (their test part lacks a class the metric needs); its mean and SD are over the other ${folds.length - missing} folds, while the pooled value uses every out-of-fold prediction`));
+    if (missing)
+      warnings.push(
+        warning(
+          'metric-undefined-in-folds',
+          `${m} is undefined in ${missing} of ${folds.length} folds (their test part lacks a class the metric needs); its mean and SD are over the other ${folds.length - missing} folds, while the pooled value uses every out-of-fold prediction`,
+        ),
+      );
   }
   const counts = new Array<number>(k).fill(0);
   for (const c of table.y) counts[c]++;
-  const pooledBaseline = meanOf(oof.map((_, r) => {
-    let hit = 0;
-    let seen = 0;
-    for (const f of folds.filter((x) => x.repeat === r + 1)) { hit += f.baselineAccuracy * f.testRows; seen += f.testRows; }
-    return hit / seen;
-  }));
+  const pooledBaseline = meanOf(
+    oof.map((_, r) => {
+      let hit = 0;
+      let seen = 0;
+      for (const f of folds.filter((x) => x.repeat === r + 1)) {
+        hit += f.baselineAccuracy * f.testRows;
+        seen += f.testRows;
+      }
+      return hit / seen;
+    }),
+  );
   return {
     classes: table.classes,
     positive,
     metricNames: p.metrics,
     folds,
     summary,
-    baseline: { mean: meanSd(folds.map((f) => f.baselineAccuracy)).mean, pooled: pooledBaseline, largestClassShare: Math.max(...counts) / n },
+    baseline: {
+      mean: meanSd(folds.map((f) => f.baselineAccuracy)).mean,
+      pooled: pooledBaseline,
+      largestClassShare: Math.max(...counts) / n,
+    },
     oof,
     testedIn,
     models: fitted,
@@ -173,7 +209,14 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
   };
 }
 
-function pooled(names: readonly MetricName[], table: Table, oof: Float64Array[], testedIn: Int32Array[], order: Int32Array, positive: number): Record<string, number | null>[] {
+function pooled(
+  names: readonly MetricName[],
+  table: Table,
+  oof: Float64Array[],
+  testedIn: Int32Array[],
+  order: Int32Array,
+  positive: number,
+): Record<string, number | null>[] {
   const k = table.classes.length;
   return oof.map((proba, r) => {
     const tested = testedIn[r];
@@ -197,6 +240,9 @@ function pooled(names: readonly MetricName[], table: Table, oof: Float64Array[],
 
 function dedupe(problems: Problem[]): Problem[] {
   const seen = new Set<string>();
-  return problems.filter((p) => (seen.has(p.message) ? false : (seen.add(p.message), true)));
+  return problems.filter((p) => {
+    if (seen.has(p.message)) return false;
+    seen.add(p.message);
+    return true;
+  });
 }
-

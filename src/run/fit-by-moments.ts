@@ -28,7 +28,12 @@ export function canFitByMoments(p: Parts): boolean {
 }
 
 /** The pipelines of every plan, fitted from merged class moments; `modelFromMoments` also fits a moment model from the same moments. */
-export function momentPipelines(p: Parts, d: FoldData & { ids: readonly string[] }, a: Assignment, plans: readonly FoldPlan[]): { pipeline: FittedPipeline; model?: unknown }[] {
+export function momentPipelines(
+  p: Parts,
+  d: FoldData & { ids: readonly string[] },
+  a: Assignment,
+  plans: readonly FoldPlan[],
+): { pipeline: FittedPipeline; model?: unknown }[] {
   const impl = models[p.model.kind];
   const k = d.classes.length;
   const options = fitOptions(p.model.kind, p.model.options, d.classes);
@@ -53,7 +58,9 @@ export function momentPipelines(p: Parts, d: FoldData & { ids: readonly string[]
   });
   function momentPipeline(plan: FoldPlan): { pipeline: FittedPipeline; model?: unknown } {
     let moments: ClassMoments | undefined;
-    blocksOf(plan.repeat).forEach((b, g) => { if (g + 1 !== plan.fold) moments = moments ? mergeMoments(moments, b) : b; });
+    blocksOf(plan.repeat).forEach((b, g) => {
+      if (g + 1 !== plan.fold) moments = moments ? mergeMoments(moments, b) : b;
+    });
     let m = moments!;
     let columns = [...d.featureNames];
     const steps: FittedStep[] = [];
@@ -93,7 +100,12 @@ export function modelFromMoments(p: Parts): boolean {
 }
 
 /** Every plan's test rows in one call (rows straight from X, no pipeline), split back by plan. */
-function predictTogether(predictRows: NonNullable<ModelImpl['predictRows']>, fitted: Omit<FoldFit, 'proba'>[], d: FoldData, plans: readonly FoldPlan[]): FoldFit[] {
+function predictTogether(
+  predictRows: NonNullable<ModelImpl['predictRows']>,
+  fitted: Omit<FoldFit, 'proba'>[],
+  d: FoldData,
+  plans: readonly FoldPlan[],
+): FoldFit[] {
   const k = d.classes.length;
   let total = 0;
   for (const plan of plans) total += plan.test.length;
@@ -105,7 +117,12 @@ function predictTogether(predictRows: NonNullable<ModelImpl['predictRows']>, fit
     modelOf.fill(i, at, at + plan.test.length);
     at += plan.test.length;
   });
-  const proba = predictRows(fitted.map((f) => f.model), d.X, which, modelOf);
+  const proba = predictRows(
+    fitted.map((f) => f.model),
+    d.X,
+    which,
+    modelOf,
+  );
   at = 0;
   return fitted.map((f, i) => {
     const part = proba.slice(at * k, (at + plans[i].test.length) * k);

@@ -34,9 +34,17 @@ export function fitFold(p: Pick<Protocol, 'preprocess' | 'model'>, d: FoldData, 
 }
 
 /** The model of a fold whose pipeline is already fitted (from class moments): fitted on the training rows through it, then the test rows predicted. */
-export function fitModelAfterPipeline(p: Pick<Protocol, 'model'>, d: FoldData, pipeline: FittedPipeline, train: Int32Array, test: Int32Array): FoldFit {
+export function fitModelAfterPipeline(
+  p: Pick<Protocol, 'model'>,
+  d: FoldData,
+  pipeline: FittedPipeline,
+  train: Int32Array,
+  test: Int32Array,
+): FoldFit {
   const impl = models[p.model.kind];
-  const model = impl.fit(applyPipeline(pipeline, d.X, train), takeInt(d.y, train), fitOptions(p.model.kind, p.model.options, d.classes), { classCount: d.classes.length });
+  const model = impl.fit(applyPipeline(pipeline, d.X, train), takeInt(d.y, train), fitOptions(p.model.kind, p.model.options, d.classes), {
+    classCount: d.classes.length,
+  });
   return { pipeline, model, proba: impl.predict(model, applyPipeline(pipeline, d.X, test)) };
 }
 

@@ -25,7 +25,13 @@ export function buildResults(r: ResultsInput): Record<string, unknown> {
   for (const c of table.y) counts[c]++;
   const split = isPinned(p.split)
     ? { version: r.assignment.version, pinned: p.split.pinned.file, 'pinned-sha256': p.split.pinned.sha256 }
-    : { version: r.assignment.version, rule: p.split.rule, seed: p.split.seed ?? null, assign: p.split.assign, ...(p.split.rule === 'holdout' ? { 'test-fraction': p.split.testFraction } : {}) };
+    : {
+        version: r.assignment.version,
+        rule: p.split.rule,
+        seed: p.split.seed ?? null,
+        assign: p.split.assign,
+        ...(p.split.rule === 'holdout' ? { 'test-fraction': p.split.testFraction } : {}),
+      };
   return {
     'foldseal-results': RESULTS_VERSION,
     protocol: { name: p.name, sha256: r.protocolSha256 },
@@ -46,8 +52,14 @@ export function buildResults(r: ResultsInput): Record<string, unknown> {
       'baseline-accuracy': f.baselineAccuracy,
       confusion: f.confusion,
     })),
-    summary: Object.fromEntries(Object.entries(cv.summary).map(([m, s]) => [m, { mean: s.mean, sd: s.sd, pooled: s.pooled, 'undefined-folds': s.undefinedFolds }])),
-    baseline: { 'accuracy-mean': cv.baseline.mean, 'accuracy-pooled': cv.baseline.pooled, 'largest-class-share': cv.baseline.largestClassShare },
+    summary: Object.fromEntries(
+      Object.entries(cv.summary).map(([m, s]) => [m, { mean: s.mean, sd: s.sd, pooled: s.pooled, 'undefined-folds': s.undefinedFolds }]),
+    ),
+    baseline: {
+      'accuracy-mean': cv.baseline.mean,
+      'accuracy-pooled': cv.baseline.pooled,
+      'largest-class-share': cv.baseline.largestClassShare,
+    },
     files: r.files,
     warnings: r.warnings.map((w) => w.message),
   };

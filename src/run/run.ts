@@ -74,7 +74,18 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
   const files: Record<string, string> = { 'predictions.csv': predictions, 'models.json': modelsJson(saved) };
   let applied: AppliedRow[] | undefined;
   if (input.newRows) {
-    applied = guardFit(input.protocolFile, () => applyRows({ kind: p.model.kind, folds: cv.models, refit, classes: cv.classes, rule: p.reconcile.rule, tie: p.reconcile.tie ?? null, rows: input.newRows!, heldOut: heldOutFromOof(input.table.ids, cv.oof, cv.testedIn, cv.classes.length) }));
+    applied = guardFit(input.protocolFile, () =>
+      applyRows({
+        kind: p.model.kind,
+        folds: cv.models,
+        refit,
+        classes: cv.classes,
+        rule: p.reconcile.rule,
+        tie: p.reconcile.tie ?? null,
+        rows: input.newRows!,
+        heldOut: heldOutFromOof(input.table.ids, cv.oof, cv.testedIn, cv.classes.length),
+      }),
+    );
     files['applied.csv'] = appliedCsv(applied, cv.classes);
   }
   const digests = Object.fromEntries(Object.entries(files).map(([name, text]) => [name, sha256Bytes(text)]));
@@ -116,8 +127,18 @@ function fitOnAll(input: RunInput): SavedModel {
   const order = testsFoldOneOnly(p) ? all.filter((row) => input.assignment.fold[row] !== 1) : all;
   return guardFit(input.protocolFile, () => {
     const y = takeInt(table.y, order);
-    const { pipeline, X } = fitPipelineOnRows(p.preprocess, table.X, order, y, table.classes.length, table.featureNames, fitsByColumns(p.preprocess) ? columnMajor(table.X) : undefined);
-    const model = models[p.model.kind].fit(X, y, fitOptions(p.model.kind, p.model.options, table.classes), { classCount: table.classes.length });
+    const { pipeline, X } = fitPipelineOnRows(
+      p.preprocess,
+      table.X,
+      order,
+      y,
+      table.classes.length,
+      table.featureNames,
+      fitsByColumns(p.preprocess) ? columnMajor(table.X) : undefined,
+    );
+    const model = models[p.model.kind].fit(X, y, fitOptions(p.model.kind, p.model.options, table.classes), {
+      classCount: table.classes.length,
+    });
     return { repeat: 0, fold: 0, pipeline: prunePipeline(pipeline, table.X.cols), model };
   });
 }

@@ -28,7 +28,10 @@ export function deriveKeys(ids: readonly string[], seed: number, repeat: number)
     let length = p;
     for (let c = 0; c < id.length; c++, length++) {
       const code = id.charCodeAt(c);
-      if (code >= 0x80) { length = p + utf8.encodeInto(id, block.subarray(p)).written; break; }
+      if (code >= 0x80) {
+        length = p + utf8.encodeInto(id, block.subarray(p)).written;
+        break;
+      }
       block[length] = code;
     }
     hasher.digestBlockInto(length, out, i * 32);

@@ -11,7 +11,12 @@ export function parsePinned(bytes: Uint8Array, file: string, ids: readonly strin
   const t = read.table;
   const problems: Problem[] = [];
   if (t.header.join(',') !== 'id,repeat,fold') {
-    problems.push(error('pinned-header', `the pinned file's header is "${t.header.join(',')}", expected "id,repeat,fold"`, { file, position: { line: 1, col: 1 } }));
+    problems.push(
+      error('pinned-header', `the pinned file's header is "${t.header.join(',')}", expected "id,repeat,fold"`, {
+        file,
+        position: { line: 1, col: 1 },
+      }),
+    );
     return { problems };
   }
   const rowOf = new Map(ids.map((id, i) => [id, i]));
@@ -23,7 +28,8 @@ export function parsePinned(bytes: Uint8Array, file: string, ids: readonly strin
   let folds = 0;
   const positiveInt = /^[1-9][0-9]{0,8}$/;
   for (let r = 0; r < t.rows; r++) {
-    if (!positiveInt.test(repeatText[r])) problems.push(error('pinned-bad-repeat', `repeat "${repeatText[r]}" is not a positive integer`, at(r, 1)));
+    if (!positiveInt.test(repeatText[r]))
+      problems.push(error('pinned-bad-repeat', `repeat "${repeatText[r]}" is not a positive integer`, at(r, 1)));
     else repeats = Math.max(repeats, Number(repeatText[r]));
     if (!positiveInt.test(foldText[r]) || Number(foldText[r]) > Math.max(ids.length, 2)) {
       problems.push(error('pinned-fold-range', `fold "${foldText[r]}" is out of range (1 to ${Math.max(ids.length, 2)})`, at(r, 2)));
@@ -44,7 +50,8 @@ export function parsePinned(bytes: Uint8Array, file: string, ids: readonly strin
     if (fold[k] !== 0) problems.push(error('pinned-duplicate-id', `id "${fileIds[r]}" appears twice in repeat ${rep}`, at(r, 0)));
     else fold[k] = Number(foldText[r]);
   }
-  if (unknown > MAX_LISTED) problems.push(error('pinned-unknown-id', `${unknown - MAX_LISTED} more ids of the pinned file are not in the data`, { file }));
+  if (unknown > MAX_LISTED)
+    problems.push(error('pinned-unknown-id', `${unknown - MAX_LISTED} more ids of the pinned file are not in the data`, { file }));
   for (let rep = 1; rep <= repeats; rep++) {
     const absent: string[] = [];
     const used = new Uint8Array(folds + 1);
@@ -54,14 +61,30 @@ export function parsePinned(bytes: Uint8Array, file: string, ids: readonly strin
       else used[f] = 1;
     }
     if (absent.length) {
-      const listed = absent.slice(0, MAX_LISTED).map((s) => `"${s}"`).join(', ');
-      problems.push(error('pinned-missing-id', `${absent.length} id${absent.length === 1 ? '' : 's'} of the data ${absent.length === 1 ? 'has' : 'have'} no fold in repeat ${rep}: ${listed}${absent.length > MAX_LISTED ? ', …' : ''}`, { file, position: { line: 1, col: 1 } }));
+      const listed = absent
+        .slice(0, MAX_LISTED)
+        .map((s) => `"${s}"`)
+        .join(', ');
+      problems.push(
+        error(
+          'pinned-missing-id',
+          `${absent.length} id${absent.length === 1 ? '' : 's'} of the data ${absent.length === 1 ? 'has' : 'have'} no fold in repeat ${rep}: ${listed}${absent.length > MAX_LISTED ? ', …' : ''}`,
+          { file, position: { line: 1, col: 1 } },
+        ),
+      );
     }
     for (let f = 1; f <= folds; f++) {
-      if (!used[f] && !absent.length) problems.push(error('pinned-empty-fold', `fold ${f} of repeat ${rep} has no rows`, { file, position: { line: 1, col: 1 } }));
+      if (!used[f] && !absent.length)
+        problems.push(error('pinned-empty-fold', `fold ${f} of repeat ${rep} has no rows`, { file, position: { line: 1, col: 1 } }));
     }
   }
-  if (folds < 2 && problems.length === 0) problems.push(error('pinned-one-fold', 'the pinned file puts every row in one fold; at least 2 folds are needed', { file, position: { line: 1, col: 1 } }));
+  if (folds < 2 && problems.length === 0)
+    problems.push(
+      error('pinned-one-fold', 'the pinned file puts every row in one fold; at least 2 folds are needed', {
+        file,
+        position: { line: 1, col: 1 },
+      }),
+    );
   if (problems.length) return { problems };
   return { assignment: { version: SPLIT_VERSION, ids: [...ids], repeats, folds, fold }, problems };
 }

@@ -14,7 +14,9 @@ export function foldCounts(a: Assignment, y: Int32Array, classCount: number): Fo
   for (let r = 1; r <= a.repeats; r++) {
     const counts = Array.from({ length: a.folds }, () => new Array<number>(classCount).fill(0));
     for (let i = 0; i < n; i++) counts[a.fold[(r - 1) * n + i] - 1][y[i]]++;
-    counts.forEach((perClass, f) => out.push({ repeat: r, fold: f + 1, rows: perClass.reduce((s, v) => s + v, 0), perClass }));
+    counts.forEach((perClass, f) => {
+      out.push({ repeat: r, fold: f + 1, rows: perClass.reduce((s, v) => s + v, 0), perClass });
+    });
   }
   return out;
 }

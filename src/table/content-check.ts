@@ -21,20 +21,38 @@ export function contentProblems(bytes: Uint8Array, file: string): Problem[] {
   const at = { file, position: { line: 1, col: 1 } };
   for (const [kind, magic] of SIGNATURES) {
     if (magic.every((b, i) => bytes[i] === b)) {
-      return [error('data-not-a-table', `${file} looks like a ${kind} file, not a CSV or TSV table`, { ...at, hint: kind.endsWith('compressed') || kind === 'zip archive' ? 'decompress it first, then hash and name the decompressed file' : 'export it as CSV or TSV' })];
+      return [
+        error('data-not-a-table', `${file} looks like a ${kind} file, not a CSV or TSV table`, {
+          ...at,
+          hint:
+            kind.endsWith('compressed') || kind === 'zip archive'
+              ? 'decompress it first, then hash and name the decompressed file'
+              : 'export it as CSV or TSV',
+        }),
+      ];
     }
   }
   const head = bytes.subarray(0, 8192);
-  if (head.includes(0)) return [error('data-not-a-table', `${file} holds NUL bytes, so it looks like a binary file, not a CSV or TSV table`, at)];
+  if (head.includes(0))
+    return [error('data-not-a-table', `${file} holds NUL bytes, so it looks like a binary file, not a CSV or TSV table`, at)];
   if (isUtf8(bytes)) return [];
   const bad = firstInvalidUtf8(bytes);
   let line = 1;
   let lineStart = 0;
   for (let i = 0; i < bad; i++) {
-    if (bytes[i] === 0x0a || (bytes[i] === 0x0d && bytes[i + 1] !== 0x0a)) { line++; lineStart = i + 1; }
+    if (bytes[i] === 0x0a || (bytes[i] === 0x0d && bytes[i + 1] !== 0x0a)) {
+      line++;
+      lineStart = i + 1;
+    }
   }
   const col = new TextDecoder().decode(bytes.subarray(lineStart, bad)).length + 1;
-  return [error('data-invalid-utf8', `byte ${bad + 1} (0x${bytes[bad].toString(16).padStart(2, '0')}) is not valid UTF-8; foldseal reads tables as UTF-8`, { file, position: { line, col }, hint: 'convert the file to UTF-8 (for example iconv -f latin1 -t utf-8)' })];
+  return [
+    error(
+      'data-invalid-utf8',
+      `byte ${bad + 1} (0x${bytes[bad].toString(16).padStart(2, '0')}) is not valid UTF-8; foldseal reads tables as UTF-8`,
+      { file, position: { line, col }, hint: 'convert the file to UTF-8 (for example iconv -f latin1 -t utf-8)' },
+    ),
+  ];
 }
 
 /** Offset of the first byte that breaks UTF-8 (RFC 3629: no overlongs, no surrogates, at most U+10FFFF). */
@@ -42,13 +60,22 @@ export function firstInvalidUtf8(b: Uint8Array): number {
   let i = 0;
   while (i < b.length) {
     const c = b[i];
-    if (c < 0x80) { i++; continue; }
+    if (c < 0x80) {
+      i++;
+      continue;
+    }
     let need: number;
     let min: number;
-    if (c >= 0xc2 && c <= 0xdf) { need = 1; min = 0x80; }
-    else if (c >= 0xe0 && c <= 0xef) { need = 2; min = 0x800; }
-    else if (c >= 0xf0 && c <= 0xf4) { need = 3; min = 0x10000; }
-    else return i;
+    if (c >= 0xc2 && c <= 0xdf) {
+      need = 1;
+      min = 0x80;
+    } else if (c >= 0xe0 && c <= 0xef) {
+      need = 2;
+      min = 0x800;
+    } else if (c >= 0xf0 && c <= 0xf4) {
+      need = 3;
+      min = 0x10000;
+    } else return i;
     let cp = c & (0x3f >> need);
     for (let k = 1; k <= need; k++) {
       const d = b[i + k];

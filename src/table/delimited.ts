@@ -49,9 +49,15 @@ export function readDelimited(input: Uint8Array, delimiter: number, file: string
 
   const grow = () => {
     const size = starts.length * 2;
-    const s = new Int32Array(size); s.set(starts); starts = s;
-    const e = new Int32Array(size); e.set(ends); ends = e;
-    const x = new Uint8Array(size); x.set(escaped); escaped = x;
+    const s = new Int32Array(size);
+    s.set(starts);
+    starts = s;
+    const e = new Int32Array(size);
+    e.set(ends);
+    ends = e;
+    const x = new Uint8Array(size);
+    x.set(escaped);
+    escaped = x;
   };
 
   while (i < n) {
@@ -62,8 +68,12 @@ export function readDelimited(input: Uint8Array, delimiter: number, file: string
     const recordLine = line;
     const recordLineStart = lineStart;
     if (records >= rowLine.length) {
-      const a = new Int32Array(rowLine.length * 2); a.set(rowLine); rowLine = a;
-      const b = new Int32Array(rowLineStart.length * 2); b.set(rowLineStart); rowLineStart = b;
+      const a = new Int32Array(rowLine.length * 2);
+      a.set(rowLine);
+      rowLine = a;
+      const b = new Int32Array(rowLineStart.length * 2);
+      b.set(rowLineStart);
+      rowLineStart = b;
     }
     rowLine[records] = recordLine;
     rowLineStart[records] = recordLineStart;
@@ -81,21 +91,32 @@ export function readDelimited(input: Uint8Array, delimiter: number, file: string
         start = i;
         for (;;) {
           if (i >= n) {
-            problems.push(error('csv-unclosed-quote', 'a quoted cell is never closed', { file, position: { line: quoteLine, col: quoteCol } }));
+            problems.push(
+              error('csv-unclosed-quote', 'a quoted cell is never closed', { file, position: { line: quoteLine, col: quoteCol } }),
+            );
             return { table: undefined, problems };
           }
           const b = bytes[i];
           if (b === QUOTE) {
-            if (i + 1 < n && bytes[i + 1] === QUOTE) { esc = 1; i += 2; continue; }
+            if (i + 1 < n && bytes[i + 1] === QUOTE) {
+              esc = 1;
+              i += 2;
+              continue;
+            }
             break;
           }
-          if (b === LF) { line++; lineStart = i + 1; }
+          if (b === LF) {
+            line++;
+            lineStart = i + 1;
+          }
           i++;
         }
         end = i;
         i++; // closing quote
         if (i < n && bytes[i] !== delimiter && bytes[i] !== LF && bytes[i] !== CR) {
-          problems.push(error('csv-text-after-quote', 'text follows the closing quote of a cell', { file, position: { line, col: i - lineStart + 1 } }));
+          problems.push(
+            error('csv-text-after-quote', 'text follows the closing quote of a cell', { file, position: { line, col: i - lineStart + 1 } }),
+          );
           return { table: undefined, problems };
         }
       } else {
@@ -111,9 +132,24 @@ export function readDelimited(input: Uint8Array, delimiter: number, file: string
       escaped[cells] = esc;
       cells++;
       recordCells++;
-      if (i >= n) { endOfRecord = true; break; }
+      if (i >= n) {
+        endOfRecord = true;
+        break;
+      }
       const b = bytes[i];
-      if (b === delimiter) { i++; if (i >= n) { if (cells >= starts.length) grow(); starts[cells] = i; ends[cells] = i; escaped[cells] = 0; cells++; recordCells++; endOfRecord = true; } continue; }
+      if (b === delimiter) {
+        i++;
+        if (i >= n) {
+          if (cells >= starts.length) grow();
+          starts[cells] = i;
+          ends[cells] = i;
+          escaped[cells] = 0;
+          cells++;
+          recordCells++;
+          endOfRecord = true;
+        }
+        continue;
+      }
       if (b === CR) i++;
       if (i < n && bytes[i] === LF) i++;
       line++;
@@ -122,7 +158,12 @@ export function readDelimited(input: Uint8Array, delimiter: number, file: string
     }
     if (cols === -1) cols = recordCells;
     else if (recordCells !== cols) {
-      problems.push(error('csv-ragged-row', `row has ${recordCells} cells but the header has ${cols}`, { file, position: { line: recordLine, col: 1 } }));
+      problems.push(
+        error('csv-ragged-row', `row has ${recordCells} cells but the header has ${cols}`, {
+          file,
+          position: { line: recordLine, col: 1 },
+        }),
+      );
       if (problems.length >= 20) return { table: undefined, problems };
     }
     records++;
@@ -178,8 +219,14 @@ export function delimitedGrid(t: DelimitedTable): Grid {
     header: t.header,
     rows: t.rows,
     rowLine: t.rowLine,
-    text: (r, c) => { const k = r * t.cols + c; return cellString(t.bytes, t.starts[k], t.ends[k], t.escaped[k] === 1); },
-    number: (r, c) => { const k = r * t.cols + c; return parseNumberBytes(t.bytes, t.starts[k], t.ends[k]); },
+    text: (r, c) => {
+      const k = r * t.cols + c;
+      return cellString(t.bytes, t.starts[k], t.ends[k], t.escaped[k] === 1);
+    },
+    number: (r, c) => {
+      const k = r * t.cols + c;
+      return parseNumberBytes(t.bytes, t.starts[k], t.ends[k]);
+    },
     position: (r, c) => cellPosition(t, r, c),
     extract(numberCols, textCols) {
       const width = numberCols.length;

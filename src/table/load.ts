@@ -10,7 +10,14 @@ export function delimiterFor(file: string, format?: 'csv' | 'tsv'): number {
   return f === 'tsv' ? 0x09 : 0x2c;
 }
 
-export function tableFromBytes(bytes: Uint8Array, file: string, roles: DataRoles, format: 'csv' | 'tsv' | undefined, locate: (role: keyof RolePaths, index?: number) => Problem['position'], helper?: RowHelper): TableResult {
+export function tableFromBytes(
+  bytes: Uint8Array,
+  file: string,
+  roles: DataRoles,
+  format: 'csv' | 'tsv' | undefined,
+  locate: (role: keyof RolePaths, index?: number) => Problem['position'],
+  helper?: RowHelper,
+): TableResult {
   const delimiter = delimiterFor(file, format);
   const content = contentProblems(bytes, file);
   if (content.length) return { problems: content };

@@ -5,7 +5,13 @@ import type { Extracted, Grid } from './grid.js';
 const MAX_LISTED = 1000;
 
 /** `columns` are the grid columns behind the extract's number columns, in the same order. */
-export function numberProblems(grid: Grid, extracted: Extracted, columns: readonly number[], missing: ReadonlySet<string>, file: string): Problem[] {
+export function numberProblems(
+  grid: Grid,
+  extracted: Extracted,
+  columns: readonly number[],
+  missing: ReadonlySet<string>,
+  file: string,
+): Problem[] {
   const width = columns.length;
   const problems: Problem[] = [];
   let bad = 0;
@@ -15,7 +21,13 @@ export function numberProblems(grid: Grid, extracted: Extracted, columns: readon
     const text = grid.text(r, c);
     if (missing.has(text)) continue;
     if (bad++ < MAX_LISTED) {
-      problems.push(error('data-not-a-number', `cell "${text}" in column "${grid.header[c]}" (row ${r + 1}) is not a number`, { file, position: grid.position(r, c), hint: text.includes(',') ? 'use a dot as the decimal separator' : 'list the token under data.missing if it marks a missing value' }));
+      problems.push(
+        error('data-not-a-number', `cell "${text}" in column "${grid.header[c]}" (row ${r + 1}) is not a number`, {
+          file,
+          position: grid.position(r, c),
+          hint: text.includes(',') ? 'use a dot as the decimal separator' : 'list the token under data.missing if it marks a missing value',
+        }),
+      );
     }
   }
   if (bad > MAX_LISTED) problems.push(error('data-not-a-number', `${bad - MAX_LISTED} more non-numeric cells not listed`, { file }));
@@ -43,8 +55,17 @@ export function rangeProblems(grid: Grid, numbers: Float64Array, columns: readon
     const r = Math.floor(k / width);
     const c = columns[k % width];
     const text = grid.text(r, c);
-    const why = a === Infinity ? 'is beyond the range of a double-precision number' : `is outside the range foldseal computes with safely (0, or 1e-150 to 1e150 in magnitude)`;
-    problems.push(error('data-out-of-range', `cell "${text}" in column "${grid.header[c]}" (row ${r + 1}) ${why}`, { file, position: grid.position(r, c), hint: 'rescale the column (another unit, or a logarithm) before foldseal reads it' }));
+    const why =
+      a === Infinity
+        ? 'is beyond the range of a double-precision number'
+        : `is outside the range foldseal computes with safely (0, or 1e-150 to 1e150 in magnitude)`;
+    problems.push(
+      error('data-out-of-range', `cell "${text}" in column "${grid.header[c]}" (row ${r + 1}) ${why}`, {
+        file,
+        position: grid.position(r, c),
+        hint: 'rescale the column (another unit, or a logarithm) before foldseal reads it',
+      }),
+    );
   }
   if (bad > MAX_LISTED) problems.push(error('data-out-of-range', `${bad - MAX_LISTED} more cells out of range not listed`, { file }));
   return problems;

@@ -16,14 +16,25 @@ export interface RowsPart {
 }
 
 /** Rows [from, to) into numbers (at their own row positions); failed cells ascending. */
-export function extractRows(t: PlainTable, numberCols: readonly number[], textCols: readonly number[], from: number, to: number, numbers: Float64Array): RowsPart | undefined {
+export function extractRows(
+  t: PlainTable,
+  numberCols: readonly number[],
+  textCols: readonly number[],
+  from: number,
+  to: number,
+  numbers: Float64Array,
+): RowsPart | undefined {
   const { bytes, delimiter, cols } = t;
   const rows = to - from;
   const width = numberCols.length;
   const numberSlot = new Int32Array(cols).fill(-1);
-  numberCols.forEach((c, j) => { numberSlot[c] = j; });
+  numberCols.forEach((c, j) => {
+    numberSlot[c] = j;
+  });
   const textSlot = new Int32Array(cols).fill(-1);
-  textCols.forEach((c, j) => { textSlot[c] = j; });
+  textCols.forEach((c, j) => {
+    textSlot[c] = j;
+  });
   const failed: number[] = [];
   const spans = new Int32Array(rows * textCols.length * 2);
   for (let r = from; r < to; r++) {
@@ -36,16 +47,28 @@ export function extractRows(t: PlainTable, numberCols: readonly number[], textCo
         // The common shape [-]digits[.digits] with at most 15 digits is exact as mantissa / 10^k
         // (Clinger 1990); anything else goes to the full parser.
         let negative = false;
-        if (i < end && bytes[i] === 0x2d) { negative = true; i++; }
+        if (i < end && bytes[i] === 0x2d) {
+          negative = true;
+          i++;
+        }
         let mantissa = 0;
         let digits = 0;
         let scale = 0;
         let b = i < end ? bytes[i] : -1;
-        while (b >= 0x30 && b <= 0x39) { mantissa = mantissa * 10 + (b - 0x30); digits++; b = ++i < end ? bytes[i] : -1; }
+        while (b >= 0x30 && b <= 0x39) {
+          mantissa = mantissa * 10 + (b - 0x30);
+          digits++;
+          b = ++i < end ? bytes[i] : -1;
+        }
         const intDigits = digits;
         if (b === 0x2e) {
           b = ++i < end ? bytes[i] : -1;
-          while (b >= 0x30 && b <= 0x39) { mantissa = mantissa * 10 + (b - 0x30); digits++; scale++; b = ++i < end ? bytes[i] : -1; }
+          while (b >= 0x30 && b <= 0x39) {
+            mantissa = mantissa * 10 + (b - 0x30);
+            digits++;
+            scale++;
+            b = ++i < end ? bytes[i] : -1;
+          }
         }
         let v: number;
         if ((b === delimiter || b === -1) && digits > 0 && digits <= 15 && (intDigits > 0 || scale > 0)) {
@@ -61,7 +84,11 @@ export function extractRows(t: PlainTable, numberCols: readonly number[], textCo
         while (i < end && bytes[i] !== delimiter) i++;
       }
       const k = textSlot[c];
-      if (k >= 0) { const o = ((r - from) * textCols.length + k) * 2; spans[o] = start; spans[o + 1] = i; }
+      if (k >= 0) {
+        const o = ((r - from) * textCols.length + k) * 2;
+        spans[o] = start;
+        spans[o + 1] = i;
+      }
       if (c < cols - 1) {
         if (i >= end) return undefined; // fewer cells than the header
         i++;

@@ -44,8 +44,14 @@ export function readPlain(input: Uint8Array, delimiter: number): PlainTable | un
     let stop = search.indexOf(LF, i);
     if (stop === -1 || stop > n) stop = n;
     let end = stop;
-    if (end > i && bytes[end - 1] === CR) { end--; crs++; }
-    if (records === starts.length) { starts = grown(starts); ends = grown(ends); }
+    if (end > i && bytes[end - 1] === CR) {
+      end--;
+      crs++;
+    }
+    if (records === starts.length) {
+      starts = grown(starts);
+      ends = grown(ends);
+    }
     starts[records] = i;
     ends[records] = end;
     i = stop + 1;
@@ -53,14 +59,22 @@ export function readPlain(input: Uint8Array, delimiter: number): PlainTable | un
   // A carriage return that is not part of CR LF is a line break to the full reader: leave such files to it.
   if (countByte(search, CR, n) !== crs) return undefined;
   const header: string[] = [];
-  for (let i = starts[0]; ;) {
+  for (let i = starts[0]; ; ) {
     let stop = search.indexOf(delimiter, i);
     if (stop === -1 || stop > ends[0]) stop = ends[0];
     header.push(decodeSpan(bytes, i, stop));
     if (stop === ends[0]) break;
     i = stop + 1;
   }
-  return { bytes, delimiter, header, rows: records - 1, cols: header.length, rowStart: starts.slice(1, records), rowEnd: ends.slice(1, records) };
+  return {
+    bytes,
+    delimiter,
+    header,
+    rows: records - 1,
+    cols: header.length,
+    rowStart: starts.slice(1, records),
+    rowEnd: ends.slice(1, records),
+  };
 }
 
 function grown(a: Int32Array<ArrayBuffer>): Int32Array<ArrayBuffer> {
@@ -85,11 +99,18 @@ function spanFinder(t: PlainTable): (row: number, col: number) => [number, numbe
   let col = 0;
   let at = 0; // byte where cell `col` of `row` starts
   return (r, c) => {
-    if (r !== row || c < col) { row = r; col = 0; at = t.rowStart[r]; }
+    if (r !== row || c < col) {
+      row = r;
+      col = 0;
+      at = t.rowStart[r];
+    }
     const end = t.rowEnd[r];
     for (; col < c; col++) {
       const stop = t.bytes.indexOf(t.delimiter, at);
-      if (stop === -1 || stop >= end) { row = -1; return [end, end]; } // past the row's last cell
+      if (stop === -1 || stop >= end) {
+        row = -1;
+        return [end, end];
+      } // past the row's last cell
       at = stop + 1;
     }
     const stop = t.bytes.indexOf(t.delimiter, at);
@@ -104,7 +125,14 @@ function spanFinder(t: PlainTable): (row: number, col: number) => [number, numbe
  */
 export interface RowHelper {
   numbers(length: number): Float64Array;
-  start(t: PlainTable, numberCols: readonly number[], textCols: readonly number[], from: number, to: number, numbers: Float64Array): () => RowsPart | undefined;
+  start(
+    t: PlainTable,
+    numberCols: readonly number[],
+    textCols: readonly number[],
+    from: number,
+    to: number,
+    numbers: Float64Array,
+  ): () => RowsPart | undefined;
 }
 
 export function plainGrid(t: PlainTable, helper?: RowHelper): Grid {
@@ -113,8 +141,14 @@ export function plainGrid(t: PlainTable, helper?: RowHelper): Grid {
     header: t.header,
     rows: t.rows,
     rowLine: Int32Array.from({ length: t.rows }, (_, r) => r + 2),
-    text: (r, c) => { const [s, e] = span(r, c); return decodeSpan(t.bytes, s, e); },
-    number: (r, c) => { const [s, e] = span(r, c); return parseNumberBytes(t.bytes, s, e); },
+    text: (r, c) => {
+      const [s, e] = span(r, c);
+      return decodeSpan(t.bytes, s, e);
+    },
+    number: (r, c) => {
+      const [s, e] = span(r, c);
+      return parseNumberBytes(t.bytes, s, e);
+    },
     position: (r, c) => ({ line: r + 2, col: charColumn(t.bytes, t.rowStart[r], span(r, c)[0]).col }),
     extract: (numberCols, textCols) => (helper ? extractShared(t, numberCols, textCols, helper) : extractPlain(t, numberCols, textCols)),
   };
@@ -126,7 +160,12 @@ function extractPlain(t: PlainTable, numberCols: readonly number[], textCols: re
   return part && { numbers, failed: part.failed, texts: decodeTexts(t.bytes, [part.spans], textCols.length) };
 }
 
-function extractShared(t: PlainTable, numberCols: readonly number[], textCols: readonly number[], helper: RowHelper): Extracted | undefined {
+function extractShared(
+  t: PlainTable,
+  numberCols: readonly number[],
+  textCols: readonly number[],
+  helper: RowHelper,
+): Extracted | undefined {
   const numbers = helper.numbers(t.rows * numberCols.length);
   // The other thread starts later (it is still loading when the file arrives): give it less.
   const mid = Math.floor(t.rows * 0.55);

@@ -34,7 +34,13 @@ export function rowDigests(table: Table, rows?: readonly number[]): string[] {
   const out: string[] = [];
   for (const r of rows ?? Array.from({ length: table.X.rows }, (_, i) => i)) {
     canonicalRow(table.X, r, order, values);
-    out.push(createHash('sha256').update(table.labels[r]).update(new Uint8Array([0])).update(bytes).digest('hex'));
+    out.push(
+      createHash('sha256')
+        .update(table.labels[r])
+        .update(new Uint8Array([0]))
+        .update(bytes)
+        .digest('hex'),
+    );
   }
   return out;
 }

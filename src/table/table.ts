@@ -46,14 +46,25 @@ export interface TableResult {
 }
 
 const MAX_CELL_PROBLEMS = 1000;
+// biome-ignore lint/suspicious/noControlCharactersInRegex: the whole ASCII range, control characters included, is meant
 const ASCII = /^[\x00-\x7f]*$/;
 
-export function buildTable(t: Grid, roles: DataRoles, file: string, locate: (role: keyof RolePaths, index?: number) => Problem['position']): TableResult {
+export function buildTable(
+  t: Grid,
+  roles: DataRoles,
+  file: string,
+  locate: (role: keyof RolePaths, index?: number) => Problem['position'],
+): TableResult {
   const problems: Problem[] = [];
   const columnIndex = new Map<string, number>();
-  t.header.forEach((h, i) => { if (!columnIndex.has(h)) columnIndex.set(h, i); });
+  t.header.forEach((h, i) => {
+    if (!columnIndex.has(h)) columnIndex.set(h, i);
+  });
   const duplicated = new Set(t.header.filter((h, i) => columnIndex.get(h) !== i));
-  for (const d of duplicated) problems.push(error('data-duplicate-column', `column "${d}" appears more than once in the header`, { file, position: { line: 1, col: 1 } }));
+  for (const d of duplicated)
+    problems.push(
+      error('data-duplicate-column', `column "${d}" appears more than once in the header`, { file, position: { line: 1, col: 1 } }),
+    );
   if (t.rows === 0) {
     problems.push(error('data-no-rows', 'the data file has a header but no data rows', { file, position: { line: 1, col: 1 } }));
     return { problems };
@@ -62,7 +73,12 @@ export function buildTable(t: Grid, roles: DataRoles, file: string, locate: (rol
     if (name === undefined) return undefined;
     const c = columnIndex.get(name);
     if (c === undefined) {
-      problems.push(error('data-missing-column', `column "${name}" (data.${role}) is not in the data file's header`, { position: locate(role), hint: `columns are: ${t.header.join(', ')}` }));
+      problems.push(
+        error('data-missing-column', `column "${name}" (data.${role}) is not in the data file's header`, {
+          position: locate(role),
+          hint: `columns are: ${t.header.join(', ')}`,
+        }),
+      );
     }
     return c;
   };
@@ -78,14 +94,27 @@ export function buildTable(t: Grid, roles: DataRoles, file: string, locate: (rol
   if (Array.isArray(roles.features)) {
     roles.features.forEach((name, k) => {
       const c = columnIndex.get(name);
-      if (c === undefined) problems.push(error('data-missing-column', `feature column "${name}" is not in the data file's header`, { position: locate('features', k) }));
-      else if (reserved.has(c)) problems.push(error('data-feature-role', `column "${name}" is the id, label or group and cannot also be a feature`, { position: locate('features', k) }));
+      if (c === undefined)
+        problems.push(
+          error('data-missing-column', `feature column "${name}" is not in the data file's header`, { position: locate('features', k) }),
+        );
+      else if (reserved.has(c))
+        problems.push(
+          error('data-feature-role', `column "${name}" is the id, label or group and cannot also be a feature`, {
+            position: locate('features', k),
+          }),
+        );
       else featureCols.push(c);
     });
   } else {
     const exclude = new Set(roles.features?.exclude ?? []);
     (roles.features?.exclude ?? []).forEach((name, k) => {
-      if (!columnIndex.has(name)) problems.push(warning('data-unknown-exclude', `excluded column "${name}" is not in the data file's header`, { position: locate('features', k) }));
+      if (!columnIndex.has(name))
+        problems.push(
+          warning('data-unknown-exclude', `excluded column "${name}" is not in the data file's header`, {
+            position: locate('features', k),
+          }),
+        );
     });
     const candidates = t.header.map((_, c) => c).filter((c) => !reserved.has(c) && !exclude.has(t.header[c]));
     const kinds = columnKinds(t, candidates, missing);
@@ -93,10 +122,18 @@ export function buildTable(t: Grid, roles: DataRoles, file: string, locate: (rol
       const kind = kinds[k];
       if (kind === 'number') featureCols.push(c);
       else if (kind === 'text') ignoredColumns.push(t.header[c]);
-      else problems.push(warning('data-empty-column', `column "${t.header[c]}" has no value in any row (every cell is missing), so it is not a feature`, { file, position: { line: 1, col: 1 }, hint: 'remove it from the file, or list it under data.features.exclude' }));
+      else
+        problems.push(
+          warning('data-empty-column', `column "${t.header[c]}" has no value in any row (every cell is missing), so it is not a feature`, {
+            file,
+            position: { line: 1, col: 1 },
+            hint: 'remove it from the file, or list it under data.features.exclude',
+          }),
+        );
     }
   }
-  if (featureCols.length === 0 && !problems.some((q) => q.severity === 'error')) problems.push(error('data-no-features', 'no numeric feature columns were found', { position: locate('features') }));
+  if (featureCols.length === 0 && !problems.some((q) => q.severity === 'error'))
+    problems.push(error('data-no-features', 'no numeric feature columns were found', { position: locate('features') }));
 
   const rows = t.rows;
   const rowLines = t.rowLine;
@@ -113,25 +150,50 @@ export function buildTable(t: Grid, roles: DataRoles, file: string, locate: (rol
     let emptyLabels = 0;
     for (let r = 0; r < rows; r++) {
       if (labels[r] === '' || missing.has(labels[r])) {
-        if (emptyLabels++ < MAX_CELL_PROBLEMS) problems.push(error('data-missing-label', `row ${r + 1} has no label`, { file, position: t.position(r, labelCol) }));
+        if (emptyLabels++ < MAX_CELL_PROBLEMS)
+          problems.push(error('data-missing-label', `row ${r + 1} has no label`, { file, position: t.position(r, labelCol) }));
       }
     }
     classes = [...new Set(labels)].sort(compareUtf8);
     const code = new Map(classes.map((c, i) => [c, i]));
     for (let r = 0; r < rows; r++) y[r] = code.get(labels[r])!;
-    if (classes.length < 2) problems.push(error('data-one-class', `the label column "${roles.label}" has ${classes.length} class${classes.length === 1 ? ` ("${classes[0]}")` : 'es'}; at least 2 are needed`, { position: locate('label') }));
+    if (classes.length < 2)
+      problems.push(
+        error(
+          'data-one-class',
+          `the label column "${roles.label}" has ${classes.length} class${classes.length === 1 ? ` ("${classes[0]}")` : 'es'}; at least 2 are needed`,
+          { position: locate('label') },
+        ),
+      );
   }
   const groups = textOf(groupCol);
   if (groups) {
     let empty = 0;
     for (let r = 0; r < rows; r++) {
-      if (groups[r] === '' && empty++ < MAX_CELL_PROBLEMS) problems.push(error('data-empty-group', `row ${r + 1} has an empty group cell in column "${roles.group}"`, { file, position: t.position(r, groupCol!) }));
+      if (groups[r] === '' && empty++ < MAX_CELL_PROBLEMS)
+        problems.push(
+          error('data-empty-group', `row ${r + 1} has an empty group cell in column "${roles.group}"`, {
+            file,
+            position: t.position(r, groupCol!),
+          }),
+        );
     }
   }
 
   const cols = featureCols.length;
   problems.push(...numberProblems(t, extracted, featureCols, missing, file));
-  const table: Table = { ids, labels, classes, y, groups, featureNames: featureCols.map((c) => t.header[c]), X: { rows, cols, data: extracted.numbers }, rowLines, ignoredColumns, hasMissing: extracted.failed.length > 0 };
+  const table: Table = {
+    ids,
+    labels,
+    classes,
+    y,
+    groups,
+    featureNames: featureCols.map((c) => t.header[c]),
+    X: { rows, cols, data: extracted.numbers },
+    rowLines,
+    ignoredColumns,
+    hasMissing: extracted.failed.length > 0,
+  };
   return { table, problems };
 }
 
@@ -175,21 +237,41 @@ function checkIds(t: Grid, ids: string[], idCol: number, file: string, problems:
   }
   let reported = 0;
   for (let r = 0; r < ids.length && reported < MAX_CELL_PROBLEMS; r++) {
-    if (ids[r] === '') { reported++; problems.push(error('data-empty-id', `row ${r + 1} has an empty id`, { file, position: t.position(r, idCol) })); continue; }
+    if (ids[r] === '') {
+      reported++;
+      problems.push(error('data-empty-id', `row ${r + 1} has an empty id`, { file, position: t.position(r, idCol) }));
+      continue;
+    }
     const first = firstOf.get(r);
-    if (first !== undefined) { reported++; problems.push(error('data-duplicate-id', `id "${ids[r]}" appears again (first on line ${t.rowLine[first]})`, { file, position: t.position(r, idCol) })); }
+    if (first !== undefined) {
+      reported++;
+      problems.push(
+        error('data-duplicate-id', `id "${ids[r]}" appears again (first on line ${t.rowLine[first]})`, {
+          file,
+          position: t.position(r, idCol),
+        }),
+      );
+    }
   }
   // Distinct ASCII ids stay distinct under normalization: only a table with other ids needs the check.
   if (ids.every((id) => ASCII.test(id))) return;
   const seen = new Map<string, number>();
-  ids.forEach((id, r) => { if (id !== '' && !seen.has(id)) seen.set(id, r); });
+  ids.forEach((id, r) => {
+    if (id !== '' && !seen.has(id)) seen.set(id, r);
+  });
   const normalized = new Map<string, string>();
   for (const id of seen.keys()) {
     // ASCII text is its own normal form; only other ids need the (slow) normalizer.
     const nfc = ASCII.test(id) ? id : id.normalize('NFC');
     const other = normalized.get(nfc);
     if (other !== undefined && other !== id) {
-      problems.push(warning('data-id-normalization', `ids "${other}" and "${id}" differ only by Unicode normalization; the split spec hashes bytes as given, so they are different ids`, { file, position: t.position(seen.get(id)!, idCol) }));
+      problems.push(
+        warning(
+          'data-id-normalization',
+          `ids "${other}" and "${id}" differ only by Unicode normalization; the split spec hashes bytes as given, so they are different ids`,
+          { file, position: t.position(seen.get(id)!, idCol) },
+        ),
+      );
     } else normalized.set(nfc, id);
   }
 }

@@ -14,7 +14,14 @@ t.test('run on the demo writes models.json and applied.csv with held-out and fol
   t.match(run.stdout, /\d+ of 20 rows have fold models that disagree/);
   const applied = readFileSync(join(res, 'applied.csv'), 'utf8').trimEnd().split('\n');
   t.equal(applied[0], 'id,source,predicted,agreement,p_no,p_yes');
-  t.same(applied.slice(1).map((l) => l.split(',')[1]).sort().filter((s, i, a) => a.indexOf(s) === i), ['folds', 'held-out']);
+  t.same(
+    applied
+      .slice(1)
+      .map((l) => l.split(',')[1])
+      .sort()
+      .filter((s, i, a) => a.indexOf(s) === i),
+    ['folds', 'held-out'],
+  );
   const results = JSON.parse(readFileSync(join(res, 'results.json'), 'utf8'));
   t.ok(/^[0-9a-f]{64}$/.test(results.files['models.json']));
   t.ok(/^[0-9a-f]{64}$/.test(results.files['applied.csv']));
@@ -24,7 +31,7 @@ t.test('run on the demo writes models.json and applied.csv with held-out and fol
   t.ok(models.refit, '--refit saves a model fitted on every labeled row');
 });
 
-t.test('apply reproduces run\'s applied.csv byte for byte from models.json', async (t) => {
+t.test("apply reproduces run's applied.csv byte for byte from models.json", async (t) => {
   const r = cli(['apply', res, demoNew, '--out', join(dir, 'again.csv')]);
   t.equal(r.code, 0, r.stderr);
   t.equal(readFileSync(join(dir, 'again.csv'), 'utf8'), readFileSync(join(res, 'applied.csv'), 'utf8'));
@@ -58,23 +65,74 @@ function broken(name: string, setup: (d: string) => string[], expected: string, 
     t.match(r.stderr, expected);
   });
 }
-broken('models.json edited by hand', (d) => { const p = join(d, 'models.json'); writeFileSync(p, readFileSync(p, 'utf8').replace('"folds":[{"repeat":1', '"folds":[{"repeat":2')); return [demoNew]; }, 'does not match the SHA-256 recorded in results.json (it was changed after the run)');
-broken('a results folder from another format version', (d) => { const p = join(d, 'results.json'); writeFileSync(p, readFileSync(p, 'utf8').replace('"foldseal-results": 1', '"foldseal-results": 2')); return [demoNew]; }, 'has results format 2; this foldseal reads format 1');
+broken(
+  'models.json edited by hand',
+  (d) => {
+    const p = join(d, 'models.json');
+    writeFileSync(p, readFileSync(p, 'utf8').replace('"folds":[{"repeat":1', '"folds":[{"repeat":2'));
+    return [demoNew];
+  },
+  'does not match the SHA-256 recorded in results.json (it was changed after the run)',
+);
+broken(
+  'a results folder from another format version',
+  (d) => {
+    const p = join(d, 'results.json');
+    writeFileSync(p, readFileSync(p, 'utf8').replace('"foldseal-results": 1', '"foldseal-results": 2'));
+    return [demoNew];
+  },
+  'has results format 2; this foldseal reads format 1',
+);
 const header = readFileSync(demoNew, 'utf8').split('\n')[0];
 const line = readFileSync(demoNew, 'utf8').split('\n')[1];
-broken('new rows with non-numeric cells', (d) => { writeFileSync(join(d, 'n.csv'), `${header}\n${line.replace(/,(\d+\.\d+),/, ',1;5,')}\n`); return [join(d, 'n.csv')]; }, 'is not a number');
-broken('duplicate ids', (d) => { writeFileSync(join(d, 'n.csv'), `${header}\n${line}\n${line}\n`); return [join(d, 'n.csv')]; }, 'error: id "CS-0121" appears again (first on line 2)');
-broken('an id column missing', (d) => { writeFileSync(join(d, 'n.csv'), header.replace('seedling_id', 'plant') + `\n${line}\n`); return [join(d, 'n.csv')]; }, 'error: the id column "seedling_id" is not in the new-rows file\'s header');
-broken('a feature column missing', (d) => { writeFileSync(join(d, 'n.csv'), header.replace('phenol_index', 'phenols') + `\n${line}\n`); return [join(d, 'n.csv')]; }, 'error: feature "phenol_index" is not in the new-rows file\'s header');
+broken(
+  'new rows with non-numeric cells',
+  (d) => {
+    writeFileSync(join(d, 'n.csv'), `${header}\n${line.replace(/,(\d+\.\d+),/, ',1;5,')}\n`);
+    return [join(d, 'n.csv')];
+  },
+  'is not a number',
+);
+broken(
+  'duplicate ids',
+  (d) => {
+    writeFileSync(join(d, 'n.csv'), `${header}\n${line}\n${line}\n`);
+    return [join(d, 'n.csv')];
+  },
+  'error: id "CS-0121" appears again (first on line 2)',
+);
+broken(
+  'an id column missing',
+  (d) => {
+    writeFileSync(join(d, 'n.csv'), header.replace('seedling_id', 'plant') + `\n${line}\n`);
+    return [join(d, 'n.csv')];
+  },
+  'error: the id column "seedling_id" is not in the new-rows file\'s header',
+);
+broken(
+  'a feature column missing',
+  (d) => {
+    writeFileSync(join(d, 'n.csv'), header.replace('phenol_index', 'phenols') + `\n${line}\n`);
+    return [join(d, 'n.csv')];
+  },
+  'error: feature "phenol_index" is not in the new-rows file\'s header',
+);
 broken('a missing results folder', () => ['x.csv'], 'does not exist', 2);
 
 t.test('run with reconcile rule refit writes refit rows; majority-vote without a tie rule does not validate', async (t) => {
   const d = tempDir();
-  const demo = readFileSync(join(root, 'protocols', 'demo.yaml'), 'utf8').replaceAll('file: data/', `file: ${join(root, 'protocols', 'data')}/`);
+  const demo = readFileSync(join(root, 'protocols', 'demo.yaml'), 'utf8').replaceAll(
+    'file: data/',
+    `file: ${join(root, 'protocols', 'data')}/`,
+  );
   writeFileSync(join(d, 'refit.yaml'), demo.replace('rule: mean-probability', 'rule: refit'));
   const r = cli(['run', 'refit.yaml', '--out', 'res', '--allow-outside'], d);
   t.equal(r.code, 0, r.stderr);
-  const sources = readFileSync(join(d, 'res', 'applied.csv'), 'utf8').trimEnd().split('\n').slice(1).map((l) => l.split(',')[1]);
+  const sources = readFileSync(join(d, 'res', 'applied.csv'), 'utf8')
+    .trimEnd()
+    .split('\n')
+    .slice(1)
+    .map((l) => l.split(',')[1]);
   t.same([...new Set(sources)].sort(), ['held-out', 'refit']);
   t.ok(JSON.parse(readFileSync(join(d, 'res', 'models.json'), 'utf8')).refit, 'the refit model is saved');
   writeFileSync(join(d, 'vote.yaml'), demo.replace('rule: mean-probability', 'rule: majority-vote'));

@@ -14,7 +14,12 @@ for (const c of cases) {
     c.setup?.(dir);
     const before = new Set(readdirSync(dir));
     const started = Date.now();
-    const r = spawnSync(process.execPath, [bin, ...c.args], { cwd: dir, encoding: 'utf8', timeout: 10_000, env: { ...process.env, NO_COLOR: '1' } });
+    const r = spawnSync(process.execPath, [bin, ...c.args], {
+      cwd: dir,
+      encoding: 'utf8',
+      timeout: 10_000,
+      env: { ...process.env, NO_COLOR: '1' },
+    });
     t.ok(Date.now() - started < 10_000 && r.signal === null, 'finishes within 10 s');
     const text = r.stderr + r.stdout;
     t.equal(r.status, c.exit, `exit ${c.exit}: ${text.slice(0, 400)}`);

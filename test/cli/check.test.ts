@@ -6,25 +6,33 @@ import t from 'tap';
 import { cli, sha256, smallCsv, tempDir } from '../helpers.js';
 
 const csv = smallCsv(20);
-const protocol = (name: string, seed = 7, extra = '', data = 'a.csv', dataText = csv) => [
-  'foldseal: 1',
-  `name: ${name}`,
-  'data:',
-  `  file: ../data/${data}`,
-  `  sha256: "${sha256(dataText)}"`,
-  '  id: id',
-  '  label: label',
-  '  features: [a, b, c]',
-  'split:',
-  '  rule: stratified-kfold',
-  '  folds: 2',
-  `  seed: ${seed}`,
-  'model: {kind: gaussian-nb}',
-  extra,
-].join('\n') + '\n';
+const protocol = (name: string, seed = 7, extra = '', data = 'a.csv', dataText = csv) =>
+  [
+    'foldseal: 1',
+    `name: ${name}`,
+    'data:',
+    `  file: ../data/${data}`,
+    `  sha256: "${sha256(dataText)}"`,
+    '  id: id',
+    '  label: label',
+    '  features: [a, b, c]',
+    'split:',
+    '  rule: stratified-kfold',
+    '  folds: 2',
+    `  seed: ${seed}`,
+    'model: {kind: gaussian-nb}',
+    extra,
+  ].join('\n') + '\n';
 
 function team(files: Record<string, string> = {}): string {
-  const dir = tempDir({ 'data/a.csv': csv, 'protocols/p1.yaml': protocol('first'), 'protocols/p2.yaml': protocol('second', 11), 'README.md': 'not a protocol', 'notes.yaml': 'title: not a protocol\n', ...files });
+  const dir = tempDir({
+    'data/a.csv': csv,
+    'protocols/p1.yaml': protocol('first'),
+    'protocols/p2.yaml': protocol('second', 11),
+    'README.md': 'not a protocol',
+    'notes.yaml': 'title: not a protocol\n',
+    ...files,
+  });
   const locked = cli(['lock', dir]);
   if (locked.code !== 0) throw new Error(locked.stderr);
   return dir;
@@ -64,7 +72,10 @@ t.test('seed change without a lock update, then accepted with lock', async (t) =
 t.test('rule change, data drift and split drift', async (t) => {
   const dir = team();
   const changed = csv.replace('r3,x,G3,3,', 'r3,x,G3,4,');
-  writeFileSync(join(dir, 'protocols/p1.yaml'), protocol('first', 7, '', 'a.csv', changed).replace('rule: stratified-kfold', 'rule: kfold'));
+  writeFileSync(
+    join(dir, 'protocols/p1.yaml'),
+    protocol('first', 7, '', 'a.csv', changed).replace('rule: stratified-kfold', 'rule: kfold'),
+  );
   writeFileSync(join(dir, 'data/a.csv'), changed);
   writeFileSync(join(dir, 'protocols/p2.yaml'), protocol('second', 11, '', 'a.csv', changed));
   const r = cli(['check', '.'], dir);
@@ -97,7 +108,10 @@ t.test('a lock naming a protocol that no longer exists, and an unlisted protocol
   const r = cli(['check', '.'], dir);
   t.equal(r.code, 1);
   const out = lines(r.stderr);
-  t.ok(out.some((l) => /^foldseal\.lock\.json:\d+:5: error: the lock names protocols\/p2\.yaml, which no longer exists$/.test(l)), r.stderr);
+  t.ok(
+    out.some((l) => /^foldseal\.lock\.json:\d+:5: error: the lock names protocols\/p2\.yaml, which no longer exists$/.test(l)),
+    r.stderr,
+  );
   t.ok(out.includes('protocols/p3.yaml:2:7: error: protocols/p3.yaml is not in the lock'), r.stderr);
 });
 
@@ -108,7 +122,10 @@ t.test('two protocols with the same name, and one that cannot be read', async (t
   const r = cli(['check', '.'], dir);
   const out = lines(r.stderr);
   t.ok(out.includes('protocols/p3.yaml:2:7: error: protocol name "first" is also used by protocols/p1.yaml'), r.stderr);
-  t.ok(out.some((l) => l.startsWith('protocols/broken.yaml:3:1: error: ')), r.stderr);
+  t.ok(
+    out.some((l) => l.startsWith('protocols/broken.yaml:3:1: error: ')),
+    r.stderr,
+  );
 });
 
 t.test('a corrupt lock is exit 2 with its location', async (t) => {
@@ -133,8 +150,16 @@ t.test('symlink loops do not hang the search; dot-folders and node_modules are s
 
 t.test('sealed rows: used by a non-final protocol, and a final protocol that tests on them', async (t) => {
   const sealedIds = 'id\nr1\nr2\nr3\nr4\n';
-  const pinned = 'id,repeat,fold\n' + Array.from({ length: 20 }, (_, i) => `r${i + 1},1,${i < 4 ? 1 : 2}`).sort().join('\n') + '\n';
-  const finalProtocol = protocol('final-eval').replace(/split:\n[\s\S]*?model:/, `final: true\nsplit:\n  pinned: {file: ../splits/final.csv, sha256: "${sha256(pinned)}"}\nmodel:`);
+  const pinned =
+    'id,repeat,fold\n' +
+    Array.from({ length: 20 }, (_, i) => `r${i + 1},1,${i < 4 ? 1 : 2}`)
+      .sort()
+      .join('\n') +
+    '\n';
+  const finalProtocol = protocol('final-eval').replace(
+    /split:\n[\s\S]*?model:/,
+    `final: true\nsplit:\n  pinned: {file: ../splits/final.csv, sha256: "${sha256(pinned)}"}\nmodel:`,
+  );
   const dir = team({ 'splits/final.ids': sealedIds, 'splits/final.csv': pinned, 'protocols/final.yaml': finalProtocol });
   const lockPath = join(dir, 'foldseal.lock.json');
   const lock = JSON.parse(readFileSync(lockPath, 'utf8'));
@@ -143,17 +168,41 @@ t.test('sealed rows: used by a non-final protocol, and a final protocol that tes
   const r = cli(['check', '.'], dir);
   t.equal(r.code, 1);
   const out = lines(r.stderr);
-  t.ok(out.includes('protocols/p1.yaml:4:9: error: first uses 4 sealed ids from ../data/a.csv (reserved for the final evaluation): r1, r2, r3, r4'), r.stderr);
-  t.ok(out.includes('protocols/p2.yaml:4:9: error: second uses 4 sealed ids from ../data/a.csv (reserved for the final evaluation): r1, r2, r3, r4'));
-  t.notOk(out.some((l) => l.startsWith('protocols/final.yaml')), 'the final protocol tests on exactly the sealed ids');
+  t.ok(
+    out.includes(
+      'protocols/p1.yaml:4:9: error: first uses 4 sealed ids from ../data/a.csv (reserved for the final evaluation): r1, r2, r3, r4',
+    ),
+    r.stderr,
+  );
+  t.ok(
+    out.includes(
+      'protocols/p2.yaml:4:9: error: second uses 4 sealed ids from ../data/a.csv (reserved for the final evaluation): r1, r2, r3, r4',
+    ),
+  );
+  t.notOk(
+    out.some((l) => l.startsWith('protocols/final.yaml')),
+    'the final protocol tests on exactly the sealed ids',
+  );
   const finalRun = cli(['run', 'protocols/final.yaml', '--out', 'results/final'], dir);
   t.equal(finalRun.code, 0, finalRun.stderr);
   const results = JSON.parse(readFileSync(join(dir, 'results/final/results.json'), 'utf8'));
-  t.same(results.folds.map((f: { fold: number; 'test-rows': number; 'train-rows': number }) => [f.fold, f['test-rows'], f['train-rows']]), [[1, 4, 16]], 'a final protocol tests fold 1 only and never trains on the sealed rows');
+  t.same(
+    results.folds.map((f: { fold: number; 'test-rows': number; 'train-rows': number }) => [f.fold, f['test-rows'], f['train-rows']]),
+    [[1, 4, 16]],
+    'a final protocol tests fold 1 only and never trains on the sealed rows',
+  );
   writeFileSync(join(dir, 'splits/final.ids'), 'r1\nr2\nr3\nr5\n');
   const moved = cli(['check', '.'], dir);
-  t.match(moved.stderr, /^foldseal\.lock\.json: error: the sealed-ids file splits\/final\.ids has SHA-256 [0-9a-f]{64}, not the [0-9a-f]{64} the lock records$/m);
-  t.ok(lines(moved.stderr).includes('protocols/final.yaml:11:3: error: the test part (fold 1) of final protocol final-eval must be exactly the sealed ids: 1 sealed ids are not in it, 1 other ids are'), moved.stderr);
+  t.match(
+    moved.stderr,
+    /^foldseal\.lock\.json: error: the sealed-ids file splits\/final\.ids has SHA-256 [0-9a-f]{64}, not the [0-9a-f]{64} the lock records$/m,
+  );
+  t.ok(
+    lines(moved.stderr).includes(
+      'protocols/final.yaml:11:3: error: the test part (fold 1) of final protocol final-eval must be exactly the sealed ids: 1 sealed ids are not in it, 1 other ids are',
+    ),
+    moved.stderr,
+  );
 });
 
 t.test('policy: pinned-or-stable, tolerance and signers', async (t) => {
@@ -172,7 +221,8 @@ t.test('policy: pinned-or-stable, tolerance and signers', async (t) => {
 });
 
 t.test('--staged checks only the touched protocols and those sharing their data', async (t) => {
-  const other = 'id,label,a,b,c\n' + Array.from({ length: 10 }, (_, i) => `o${i},${i % 2 ? 'x' : 'y'},${i},${i * 2},${i % 3}`).join('\n') + '\n';
+  const other =
+    'id,label,a,b,c\n' + Array.from({ length: 10 }, (_, i) => `o${i},${i % 2 ? 'x' : 'y'},${i},${i * 2},${i % 3}`).join('\n') + '\n';
   const dir = team({ 'data/b.csv': other, 'protocols/p4.yaml': protocol('fourth', 3, '', 'b.csv', other) });
   const git = (...args: string[]) => execFileSync('git', args, { cwd: dir, encoding: 'utf8' });
   git('init', '-q');

@@ -6,7 +6,10 @@ import { cli, protocolText, sha256, smallCsv, tempDir } from '../helpers.js';
 const csv = smallCsv();
 
 t.test('folds writes the id,repeat,fold CSV sorted by repeat then id bytes, and a summary on stderr', async (t) => {
-  const dir = tempDir({ 'data.csv': csv, 'p.yaml': protocolText(csv, { split: 'split: {rule: stratified-kfold, folds: 4, repeats: 2, seed: 3}' }) });
+  const dir = tempDir({
+    'data.csv': csv,
+    'p.yaml': protocolText(csv, { split: 'split: {rule: stratified-kfold, folds: 4, repeats: 2, seed: 3}' }),
+  });
   const r = cli(['folds', 'p.yaml'], dir);
   t.equal(r.code, 0, r.stderr);
   const lines = r.stdout.trimEnd().split('\n');
@@ -33,24 +36,43 @@ t.test('holdout folds are labelled test and train', async (t) => {
 
 function pinnedCase(name: string, pinned: string, expected: string[], hash?: string) {
   t.test(`pinned file: ${name}`, async (t) => {
-    const dir = tempDir({ 'data.csv': csv, 'f.csv': pinned, 'p.yaml': protocolText(csv, { split: `split:\n  pinned: {file: f.csv, sha256: "${hash ?? sha256(pinned)}"}` }) });
+    const dir = tempDir({
+      'data.csv': csv,
+      'f.csv': pinned,
+      'p.yaml': protocolText(csv, { split: `split:\n  pinned: {file: f.csv, sha256: "${hash ?? sha256(pinned)}"}` }),
+    });
     const r = cli(['validate', 'p.yaml'], dir);
     t.equal(r.code, 1);
     for (const e of expected) t.ok(r.stderr.split('\n').includes(e), `${e}\n--- got:\n${r.stderr}`);
   });
 }
 const good = ['id,repeat,fold', ...Array.from({ length: 20 }, (_, i) => `r${i + 1},1,${(i % 2) + 1}`)];
-pinnedCase('wrong hash', good.join('\n') + '\n', [`p.yaml:9:33: error: the pinned file's SHA-256 is ${sha256(good.join('\n') + '\n')}, not the ${'a'.repeat(64)} this protocol records`], 'a'.repeat(64));
-pinnedCase('an id of the data missing', good.slice(0, 20).join('\n') + '\n', ['f.csv:1:1: error: 1 id of the data has no fold in repeat 1: "r20"']);
+pinnedCase(
+  'wrong hash',
+  good.join('\n') + '\n',
+  [`p.yaml:9:33: error: the pinned file's SHA-256 is ${sha256(good.join('\n') + '\n')}, not the ${'a'.repeat(64)} this protocol records`],
+  'a'.repeat(64),
+);
+pinnedCase('an id of the data missing', good.slice(0, 20).join('\n') + '\n', [
+  'f.csv:1:1: error: 1 id of the data has no fold in repeat 1: "r20"',
+]);
 pinnedCase('an id the data lacks', [...good, 'r99,1,1'].join('\n') + '\n', ['f.csv:22:1: error: id "r99" is not in the data']);
-pinnedCase('a fold out of range', [...good.slice(0, 20), 'r20,1,0'].join('\n') + '\n', ['f.csv:21:7: error: fold "0" is out of range (1 to 20)']);
+pinnedCase('a fold out of range', [...good.slice(0, 20), 'r20,1,0'].join('\n') + '\n', [
+  'f.csv:21:7: error: fold "0" is out of range (1 to 20)',
+]);
 pinnedCase('an id twice in one repeat', [...good, 'r3,1,2'].join('\n') + '\n', ['f.csv:22:1: error: id "r3" appears twice in repeat 1']);
 pinnedCase('a wrong header', 'id,fold\nr1,1\n', ['f.csv:1:1: error: the pinned file\'s header is "id,fold", expected "id,repeat,fold"']);
-pinnedCase('a bad repeat number', [...good.slice(0, 20), 'r20,x,1'].join('\n') + '\n', ['f.csv:21:5: error: repeat "x" is not a positive integer']);
+pinnedCase('a bad repeat number', [...good.slice(0, 20), 'r20,x,1'].join('\n') + '\n', [
+  'f.csv:21:5: error: repeat "x" is not a positive integer',
+]);
 
 t.test('a valid pinned file is used as the assignment', async (t) => {
   const pinned = good.join('\n') + '\n';
-  const dir = tempDir({ 'data.csv': csv, 'f.csv': pinned, 'p.yaml': protocolText(csv, { split: `split:\n  pinned: {file: f.csv, sha256: "${sha256(pinned)}"}` }) });
+  const dir = tempDir({
+    'data.csv': csv,
+    'f.csv': pinned,
+    'p.yaml': protocolText(csv, { split: `split:\n  pinned: {file: f.csv, sha256: "${sha256(pinned)}"}` }),
+  });
   const r = cli(['folds', 'p.yaml'], dir);
   t.equal(r.code, 0, r.stderr);
   t.equal(r.stdout.split('\n').filter((l) => l.endsWith(',1,1')).length, 10);
@@ -59,7 +81,7 @@ t.test('a valid pinned file is used as the assignment', async (t) => {
 t.test('init writes a protocol that validates as is, and refuses to overwrite', async (t) => {
   const dir = tempDir({ 'data/trial.csv': csv });
   const missing = cli(['init', 'data/trial.csv', '--label', 'label', '--id', 'id', '--out', 'protocols/trial.yaml'], dir);
-  t.equal(missing.code, 2, 'a missing parent folder is not created behind the user\'s back');
+  t.equal(missing.code, 2, "a missing parent folder is not created behind the user's back");
   t.equal(missing.stderr, 'protocols/trial.yaml: error: protocols/trial.yaml cannot be written: the folder protocols does not exist\n');
   mkdirSync(join(dir, 'protocols'));
   const r = cli(['init', 'data/trial.csv', '--label', 'label', '--id', 'id', '--out', 'protocols/trial.yaml'], dir);

@@ -7,7 +7,7 @@ import { cli, root, tempDir } from '../helpers.js';
 const haveSha256sum = spawnSync('sha256sum', ['--version']).status === 0;
 
 t.test('hash output is byte-identical to sha256sum', { skip: haveSha256sum ? false : 'sha256sum not installed' }, async (t) => {
-  const dir = tempDir({ 'a.csv': 'x,y\n1,2\n', 'with space.txt': 'hello\n', 'empty': '' });
+  const dir = tempDir({ 'a.csv': 'x,y\n1,2\n', 'with space.txt': 'hello\n', empty: '' });
   const files = ['a.csv', 'with space.txt', 'empty', join(root, 'protocols', 'data', 'seedlings.csv')];
   const ours = cli(['hash', ...files], dir);
   const theirs = spawnSync('sha256sum', files, { cwd: dir, encoding: 'utf8' });

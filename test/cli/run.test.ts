@@ -17,7 +17,10 @@ t.test('run on the demo writes predictions and results and prints the tables', a
   t.equal(results.split.version, 'split-v1');
   t.equal(results.folds.length, 10);
   t.equal(results.files['predictions.csv'], sha256(readFileSync(join(out, 'predictions.csv'))));
-  t.notOk(readdirSync(join(out, '..')).some((f) => f.includes('.tmp-')), 'no temporary folder is left behind');
+  t.notOk(
+    readdirSync(join(out, '..')).some((f) => f.includes('.tmp-')),
+    'no temporary folder is left behind',
+  );
 
   const again = cli(['run', 'protocols/demo.yaml', '--out', out], root);
   t.equal(again.code, 2);
@@ -37,12 +40,28 @@ function runFails(name: string, files: Record<string, string>, expected: RegExp 
 }
 
 const csv = smallCsv();
-runFails('knn k larger than the training part', { 'data.csv': csv, 'p.yaml': protocolText(csv, { model: 'model: {kind: knn, options: {k: 15}}' }) }, 'p.yaml:12:33: error: knn k is 15 but the smallest training part has 10 rows');
-runFails('select.top larger than the feature count', { 'data.csv': csv, 'p.yaml': protocolText(csv, { extra: 'preprocess: [{select: {top: 9, by: variance}}]' }) }, 'p.yaml:13:29: error: select keeps the top 9 features but only 3 are there');
+runFails(
+  'knn k larger than the training part',
+  { 'data.csv': csv, 'p.yaml': protocolText(csv, { model: 'model: {kind: knn, options: {k: 15}}' }) },
+  'p.yaml:12:33: error: knn k is 15 but the smallest training part has 10 rows',
+);
+runFails(
+  'select.top larger than the feature count',
+  { 'data.csv': csv, 'p.yaml': protocolText(csv, { extra: 'preprocess: [{select: {top: 9, by: variance}}]' }) },
+  'p.yaml:13:29: error: select keeps the top 9 features but only 3 are there',
+);
 const negative = 'id,label,a,b\nr1,x,1,2\nr2,y,-2,3\nr3,x,3,4\nr4,y,4,5\n';
-runFails('log2p on negative values', { 'data.csv': negative, 'p.yaml': protocolText(negative, { extra: 'preprocess: [log2p]' }) }, 'error: log2p got the negative value -2');
+runFails(
+  'log2p on negative values',
+  { 'data.csv': negative, 'p.yaml': protocolText(negative, { extra: 'preprocess: [log2p]' }) },
+  'error: log2p got the negative value -2',
+);
 const huge = 'id,label,a,b\nr1,x,1.7e308,2\nr2,y,1.7e308,3\nr3,x,1.7e308,4\nr4,y,1.7e308,5\nr5,x,1,1\nr6,y,2,2\n';
-runFails('values beyond the safe range are refused before any fit', { 'data.csv': huge, 'p.yaml': protocolText(huge, { extra: 'preprocess: [standardize]' }) }, /data.csv:2:6: error: cell "1.7e308" in column "a" \(row 1\) is outside the range foldseal computes with safely/);
+runFails(
+  'values beyond the safe range are refused before any fit',
+  { 'data.csv': huge, 'p.yaml': protocolText(huge, { extra: 'preprocess: [standardize]' }) },
+  /data.csv:2:6: error: cell "1.7e308" in column "a" \(row 1\) is outside the range foldseal computes with safely/,
+);
 
 t.test('a label value only in the test part is a warning and probability 0, never NaN', async (t) => {
   const rare = 'id,label,a\nr1,x,1\nr2,y,2\nr3,x,3\nr4,y,4\nr5,z,5\nr6,x,6\nr7,y,7\n';

@@ -60,7 +60,10 @@ t.test('editing one data value: verify --rerun lists the exact differences', asy
   const sha = cli(['hash', data]).stdout.split(' ')[0];
   const protocol = join(copy, 'protocols', 'demo.yaml');
   writeFileSync(protocol, readFileSync(protocol, 'utf8').replace(/sha256: "914f[0-9a-f]+"/, `sha256: "${sha}"`));
-  const r = cli(['verify', join(copy, 'results', 'demo', 'manifest.json'), '--key', join(copy, 'author.pub'), '--rerun', '--protocol', protocol], copy);
+  const r = cli(
+    ['verify', join(copy, 'results', 'demo', 'manifest.json'), '--key', join(copy, 'author.pub'), '--rerun', '--protocol', protocol],
+    copy,
+  );
   t.equal(r.code, 1);
   t.match(r.stdout, `data: data SHA-256 ${sha} differs from the recorded 914fdee020d2762c59b989d9f09a56541cb7a138ef4d6ebfeae598d807129a22`);
   t.match(r.stdout, /metric: repeat \d fold \d log-loss: [0-9.e-]+ now, [0-9.e-]+ recorded/);
@@ -85,7 +88,10 @@ t.test('a changed result file and a missing one', async (t) => {
 });
 
 t.test('bad input to keys and manifests', async (t) => {
-  const d = tempDir({ 'rsa.pem': generateKeyPairSync('rsa', { modulusLength: 1024 }).publicKey.export({ type: 'spki', format: 'pem' }) as string, 'junk.json': '{"foldseal-manifest": 1, "tool"' });
+  const d = tempDir({
+    'rsa.pem': generateKeyPairSync('rsa', { modulusLength: 1024 }).publicKey.export({ type: 'spki', format: 'pem' }) as string,
+    'junk.json': '{"foldseal-manifest": 1, "tool"',
+  });
   const runPub = cli(['run', 'protocols/demo.yaml', '--key', 'author.pub', '--out', 'x'], dir);
   t.equal(runPub.code, 2);
   t.match(runPub.stderr, 'author.pub is a public key; signing needs the private key');
@@ -104,6 +110,11 @@ t.test('bad input to keys and manifests', async (t) => {
 t.test('two runs give byte-identical manifests apart from the creation time', async (t) => {
   const second = cli(['run', 'protocols/demo.yaml', '--out', 'results/again'], dir);
   t.equal(second.code, 0);
-  const strip = (s: string) => { const m = JSON.parse(s); delete m.created; delete m.signature; return JSON.stringify(m); };
+  const strip = (s: string) => {
+    const m = JSON.parse(s);
+    delete m.created;
+    delete m.signature;
+    return JSON.stringify(m);
+  };
   t.equal(strip(readFileSync(join(dir, 'results', 'again', 'manifest.json'), 'utf8')), strip(readFileSync(manifest, 'utf8')));
 });

@@ -8,7 +8,15 @@ import { spawn, spawnSync } from 'node:child_process';
 import { cpSync, existsSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import t from 'tap';
-import { encodeSshsig, parseKeyLines, parseOpensshPrivateKey, parseSshsig, publicKeyLine, sshsigValid, SshFormatError } from '../../src/manifest/ssh.js';
+import {
+  encodeSshsig,
+  parseKeyLines,
+  parseOpensshPrivateKey,
+  parseSshsig,
+  publicKeyLine,
+  sshsigValid,
+  SshFormatError,
+} from '../../src/manifest/ssh.js';
 import { signerMatches } from '../../src/check/gate.js';
 import { bin, cli, root, tempDir } from '../helpers.js';
 
@@ -26,7 +34,10 @@ function sshKeygen(args: string[], cwd: string, input?: string) {
 }
 
 function keypair(dir: string, name: string, type = 'ed25519', passphrase = ''): void {
-  const r = sshKeygen(['-q', '-t', type, ...(type === 'rsa' ? ['-b', '2048'] : []), '-N', passphrase, '-C', `${name}@example.org`, '-f', name], dir);
+  const r = sshKeygen(
+    ['-q', '-t', type, ...(type === 'rsa' ? ['-b', '2048'] : []), '-N', passphrase, '-C', `${name}@example.org`, '-f', name],
+    dir,
+  );
   if (r.status !== 0) throw new Error(r.stderr);
 }
 
@@ -41,15 +52,26 @@ t.test('a manifest signed with an OpenSSH key file verifies with stock ssh-keyge
   t.match(r.stdout, `(manifest signed with SSH key ${fp} (alice@example.org))`, 'the fingerprint is the one ssh-keygen -l prints');
   writeFileSync(join(dir, 'allowed_signers'), `alice@example.org ${readFileSync(join(dir, 'alice.pub'), 'utf8')}`);
   const manifest = readFileSync(join(dir, 'res', 'manifest.json'));
-  const ok = sshKeygen(['-Y', 'verify', '-f', 'allowed_signers', '-I', 'alice@example.org', '-n', 'foldseal-manifest', '-s', 'res/manifest.json.sig'], dir, manifest.toString('utf8'));
+  const ok = sshKeygen(
+    ['-Y', 'verify', '-f', 'allowed_signers', '-I', 'alice@example.org', '-n', 'foldseal-manifest', '-s', 'res/manifest.json.sig'],
+    dir,
+    manifest.toString('utf8'),
+  );
   t.equal(ok.status, 0, ok.stderr);
   t.match(ok.stdout, `Good "foldseal-manifest" signature for alice@example.org with ED25519 key ${fp}`);
-  const edited = sshKeygen(['-Y', 'verify', '-f', 'allowed_signers', '-I', 'alice@example.org', '-n', 'foldseal-manifest', '-s', 'res/manifest.json.sig'], dir, manifest.toString('utf8').replace('"rows":120', '"rows":121'));
+  const edited = sshKeygen(
+    ['-Y', 'verify', '-f', 'allowed_signers', '-I', 'alice@example.org', '-n', 'foldseal-manifest', '-s', 'res/manifest.json.sig'],
+    dir,
+    manifest.toString('utf8').replace('"rows":120', '"rows":121'),
+  );
   t.not(edited.status, 0, 'ssh-keygen rejects a changed manifest');
   for (const key of ['alice.pub', 'allowed_signers']) {
     const v = cli(['verify', 'res/manifest.json', '--key', key, '--rerun'], dir);
     t.equal(v.code, 0, v.stderr);
-    t.match(v.stdout, `signature: valid SSH signature (manifest.json.sig), signed by ${fp}${key === 'allowed_signers' ? ' (alice@example.org)' : ''}\n`);
+    t.match(
+      v.stdout,
+      `signature: valid SSH signature (manifest.json.sig), signed by ${fp}${key === 'allowed_signers' ? ' (alice@example.org)' : ''}\n`,
+    );
     t.match(v.stdout, /identical\n$/);
   }
   const unpinned = cli(['verify', 'res/manifest.json'], dir);
@@ -92,7 +114,8 @@ t.test('signing through a real ssh-agent: the private key never reaches foldseal
   try {
     for (let i = 0; i < 100 && !existsSync(sock); i++) await new Promise((r) => setTimeout(r, 20));
     const env = { ...process.env, SSH_AUTH_SOCK: sock };
-    const runWith = (args: string[], e: NodeJS.ProcessEnv) => spawnSync(process.execPath, [bin, ...args], { cwd: dir, encoding: 'utf8', env: e });
+    const runWith = (args: string[], e: NodeJS.ProcessEnv) =>
+      spawnSync(process.execPath, [bin, ...args], { cwd: dir, encoding: 'utf8', env: e });
     const empty = runWith(['run', 'demo.yaml', '--out', 'res', '--key', 'carol.pub'], env);
     t.equal(empty.status, 2, 'the agent does not hold the key yet');
     t.match(empty.stderr, 'carol.pub: error: signing through ssh-agent failed: the agent does not hold the key SHA256:');
@@ -101,8 +124,15 @@ t.test('signing through a real ssh-agent: the private key never reaches foldseal
     const r = runWith(['run', 'demo.yaml', '--out', 'res', '--key', 'carol.pub'], env);
     t.equal(r.status, 0, r.stderr);
     t.match(r.stdout, '(through ssh-agent)');
-    writeFileSync(join(dir, 'allowed_signers'), `carol@example.org namespaces="foldseal-manifest" ${readFileSync(join(dir, 'carol.pub'), 'utf8')}`);
-    const ok = sshKeygen(['-Y', 'verify', '-f', 'allowed_signers', '-I', 'carol@example.org', '-n', 'foldseal-manifest', '-s', 'res/manifest.json.sig'], dir, readFileSync(join(dir, 'res', 'manifest.json'), 'utf8'));
+    writeFileSync(
+      join(dir, 'allowed_signers'),
+      `carol@example.org namespaces="foldseal-manifest" ${readFileSync(join(dir, 'carol.pub'), 'utf8')}`,
+    );
+    const ok = sshKeygen(
+      ['-Y', 'verify', '-f', 'allowed_signers', '-I', 'carol@example.org', '-n', 'foldseal-manifest', '-s', 'res/manifest.json.sig'],
+      dir,
+      readFileSync(join(dir, 'res', 'manifest.json'), 'utf8'),
+    );
     t.equal(ok.status, 0, ok.stderr);
     t.equal(cli(['verify', 'res/manifest.json', '--key', 'allowed_signers'], dir).code, 0);
     const { SSH_AUTH_SOCK: _drop, ...noAgent } = env;
@@ -146,7 +176,12 @@ t.test('the team policy accepts OpenSSH fingerprints and key lines as signers', 
   t.equal(cli(['lock', '.'], dir).code, 0);
   const lockPath = join(dir, 'foldseal.lock.json');
   const lock = JSON.parse(readFileSync(lockPath, 'utf8'));
-  for (const [signer, code] of [[fp, 0], [`dana@example.org ${pub}`, 0], [pub, 0], ['SHA256:' + 'A'.repeat(43), 1]] as const) {
+  for (const [signer, code] of [
+    [fp, 0],
+    [`dana@example.org ${pub}`, 0],
+    [pub, 0],
+    ['SHA256:' + 'A'.repeat(43), 1],
+  ] as const) {
     lock.policy = { signers: [signer] };
     writeFileSync(lockPath, JSON.stringify(lock));
     const r = cli(['check', '.'], dir);
@@ -157,9 +192,20 @@ t.test('the team policy accepts OpenSSH fingerprints and key lines as signers', 
 t.test('SSH formats: key lines, allowed_signers options, SSHSIG parsing errors', async (t) => {
   const raw = Buffer.alloc(32, 7);
   const line = publicKeyLine(raw, 'x@y');
-  const parsed = parseKeyLines(`# comment\n\n${line}\nann,bo namespaces="git,foldseal-manifest",valid-after="20260101" ${line}\n* cert-authority ${line}\nnot a key\n`);
-  t.same(parsed.keys.map((k) => [k.line, k.principals ?? null, k.namespaces ?? null, k.certAuthority ?? false]), [[3, null, null, false], [4, ['ann', 'bo'], ['git', 'foldseal-manifest'], false], [5, ['*'], null, true]]);
-  t.same(parsed.problems, [{ line: 6, message: 'is not a public key line (TYPE BASE64 [comment]) nor an allowed_signers line (PRINCIPALS [OPTIONS] TYPE BASE64)' }]);
+  const parsed = parseKeyLines(
+    `# comment\n\n${line}\nann,bo namespaces="git,foldseal-manifest",valid-after="20260101" ${line}\n* cert-authority ${line}\nnot a key\n`,
+  );
+  t.same(
+    parsed.keys.map((k) => [k.line, k.principals ?? null, k.namespaces ?? null, k.certAuthority ?? false]),
+    [
+      [3, null, null, false],
+      [4, ['ann', 'bo'], ['git', 'foldseal-manifest'], false],
+      [5, ['*'], null, true],
+    ],
+  );
+  t.same(parsed.problems, [
+    { line: 6, message: 'is not a public key line (TYPE BASE64 [comment]) nor an allowed_signers line (PRINCIPALS [OPTIONS] TYPE BASE64)' },
+  ]);
   t.same(parseKeyLines(line.replace('ssh-ed25519 ', 'ssh-rsa ')).problems[0].message, 'names type ssh-rsa but holds a ssh-ed25519 key');
   t.match(parseKeyLines('ssh-ed25519 AAAA').problems[0].message, 'holds a malformed key');
   t.ok(signerMatches(`p ${line}`, (await import('node:crypto')).createHash('sha256').update(raw).digest('hex'), undefined));
@@ -172,8 +218,19 @@ t.test('SSH formats: key lines, allowed_signers options, SSHSIG parsing errors',
   ]) {
     t.throws(() => parseSshsig(text), new SshFormatError(message), message);
   }
-  const wrapped = encodeSshsig(Buffer.concat([Buffer.from([0, 0, 0, 11]), Buffer.from('ssh-ed25519'), Buffer.from([0, 0, 0, 32]), raw]), 'foldseal-manifest', 'sha512', Buffer.concat([Buffer.from([0, 0, 0, 11]), Buffer.from('ssh-ed25519'), Buffer.from([0, 0, 0, 64]), Buffer.alloc(64)]));
-  t.ok(wrapped.split('\n').slice(1, -2).every((l) => l.length <= 70), 'armour lines of 70 characters at most, as ssh-keygen writes them');
+  const wrapped = encodeSshsig(
+    Buffer.concat([Buffer.from([0, 0, 0, 11]), Buffer.from('ssh-ed25519'), Buffer.from([0, 0, 0, 32]), raw]),
+    'foldseal-manifest',
+    'sha512',
+    Buffer.concat([Buffer.from([0, 0, 0, 11]), Buffer.from('ssh-ed25519'), Buffer.from([0, 0, 0, 64]), Buffer.alloc(64)]),
+  );
+  t.ok(
+    wrapped
+      .split('\n')
+      .slice(1, -2)
+      .every((l) => l.length <= 70),
+    'armour lines of 70 characters at most, as ssh-keygen writes them',
+  );
   t.notOk(sshsigValid(parseSshsig(wrapped), Buffer.from('x')), 'an all-zero signature is not valid');
   t.throws(() => parseOpensshPrivateKey('nothing'), new SshFormatError('it is not an OpenSSH private key'));
 });

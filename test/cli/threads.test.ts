@@ -5,7 +5,12 @@ import { join } from 'node:path';
 import t from 'tap';
 import { bin, root, sha256, tempDir } from '../helpers.js';
 
-const run = (threads: string, args: string[], cwd: string) => spawnSync(process.execPath, [bin, ...args], { cwd, encoding: 'utf8', env: { ...process.env, FOLDSEAL_THREADS: threads, NO_COLOR: '1', FOLDSEAL_TRUSTED: join(root, 'protocols', 'data') } });
+const run = (threads: string, args: string[], cwd: string) =>
+  spawnSync(process.execPath, [bin, ...args], {
+    cwd,
+    encoding: 'utf8',
+    env: { ...process.env, FOLDSEAL_THREADS: threads, NO_COLOR: '1', FOLDSEAL_TRUSTED: join(root, 'protocols', 'data') },
+  });
 const demoData = join(root, 'protocols', 'data');
 const demo = readFileSync(join(root, 'protocols', 'demo.yaml'), 'utf8').replaceAll('file: data/', `file: ${demoData}/`);
 // An impute step has no class-moment form, so these folds are fitted row by row, on the workers.
@@ -32,12 +37,19 @@ t.test('a fit error inside a worker is the same user error', async (t) => {
 t.test('a table parsed on two threads reads the same as on one', async (t) => {
   const dir = tempDir({ 'p.yaml': demo });
   for (const threads of ['1', '2']) t.equal(run(threads, ['run', 'p.yaml', '--out', `res-${threads}`], dir).status, 0);
-  for (const f of ['predictions.csv', 'results.json', 'models.json']) t.equal(readFileSync(join(dir, 'res-2', f), 'utf8'), readFileSync(join(dir, 'res-1', f), 'utf8'), f);
+  for (const f of ['predictions.csv', 'results.json', 'models.json'])
+    t.equal(readFileSync(join(dir, 'res-2', f), 'utf8'), readFileSync(join(dir, 'res-1', f), 'utf8'), f);
   // Problems found in the half the second thread reads are reported exactly as on one thread.
   const lines = readFileSync(join(demoData, 'seedlings.csv'), 'utf8').trimEnd().split('\n');
-  for (const [what, edit] of [['a ragged row', (l: string) => l + ',extra'], ['a bad number', (l: string) => l.replace(/,([0-9.]+),/, ',12abc,')]] as const) {
+  for (const [what, edit] of [
+    ['a ragged row', (l: string) => l + ',extra'],
+    ['a bad number', (l: string) => l.replace(/,([0-9.]+),/, ',12abc,')],
+  ] as const) {
     const broken = [...lines.slice(0, -3), edit(lines[lines.length - 3]), ...lines.slice(-2)].join('\n') + '\n';
-    const d = tempDir({ 'd.csv': broken, 'p.yaml': demo.replace(`${demoData}/seedlings.csv`, 'd.csv').replace(/sha256: "914f[0-9a-f]+"/, `sha256: "${sha256(broken)}"`) });
+    const d = tempDir({
+      'd.csv': broken,
+      'p.yaml': demo.replace(`${demoData}/seedlings.csv`, 'd.csv').replace(/sha256: "914f[0-9a-f]+"/, `sha256: "${sha256(broken)}"`),
+    });
     const one = run('1', ['validate', 'p.yaml'], d);
     const two = run('2', ['validate', 'p.yaml'], d);
     t.equal(one.status, 1, `${what}: invalid`);
@@ -50,12 +62,20 @@ t.test('split keys of many ids derived on two threads equal those from one', asy
   const lines = ['id,label,a,b'];
   for (let i = 1; i <= 12000; i++) lines.push(`r${i},${i % 3 ? 'x' : 'y'},${(i * 7) % 13},${(i * 11) % 17}.5`);
   const csv = lines.join('\n') + '\n';
-  const dir = tempDir({ 'd.csv': csv, 'p.yaml': `foldseal: 1\nname: many\ndata: {file: d.csv, sha256: "${sha256(csv)}", id: id, label: label}\nsplit: {rule: stratified-kfold, folds: 4, repeats: 2, seed: 5}\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy]\n` });
+  const dir = tempDir({
+    'd.csv': csv,
+    'p.yaml': `foldseal: 1\nname: many\ndata: {file: d.csv, sha256: "${sha256(csv)}", id: id, label: label}\nsplit: {rule: stratified-kfold, folds: 4, repeats: 2, seed: 5}\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy]\n`,
+  });
   // Without an id column the ids are row numbers, and the keys are split between threads afterwards.
   writeFileSync(join(dir, 'q.yaml'), readFileSync(join(dir, 'p.yaml'), 'utf8').replace(', id: id', ''));
   for (const protocol of ['p', 'q']) {
-    for (const threads of ['1', '2']) t.equal(run(threads, ['folds', `${protocol}.yaml`, '--out', `${protocol}-${threads}.csv`], dir).status, 0);
-    t.equal(readFileSync(join(dir, `${protocol}-2.csv`), 'utf8'), readFileSync(join(dir, `${protocol}-1.csv`), 'utf8'), `${protocol}: assignment CSV identical`);
+    for (const threads of ['1', '2'])
+      t.equal(run(threads, ['folds', `${protocol}.yaml`, '--out', `${protocol}-${threads}.csv`], dir).status, 0);
+    t.equal(
+      readFileSync(join(dir, `${protocol}-2.csv`), 'utf8'),
+      readFileSync(join(dir, `${protocol}-1.csv`), 'utf8'),
+      `${protocol}: assignment CSV identical`,
+    );
   }
 });
 

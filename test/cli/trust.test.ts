@@ -40,7 +40,10 @@ t.test('run --out . --force refuses a folder foldseal did not write; nothing is 
   for (const out of ['.', 'data']) {
     const r = cli(['run', 'demo.yaml', '--out', out, '--force'], dir);
     t.equal(r.code, 2, `--out ${out}`);
-    t.match(r.stderr, /error: .* no foldseal manifest, so foldseal will not replace it \(--force replaces only a results folder foldseal wrote\)/);
+    t.match(
+      r.stderr,
+      /error: .* no foldseal manifest, so foldseal will not replace it \(--force replaces only a results folder foldseal wrote\)/,
+    );
   }
   t.same(readdirSync(dir).sort(), before, 'the protocol, the data and .git are all still there');
   t.equal(readFileSync(join(dir, '.git', 'HEAD'), 'utf8'), 'ref: refs/heads/main\n');
@@ -66,7 +69,11 @@ t.test('an empty folder is written into; a results folder of ours needs --force 
   t.match(again.stderr, 'empty: error: empty already exists');
   t.equal(cli(['run', 'demo.yaml', '--out', 'empty', '--force'], dir).code, 0);
   t.ok(complete(join(dir, 'empty')));
-  t.same(readdirSync(dir).filter((e) => e.includes('foldseal')), [], 'no temporary folder or lock left behind');
+  t.same(
+    readdirSync(dir).filter((e) => e.includes('foldseal')),
+    [],
+    'no temporary folder or lock left behind',
+  );
 });
 
 t.test('kill -9 at any moment: the old or the new complete folder, and the next run cleans up', async (t) => {
@@ -82,18 +89,29 @@ t.test('kill -9 at any moment: the old or the new complete folder, and the next 
     const delay = Math.floor((span * (i + 0.5)) / 24);
     const code = await new Promise<number | null>((done) => {
       const timer = setTimeout(() => child.kill('SIGKILL'), delay);
-      child.on('exit', (c) => { clearTimeout(timer); done(c); });
+      child.on('exit', (c) => {
+        clearTimeout(timer);
+        done(c);
+      });
     });
     if (code === null) killedMidway++;
     const aside = readdirSync(dir).filter((e) => e.startsWith('.res.foldseal-old-'));
     if (existsSync(join(dir, 'res'))) t.ok(complete(join(dir, 'res')), `after a kill at ${delay} ms the folder is complete`);
-    else t.ok(aside.some((a) => complete(join(dir, a, 'previous'))), `after a kill at ${delay} ms the previous folder is kept aside, complete`);
+    else
+      t.ok(
+        aside.some((a) => complete(join(dir, a, 'previous'))),
+        `after a kill at ${delay} ms the previous folder is kept aside, complete`,
+      );
   }
   t.ok(killedMidway > 0, `${killedMidway} of 24 runs were killed before they finished`);
   const next = cli(['run', 'demo.yaml', '--out', 'res', '--force'], dir);
   t.equal(next.code, 0, next.stderr);
   t.ok(complete(join(dir, 'res')));
-  t.same(readdirSync(dir).filter((e) => e.startsWith('.res.')), [], 'leftovers of the killed runs are gone');
+  t.same(
+    readdirSync(dir).filter((e) => e.startsWith('.res.')),
+    [],
+    'leftovers of the killed runs are gone',
+  );
 });
 
 t.test('a previous folder left aside by a crash is put back by the next run', async (t) => {
@@ -109,7 +127,10 @@ t.test('a previous folder left aside by a crash is put back by the next run', as
   const r = cli(['run', 'demo.yaml', '--out', 'res'], dir);
   t.equal(r.code, 2, 'the restored folder is ours, so replacing it still needs --force');
   t.equal(readFileSync(join(dir, 'res', 'manifest.json'), 'utf8'), recorded, 'the previous output is back under its name');
-  t.same(readdirSync(dir).filter((e) => e.startsWith('.res.')), []);
+  t.same(
+    readdirSync(dir).filter((e) => e.startsWith('.res.')),
+    [],
+  );
 });
 
 t.test('two writers: a live lock holder makes the second refuse; a dead one is taken over', async (t) => {
@@ -126,18 +147,27 @@ t.test('two writers: a live lock holder makes the second refuse; a dead one is t
   t.ok(complete(join(dir, 'res')));
   t.notOk(existsSync(join(dir, '.res.foldseal-lock')));
   // Two real runs at once: each ends with the complete folder or a clear refusal.
-  const both = await Promise.all([0, 1].map(() => new Promise<string>((done) => {
-    const c = spawn(process.execPath, [bin, 'run', 'demo.yaml', '--out', 'res', '--force'], { cwd: dir });
-    let err = '';
-    c.stderr.on('data', (d) => (err += d));
-    c.on('exit', (code) => done(code === 0 ? 'ok' : /another foldseal process/.test(err) ? 'busy' : `failed ${code}: ${err}`));
-  })));
-  t.ok(both.every((b) => b === 'ok' || b === 'busy'), both.join(', '));
+  const both = await Promise.all(
+    [0, 1].map(
+      () =>
+        new Promise<string>((done) => {
+          const c = spawn(process.execPath, [bin, 'run', 'demo.yaml', '--out', 'res', '--force'], { cwd: dir });
+          let err = '';
+          c.stderr.on('data', (d) => (err += d));
+          c.on('exit', (code) => done(code === 0 ? 'ok' : /another foldseal process/.test(err) ? 'busy' : `failed ${code}: ${err}`));
+        }),
+    ),
+  );
+  t.ok(
+    both.every((b) => b === 'ok' || b === 'busy'),
+    both.join(', '),
+  );
   t.ok(complete(join(dir, 'res')));
 });
 
 const csv = smallCsv(20);
-const protocolFor = (name: string, data = 'data.csv', dataText = csv) => `foldseal: 1\nname: ${name}\ndata: {file: ${data}, sha256: "${sha256(dataText)}", id: id, label: label, features: [a, b, c]}\nsplit: {rule: stratified-kfold, folds: 2, seed: 7}\nmodel: {kind: gaussian-nb}\n`;
+const protocolFor = (name: string, data = 'data.csv', dataText = csv) =>
+  `foldseal: 1\nname: ${name}\ndata: {file: ${data}, sha256: "${sha256(dataText)}", id: id, label: label, features: [a, b, c]}\nsplit: {rule: stratified-kfold, folds: 2, seed: 7}\nmodel: {kind: gaussian-nb}\n`;
 
 /** Mounts a small tmpfs (root only); undefined where mounting is not allowed. */
 function tmpfs(size: string, readOnly = false): string | undefined {
@@ -165,7 +195,10 @@ t.test('file outputs: missing folder, a folder in the way, read-only, full disk 
     t.notMatch(missing.stderr + folder.stderr, /internal error|at .*\.js:\d+/, `${name}: no stack trace`);
   }
   const full = tmpfs('16k');
-  if (!full) { t.comment('skipped: mounting a small tmpfs needs root; the full-disk and read-only cases are not run'); return; }
+  if (!full) {
+    t.comment('skipped: mounting a small tmpfs needs root; the full-disk and read-only cases are not run');
+    return;
+  }
   try {
     try {
       writeFileSync(join(full, 'filler'), Buffer.alloc(64 * 1024));
@@ -201,12 +234,12 @@ t.test('keygen writes both key files or neither, and names a missing folder', as
   const missing = cli(['keygen', '--out', 'no/dir/k'], dir);
   t.equal(missing.code, 2);
   t.equal(missing.stderr, 'no/dir/k.key: error: no/dir/k.key cannot be written: the folder no/dir does not exist\n');
-  writeFileSync(join(dir, 'k.pub'), 'someone else\'s\n');
+  writeFileSync(join(dir, 'k.pub'), "someone else's\n");
   const clash = cli(['keygen', '--out', 'k'], dir);
   t.equal(clash.code, 2);
   t.match(clash.stderr, 'k.pub: error: k.pub already exists');
   t.notOk(existsSync(join(dir, 'k.key')), 'no private key without its public half');
-  t.equal(readFileSync(join(dir, 'k.pub'), 'utf8'), 'someone else\'s\n');
+  t.equal(readFileSync(join(dir, 'k.pub'), 'utf8'), "someone else's\n");
 });
 
 t.test('the gate finds protocols by parsing, however the key is spelled', async (t) => {
@@ -218,7 +251,13 @@ t.test('the gate finds protocols by parsing, however the key is spelled', async 
     'protocols/escaped.yaml': `"\\x66oldseal": 1\n${body.replace('name: x', 'name: escaped')}`,
     'protocols/explicit.yml': `? foldseal\n: 1\n${body.replace('name: x', 'name: explicit')}`,
     'protocols/flow.yaml': `{foldseal: 1, name: flow, data: {file: ../data/data.csv, sha256: "${sha256(csv)}", id: id, label: label}, split: {rule: kfold, folds: 2, seed: 1}, model: {kind: gaussian-nb}}\n`,
-    'protocols/json.json': JSON.stringify({ '\u0066oldseal': 1, name: 'json', data: { file: '../data/data.csv', sha256: sha256(csv), id: 'id', label: 'label' }, split: { rule: 'kfold', folds: 2, seed: 1 }, model: { kind: 'gaussian-nb' } }),
+    'protocols/json.json': JSON.stringify({
+      '\u0066oldseal': 1,
+      name: 'json',
+      data: { file: '../data/data.csv', sha256: sha256(csv), id: 'id', label: 'label' },
+      split: { rule: 'kfold', folds: 2, seed: 1 },
+      model: { kind: 'gaussian-nb' },
+    }),
     'protocols/not-a-protocol.yaml': 'title: notes that mention foldseal\n',
     'package.json': '{"name": "x"}',
   };
@@ -234,9 +273,18 @@ t.test('the gate finds protocols by parsing, however the key is spelled', async 
 });
 
 t.test('skipped folders are named in the summary; the lock policy adds folders to skip or to search', async (t) => {
-  const dir = tempDir({ 'data/data.csv': csv, 'p/one.yaml': protocolFor('one', '../data/data.csv'), '.hidden/two.yaml': protocolFor('two', '../data/data.csv'), 'scratch/three.yaml': protocolFor('three', '../data/data.csv'), 'node_modules/m/four.yaml': protocolFor('four', '../../data/data.csv') });
+  const dir = tempDir({
+    'data/data.csv': csv,
+    'p/one.yaml': protocolFor('one', '../data/data.csv'),
+    '.hidden/two.yaml': protocolFor('two', '../data/data.csv'),
+    'scratch/three.yaml': protocolFor('three', '../data/data.csv'),
+    'node_modules/m/four.yaml': protocolFor('four', '../../data/data.csv'),
+  });
   const first = cli(['check', '.'], dir);
-  t.match(first.stderr, "2 protocols checked: 0 errors, 1 warning; not searched: .hidden, node_modules (add folders to the lock's policy.include to search them)");
+  t.match(
+    first.stderr,
+    "2 protocols checked: 0 errors, 1 warning; not searched: .hidden, node_modules (add folders to the lock's policy.include to search them)",
+  );
   t.equal(cli(['lock', '.'], dir).code, 0);
   const lockPath = join(dir, 'foldseal.lock.json');
   const lock = JSON.parse(readFileSync(lockPath, 'utf8'));
@@ -254,19 +302,37 @@ t.test('skipped folders are named in the summary; the lock policy adds folders t
 
 t.test('sealed rows are sealed by content: a copy under new ids is caught; run refuses like check; refit keeps off them', async (t) => {
   const sealedIds = 'id\nr1\nr2\nr3\nr4\n';
-  const pinned = 'id,repeat,fold\n' + Array.from({ length: 20 }, (_, i) => `r${i + 1},1,${i < 4 ? 1 : 2}`).sort().join('\n') + '\n';
+  const pinned =
+    'id,repeat,fold\n' +
+    Array.from({ length: 20 }, (_, i) => `r${i + 1},1,${i < 4 ? 1 : 2}`)
+      .sort()
+      .join('\n') +
+    '\n';
   const finalP = `foldseal: 1\nname: final\nfinal: true\ndata: {file: data/data.csv, sha256: "${sha256(csv)}", id: id, label: label, features: [a, b, c]}\nsplit: {pinned: {file: splits/final.csv, sha256: "${sha256(pinned)}"}}\npreprocess: [standardize]\nmodel: {kind: gaussian-nb}\n`;
   const rows = csv.trimEnd().split('\n');
   const copied = [rows[0], ...rows.slice(5), ...rows.slice(1, 5).map((l) => l.replace(/^r(\d+),/, 'copy$1,'))].join('\n') + '\n';
-  const dir = tempDir({ 'data/data.csv': csv, 'data/dev.csv': copied, 'splits/final.ids': sealedIds, 'splits/final.csv': pinned, 'final.yaml': finalP, 'dev.yaml': protocolFor('dev', 'data/dev.csv', copied) });
-  writeFileSync(join(dir, 'foldseal.lock.json'), JSON.stringify({ 'foldseal-lock': 1, sealed: { file: 'splits/final.ids', sha256: sha256(sealedIds) }, protocols: {} }));
+  const dir = tempDir({
+    'data/data.csv': csv,
+    'data/dev.csv': copied,
+    'splits/final.ids': sealedIds,
+    'splits/final.csv': pinned,
+    'final.yaml': finalP,
+    'dev.yaml': protocolFor('dev', 'data/dev.csv', copied),
+  });
+  writeFileSync(
+    join(dir, 'foldseal.lock.json'),
+    JSON.stringify({ 'foldseal-lock': 1, sealed: { file: 'splits/final.ids', sha256: sha256(sealedIds) }, protocols: {} }),
+  );
   const lock = cli(['lock', '.'], dir);
   t.equal(lock.code, 0, lock.stderr);
   t.match(lock.stdout, 'sealed rows: 4 content digests recorded');
   t.equal(JSON.parse(readFileSync(join(dir, 'foldseal.lock.json'), 'utf8')).sealed.rows.length, 4);
   const r = cli(['check', '.'], dir);
   t.equal(r.code, 1);
-  t.match(r.stderr, 'dev.yaml:3:14: error: dev has 4 rows in data/dev.csv with the same label and feature values as sealed rows, under other ids: copy1, copy2, copy3, copy4');
+  t.match(
+    r.stderr,
+    'dev.yaml:3:14: error: dev has 4 rows in data/dev.csv with the same label and feature values as sealed rows, under other ids: copy1, copy2, copy3, copy4',
+  );
   // The final data is gone: the digests in the lock still catch the copy.
   writeFileSync(join(dir, 'final.yaml'), finalP.replace('final: true\n', 'final: true\ndescription: moved\n'));
   const dev = cli(['run', 'dev.yaml', '--out', 'res-dev'], dir);
@@ -279,7 +345,10 @@ t.test('sealed rows are sealed by content: a copy under new ids is caught; run r
   const train = rows.slice(5).map((l) => Number(l.split(',')[3]));
   const mean = train.reduce((s, v) => s + v, 0) / train.length;
   const fitted = JSON.stringify(models.refit.pipeline);
-  t.ok(fitted.includes(String(mean)), `the refit standardize mean of feature a is the training rows' mean ${mean} (not the mean over all rows, ${10.5})`);
+  t.ok(
+    fitted.includes(String(mean)),
+    `the refit standardize mean of feature a is the training rows' mean ${mean} (not the mean over all rows, ${10.5})`,
+  );
   t.notOk(fitted.includes('10.5'), 'the mean over all 20 rows, sealed ones included, is not used');
 });
 
@@ -303,7 +372,11 @@ t.test('verify --rerun runs only a pinned signature, reads only inside the revie
   // A hostile manifest: its protocol names a file outside the folder (signed, even by a pinned key).
   const outside = tempDir({ 'secret.csv': 'not yours\n' });
   const hostile = JSON.parse(readFileSync(join(dir, 'unsigned', 'manifest.json'), 'utf8'));
-  for (const [location, file] of [[outside, 'secret.csv'], ['.', join(outside, 'secret.csv')], ['../../..', 'etc/passwd']]) {
+  for (const [location, file] of [
+    [outside, 'secret.csv'],
+    ['.', join(outside, 'secret.csv')],
+    ['../../..', 'etc/passwd'],
+  ]) {
     hostile.protocol.location = location;
     hostile.protocol.document.data.file = file;
     hostile.protocol.sha256 = sha256(canonicalJson(hostile.protocol.document));
@@ -337,11 +410,41 @@ t.test('verify checks the manifest against itself before any re-run', async (t) 
   t.equal(cli(['run', 'demo.yaml', '--out', 'res'], dir).code, 0);
   const original = readFileSync(join(dir, 'res', 'manifest.json'), 'utf8');
   const cases: [string, (m: any) => void, string][] = [
-    ['protocol hash', (m) => { m.protocol.document.description = 'edited'; }, 'protocol.sha256 is'],
-    ['assignment', (m) => { m.split.assignment[0][2] = m.split.assignment[0][2] === 1 ? 2 : 1; }, "split.assignment-sha256 is"],
-    ['rows', (m) => { m.data.rows = 119; }, 'data.rows is 119, but the assignment holds 120, 120 distinct ids per repeat'],
-    ['class counts', (m) => { m.data['class-counts'].yes += 1; }, 'do not add up to data.rows (120)'],
-    ['results', (m) => { m.results.summary = {}; }, 'the results embedded in the manifest are not those of results.json next to it'],
+    [
+      'protocol hash',
+      (m) => {
+        m.protocol.document.description = 'edited';
+      },
+      'protocol.sha256 is',
+    ],
+    [
+      'assignment',
+      (m) => {
+        m.split.assignment[0][2] = m.split.assignment[0][2] === 1 ? 2 : 1;
+      },
+      'split.assignment-sha256 is',
+    ],
+    [
+      'rows',
+      (m) => {
+        m.data.rows = 119;
+      },
+      'data.rows is 119, but the assignment holds 120, 120 distinct ids per repeat',
+    ],
+    [
+      'class counts',
+      (m) => {
+        m.data['class-counts'].yes += 1;
+      },
+      'do not add up to data.rows (120)',
+    ],
+    [
+      'results',
+      (m) => {
+        m.results.summary = {};
+      },
+      'the results embedded in the manifest are not those of results.json next to it',
+    ],
   ];
   for (const [name, edit, message] of cases) {
     const m = JSON.parse(original);
@@ -357,7 +460,10 @@ t.test('verify checks the manifest against itself before any re-run', async (t) 
   const alone = tempDir({ 'manifest.json': original });
   const r = cli(['verify', 'manifest.json', '--allow-unpinned'], alone);
   t.equal(r.code, 1, 'a manifest without any of its result files is not verified');
-  t.match(r.stderr, 'none of the 4 result files the manifest lists (applied.csv, models.json, predictions.csv, results.json) is next to it, so there is nothing left to vouch for');
+  t.match(
+    r.stderr,
+    'none of the 4 result files the manifest lists (applied.csv, models.json, predictions.csv, results.json) is next to it, so there is nothing left to vouch for',
+  );
   t.match(r.stdout, /\nnot verified \(results-missing\)\n$/);
 });
 
@@ -370,10 +476,19 @@ t.test('a new row under a training id must be that row: else an error at both pl
   const other = news[2].replace('CS-0122', 'CS-0002');
   const text = [news[0], same, other, ...news.slice(3)].join('\n');
   writeFileSync(join(dir, 'data', 'seedlings-new.csv'), text);
-  writeFileSync(join(dir, 'demo.yaml'), demoText.replace(/new-rows: \{file: data\/seedlings-new.csv, sha256: "[0-9a-f]+"\}/, `new-rows: {file: data/seedlings-new.csv, sha256: "${sha256(text)}"}`));
+  writeFileSync(
+    join(dir, 'demo.yaml'),
+    demoText.replace(
+      /new-rows: \{file: data\/seedlings-new.csv, sha256: "[0-9a-f]+"\}/,
+      `new-rows: {file: data/seedlings-new.csv, sha256: "${sha256(text)}"}`,
+    ),
+  );
   const r = cli(['validate', 'demo.yaml'], dir);
   t.equal(r.code, 1);
-  t.equal(r.stderr.split('\n')[0], 'data/seedlings-new.csv:3:1: error: new row "CS-0002" has the id of a row of the cross-validation (data/seedlings.csv line 3) but different feature values');
+  t.equal(
+    r.stderr.split('\n')[0],
+    'data/seedlings-new.csv:3:1: error: new row "CS-0002" has the id of a row of the cross-validation (data/seedlings.csv line 3) but different feature values',
+  );
   t.notMatch(r.stderr, 'CS-0001', 'the same row under its own id is fine');
   // apply: the saved models know the training rows by content.
   const p2 = project();
@@ -381,7 +496,10 @@ t.test('a new row under a training id must be that row: else an error at both pl
   writeFileSync(join(p2, 'later.csv'), [news[0], same, other].join('\n') + '\n');
   const a = cli(['apply', 'res', 'later.csv'], p2);
   t.equal(a.code, 1);
-  t.match(a.stderr, 'later.csv:3:1: error: new row "CS-0002" has the id of a row of the cross-validation (in the run of res) but different feature values');
+  t.match(
+    a.stderr,
+    'later.csv:3:1: error: new row "CS-0002" has the id of a row of the cross-validation (in the run of res) but different feature values',
+  );
   writeFileSync(join(p2, 'later.csv'), [news[0], same].join('\n') + '\n');
   const ok = cli(['apply', 'res', 'later.csv'], p2);
   t.equal(ok.code, 0, ok.stderr);

@@ -17,9 +17,16 @@ const keyA = generateKeyPairSync('ed25519');
 const keyB = generateKeyPairSync('ed25519');
 const tool = { name: 'foldseal' as const, version: '0.0.0-test', node: 'v20', platform: 'test' };
 const { input, out } = await produceRun(join(root, 'protocols', 'demo.yaml'));
-const { text } = manifestForRun(input!, out!, { tool, created: '2026-12-01T00:00:00.000Z', protocolLocation: '../protocols', key: keyA, validate });
+const { text } = manifestForRun(input!, out!, {
+  tool,
+  created: '2026-12-01T00:00:00.000Z',
+  protocolLocation: '../protocols',
+  key: keyA,
+  validate,
+});
 const pin = (k: { publicKey: KeyObject }) => [{ raw: rawPublicKey(k.publicKey) }];
-const rejected = (s: string, publicKey = keyA.publicKey) => checkManifest(s, { file: 'm.json', pinned: pin({ publicKey }), validate }).problems.some((p) => p.severity === 'error');
+const rejected = (s: string, publicKey = keyA.publicKey) =>
+  checkManifest(s, { file: 'm.json', pinned: pin({ publicKey }), validate }).problems.some((p) => p.severity === 'error');
 
 type Path = (string | number)[];
 function paths(value: unknown, prefix: Path = [], out: Path[] = []): Path[] {
@@ -35,41 +42,55 @@ function paths(value: unknown, prefix: Path = [], out: Path[] = []): Path[] {
 const base = JSON.parse(text);
 const all = paths(base);
 const get = (o: any, p: Path) => p.reduce((x, k) => x[k], o);
-const set = (o: any, p: Path, v: unknown) => { get(o, p.slice(0, -1))[p[p.length - 1]] = v; };
+const set = (o: any, p: Path, v: unknown) => {
+  get(o, p.slice(0, -1))[p[p.length - 1]] = v;
+};
 
 t.test('the untouched manifest verifies with key A and fails with key B', async (t) => {
   t.same(checkManifest(text, { file: 'm.json', pinned: pin(keyA), validate }).problems, []);
   const withB = checkManifest(text, { file: 'm.json', pinned: pin(keyB), validate });
-  t.same(withB.problems.map((p) => p.code), ['signature-wrong-key']);
+  t.same(
+    withB.problems.map((p) => p.code),
+    ['signature-wrong-key'],
+  );
 });
 
 t.test('1,200 generated mutations: none is accepted', async (t) => {
   let tried = 0;
   const bytes = Buffer.from(text, 'utf8');
-  fc.assert(fc.property(fc.nat(bytes.length - 1), fc.integer({ min: 1, max: 255 }), (i, delta) => {
-    const b = Buffer.from(bytes);
-    b[i] = (b[i] + delta) % 256;
-    tried++;
-    return rejected(b.toString('utf8'));
-  }), { numRuns: 2000 });
-  fc.assert(fc.property(fc.constantFrom(...all), (p) => {
-    const m = structuredClone(base);
-    const parent = get(m, p.slice(0, -1));
-    if (Array.isArray(parent)) parent.splice(p[p.length - 1] as number, 1);
-    else delete parent[p[p.length - 1]];
-    tried++;
-    return rejected(canonicalJson(m) + '\n');
-  }), { numRuns: 300 });
-  fc.assert(fc.property(fc.constantFrom(...all), fc.constantFrom(...all), (p, q) => {
-    const m = structuredClone(base);
-    const a = get(m, p);
-    const b = get(m, q);
-    fc.pre(canonicalJson(a) !== canonicalJson(b) && !p.join('/').startsWith(q.join('/')) && !q.join('/').startsWith(p.join('/')));
-    set(m, p, structuredClone(b));
-    set(m, q, structuredClone(a));
-    tried++;
-    return rejected(canonicalJson(m) + '\n');
-  }), { numRuns: 300 });
+  fc.assert(
+    fc.property(fc.nat(bytes.length - 1), fc.integer({ min: 1, max: 255 }), (i, delta) => {
+      const b = Buffer.from(bytes);
+      b[i] = (b[i] + delta) % 256;
+      tried++;
+      return rejected(b.toString('utf8'));
+    }),
+    { numRuns: 2000 },
+  );
+  fc.assert(
+    fc.property(fc.constantFrom(...all), (p) => {
+      const m = structuredClone(base);
+      const parent = get(m, p.slice(0, -1));
+      if (Array.isArray(parent)) parent.splice(p[p.length - 1] as number, 1);
+      else delete parent[p[p.length - 1]];
+      tried++;
+      return rejected(canonicalJson(m) + '\n');
+    }),
+    { numRuns: 300 },
+  );
+  fc.assert(
+    fc.property(fc.constantFrom(...all), fc.constantFrom(...all), (p, q) => {
+      const m = structuredClone(base);
+      const a = get(m, p);
+      const b = get(m, q);
+      fc.pre(canonicalJson(a) !== canonicalJson(b) && !p.join('/').startsWith(q.join('/')) && !q.join('/').startsWith(p.join('/')));
+      set(m, p, structuredClone(b));
+      set(m, q, structuredClone(a));
+      tried++;
+      return rejected(canonicalJson(m) + '\n');
+    }),
+    { numRuns: 300 },
+  );
   t.ok(tried >= 1000, `${tried} mutations tried, all rejected`);
 });
 
@@ -77,9 +98,16 @@ t.test('a changed value is named by its member path', async (t) => {
   const m = structuredClone(base);
   m.results.summary.accuracy.mean = 0.99;
   const problems = checkManifest(canonicalJson(m) + '\n', { file: 'm.json', pinned: pin(keyA), validate }).problems;
-  t.same(problems.map((p) => p.message), ['the signature does not match the content: /results/summary changed after signing']);
+  t.same(
+    problems.map((p) => p.message),
+    ['the signature does not match the content: /results/summary changed after signing'],
+  );
   const reformatted = JSON.stringify(base, null, 2);
-  t.same(checkManifest(reformatted, { file: 'm.json', pinned: pin(keyA), validate }).problems.map((p) => p.code), ['manifest-not-canonical'], 'a pretty-printed copy is flagged, its signature still holds');
+  t.same(
+    checkManifest(reformatted, { file: 'm.json', pinned: pin(keyA), validate }).problems.map((p) => p.code),
+    ['manifest-not-canonical'],
+    'a pretty-printed copy is flagged, its signature still holds',
+  );
 });
 
 t.test('bad manifests', async (t) => {
@@ -92,7 +120,10 @@ t.test('bad manifests', async (t) => {
   const unsigned = structuredClone(base);
   delete unsigned.signature;
   t.same(codes(canonicalJson(unsigned) + '\n'), ['manifest-unsigned']);
-  t.same(checkManifest(canonicalJson(unsigned) + '\n', { file: 'm.json', allowUnpinned: true, validate }).problems.map((p) => p.severity), ['warning']);
+  t.same(
+    checkManifest(canonicalJson(unsigned) + '\n', { file: 'm.json', allowUnpinned: true, validate }).problems.map((p) => p.severity),
+    ['warning'],
+  );
   t.same(codes(text), ['signature-unpinned'], 'valid but unpinned without --key');
   const forged = structuredClone(base);
   forged.signature['key-sha256'] = '0'.repeat(64);

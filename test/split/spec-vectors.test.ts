@@ -13,7 +13,17 @@ export function runVector(v: SpecVector): string[] {
   const classes = [...new Set(v.rows.map((r) => r[1]))].sort(compareUtf8);
   const y = Int32Array.from(v.rows.map((r) => classes.indexOf(r[1])));
   const groups = v.rows[0].length > 2 ? v.rows.map((r) => r[2]) : undefined;
-  const a = assignFolds({ ids, y, classCount: classes.length, groups }, { rule: v.rule, folds: v.folds ?? 5, repeats: v.repeats ?? 1, seed: v.seed, assign: v.assign ?? 'balanced', testFraction: v['test-fraction'] });
+  const a = assignFolds(
+    { ids, y, classCount: classes.length, groups },
+    {
+      rule: v.rule,
+      folds: v.folds ?? 5,
+      repeats: v.repeats ?? 1,
+      seed: v.seed,
+      assign: v.assign ?? 'balanced',
+      testFraction: v['test-fraction'],
+    },
+  );
   return assignmentCsv(a).trimEnd().split('\n').slice(1);
 }
 
@@ -23,7 +33,10 @@ const rejected = all.filter((v) => v.reject);
 
 t.test('the spec has at least 10 vectors covering every rule and both modes', async (t) => {
   t.ok(vectors.length >= 10);
-  t.same(new Set(vectors.map((v) => v.rule)), new Set(['holdout', 'kfold', 'stratified-kfold', 'grouped-kfold', 'leave-one-out', 'leave-group-out']));
+  t.same(
+    new Set(vectors.map((v) => v.rule)),
+    new Set(['holdout', 'kfold', 'stratified-kfold', 'grouped-kfold', 'leave-one-out', 'leave-group-out']),
+  );
   t.ok(vectors.some((v) => v.assign === 'stable'));
 });
 
@@ -36,12 +49,25 @@ t.test('spec §8 rejection vectors are refused with their problem code', async (
   t.ok(rejected.length >= 5);
   for (const v of rejected) {
     const grouped = v.rows[0].length > 2;
-    const csv = [`id,label,${grouped ? 'g,' : ''}a`, ...v.rows.map((r, i) => `${r[0]},${r[1]},${grouped ? `${r[2]},` : ''}${i}`)].join('\n') + '\n';
-    const split = JSON.stringify({ rule: v.rule, ...(v.folds ? { folds: v.folds } : {}), ...(v.seed !== undefined ? { seed: v.seed } : {}), ...(v.assign ? { assign: v.assign } : {}), ...(v['test-fraction'] ? { 'test-fraction': v['test-fraction'] } : {}) });
-    const dir = tempDir({ 'data.csv': csv, 'p.yaml': `foldseal: 1\nname: v\ndata: {file: data.csv, sha256: "${sha256(csv)}", id: id, label: label${grouped ? ', group: g' : ''}}\nsplit: ${split}\nmodel: {kind: gaussian-nb}\n` });
+    const csv =
+      [`id,label,${grouped ? 'g,' : ''}a`, ...v.rows.map((r, i) => `${r[0]},${r[1]},${grouped ? `${r[2]},` : ''}${i}`)].join('\n') + '\n';
+    const split = JSON.stringify({
+      rule: v.rule,
+      ...(v.folds ? { folds: v.folds } : {}),
+      ...(v.seed !== undefined ? { seed: v.seed } : {}),
+      ...(v.assign ? { assign: v.assign } : {}),
+      ...(v['test-fraction'] ? { 'test-fraction': v['test-fraction'] } : {}),
+    });
+    const dir = tempDir({
+      'data.csv': csv,
+      'p.yaml': `foldseal: 1\nname: v\ndata: {file: data.csv, sha256: "${sha256(csv)}", id: id, label: label${grouped ? ', group: g' : ''}}\nsplit: ${split}\nmodel: {kind: gaussian-nb}\n`,
+    });
     const r = cli(['validate', 'p.yaml', '--format', 'json'], dir);
     t.equal(r.code, 1, v.name);
-    t.ok((JSON.parse(r.stdout) as { code: string }[]).some((p) => p.code === v.reject), `${v.name}: ${r.stdout}`);
+    t.ok(
+      (JSON.parse(r.stdout) as { code: string }[]).some((p) => p.code === v.reject),
+      `${v.name}: ${r.stdout}`,
+    );
   }
 });
 
@@ -56,10 +82,14 @@ t.test('key derivation vectors of spec §2', async (t) => {
 
 // Outside check: an implementation of the spec in Python (hashlib + integers) written from the document.
 const python = spawnSync('python3', ['--version']).status === 0;
-t.test('an independent Python implementation of the spec agrees on every vector', { skip: python ? false : 'python3 not installed' }, async (t) => {
-  const r = spawnSync('python3', [join(root, 'test', 'reference', 'split_v1.py')], { input: JSON.stringify(all), encoding: 'utf8' });
-  t.equal(r.status, 0, r.stderr);
-  const got = JSON.parse(r.stdout) as Record<string, string[] | { reject: string }>;
-  for (const v of vectors) t.same(got[v.name], v.expected, v.name);
-  for (const v of rejected) t.same(got[v.name], { reject: v.reject }, v.name);
-});
+t.test(
+  'an independent Python implementation of the spec agrees on every vector',
+  { skip: python ? false : 'python3 not installed' },
+  async (t) => {
+    const r = spawnSync('python3', [join(root, 'test', 'reference', 'split_v1.py')], { input: JSON.stringify(all), encoding: 'utf8' });
+    t.equal(r.status, 0, r.stderr);
+    const got = JSON.parse(r.stdout) as Record<string, string[] | { reject: string }>;
+    for (const v of vectors) t.same(got[v.name], v.expected, v.name);
+    for (const v of rejected) t.same(got[v.name], { reject: v.reject }, v.name);
+  },
+);

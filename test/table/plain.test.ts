@@ -21,19 +21,44 @@ function comparable(r: ReturnType<typeof tableFromBytes>) {
   const tb = r.table;
   return {
     problems: r.problems.map((p) => [p.severity, p.code, p.message, p.position]),
-    table: tb && { ...tb, X: { ...tb.X, data: Array.from(tb.X.data, (v) => (Object.is(v, -0) ? '-0' : Number.isNaN(v) ? 'NaN' : v)) }, y: Array.from(tb.y), rowLines: Array.from(tb.rowLines) },
+    table: tb && {
+      ...tb,
+      X: { ...tb.X, data: Array.from(tb.X.data, (v) => (Object.is(v, -0) ? '-0' : Number.isNaN(v) ? 'NaN' : v)) },
+      y: Array.from(tb.y),
+      rowLines: Array.from(tb.rowLines),
+    },
   };
 }
 
 const numberCell = fc.oneof(
   fc.double({ noNaN: true, noDefaultInfinity: true }).map(String),
   fc.tuple(fc.integer({ min: -99999, max: 99999 }), fc.nat(999999)).map(([a, b]) => `${a}.${b}`),
-  fc.constantFrom('-0', '0.000', '.5', '5.', '+3', '1e3', '-2.5E-3', '007', '12345678901234567', '0.1234567890123456', 'NA', '', '12abc', 'Infinity', '-', '.'),
+  fc.constantFrom(
+    '-0',
+    '0.000',
+    '.5',
+    '5.',
+    '+3',
+    '1e3',
+    '-2.5E-3',
+    '007',
+    '12345678901234567',
+    '0.1234567890123456',
+    'NA',
+    '',
+    '12abc',
+    'Infinity',
+    '-',
+    '.',
+  ),
 );
 const textCell = fc.constantFrom('s1', 's2', 'é', 'K', '\u212a', '', 'a b', 'NA', 'x"y', '"q,r"');
 
 const file = fc.record({
-  rows: fc.array(fc.tuple(textCell, fc.constantFrom('a', 'b', 'c', '', 'NA'), fc.array(numberCell, { minLength: 3, maxLength: 3 })), { minLength: 1, maxLength: 7 }),
+  rows: fc.array(fc.tuple(textCell, fc.constantFrom('a', 'b', 'c', '', 'NA'), fc.array(numberCell, { minLength: 3, maxLength: 3 })), {
+    minLength: 1,
+    maxLength: 7,
+  }),
   eol: fc.constantFrom('\n', '\r\n', '\r'),
   bom: fc.boolean(),
   trailing: fc.constantFrom('', '\n', '\n\n', '\r\n'),
@@ -43,15 +68,27 @@ const file = fc.record({
 
 t.test('the fast reader and the full reader agree on every generated file', async (t) => {
   let fast = 0;
-  fc.assert(fc.property(file, fc.boolean(), (f, listed) => {
-    const lines = ['id,label,a,b,c', ...f.rows.map(([id, label, xs], r) => [id, label, ...(r === f.ragged ? xs.slice(1) : r === f.ragged - 10 ? [...xs, '1'] : xs)].join(','))];
-    if (f.blankInside && lines.length > 2) lines.splice(2, 0, '');
-    const text = (f.bom ? '\ufeff' : '') + lines.join(f.eol) + f.trailing;
-    const bytes = enc(text);
-    const roles: DataRoles = { id: 'id', label: 'label', missing: ['NA'], features: listed ? ['c', 'a'] : undefined };
-    if (readPlain(bytes, 0x2c)) fast++;
-    t.same(comparable(tableFromBytes(bytes, 'f.csv', roles, undefined, where)), comparable(fullReader(bytes, roles)), JSON.stringify(text));
-  }), { numRuns: 1500 });
+  fc.assert(
+    fc.property(file, fc.boolean(), (f, listed) => {
+      const lines = [
+        'id,label,a,b,c',
+        ...f.rows.map(([id, label, xs], r) =>
+          [id, label, ...(r === f.ragged ? xs.slice(1) : r === f.ragged - 10 ? [...xs, '1'] : xs)].join(','),
+        ),
+      ];
+      if (f.blankInside && lines.length > 2) lines.splice(2, 0, '');
+      const text = (f.bom ? '\ufeff' : '') + lines.join(f.eol) + f.trailing;
+      const bytes = enc(text);
+      const roles: DataRoles = { id: 'id', label: 'label', missing: ['NA'], features: listed ? ['c', 'a'] : undefined };
+      if (readPlain(bytes, 0x2c)) fast++;
+      t.same(
+        comparable(tableFromBytes(bytes, 'f.csv', roles, undefined, where)),
+        comparable(fullReader(bytes, roles)),
+        JSON.stringify(text),
+      );
+    }),
+    { numRuns: 1500 },
+  );
   t.ok(fast > 300, `the fast reader read ${fast} of the files itself`);
 });
 

@@ -1,28 +1,49 @@
 import fc from 'fast-check';
 import t from 'tap';
 import { delimitedGrid, readDelimited, textColumn } from '../../src/table/delimited.js';
-import { tableFromBytes } from '../../src/table/load.js';
 import { plainGrid, readPlain } from '../../src/table/plain.js';
 import { parseNumberBytes } from '../../src/table/number.js';
 import { buildTable } from '../../src/table/table.js';
 
 const enc = (s: string) => new TextEncoder().encode(s);
-const num = (s: string) => { const b = enc(s); return parseNumberBytes(b, 0, b.length); };
+const num = (s: string) => {
+  const b = enc(s);
+  return parseNumberBytes(b, 0, b.length);
+};
 
 // Reference: ECMAScript Number::toString round-trips every double, and Number(text) is
 // correctly rounded (ECMA-262 §6.1.6.1.20, §7.1.4.1.1); the fast path must agree bit for bit.
 t.test('number parsing agrees with correctly rounded Number() on every double', async (t) => {
-  fc.assert(fc.property(fc.double({ noNaN: true, noDefaultInfinity: true }), (x) => Object.is(num(String(x)), x) || (x === 0 && num(String(x)) === 0)), { numRuns: 5000 });
-  fc.assert(fc.property(fc.integer({ min: -1e6, max: 1e6 }), fc.nat(9999), fc.integer({ min: -30, max: 30 }), (a, b, e) => {
-    const text = `${a}.${String(b).padStart(4, '0')}e${e}`;
-    return Object.is(num(text), Number(text));
-  }), { numRuns: 3000 });
+  fc.assert(
+    fc.property(
+      fc.double({ noNaN: true, noDefaultInfinity: true }),
+      (x) => Object.is(num(String(x)), x) || (x === 0 && num(String(x)) === 0),
+    ),
+    { numRuns: 5000 },
+  );
+  fc.assert(
+    fc.property(fc.integer({ min: -1e6, max: 1e6 }), fc.nat(9999), fc.integer({ min: -30, max: 30 }), (a, b, e) => {
+      const text = `${a}.${String(b).padStart(4, '0')}e${e}`;
+      return Object.is(num(text), Number(text));
+    }),
+    { numRuns: 3000 },
+  );
   t.pass('agreed');
 });
 
 t.test('strict grammar: these are not numbers', async (t) => {
-  for (const s of ['', '1,5', '12abc', '0x10', 'Infinity', 'NaN', '1e', '.', '-', '1.2.3', ' 1', '1 ', '+']) t.ok(Number.isNaN(num(s)), JSON.stringify(s));
-  for (const [s, v] of [['.5', 0.5], ['5.', 5], ['-0.25', -0.25], ['+3', 3], ['1E3', 1000], ['1e-400', 0], ['123456789012345678901234567890', 1.2345678901234568e29]] as const) t.equal(num(s), v, s);
+  for (const s of ['', '1,5', '12abc', '0x10', 'Infinity', 'NaN', '1e', '.', '-', '1.2.3', ' 1', '1 ', '+'])
+    t.ok(Number.isNaN(num(s)), JSON.stringify(s));
+  for (const [s, v] of [
+    ['.5', 0.5],
+    ['5.', 5],
+    ['-0.25', -0.25],
+    ['+3', 3],
+    ['1E3', 1000],
+    ['1e-400', 0],
+    ['123456789012345678901234567890', 1.2345678901234568e29],
+  ] as const)
+    t.equal(num(s), v, s);
 });
 
 t.test('RFC 4180 quoting, CRLF, a BOM and a last line without a break', async (t) => {
@@ -42,9 +63,18 @@ t.test('TSV and trailing blank lines', async (t) => {
 });
 
 t.test('malformed CSV is a located problem', async (t) => {
-  t.same(readDelimited(enc('a,b\n1,"x\n'), 0x2c, 'f.csv').problems.map((p) => [p.code, p.position]), [['csv-unclosed-quote', { line: 2, col: 3 }]]);
-  t.same(readDelimited(enc('a,b\n1,"x"y\n'), 0x2c, 'f.csv').problems.map((p) => [p.code, p.position]), [['csv-text-after-quote', { line: 2, col: 6 }]]);
-  t.same(readDelimited(enc('a,b\n1,2,3\n'), 0x2c, 'f.csv').problems.map((p) => [p.code, p.message]), [['csv-ragged-row', 'row has 3 cells but the header has 2']]);
+  t.same(
+    readDelimited(enc('a,b\n1,"x\n'), 0x2c, 'f.csv').problems.map((p) => [p.code, p.position]),
+    [['csv-unclosed-quote', { line: 2, col: 3 }]],
+  );
+  t.same(
+    readDelimited(enc('a,b\n1,"x"y\n'), 0x2c, 'f.csv').problems.map((p) => [p.code, p.position]),
+    [['csv-text-after-quote', { line: 2, col: 6 }]],
+  );
+  t.same(
+    readDelimited(enc('a,b\n1,2,3\n'), 0x2c, 'f.csv').problems.map((p) => [p.code, p.message]),
+    [['csv-ragged-row', 'row has 3 cells but the header has 2']],
+  );
 });
 
 t.test('features: explicit list, exclusions, text columns and missing tokens', async (t) => {
@@ -52,17 +82,23 @@ t.test('features: explicit list, exclusions, text columns and missing tokens', a
   const where = () => undefined;
   // The same answers from both readers (the file has no quotes, so the fast one can read it).
   for (const grid of [delimitedGrid(readDelimited(bytes, 0x2c, 'f.csv').table!), plainGrid(readPlain(bytes, 0x2c)!)]) {
-  const r = { table: grid };
-  const auto = buildTable(r.table!, { id: 'id', label: 'lab', missing: ['NA'] }, 'f.csv', where).table!;
-  t.same(auto.featureNames, ['a', 'b', 'c']);
-  t.same(auto.ignoredColumns, ['site']);
-  t.ok(Number.isNaN(auto.X.data[1]));
-  const listed = buildTable(r.table!, { id: 'id', label: 'lab', features: ['c', 'a'], missing: ['NA'] }, 'f.csv', where).table!;
-  t.same(Array.from(listed.X.data), [3, 1, 6, 4], 'row-major, in the listed order');
-  const excluded = buildTable(r.table!, { id: 'id', label: 'lab', features: { exclude: ['b', 'zz'] }, missing: ['NA'] }, 'f.csv', where);
-  t.same(excluded.table!.featureNames, ['a', 'c']);
-  t.same(excluded.problems.map((p) => p.code), ['data-unknown-exclude']);
-  const clash = buildTable(r.table!, { id: 'id', label: 'lab', features: ['lab', 'nope'], missing: [] }, 'f.csv', where);
-  t.same(clash.problems.map((p) => p.code), ['data-feature-role', 'data-missing-column']);
+    const r = { table: grid };
+    const auto = buildTable(r.table!, { id: 'id', label: 'lab', missing: ['NA'] }, 'f.csv', where).table!;
+    t.same(auto.featureNames, ['a', 'b', 'c']);
+    t.same(auto.ignoredColumns, ['site']);
+    t.ok(Number.isNaN(auto.X.data[1]));
+    const listed = buildTable(r.table!, { id: 'id', label: 'lab', features: ['c', 'a'], missing: ['NA'] }, 'f.csv', where).table!;
+    t.same(Array.from(listed.X.data), [3, 1, 6, 4], 'row-major, in the listed order');
+    const excluded = buildTable(r.table!, { id: 'id', label: 'lab', features: { exclude: ['b', 'zz'] }, missing: ['NA'] }, 'f.csv', where);
+    t.same(excluded.table!.featureNames, ['a', 'c']);
+    t.same(
+      excluded.problems.map((p) => p.code),
+      ['data-unknown-exclude'],
+    );
+    const clash = buildTable(r.table!, { id: 'id', label: 'lab', features: ['lab', 'nope'], missing: [] }, 'f.csv', where);
+    t.same(
+      clash.problems.map((p) => p.code),
+      ['data-feature-role', 'data-missing-column'],
+    );
   }
 });

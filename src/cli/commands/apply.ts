@@ -46,46 +46,107 @@ export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<Exit
   const predictionsPath = join(args.results, 'predictions.csv');
   const results = parseJson(await read(resultsPath), resultsPath);
   if (results?.['foldseal-results'] !== RESULTS_VERSION) {
-    throw new FoldsealError(error('results-version', `${shown(resultsPath)} has results format ${JSON.stringify(results?.['foldseal-results'])}; this foldseal reads format ${RESULTS_VERSION}`, { file: shown(resultsPath) }), 1);
+    throw new FoldsealError(
+      error(
+        'results-version',
+        `${shown(resultsPath)} has results format ${JSON.stringify(results?.['foldseal-results'])}; this foldseal reads format ${RESULTS_VERSION}`,
+        { file: shown(resultsPath) },
+      ),
+      1,
+    );
   }
   const modelBytes = await read(modelsPath);
   const expected = results.files?.['models.json'];
   if (sha256Bytes(modelBytes) !== expected) {
-    throw new FoldsealError(error('models-hash-mismatch', `${shown(modelsPath)} does not match the SHA-256 recorded in results.json (it was changed after the run)`, { file: shown(modelsPath), hint: 're-run the protocol instead of editing saved models' }), 1);
+    throw new FoldsealError(
+      error(
+        'models-hash-mismatch',
+        `${shown(modelsPath)} does not match the SHA-256 recorded in results.json (it was changed after the run)`,
+        { file: shown(modelsPath), hint: 're-run the protocol instead of editing saved models' },
+      ),
+      1,
+    );
   }
   const saved = parseJson(modelBytes, modelsPath) as ModelsFile;
-  if (saved['foldseal-models'] !== MODELS_VERSION) throw new FoldsealError(error('models-version', `${shown(modelsPath)} has models format ${JSON.stringify(saved['foldseal-models'])}; this foldseal reads format ${MODELS_VERSION}`, { file: shown(modelsPath) }), 1);
+  if (saved['foldseal-models'] !== MODELS_VERSION)
+    throw new FoldsealError(
+      error(
+        'models-version',
+        `${shown(modelsPath)} has models format ${JSON.stringify(saved['foldseal-models'])}; this foldseal reads format ${MODELS_VERSION}`,
+        { file: shown(modelsPath) },
+      ),
+      1,
+    );
   const predictionBytes = await read(predictionsPath);
   if (sha256Bytes(predictionBytes) !== results.files?.['predictions.csv']) {
-    throw new FoldsealError(error('predictions-hash-mismatch', `${shown(predictionsPath)} does not match the SHA-256 recorded in results.json`, { file: shown(predictionsPath) }), 1);
+    throw new FoldsealError(
+      error('predictions-hash-mismatch', `${shown(predictionsPath)} does not match the SHA-256 recorded in results.json`, {
+        file: shown(predictionsPath),
+      }),
+      1,
+    );
   }
   const rule = args.rule ?? saved.reconcile.rule;
   const tie = args.tie ?? (rule === saved.reconcile.rule ? saved.reconcile.tie : null);
   const problems: Problem[] = [];
   if (rule === 'majority-vote' && tie === null && tiePossible(saved.folds.length, saved.classes.length)) {
-    problems.push(error('tie-rule-needed', `majority-vote over ${saved.folds.length} fold models and ${saved.classes.length} classes can tie`, { hint: 'add --tie mean-probability, --tie abstain or --tie class-order' }));
+    problems.push(
+      error('tie-rule-needed', `majority-vote over ${saved.folds.length} fold models and ${saved.classes.length} classes can tie`, {
+        hint: 'add --tie mean-probability, --tie abstain or --tie class-order',
+      }),
+    );
   }
-  if (rule === 'refit' && !saved.refit) problems.push(error('no-refit-model', 'models.json has no refit model', { hint: 'run the protocol with --refit (or reconcile.rule: refit) to save one' }));
+  if (rule === 'refit' && !saved.refit)
+    problems.push(
+      error('no-refit-model', 'models.json has no refit model', {
+        hint: 'run the protocol with --refit (or reconcile.rule: refit) to save one',
+      }),
+    );
   if (problems.length) throw new FoldsealError(problems, 2);
 
   const tableBytes = await read(args.table);
   const nr = newRowsFromBytes(tableBytes, shown(args.table), saved.features, saved.id ?? undefined, saved.missing, saved['known-columns']);
-  if (nr.rows) nr.problems.push(...knownIdProblems(nr.rows, shown(args.table), saved.features, new Map(Object.entries(saved['known-rows'] ?? {})), () => ({ where: `in the run of ${shown(args.results)}` })));
+  if (nr.rows)
+    nr.problems.push(
+      ...knownIdProblems(nr.rows, shown(args.table), saved.features, new Map(Object.entries(saved['known-rows'] ?? {})), () => ({
+        where: `in the run of ${shown(args.results)}`,
+      })),
+    );
   reportProblems(io, nr.problems, 'text');
   if (hasErrors(nr.problems) || !nr.rows) return 1;
-  let rows;
+  let rows: ReturnType<typeof applyRows>;
   try {
-    rows = applyRows({ kind: saved.kind, folds: saved.folds, refit: saved.refit, classes: saved.classes, rule, tie, rows: nr.rows, heldOut: heldOutFromPredictions(predictionBytes, saved.classes) });
+    rows = applyRows({
+      kind: saved.kind,
+      folds: saved.folds,
+      refit: saved.refit,
+      classes: saved.classes,
+      rule,
+      tie,
+      rows: nr.rows,
+      heldOut: heldOutFromPredictions(predictionBytes, saved.classes),
+    });
   } catch (e) {
     throw asUserError(e, shown(modelsPath));
   }
   const overridden = rule !== saved.reconcile.rule || tie !== saved.reconcile.tie;
-  const comment = overridden ? `foldseal apply: rule ${rule}${tie ? `, tie ${tie}` : ''} (the protocol declares ${saved.reconcile.rule}${saved.reconcile.tie ? `, tie ${saved.reconcile.tie}` : ''})` : undefined;
+  const comment = overridden
+    ? `foldseal apply: rule ${rule}${tie ? `, tie ${tie}` : ''} (the protocol declares ${saved.reconcile.rule}${saved.reconcile.tie ? `, tie ${saved.reconcile.tie}` : ''})`
+    : undefined;
   const csv = appliedCsv(rows, saved.classes, comment);
   if (args.out) {
     await writeOutputFile(resolve(args.out), csv, shown(resolve(args.out)), true);
     if (overridden) {
-      const sidecar = { 'foldseal-apply': 1, rule, tie, 'protocol-rule': saved.reconcile.rule, 'protocol-tie': saved.reconcile.tie, 'models-sha256': expected, 'table-sha256': sha256Bytes(tableBytes), 'output-sha256': sha256Bytes(csv) };
+      const sidecar = {
+        'foldseal-apply': 1,
+        rule,
+        tie,
+        'protocol-rule': saved.reconcile.rule,
+        'protocol-tie': saved.reconcile.tie,
+        'models-sha256': expected,
+        'table-sha256': sha256Bytes(tableBytes),
+        'output-sha256': sha256Bytes(csv),
+      };
       await writeOutputFile(resolve(`${args.out}.json`), JSON.stringify(sidecar, null, 2) + '\n', shown(resolve(`${args.out}.json`)), true);
     }
     io.err(`wrote ${args.out}${overridden ? ` and ${args.out}.json` : ''}\n`);

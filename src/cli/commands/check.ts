@@ -37,12 +37,27 @@ function stagedScope(root: string, input: GateInput): Set<string> {
   try {
     git(['rev-parse', '--is-inside-work-tree']);
   } catch {
-    throw new FoldsealError(error('not-a-git-repo', `${root} is not a git repository (nor inside one), so --staged has no staged change to read`, { hint: 'run foldseal check without --staged, or inside a git work tree' }), 2);
+    throw new FoldsealError(
+      error('not-a-git-repo', `${root} is not a git repository (nor inside one), so --staged has no staged change to read`, {
+        hint: 'run foldseal check without --staged, or inside a git work tree',
+      }),
+      2,
+    );
   }
   try {
     staged = git(['diff', '--cached', '--name-only', '--relative']).split('\n').filter(Boolean);
   } catch (e) {
-    throw new FoldsealError(error('git-failed', `git could not list the staged files: ${String((e as { stderr?: string }).stderr ?? '').trim().split('\n')[0]}`), 2);
+    throw new FoldsealError(
+      error(
+        'git-failed',
+        `git could not list the staged files: ${
+          String((e as { stderr?: string }).stderr ?? '')
+            .trim()
+            .split('\n')[0]
+        }`,
+      ),
+      2,
+    );
   }
   const protocols = input.protocols;
   const dataOf = (p: ProtocolState) => p.report.paths?.data;
@@ -56,7 +71,10 @@ function stagedScope(root: string, input: GateInput): Set<string> {
       if (data) touchedData.add(resolve(data));
     }
   }
-  for (const p of protocols) { const data = dataOf(p); if (data && touchedData.has(resolve(data))) scope.add(p.path); }
+  for (const p of protocols) {
+    const data = dataOf(p);
+    if (data && touchedData.has(resolve(data))) scope.add(p.path);
+  }
   return scope;
 }
 

@@ -23,7 +23,12 @@ export async function foldsCommand(args: { protocol: string; out?: string; allow
   const counts = foldCounts(a, t.y, t.classes.length);
   const header = ['repeat', 'fold', 'rows', ...t.classes.map((c) => `n[${c}]`)];
   const holdout = testsFoldOneOnly(report.protocol);
-  const rows = counts.map((c) => [String(c.repeat), holdout ? (c.fold === 1 ? 'test' : 'train') : String(c.fold), String(c.rows), ...c.perClass.map(String)]);
+  const rows = counts.map((c) => [
+    String(c.repeat),
+    holdout ? (c.fold === 1 ? 'test' : 'train') : String(c.fold),
+    String(c.rows),
+    ...c.perClass.map(String),
+  ]);
   io.err(`${a.version}: ${a.ids.length} ids, ${a.repeats} repeat${a.repeats === 1 ? '' : 's'}, ${a.folds} folds\n`);
   if (a.folds <= 50) io.err(textTable(header, rows));
   const spread = sizeSpread(counts);

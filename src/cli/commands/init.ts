@@ -27,7 +27,13 @@ export async function initCommand(args: InitArgs, io: CommandIo): Promise<ExitCo
   const out = resolve(args.out ?? `${stem}.protocol.yaml`);
   const read = await readBytes(dataPath, shown(dataPath));
   if (read.problem) throw new FoldsealError(read.problem, 2);
-  const built = tableFromBytes(read.bytes!, shown(dataPath), { id: args.id, label: args.label, group: args.group, missing: DEFAULT_MISSING }, undefined, () => undefined);
+  const built = tableFromBytes(
+    read.bytes!,
+    shown(dataPath),
+    { id: args.id, label: args.label, group: args.group, missing: DEFAULT_MISSING },
+    undefined,
+    () => undefined,
+  );
   if (!built.table || hasErrors(built.problems)) {
     reportProblems(io, built.problems, 'text');
     return 1;

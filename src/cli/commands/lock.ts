@@ -30,20 +30,34 @@ export async function lockCommand(args: { dir: string; allowOutside?: boolean },
   }
   // Sealed rows are recorded by content too, so a copy under new ids is caught even after the final data moves.
   const sealedIds = repo.input.sealed?.ids;
-  const sealed = old?.sealed && sealedIds ? { file: old.sealed.file, sha256: old.sealed.sha256, rows: [...new Set([...(old.sealed.rows ?? []), ...sealedDigests(repo.input.protocols, sealedIds)])].sort() } : old?.sealed;
-  if (sealed?.rows?.length && (old?.sealed?.rows?.length ?? 0) !== sealed.rows.length) changes.push(`sealed rows: ${sealed.rows.length} content digest${sealed.rows.length === 1 ? '' : 's'} recorded`);
+  const sealed =
+    old?.sealed && sealedIds
+      ? {
+          file: old.sealed.file,
+          sha256: old.sealed.sha256,
+          rows: [...new Set([...(old.sealed.rows ?? []), ...sealedDigests(repo.input.protocols, sealedIds)])].sort(),
+        }
+      : old?.sealed;
+  if (sealed?.rows?.length && (old?.sealed?.rows?.length ?? 0) !== sealed.rows.length)
+    changes.push(`sealed rows: ${sealed.rows.length} content digest${sealed.rows.length === 1 ? '' : 's'} recorded`);
   const next: Lock = { 'foldseal-lock': LOCK_VERSION, sealed, policy: old?.policy, protocols: {} };
   for (const p of repo.input.protocols) {
     const entry = p.entry!;
     next.protocols[p.path] = entry;
     const before = old?.protocols[p.path];
-    if (!before) { changes.push(`+ ${p.path} (${entry.name}): added`); continue; }
+    if (!before) {
+      changes.push(`+ ${p.path} (${entry.name}): added`);
+      continue;
+    }
     const what: string[] = [];
     if (before.split.seed !== entry.split.seed) what.push(`seed ${before.split.seed} → ${entry.split.seed}`);
-    if (before.split.rule !== entry.split.rule || before.split.pinned !== entry.split.pinned) what.push(`split ${before.split.rule ?? before.split.pinned} → ${entry.split.rule ?? entry.split.pinned}`);
+    if (before.split.rule !== entry.split.rule || before.split.pinned !== entry.split.pinned)
+      what.push(`split ${before.split.rule ?? before.split.pinned} → ${entry.split.rule ?? entry.split.pinned}`);
     if (before['data-sha256'] !== entry['data-sha256']) what.push('data changed');
     if (before['assignment-sha256'] !== entry['assignment-sha256']) {
-      const moved = Object.entries(before.assignment).filter(([id, f]) => entry.assignment[id] !== undefined && entry.assignment[id] !== f).length;
+      const moved = Object.entries(before.assignment).filter(
+        ([id, f]) => entry.assignment[id] !== undefined && entry.assignment[id] !== f,
+      ).length;
       what.push(`${moved} ids moved`);
     }
     if (!what.length && before['protocol-sha256'] !== entry['protocol-sha256']) what.push('protocol text changed');

@@ -29,9 +29,17 @@ export async function runCommand(args: RunArgs, io: CommandIo): Promise<ExitCode
   const onFold = (done: number, total: number) => {
     // Progress only for a person at a terminal, and only once the run has taken a while.
     const now = Date.now();
-    if (io.errIsTty && now - started > 1500 && now - lastShown > 200) { io.err(`\rfitting fold ${done}/${total}`); lastShown = now; }
+    if (io.errIsTty && now - started > 1500 && now - lastShown > 200) {
+      io.err(`\rfitting fold ${done}/${total}`);
+      lastShown = now;
+    }
   };
-  const { report, input, out } = await produceRun(args.protocol, { refit: args.refit, hooks: { onFold }, access: protocolPolicy(args.protocol, Boolean(args.allowOutside)), repoRules: true });
+  const { report, input, out } = await produceRun(args.protocol, {
+    refit: args.refit,
+    hooks: { onFold },
+    access: protocolPolicy(args.protocol, Boolean(args.allowOutside)),
+    repoRules: true,
+  });
   if (lastShown) io.err('\r\x1b[K');
   reportProblems(io, report.problems, 'text');
   if (report.unreadable) return 2;
@@ -41,7 +49,10 @@ export async function runCommand(args: RunArgs, io: CommandIo): Promise<ExitCode
   const { text } = manifestForRun(input, out, {
     tool: toolInfo(),
     created: new Date().toISOString(),
-    protocolLocation: relative(dir, dirname(resolve(args.protocol))).split('\\').join('/') || '.',
+    protocolLocation:
+      relative(dir, dirname(resolve(args.protocol)))
+        .split('\\')
+        .join('/') || '.',
     key: key?.kind === 'raw' ? key : undefined,
     validate: schemaValidator(MANIFEST_SCHEMA),
   });
@@ -49,11 +60,18 @@ export async function runCommand(args: RunArgs, io: CommandIo): Promise<ExitCode
   // An SSH key signs the manifest's bytes in manifest.json.sig, the file `ssh-keygen -Y verify` reads.
   if (key?.kind === 'ssh') {
     const bytes = Buffer.from(text, 'utf8');
-    written['manifest.json.sig'] = encodeSshsig(key.blob, MANIFEST_NAMESPACE, 'sha512', await key.sign(sshsigSignedData(MANIFEST_NAMESPACE, 'sha512', bytes)));
+    written['manifest.json.sig'] = encodeSshsig(
+      key.blob,
+      MANIFEST_NAMESPACE,
+      'sha512',
+      await key.sign(sshsigSignedData(MANIFEST_NAMESPACE, 'sha512', bytes)),
+    );
   }
   await writeOutputDir(dir, written, Boolean(args.force), shown(dir));
   io.out(cvTables(out.cv));
   if (out.applied) io.out(`\nnew rows (reconcile: ${input.protocol.reconcile.rule}):\n` + disagreementReport(out.applied, out.cv.classes));
-  io.out(`wrote ${Object.keys(written).sort().join(', ')} to ${shown(dir)}${key?.kind === 'ssh' ? ` (manifest signed with SSH key ${key.describe})` : key ? ' (manifest signed)' : ''}\n`);
+  io.out(
+    `wrote ${Object.keys(written).sort().join(', ')} to ${shown(dir)}${key?.kind === 'ssh' ? ` (manifest signed with SSH key ${key.describe})` : key ? ' (manifest signed)' : ''}\n`,
+  );
   return 0;
 }

@@ -45,7 +45,13 @@ export async function verifyCommand(args: VerifyArgs, io: CommandIo): Promise<Ex
   }
   const pinned = args.key ? await readPinnedKeys(args.key) : undefined;
   const detached = await readFileOr(`${resolve(args.manifest)}.sig`, undefined);
-  const check = checkManifest(text, { file, pinned, allowUnpinned: args.allowUnpinned, detached, validate: schemaValidator(MANIFEST_SCHEMA) });
+  const check = checkManifest(text, {
+    file,
+    pinned,
+    allowUnpinned: args.allowUnpinned,
+    detached,
+    validate: schemaValidator(MANIFEST_SCHEMA),
+  });
   const problems: Problem[] = [...check.problems];
   const lines: string[] = [];
   let differences: Difference[] = [];
@@ -60,7 +66,13 @@ export async function verifyCommand(args: VerifyArgs, io: CommandIo): Promise<Ex
     if (args.rerun && inconsistent.length) {
       problems.push(error('rerun-failed', 'the manifest contradicts itself, so it was not re-run', { file }));
     } else if (args.rerun && !trusted && !args.allowUnsigned) {
-      problems.push(error('rerun-untrusted', `the manifest is not ${check.signedBy ? 'signed by a pinned key' : 'validly signed'}, so its protocol was not re-run: a re-run reads the files the manifest names`, { file, hint: "pin the author's key with --key AUTHOR.pub, or pass --allow-unsigned if you trust where this manifest came from" }));
+      problems.push(
+        error(
+          'rerun-untrusted',
+          `the manifest is not ${check.signedBy ? 'signed by a pinned key' : 'validly signed'}, so its protocol was not re-run: a re-run reads the files the manifest names`,
+          { file, hint: "pin the author's key with --key AUTHOR.pub, or pass --allow-unsigned if you trust where this manifest came from" },
+        ),
+      );
       problems.push(error('rerun-failed', 'not re-run', { file }));
     } else if (args.rerun) {
       const rerun = await rerunManifest(m, args, problems);
@@ -73,9 +85,32 @@ export async function verifyCommand(args: VerifyArgs, io: CommandIo): Promise<Ex
   // The last line agrees with the exit code: an identical re-run of a manifest that failed another check is not "identical".
   const errors = problems.filter((q) => q.severity === 'error' && q.code !== 'rerun-failed');
   const reasons = [...new Set(errors.map((q) => q.code))].join(', ');
-  const final = reran && differences.length ? verdict(differences) : errors.length ? `not verified (${reasons})${reran ? '; the re-run itself was identical' : ''}` : reran ? verdict(differences) : failed ? 'not verified' : 'verified';
+  const final =
+    reran && differences.length
+      ? verdict(differences)
+      : errors.length
+        ? `not verified (${reasons})${reran ? '; the re-run itself was identical' : ''}`
+        : reran
+          ? verdict(differences)
+          : failed
+            ? 'not verified'
+            : 'verified';
   if (args.format === 'json') {
-    io.out(JSON.stringify({ verdict: final, 'signed-by': check.signedBy ?? null, 'ssh-fingerprint': check.ssh?.fingerprint ?? null, principals: check.ssh?.principals ?? null, pinned: check.pinned, problems, differences }, null, 2) + '\n');
+    io.out(
+      JSON.stringify(
+        {
+          verdict: final,
+          'signed-by': check.signedBy ?? null,
+          'ssh-fingerprint': check.ssh?.fingerprint ?? null,
+          principals: check.ssh?.principals ?? null,
+          pinned: check.pinned,
+          problems,
+          differences,
+        },
+        null,
+        2,
+      ) + '\n',
+    );
   } else {
     reportProblems(io, problems, 'text');
     for (const d of differences) io.out(`  ${d.kind}: ${d.message}\n`);
@@ -84,22 +119,38 @@ export async function verifyCommand(args: VerifyArgs, io: CommandIo): Promise<Ex
   return failed ? 1 : 0;
 }
 
-async function checkSiblings(m: Manifest & { files: Record<string, string> }, dir: string, strict: boolean, problems: Problem[]): Promise<string> {
+async function checkSiblings(
+  m: Manifest & { files: Record<string, string> },
+  dir: string,
+  strict: boolean,
+  problems: Problem[],
+): Promise<string> {
   const parts: string[] = [];
   const names = Object.keys(m.files);
   if (names.length && names.every((name) => !existsSync(join(dir, name)))) {
-    problems.push(error('results-missing', `none of the ${names.length} result files the manifest lists (${names.join(', ')}) is next to it, so there is nothing left to vouch for`, { file: shown(join(dir, 'manifest.json')), hint: 'verify the manifest inside its results folder' }));
+    problems.push(
+      error(
+        'results-missing',
+        `none of the ${names.length} result files the manifest lists (${names.join(', ')}) is next to it, so there is nothing left to vouch for`,
+        { file: shown(join(dir, 'manifest.json')), hint: 'verify the manifest inside its results folder' },
+      ),
+    );
     return names.map((name) => `${name} missing`).join(', ');
   }
   for (const [name, sha] of Object.entries(m.files)) {
     const path = join(dir, name);
     if (!existsSync(path)) {
-      problems.push((strict ? error : warning)('file-missing', `${name} is not next to the manifest, so its hash was not checked`, { file: shown(path) }));
+      problems.push(
+        (strict ? error : warning)('file-missing', `${name} is not next to the manifest, so its hash was not checked`, {
+          file: shown(path),
+        }),
+      );
       parts.push(`${name} missing`);
       continue;
     }
     const now = await sha256File(path);
-    if (now !== sha) problems.push(error('file-hash-mismatch', `${name} has SHA-256 ${now}, not the ${sha} the manifest records`, { file: shown(path) }));
+    if (now !== sha)
+      problems.push(error('file-hash-mismatch', `${name} has SHA-256 ${now}, not the ${sha} the manifest records`, { file: shown(path) }));
     parts.push(`${name} ${now === sha ? 'ok' : 'CHANGED'}`);
   }
   return parts.join(', ');
@@ -127,10 +178,18 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
   const named: [string, string, string][] = [];
   if (!args.data) named.push([resolve(base, doc.data.file), doc.data.file, 'data file']);
   if (doc.split?.pinned) named.push([resolve(base, doc.split.pinned.file), doc.split.pinned.file, 'pinned assignment file']);
-  if (doc.reconcile?.['new-rows']) named.push([resolve(base, doc.reconcile['new-rows'].file), doc.reconcile['new-rows'].file, 'new-rows file']);
-  const outside = named.map(([path, as, what]) => outsideProblem(path, access, as, what, { file: shown(resolve(args.manifest)) })).filter((q): q is Problem => q !== undefined);
+  if (doc.reconcile?.['new-rows'])
+    named.push([resolve(base, doc.reconcile['new-rows'].file), doc.reconcile['new-rows'].file, 'new-rows file']);
+  const outside = named
+    .map(([path, as, what]) => outsideProblem(path, access, as, what, { file: shown(resolve(args.manifest)) }))
+    .filter((q): q is Problem => q !== undefined);
   if (outside.length) {
-    problems.push(...outside, error('rerun-failed', 'the re-run would read files outside the review folders, so it was not started', { hint: 'pass --data FILE and --protocol FILE with your own copies, or --allow-outside if you trust this manifest' }));
+    problems.push(
+      ...outside,
+      error('rerun-failed', 'the re-run would read files outside the review folders, so it was not started', {
+        hint: 'pass --data FILE and --protocol FILE with your own copies, or --allow-outside if you trust this manifest',
+      }),
+    );
     return { differences: [], lines: [] };
   }
   doc.data.file = args.data ? resolve(args.data) : resolve(base, doc.data.file);
@@ -140,7 +199,10 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
   try {
     localSha = await sha256File(doc.data.file);
   } catch (e) {
-    problems.push(fileProblem(e as NodeJS.ErrnoException, shown(doc.data.file), { file: shown(doc.data.file) }), error('rerun-failed', 'the data for the re-run cannot be read', { hint: 'pass --data FILE with a copy of the data' }));
+    problems.push(
+      fileProblem(e as NodeJS.ErrnoException, shown(doc.data.file), { file: shown(doc.data.file) }),
+      error('rerun-failed', 'the data for the re-run cannot be read', { hint: 'pass --data FILE with a copy of the data' }),
+    );
     return { differences: [], lines: [] };
   }
   // A changed data file is itself a difference; the run goes ahead so its effect is visible too.
@@ -149,12 +211,23 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
   try {
     const path = join(work, 'protocol.yaml');
     await writeFile(path, JSON.stringify(doc, null, 2));
-    const { report, input, out } = await produceRun(path, { refit: await recordedRefit(join(manifestDir, 'models.json')), access: { ...access, roots: [...access.roots, ...(args.data ? [dirname(resolve(args.data))] : [])] } });
+    const { report, input, out } = await produceRun(path, {
+      refit: await recordedRefit(join(manifestDir, 'models.json')),
+      access: { ...access, roots: [...access.roots, ...(args.data ? [dirname(resolve(args.data))] : [])] },
+    });
     if (!input || !out) {
-      problems.push(...report.problems.filter((p) => p.severity === 'error'), error('rerun-failed', 'the protocol did not validate on the local data, so it could not be re-run'));
+      problems.push(
+        ...report.problems.filter((p) => p.severity === 'error'),
+        error('rerun-failed', 'the protocol did not validate on the local data, so it could not be re-run'),
+      );
       return { differences: [], lines: [] };
     }
-    const fresh = manifestForRun(input, out, { tool: toolInfo(), created: '', protocolLocation: m.protocol.location, validate: schemaValidator(MANIFEST_SCHEMA) }).manifest as any;
+    const fresh = manifestForRun(input, out, {
+      tool: toolInfo(),
+      created: '',
+      protocolLocation: m.protocol.location,
+      validate: schemaValidator(MANIFEST_SCHEMA),
+    }).manifest as any;
     fresh.protocol.sha256 = protocolSha;
     const differences = compareRuns(m, fresh, doc.verify?.tolerance ?? 0);
     const recordedPredictions = await readFileOr(join(manifestDir, 'predictions.csv'), '');
@@ -163,7 +236,9 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
       if (d) d.message += `; ${lineDifferences(recordedPredictions, out.files['predictions.csv'])} lines differ`;
     }
     const n = (m.split.assignment as unknown[]).length;
-    const lines = [`rerun: ${n} assignments, ${countMetrics(m.results)} metric values and ${sha256Bytes(out.files['predictions.csv']) === m.files['predictions.csv'] ? 'identical' : 'changed'} predictions compared (tolerance ${doc.verify?.tolerance ?? 0})`];
+    const lines = [
+      `rerun: ${n} assignments, ${countMetrics(m.results)} metric values and ${sha256Bytes(out.files['predictions.csv']) === m.files['predictions.csv'] ? 'identical' : 'changed'} predictions compared (tolerance ${doc.verify?.tolerance ?? 0})`,
+    ];
     return { differences, lines };
   } finally {
     await rm(work, { recursive: true, force: true });

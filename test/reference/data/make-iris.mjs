@@ -14,4 +14,15 @@ const header = 'id,sepal_length,sepal_width,petal_length,petal_width,species\n';
 const row = (i, cells) => `iris-${String(i + 1).padStart(3, '0')},${cells.join(',')},${y[i]}\n`;
 writeFileSync(join(here, 'iris.csv'), header + x.map((r, i) => row(i, r)).join(''));
 let cell = 0;
-writeFileSync(join(here, 'iris-missing.csv'), header + x.map((r, i) => row(i, r.map((v) => (++cell % 17 === 0 ? 'NA' : v)))).join(''));
+writeFileSync(
+  join(here, 'iris-missing.csv'),
+  header +
+    x
+      .map((r, i) =>
+        row(
+          i,
+          r.map((v) => (++cell % 17 === 0 ? 'NA' : v)),
+        ),
+      )
+      .join(''),
+);
