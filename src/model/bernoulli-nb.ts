@@ -9,9 +9,24 @@ export interface BernoulliNbParams {
 }
 
 export const bernoulliNb: ModelImpl<BernoulliNbParams> = {
+  description: 'Bernoulli naive Bayes on presence (value above a threshold) and absence.',
+  options: {
+    smoothing: {
+      description: 'Additive smoothing of the per-class presence counts.',
+      type: 'number',
+      exclusiveMinimum: 0,
+      default: 1,
+    },
+    threshold: {
+      description: 'A value above this counts as present.',
+      type: 'number',
+      default: 0,
+    },
+  },
+
   fit(X, y, options, { classCount }) {
-    const alpha = (options.smoothing as number | undefined) ?? 1;
-    const threshold = (options.threshold as number | undefined) ?? 0;
+    const alpha = options.smoothing as number;
+    const threshold = options.threshold as number;
     const { rows, cols, data } = X;
     const n = classCounts(y, classCount);
     const present = new Float64Array(classCount * cols);

@@ -16,7 +16,7 @@ export interface GaussianNbParams {
 
 const fromMoments: NonNullable<ModelImpl<GaussianNbParams>['fromMoments']> = (m, options, { classCount }) => {
   const cols = m.cols;
-  const floor = (options['variance-floor'] as number | undefined) ?? 1e-9;
+  const floor = options['variance-floor'] as number;
   const priors = options.priors as number[] | undefined; // already ordered by class code
   const overall = overallMoments(m);
   const rows = overall.rows;
@@ -37,6 +37,26 @@ const fromMoments: NonNullable<ModelImpl<GaussianNbParams>['fromMoments']> = (m,
 };
 
 export const gaussianNb: ModelImpl<GaussianNbParams> = {
+  description: 'Gaussian naive Bayes: per-class means and variances, posteriors in log space.',
+  options: {
+    priors: {
+      description: 'Class prior probabilities by class label; must cover every class and sum to 1. Default: training class shares.',
+      type: 'object',
+      additionalProperties: {
+        type: 'number',
+        minimum: 0,
+        maximum: 1,
+      },
+    },
+    'variance-floor': {
+      description:
+        'Added to every variance, as a multiple of the largest feature variance of the training part. When every feature is constant over the training part the variances stay 0; such features tell the classes nothing and are left out, so the class priors decide.',
+      type: 'number',
+      minimum: 0,
+      default: 1e-9,
+    },
+  },
+
   fit: (X, y, options, ctx) => fromMoments(classMoments(X, y, ctx.classCount), options, ctx),
   fromMoments,
 

@@ -12,8 +12,18 @@ export interface KnnParams {
 }
 
 export const knn: ModelImpl<KnnParams> = {
+  description: "k nearest neighbours by Euclidean distance; ties broken by the split spec's id order.",
+  options: {
+    k: {
+      description: 'Number of neighbours; at most the size of the smallest training part.',
+      type: 'integer',
+      minimum: 1,
+      default: 5,
+    },
+  },
+
   fit(X, y, options, { classCount }) {
-    const k = (options.k as number | undefined) ?? 5;
+    const k = options.k as number;
     const rows: number[][] = [];
     for (let r = 0; r < X.rows; r++) rows.push(Array.from(X.data.subarray(r * X.cols, (r + 1) * X.cols)));
     return { k, classCount, X: rows, y: Array.from(y) };

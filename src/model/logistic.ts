@@ -32,10 +32,33 @@ export interface LogisticParams {
 const MAX_PARAMETERS = 2000;
 
 export const logistic: ModelImpl<LogisticParams> = {
+  description: "L2-regularized logistic regression (softmax for more than two classes), fitted by Newton's method.",
+  options: {
+    l2: {
+      description: 'L2 penalty strength λ on the weights (not the intercept); the objective is the summed log-loss plus λ/2·‖w‖².',
+      type: 'number',
+      minimum: 0,
+      default: 1,
+    },
+    tolerance: {
+      description:
+        'Scale-aware stopping rule of the Newton solver: once the Newton decrement λ² = gᵀH⁻¹g (twice the decrease the next full step predicts; unchanged by rescaling the features) satisfies λ²/2 ≤ tolerance × (1 + objective), one more full step is taken and the solver stops; it also stops when no step lowers the objective. With at least as many features as training rows the fit is done exactly in the span of the training rows.',
+      type: 'number',
+      exclusiveMinimum: 0,
+      default: 1e-10,
+    },
+    'max-iterations': {
+      description: 'Newton iterations allowed before giving up with an error.',
+      type: 'integer',
+      minimum: 1,
+      default: 200,
+    },
+  },
+
   fit(X, y, options, { classCount }) {
-    const l2 = (options.l2 as number | undefined) ?? 1;
-    const tolerance = (options.tolerance as number | undefined) ?? 1e-10;
-    const maxIterations = (options['max-iterations'] as number | undefined) ?? 200;
+    const l2 = options.l2 as number;
+    const tolerance = options.tolerance as number;
+    const maxIterations = options['max-iterations'] as number;
     const counts = classCounts(y, classCount);
     const present = Array.from(counts.keys()).filter((c) => counts[c] > 0);
     const C = present.length;

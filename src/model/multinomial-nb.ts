@@ -7,8 +7,18 @@ export interface MultinomialNbParams {
 }
 
 export const multinomialNb: ModelImpl<MultinomialNbParams> = {
+  description: 'Multinomial naive Bayes for non-negative counts, with additive smoothing.',
+  options: {
+    smoothing: {
+      description: 'Additive (Lidstone) smoothing added to every feature count.',
+      type: 'number',
+      exclusiveMinimum: 0,
+      default: 1,
+    },
+  },
+
   fit(X, y, options, { classCount }) {
-    const alpha = (options.smoothing as number | undefined) ?? 1;
+    const alpha = options.smoothing as number;
     const { rows, cols, data } = X;
     for (let k = 0; k < data.length; k++)
       if (data[k] < 0)

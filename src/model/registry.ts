@@ -1,5 +1,5 @@
 /** model.kind → implementation. Adding a model: one file here and one line below (plus its options in the schema). */
-import type { ModelKind } from '../protocol/types.js';
+
 import { bernoulliNb } from './bernoulli-nb.js';
 import { gaussianNb } from './gaussian-nb.js';
 import { knn } from './knn.js';
@@ -8,7 +8,7 @@ import { multinomialNb } from './multinomial-nb.js';
 import { shrunkenCentroid } from './shrunken-centroid.js';
 import type { ModelImpl } from './types.js';
 
-export const models: Record<ModelKind, ModelImpl<any>> = {
+const entries = {
   'gaussian-nb': gaussianNb,
   'multinomial-nb': multinomialNb,
   'bernoulli-nb': bernoulliNb,
@@ -17,11 +17,48 @@ export const models: Record<ModelKind, ModelImpl<any>> = {
   'shrunken-centroid': shrunkenCentroid,
 };
 
-/** Protocol options → the options a fit sees (class-keyed maps become arrays in class order). */
+/** The model kinds: the registry's keys. */
+export type ModelKind = keyof typeof entries;
+
+/** model.kind → its entry (fit, predict, options with defaults and ranges, description). */
+export const models: Record<ModelKind, ModelImpl<any>> = entries;
+
+/** The protocol's options with every default of the model's entry filled in: the one place defaults are read. */
+export function withDefaults(kind: ModelKind, options: Record<string, unknown>): Record<string, unknown> {
+  const out: Record<string, unknown> = {};
+  for (const [name, spec] of Object.entries(models[kind].options)) if (spec.default !== undefined) out[name] = spec.default;
+  return { ...out, ...options };
+}
+
+/** Protocol options → the options a fit sees: defaults filled in, class-keyed maps as arrays in class order. */
 export function fitOptions(kind: ModelKind, options: Record<string, unknown>, classes: readonly string[]): Record<string, unknown> {
-  if (kind === 'gaussian-nb' && options.priors) {
-    const priors = options.priors as Record<string, number>;
-    return { ...options, priors: classes.map((c) => priors[c]) };
+  const full = withDefaults(kind, options);
+  if (kind === 'gaussian-nb' && full.priors) {
+    const priors = full.priors as Record<string, number>;
+    return { ...full, priors: classes.map((c) => priors[c]) };
   }
-  return options;
+  return full;
+}
+
+/** The protocol schema's `model` property, generated from the entries (scripts/sync-schema.mjs writes it; a test compares). */
+export function modelSchema(): Record<string, unknown> {
+  return {
+    description: 'The classifier fitted in each fold.',
+    type: 'object',
+    additionalProperties: false,
+    required: ['kind'],
+    properties: {
+      kind: {
+        description: `Model family: ${Object.entries(models)
+          .map(([k, m]) => `${k} — ${m.description}`)
+          .join(' ')}`,
+        enum: Object.keys(models),
+      },
+      options: { description: 'Options of the chosen kind (see docs/protocol.md).', type: 'object', default: {} },
+    },
+    allOf: Object.entries(models).map(([kind, m]) => ({
+      if: { properties: { kind: { const: kind } } },
+      then: { properties: { options: { type: 'object', additionalProperties: false, properties: m.options } } },
+    })),
+  };
 }

@@ -15,7 +15,7 @@ export interface ShrunkenCentroidParams {
 }
 
 const fromMoments: NonNullable<ModelImpl<ShrunkenCentroidParams>['fromMoments']> = (moments, options, { classCount }) => {
-  const shrink = (options.shrink as number | undefined) ?? 0;
+  const shrink = options.shrink as number;
   const { cols, n, mean } = moments;
   const { rows, mean: overall } = overallMoments(moments);
   const present = Array.from(n).filter((c) => c > 0).length;
@@ -49,6 +49,16 @@ const fromMoments: NonNullable<ModelImpl<ShrunkenCentroidParams>['fromMoments']>
 };
 
 export const shrunkenCentroid: ModelImpl<ShrunkenCentroidParams> = {
+  description: 'Nearest shrunken centroids (Tibshirani et al. 2002, PNAS 99:6567).',
+  options: {
+    shrink: {
+      description: 'Soft-threshold Δ applied to the standardized centroid differences; 0 gives plain nearest centroids.',
+      type: 'number',
+      minimum: 0,
+      default: 0,
+    },
+  },
+
   fit: (X, y, options, ctx) => fromMoments(classMoments(X, y, ctx.classCount), options, ctx),
   fromMoments,
   predict(p, X) {

@@ -11,8 +11,23 @@ export interface FitContext {
   classCount: number;
 }
 
+/** One option of a model, as JSON Schema (2020-12) keywords: the single place its type, range and default live. */
+export interface OptionSpec {
+  description: string;
+  type: 'number' | 'integer' | 'object';
+  minimum?: number;
+  maximum?: number;
+  exclusiveMinimum?: number;
+  default?: number;
+  additionalProperties?: { type: 'number'; minimum?: number; maximum?: number };
+}
+
 export interface ModelImpl<P = unknown> {
-  /** Fit on training rows (row-major X, class codes y). Options are the protocol's `model.options`. */
+  /** One sentence for the schema and docs/protocol.md. */
+  readonly description: string;
+  /** The options `model.options` may set; the protocol schema's branch for this kind is generated from them. */
+  readonly options: Readonly<Record<string, OptionSpec>>;
+  /** Fit on training rows (row-major X, class codes y). Options are the protocol's `model.options` with every default filled in (registry.ts). */
   fit(X: Matrix, y: Int32Array, options: Record<string, unknown>, ctx: FitContext): P;
   /** Probabilities, row-major rows × classCount; each row sums to 1. */
   predict(params: P, X: Matrix): Float64Array;

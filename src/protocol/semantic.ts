@@ -2,6 +2,7 @@
  * Checks of a schema-valid protocol against its data (and pinned file). Pure:
  * the caller has read and hashed the files; this only compares and counts.
  */
+import { withDefaults } from '../model/registry.js';
 import { error, warning, type Problem } from '../problems/problem.js';
 import { assignFolds } from '../split/assign.js';
 import { emptyFolds, type Assignment } from '../split/assignment.js';
@@ -241,7 +242,7 @@ function assignmentProblems(p: Protocol, table: Table, a: Assignment, at: At): P
     for (const f of testFolds) smallestTrain = Math.min(smallestTrain, n - size[f]);
   }
   if (p.model.kind === 'knn') {
-    const k = (p.model.options.k as number | undefined) ?? 5;
+    const k = withDefaults('knn', p.model.options).k as number;
     if (k > smallestTrain)
       out.push(
         error('knn-k-too-large', `knn k is ${k} but the smallest training part has ${smallestTrain} rows`, at(['model', 'options', 'k'])),

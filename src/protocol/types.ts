@@ -1,7 +1,8 @@
 /** The protocol after schema validation, with every documented default filled in. */
 import type { RuleSplit, SplitRule } from '../split/types.js';
 export type { AssignMode, RuleSplit, SplitRule } from '../split/types.js';
-export type ModelKind = 'gaussian-nb' | 'multinomial-nb' | 'bernoulli-nb' | 'logistic' | 'knn' | 'shrunken-centroid';
+export type { ModelKind } from '../model/registry.js';
+import type { ModelKind } from '../model/registry.js';
 export type MetricName =
   | 'accuracy'
   | 'balanced-accuracy'

