@@ -75,6 +75,9 @@ export function assertFinite(X: Matrix, columns: readonly string[]): void {
  */
 export function prunePipeline(p: FittedPipeline, inputWidth: number): FittedPipeline {
   if (!p.steps.some((s) => transforms[s.step.step].kept)) return p;
+  // A transform with only fit and apply (no column-wise restrict) cannot be cut to the survivors:
+  // the pipeline is then kept whole, which is correct, only larger.
+  if (p.steps.some((s) => !transforms[s.step.step].kept && !transforms[s.step.step].restrict)) return p;
   // Original positions present at the input of each step, and at the end.
   const inputs: Int32Array[] = [];
   let current = Int32Array.from({ length: inputWidth }, (_, j) => j);
