@@ -58,6 +58,7 @@ export function modelSchema(): Record<string, unknown> {
     },
     allOf: Object.entries(models).map(([kind, m]) => ({
       if: { properties: { kind: { const: kind } } },
+      // biome-ignore lint/suspicious/noThenProperty: JSON Schema's if/then keyword, a plain object never awaited
       then: { properties: { options: { type: 'object', additionalProperties: false, properties: m.options } } },
     })),
   };
