@@ -1,11 +1,11 @@
 /** Worker thread entry: fits the folds it is sent on the shared table (see fold-workers.ts). */
 import { parentPort, workerData } from 'node:worker_threads';
 import { FitError } from '../model/types.js';
-import { fitFold, fitModelAfterPipeline, type FoldData } from '../run/fit-fold.js';
-import type { FittedPipeline } from '../preprocess/pipeline.js';
+import type { FoldData } from '../run/fit-fold.js';
+import { runJob, type FoldJob } from '../run/executor.js';
 
 const w = workerData as {
-  protocol: Parameters<typeof fitFold>[0];
+  protocol: Parameters<typeof runJob>[0];
   rows: number;
   cols: number;
   data: SharedArrayBuffer;
@@ -22,11 +22,9 @@ const table: FoldData = {
   columns: w.columns && new Float64Array(w.columns),
 };
 
-parentPort!.on('message', (job: { index: number; train: Int32Array; test: Int32Array; pipeline?: FittedPipeline }) => {
+parentPort!.on('message', (job: FoldJob) => {
   try {
-    const fit = job.pipeline
-      ? fitModelAfterPipeline(w.protocol, table, job.pipeline, job.train, job.test)
-      : fitFold(w.protocol, table, job.train, job.test);
+    const fit = runJob(w.protocol, table, job);
     parentPort!.postMessage({ index: job.index, fit }, [fit.proba.buffer as ArrayBuffer]);
   } catch (e) {
     const user = e instanceof FitError;

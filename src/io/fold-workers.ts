@@ -13,8 +13,8 @@ import type { Assignment } from '../split/assignment.js';
 import type { Table } from '../table/table.js';
 import { assembleResult, atFold, crossValidate, planFolds, type CvHooks, type CvResult } from '../run/cross-validate.js';
 import type { FoldFit } from '../run/fit-fold.js';
-import { canFitByMoments, modelFromMoments, momentPipelines } from '../run/fit-by-moments.js';
-import { columnMajor, fitsByColumns } from '../preprocess/by-columns.js';
+import { jobsFor, strategyFor, wantsColumns } from '../run/executor.js';
+import { columnMajor } from '../preprocess/by-columns.js';
 
 /** Cells × folds below which thread start-up costs more than it saves. */
 const MIN_WORK = 2_000_000;
@@ -31,17 +31,16 @@ export function threadCount(table: Table, folds: number): number {
 export async function crossValidateInWorkers(p: Protocol, table: Table, a: Assignment, hooks: CvHooks = {}): Promise<CvResult> {
   const plans = planFolds(p, table, a);
   const threads = threadCount(table, plans.length);
-  // Fits from class moments cost little per fold: no thread pays for its start-up there. A model
-  // that fits on rows after a moment pipeline gets its pipelines here, and its fits on the workers.
-  const moments = canFitByMoments(p);
-  if (threads < 2 || !import.meta.url.endsWith('.js') || (moments && modelFromMoments(p))) return crossValidate(p, table, a, hooks);
-  const pipelines = moments ? momentPipelines(p, table, a, plans).map((f) => f.pipeline) : undefined;
+  // Fits from class moments cost little per fold: no thread pays for its start-up there. Every
+  // other strategy comes as jobs from the executor, which the workers run as they are.
+  if (threads < 2 || !import.meta.url.endsWith('.js') || strategyFor(p) === 'moments') return crossValidate(p, table, a, hooks);
+  const jobs = jobsFor(p, table, a, plans);
   const data = new SharedArrayBuffer(table.X.data.byteLength);
   new Float64Array(data).set(table.X.data);
   const y = new SharedArrayBuffer(table.y.byteLength);
   new Int32Array(y).set(table.y);
   let columns: SharedArrayBuffer | undefined;
-  if (fitsByColumns(p.preprocess)) {
+  if (wantsColumns(p)) {
     columns = new SharedArrayBuffer(table.X.data.byteLength);
     columnMajor(table.X, new Float64Array(columns));
   }
@@ -64,7 +63,7 @@ export async function crossValidateInWorkers(p: Protocol, table: Table, a: Assig
       const feed = (w: Worker) => {
         if (next >= plans.length) return;
         const index = next++;
-        w.postMessage({ index, train: plans[index].train, test: plans[index].test, pipeline: pipelines?.[index] });
+        w.postMessage(jobs[index]);
       };
       for (const w of workers) {
         w.on('message', (m: { index: number; fit?: FoldFit; error?: { kind: string; code: string; message: string; hint?: string } }) => {

@@ -7,10 +7,9 @@ import { metrics as metricFns } from '../metric/registry.js';
 import { confusionRows } from '../metric/confusion.js';
 import { scored } from '../metric/types.js';
 import type { FittedPipeline } from '../preprocess/pipeline.js';
-import { columnMajor, fitsByColumns } from '../preprocess/by-columns.js';
-import { atFold, fitFold, type FoldData, type FoldFit } from './fit-fold.js';
+import type { FoldFit } from './fit-fold.js';
 export { atFold } from './fit-fold.js';
-import { canFitByMoments, fitByMoments } from './fit-by-moments.js';
+import { runAll } from './executor.js';
 import { warning, type Problem } from '../problems/problem.js';
 import { models } from '../model/registry.js';
 import { FitError } from '../model/types.js';
@@ -81,25 +80,10 @@ export function planFolds(p: Protocol, table: Table, a: Assignment): FoldPlan[] 
   return plans;
 }
 
+/** Every fold on this thread (the executor decides how); the shell may run the executor's jobs on workers instead. */
 export function crossValidate(p: Protocol, table: Table, a: Assignment, hooks: CvHooks = {}): CvResult {
   const plans = planFolds(p, table, a);
-  if (canFitByMoments(p)) {
-    const fits = fitByMoments(p, table, a, plans);
-    hooks.onFold?.(plans.length, plans.length);
-    return assembleResult(p, table, a, plans, fits);
-  }
-  const data: FoldData = { ...table, columns: fitsByColumns(p.preprocess) ? columnMajor(table.X) : undefined };
-  const fits = plans.map((plan, i) => {
-    let fit: FoldFit;
-    try {
-      fit = fitFold(p, data, plan.train, plan.test);
-    } catch (e) {
-      throw atFold(e, plan.repeat, plan.fold);
-    }
-    hooks.onFold?.(i + 1, plans.length);
-    return fit;
-  });
-  return assembleResult(p, table, a, plans, fits);
+  return assembleResult(p, table, a, plans, runAll(p, table, a, plans, hooks.onFold));
 }
 
 /** Scores, summaries and out-of-fold arrays from the fitted folds (however they were fitted). */

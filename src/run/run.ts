@@ -8,7 +8,8 @@ import { assignmentCsv } from '../split/csv.js';
 import type { Table } from '../table/table.js';
 import { sha256Bytes } from '../util/sha256.js';
 import { fitOptions, models } from '../model/registry.js';
-import { columnMajor, fitPipelineOnRows, fitsByColumns } from '../preprocess/by-columns.js';
+import { columnMajor, fitPipelineOnRows } from '../preprocess/by-columns.js';
+import { wantsColumns } from './executor.js';
 import { prunePipeline } from '../preprocess/pipeline.js';
 import { appliedCsv, applyRows, type AppliedRow } from '../reconcile/applied.js';
 import { heldOutFromOof } from '../reconcile/held-out.js';
@@ -134,7 +135,7 @@ function fitOnAll(input: RunInput): SavedModel {
       y,
       table.classes.length,
       table.featureNames,
-      fitsByColumns(p.preprocess) ? columnMajor(table.X) : undefined,
+      wantsColumns(p) ? columnMajor(table.X) : undefined,
     );
     const model = models[p.model.kind].fit(X, y, fitOptions(p.model.kind, p.model.options, table.classes), {
       classCount: table.classes.length,
