@@ -3,6 +3,7 @@
 import { bernoulliNb } from './bernoulli-nb.js';
 import { gaussianNb } from './gaussian-nb.js';
 import { knn } from './knn.js';
+import { linearSvm } from './linear-svm.js';
 import { logistic } from './logistic.js';
 import { multinomialNb } from './multinomial-nb.js';
 import { shrunkenCentroid } from './shrunken-centroid.js';
@@ -15,6 +16,7 @@ const entries = {
   logistic,
   knn,
   'shrunken-centroid': shrunkenCentroid,
+  'linear-svm': linearSvm,
 };
 
 /** The model kinds: the registry's keys. */
