@@ -1,0 +1,33 @@
+/** Runs cases of the bad-input table: exit code, message, no stack trace, no hang, no partial output. */
+import { spawnSync } from 'node:child_process';
+import { existsSync, readdirSync } from 'node:fs';
+import t from 'tap';
+import { bin, tempDir } from '../helpers.js';
+import type { BadInput } from './bad-inputs.cases.js';
+
+export function runBadInputs(cases: readonly BadInput[]): void {
+  for (const c of cases) {
+    t.test(c.name, async (t) => {
+      const dir = tempDir(c.files ?? {});
+      c.setup?.(dir);
+      const before = new Set(readdirSync(dir));
+      const started = Date.now();
+      const r = spawnSync(process.execPath, [bin, ...c.args], {
+        cwd: dir,
+        encoding: 'utf8',
+        timeout: 10_000,
+        env: { ...process.env, NO_COLOR: '1' },
+      });
+      t.ok(Date.now() - started < 10_000 && r.signal === null, 'finishes within 10 s');
+      const text = r.stderr + r.stdout;
+      t.equal(r.status, c.exit, `exit ${c.exit}: ${text.slice(0, 400)}`);
+      t.notMatch(text, /internal error|\n\s+at .*:\d+:\d+\)?\n/, 'no stack trace');
+      t.match(text, c.match);
+      if (c.exit !== 0) {
+        const added = readdirSync(dir).filter((e) => !before.has(e));
+        t.same(added, [], 'nothing written');
+      }
+      t.ok(!existsSync(`${dir}/res`) || c.exit === 0, 'no results folder after a failure');
+    });
+  }
+}
