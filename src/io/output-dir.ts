@@ -131,28 +131,44 @@ async function folderState(dir: string): Promise<FolderState> {
   return { kind: 'ours' };
 }
 
-/** Leftovers of runs that died: half-written new folders are deleted; an old folder moved aside is put back if nothing took its place. */
+/**
+ * Leftovers of runs that died: half-written new folders are deleted; an old folder moved aside is
+ * put back if nothing took its place. Only what foldseal itself leaves is touched: a real folder
+ * (not a link) holding nothing but plain files, or, set aside, nothing but `previous` holding
+ * plain files. Anything else under such a name is the user's and stays.
+ */
 async function recover(parent: string, name: string, dir: string): Promise<void> {
   const entries = await readdir(parent).catch(() => [] as string[]);
   for (const e of entries.sort()) {
-    if (e.startsWith(`.${name}${NEW}`)) await rm(join(parent, e), { recursive: true, force: true });
-    else if (e.startsWith(`.${name}${OLD}`)) {
-      const previous = join(parent, e, 'previous');
+    const path = join(parent, e);
+    if (e.startsWith(`.${name}${NEW}`)) {
+      if (await onlyPlainFiles(path)) await rm(path, { recursive: true, force: true });
+    } else if (e.startsWith(`.${name}${OLD}`)) {
+      const inside = await realFolderEntries(path);
+      if (!inside || inside.some((x) => x !== 'previous')) continue;
+      const previous = join(path, 'previous');
+      if (inside.length && !(await onlyPlainFiles(previous))) continue;
       const present = await lstat(dir).then(
         () => true,
         () => false,
       );
-      if (
-        !present &&
-        (await lstat(previous).then(
-          (s) => s.isDirectory(),
-          () => false,
-        ))
-      )
-        await rename(previous, dir);
-      await rm(join(parent, e), { recursive: true, force: true });
+      if (inside.length && !present) await rename(previous, dir);
+      await rm(path, { recursive: true, force: true });
     }
   }
+}
+
+/** The entries of a real folder (undefined for a file, a link or nothing). */
+async function realFolderEntries(path: string): Promise<string[] | undefined> {
+  const st = await lstat(path).catch(() => undefined);
+  return st?.isDirectory() ? readdir(path) : undefined;
+}
+
+async function onlyPlainFiles(path: string): Promise<boolean> {
+  const entries = await realFolderEntries(path);
+  if (!entries) return false;
+  for (const e of entries) if (!(await lstat(join(path, e))).isFile()) return false;
+  return true;
 }
 
 /** A lock file `.NAME.foldseal-lock` holding the writer's pid; a lock whose process is gone is taken over. */

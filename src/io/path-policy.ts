@@ -4,8 +4,8 @@
  * (see "Security model" in the README). Symbolic links are resolved before the comparison, so a
  * link inside the folder that points out of it is outside too.
  */
-import { realpathSync } from 'node:fs';
-import { basename, dirname, isAbsolute, relative, resolve } from 'node:path';
+import { existsSync, realpathSync } from 'node:fs';
+import { basename, dirname, isAbsolute, join, relative, resolve } from 'node:path';
 import { error, type Problem } from '../problems/problem.js';
 
 export interface PathPolicy {
@@ -31,6 +31,17 @@ export function realPath(path: string): string {
   } catch {
     const up = dirname(abs);
     return up === abs ? abs : resolve(realPath(up), basename(abs));
+  }
+}
+
+/** The nearest folder at or above `dir` (symbolic links resolved) that holds an entry `name`. */
+export function folderAbove(dir: string, name: string): string | undefined {
+  let at = realPath(dir);
+  for (;;) {
+    if (existsSync(join(at, name))) return at;
+    const up = dirname(at);
+    if (up === at) return undefined;
+    at = up;
   }
 }
 

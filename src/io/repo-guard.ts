@@ -3,25 +3,18 @@
  * does not search is refused, and so is a non-final protocol that would test on sealed rows
  * (by id or by content), exactly as `foldseal check` would report them.
  */
-import { existsSync } from 'node:fs';
 import { dirname, join, relative } from 'node:path';
 import { sealedFindings } from '../check/gate.js';
 import { LOCK_FILE, parseLock, parseSealed } from '../check/lock.js';
 import { error, warning, type Problem } from '../problems/problem.js';
 import { pathSkipped } from './discover.js';
 import { readRegular, readRegularText } from './files.js';
-import { isInside, realPath } from './path-policy.js';
+import { folderAbove, isInside, realPath } from './path-policy.js';
 import { shown, type ValidationReport } from './validate.js';
 
 /** The nearest folder at or above the protocol's that holds a lock. */
 export function findLockFolder(protocolPath: string): string | undefined {
-  let dir = dirname(realPath(protocolPath));
-  for (;;) {
-    if (existsSync(join(dir, LOCK_FILE))) return dir;
-    const up = dirname(dir);
-    if (up === dir) return undefined;
-    dir = up;
-  }
+  return folderAbove(dirname(protocolPath), LOCK_FILE);
 }
 
 export async function lockedRepoProblems(protocolPath: string, report: ValidationReport): Promise<Problem[]> {

@@ -189,8 +189,10 @@ async function validateWithData(
     newRows = nr.rows;
     if (newRows) {
       const t = built.table;
-      const digests = knownRows(t.ids, t.X, t.featureNames);
+      // Only the training rows whose id a new row also has need a digest.
       const rowOf = new Map(t.ids.map((id, r) => [id, r]));
+      const shared = newRows.ids.flatMap((id) => (rowOf.has(id) ? [rowOf.get(id)!] : []));
+      const digests = knownRows(t.ids, t.X, t.featureNames, shared);
       problems.push(
         ...knownIdProblems(newRows, shown(paths.newRows!), t.featureNames, new Map(Object.entries(digests)), (id) => ({
           where: `${shown(paths.data)} line ${t.rowLines[rowOf.get(id)!]}`,

@@ -36,12 +36,17 @@ export function knownIdProblems(
   return out;
 }
 
-/** id → feature digest of every row of the cross-validation (saved in models.json for apply). */
-export function knownRows(ids: readonly string[], X: NewRows['X'], features: readonly string[]): Record<string, string> {
-  const d = featureDigests(X, features);
+/** id → feature digest of every row of the cross-validation (saved in models.json for apply), or of `rows` only. */
+export function knownRows(
+  ids: readonly string[],
+  X: NewRows['X'],
+  features: readonly string[],
+  rows?: readonly number[],
+): Record<string, string> {
+  const d = featureDigests(X, features, rows);
   const out: Record<string, string> = {};
-  ids.forEach((id, r) => {
-    out[id] = d[r];
+  d.forEach((digest, k) => {
+    out[ids[rows ? rows[k] : k]] = digest;
   });
   return out;
 }

@@ -45,12 +45,15 @@ export function rowDigests(table: Table, rows?: readonly number[]): string[] {
   return out;
 }
 
-export function featureDigests(X: Matrix, names: readonly string[]): string[] {
+/** The digest of each row (or of rows[i] only, in that order). */
+export function featureDigests(X: Matrix, names: readonly string[], rows?: readonly number[]): string[] {
   const order = nameOrder(names);
   const values = new Float64Array(order.length);
   const words = new Uint32Array(values.buffer);
-  const out: string[] = new Array(X.rows);
-  for (let r = 0; r < X.rows; r++) {
+  const count = rows ? rows.length : X.rows;
+  const out: string[] = new Array(count);
+  for (let k = 0; k < count; k++) {
+    const r = rows ? rows[k] : k;
     canonicalRow(X, r, order, values);
     let h1 = 0x811c9dc5 ^ order.length;
     let h2 = 0x9747b28c;
@@ -62,7 +65,7 @@ export function featureDigests(X: Matrix, names: readonly string[]): string[] {
     }
     h1 = Math.imul(h1 ^ (h1 >>> 16), 0x85ebca6b);
     h2 = Math.imul(h2 ^ (h2 >>> 13), 0xc2b2ae35);
-    out[r] = (h1 >>> 0).toString(16).padStart(8, '0') + ((h2 ^ (h2 >>> 16)) >>> 0).toString(16).padStart(8, '0');
+    out[k] = (h1 >>> 0).toString(16).padStart(8, '0') + ((h2 ^ (h2 >>> 16)) >>> 0).toString(16).padStart(8, '0');
   }
   return out;
 }

@@ -215,3 +215,18 @@ t.test('keygen writes both key files or neither, and names a missing folder', as
   t.notOk(existsSync(join(dir, 'k.key')), 'no private key without its public half');
   t.equal(readFileSync(join(dir, 'k.pub'), 'utf8'), "someone else's\n");
 });
+
+t.test("leftover cleaning touches only what foldseal leaves: a user's entries under such names stay", async (t) => {
+  const dir = project();
+  mkdirSync(join(dir, '.res.foldseal-new-mine', 'sub'), { recursive: true });
+  writeFileSync(join(dir, '.res.foldseal-new-mine', 'sub', 'notes.txt'), 'mine\n');
+  writeFileSync(join(dir, '.res.foldseal-old-file'), 'a plain file, not a folder foldseal set aside\n');
+  mkdirSync(join(dir, '.res.foldseal-old-other'));
+  writeFileSync(join(dir, '.res.foldseal-old-other', 'thesis.tex'), 'mine\n');
+  const r = cli(['run', 'demo.yaml', '--out', 'res'], dir);
+  t.equal(r.code, 0, r.stderr);
+  t.ok(complete(join(dir, 'res')));
+  t.equal(readFileSync(join(dir, '.res.foldseal-new-mine', 'sub', 'notes.txt'), 'utf8'), 'mine\n');
+  t.ok(existsSync(join(dir, '.res.foldseal-old-file')));
+  t.equal(readFileSync(join(dir, '.res.foldseal-old-other', 'thesis.tex'), 'utf8'), 'mine\n');
+});

@@ -5,7 +5,7 @@ import { dirname, join, resolve } from 'node:path';
 import { error, FoldsealError, hasErrors, warning, type Problem } from '../../problems/problem.js';
 import { sha256Bytes, sha256File } from '../../io/hash.js';
 import { fileProblem, readRegularText } from '../../io/files.js';
-import { isInside, outsideProblem, protocolPolicy, realPath, trustedFolders, type PathPolicy } from '../../io/path-policy.js';
+import { folderAbove, isInside, outsideProblem, protocolPolicy, realPath, trustedFolders, type PathPolicy } from '../../io/path-policy.js';
 import { selfCheck } from '../../manifest/self-check.js';
 import { readPinnedKeys } from '../../io/keys.js';
 import { MANIFEST_SCHEMA, schemaValidator } from '../../io/schemas.js';
@@ -271,20 +271,12 @@ const MANIFEST_MAX_BYTES = 512 << 20;
  * of the files the user named (--protocol, --data), and the trusted folders.
  */
 export function reviewPolicy(manifestDir: string, args: Pick<VerifyArgs, 'protocol' | 'data' | 'allowOutside'>): PathPolicy {
-  const roots = [gitTop(manifestDir) ?? (isInside(realPath(manifestDir), realPath(process.cwd())) ? process.cwd() : manifestDir)];
+  const roots = [
+    folderAbove(manifestDir, '.git') ?? (isInside(realPath(manifestDir), realPath(process.cwd())) ? process.cwd() : manifestDir),
+  ];
   if (args.protocol) roots.push(...protocolPolicy(args.protocol).roots);
   if (args.data) roots.push(dirname(resolve(args.data)));
   return { roots: [...new Set([...roots, ...trustedFolders()])], allowOutside: Boolean(args.allowOutside) };
-}
-
-function gitTop(dir: string): string | undefined {
-  let at = realPath(dir);
-  for (;;) {
-    if (existsSync(join(at, '.git'))) return at;
-    const up = dirname(at);
-    if (up === at) return undefined;
-    at = up;
-  }
 }
 
 function lineDifferences(a: string, b: string): number {
