@@ -1,10 +1,10 @@
 #!/usr/bin/env node
-// Writes the parts of schema/protocol.schema.json that the registries describe (the model kinds
-// and their options) from the entries themselves (run after `npm run build`; `npm run docs` runs it).
+// Writes the parts of schema/protocol.schema.json that the registries describe (model kinds and
+// options, split rules, preprocessing steps, metric names) from the entries themselves (run after
+// `npm run build`; `npm run docs` runs it).
 import { readFileSync, writeFileSync } from 'node:fs';
-import { modelSchema } from '../dist/src/model/registry.js';
+import { withRegistryParts } from '../dist/src/protocol/registry-schema.js';
 
 const file = new URL('../schema/protocol.schema.json', import.meta.url);
 const schema = JSON.parse(readFileSync(file, 'utf8'));
-schema.properties.model = modelSchema();
-writeFileSync(file, JSON.stringify(schema, null, 2) + '\n');
+writeFileSync(file, JSON.stringify(withRegistryParts(schema), null, 2) + '\n');

@@ -10,6 +10,7 @@ import { rawFingerprint, type ManifestCheck } from '../manifest/check.js';
 import { parseKeyLines } from '../manifest/ssh.js';
 import type { LockEntry, ParsedLock } from './lock.js';
 import { rowDigests } from '../table/row-digest.js';
+import { splitRules } from '../split/registry.js';
 
 export interface ProtocolState {
   /** Path relative to the checked folder, with forward slashes (the lock's key). */
@@ -184,7 +185,7 @@ export function sealedFindings(g: Pick<GateInput, 'protocols' | 'sealed'>, inSco
       }
       continue;
     }
-    const holdoutLike = isPinned(p.split) || p.split.rule === 'holdout';
+    const holdoutLike = isPinned(p.split) || splitRules[p.split.rule].tests === 'fold-1';
     if (!holdoutLike) {
       out.push(
         error(

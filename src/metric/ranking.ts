@@ -4,7 +4,7 @@
  * the distinct score thresholds in decreasing order. With more than two classes both are
  * macro averages of one-vs-rest values over the classes present in the truth.
  */
-import type { Metric, Scored } from './types.js';
+import { metric, type Scored } from './types.js';
 
 /** Scores of the positive and the negative rows, each sorted ascending (native typed-array sorts). */
 function sortedByClass(score: Float64Array, positive: Uint8Array): { pos: Float64Array; neg: Float64Array } {
@@ -99,5 +99,13 @@ function oneVsRest(s: Scored, f: (score: Float64Array, positive: Uint8Array) => 
   return used === 0 ? null : total / used;
 }
 
-export const rocAuc: Metric = (s) => oneVsRest(s, aucOf);
-export const averagePrecision: Metric = (s) => oneVsRest(s, averagePrecisionOf);
+export const rocAuc = metric(
+  'higher',
+  'area under the ROC curve of the positive class probability (Mann–Whitney U / n₁n₀, ties one half); macro one-vs-rest with more classes.',
+  (s) => oneVsRest(s, aucOf),
+);
+export const averagePrecision = metric(
+  'higher',
+  'area under the precision–recall steps, Σ (Rₜ − Rₜ₋₁)·Pₜ over distinct thresholds; macro one-vs-rest with more classes.',
+  (s) => oneVsRest(s, averagePrecisionOf),
+);

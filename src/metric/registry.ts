@@ -1,11 +1,10 @@
-/** metric name → function. Adding a metric: one function in a family file and one line here (and the schema enum). */
-import type { MetricName } from '../protocol/types.js';
+/** metric name → entry (description, direction, value). Adding a metric: its entry in a family file and one line here. */
 import { brier, logLoss } from './probabilistic.js';
 import { averagePrecision, rocAuc } from './ranking.js';
 import { accuracy, balancedAccuracy, f1, kappa, mcc, precision, recall } from './threshold.js';
 import type { Metric } from './types.js';
 
-export const metrics: Record<MetricName, Metric> = {
+const entries = {
   accuracy,
   'balanced-accuracy': balancedAccuracy,
   precision,
@@ -18,3 +17,18 @@ export const metrics: Record<MetricName, Metric> = {
   'log-loss': logLoss,
   brier,
 };
+
+/** The metric names: the registry's keys. */
+export type MetricName = keyof typeof entries;
+
+export const metrics: Record<MetricName, Metric> = entries;
+
+/** The protocol schema's `metrics.items`, generated from the entries. */
+export function metricItemSchema(): Record<string, unknown> {
+  return {
+    description: `A metric name: ${Object.entries(metrics)
+      .map(([name, m]) => `${name} — ${m.description}`)
+      .join(' ')}`,
+    enum: Object.keys(metrics),
+  };
+}

@@ -4,7 +4,7 @@
  * a 0/0 ratio counts as 0 (common practice). mcc is the multiclass form of Gorodkin (2004).
  */
 import { confusion } from './confusion.js';
-import type { Metric, Scored } from './types.js';
+import { metric, type Scored } from './types.js';
 
 const ratio = (a: number, b: number) => (b === 0 ? 0 : a / b);
 
@@ -39,25 +39,43 @@ function perClass(s: Scored, f: (tp: number, fp: number, fn: number) => number):
   return total / used;
 }
 
-export const accuracy: Metric = (s) => margins(s).diag / s.truth.length;
+export const accuracy = metric(
+  'higher',
+  'share of rows whose most probable class is the true one.',
+  (s) => margins(s).diag / s.truth.length,
+);
 
-export const balancedAccuracy: Metric = (s) => {
-  const { k, m, truth } = margins(s);
-  let total = 0;
-  let used = 0;
-  for (let c = 0; c < k; c++)
-    if (truth[c] > 0) {
-      total += m[c * k + c] / truth[c];
-      used++;
-    }
-  return total / used;
-};
+export const balancedAccuracy = metric(
+  'higher',
+  'mean over the classes present of the share of that class predicted correctly (recall per class).',
+  (s) => {
+    const { k, m, truth } = margins(s);
+    let total = 0;
+    let used = 0;
+    for (let c = 0; c < k; c++)
+      if (truth[c] > 0) {
+        total += m[c * k + c] / truth[c];
+        used++;
+      }
+    return total / used;
+  },
+);
 
-export const precision: Metric = (s) => perClass(s, (tp, fp) => ratio(tp, tp + fp));
-export const recall: Metric = (s) => perClass(s, (tp, _fp, fn) => ratio(tp, tp + fn));
-export const f1: Metric = (s) => perClass(s, (tp, fp, fn) => ratio(2 * tp, 2 * tp + fp + fn));
+export const precision = metric('higher', 'TP / (TP + FP) of the positive class with two classes, the macro average with more.', (s) =>
+  perClass(s, (tp, fp) => ratio(tp, tp + fp)),
+);
+export const recall = metric(
+  'higher',
+  'TP / (TP + FN) of the positive class with two classes (sensitivity), the macro average with more.',
+  (s) => perClass(s, (tp, _fp, fn) => ratio(tp, tp + fn)),
+);
+export const f1 = metric(
+  'higher',
+  'harmonic mean of precision and recall, 2TP / (2TP + FP + FN); macro average with more than two classes.',
+  (s) => perClass(s, (tp, fp, fn) => ratio(2 * tp, 2 * tp + fp + fn)),
+);
 
-export const mcc: Metric = (s) => {
+export const mcc = metric('higher', "Matthews correlation coefficient (Gorodkin's multiclass form); 0 when a margin is constant.", (s) => {
   const { k, truth, pred, diag, n } = margins(s);
   let tp = 0;
   let tt = 0;
@@ -69,11 +87,11 @@ export const mcc: Metric = (s) => {
   }
   const denominator = Math.sqrt((n * n - pp) * (n * n - tt));
   return denominator === 0 ? 0 : (diag * n - tp) / denominator;
-};
+});
 
-export const kappa: Metric = (s) => {
+export const kappa = metric('higher', "Cohen's kappa: agreement of predicted and true classes beyond chance.", (s) => {
   const { k, truth, pred, diag, n } = margins(s);
   let expected = 0;
   for (let c = 0; c < k; c++) expected += (truth[c] / n) * (pred[c] / n);
   return expected === 1 ? null : (diag / n - expected) / (1 - expected);
-};
+});

@@ -10,7 +10,18 @@ export interface Scored {
 }
 
 /** A metric value, or null where it is undefined for these rows (e.g. ROC AUC with one class present). */
-export type Metric = (s: Scored) => number | null;
+export type MetricValue = (s: Scored) => number | null;
+
+/** A metric's entry: what it measures (schema and docs are generated from it), which way is better, and its value. */
+export interface Metric {
+  readonly description: string;
+  readonly better: 'higher' | 'lower';
+  readonly value: MetricValue;
+}
+
+export function metric(better: Metric['better'], description: string, value: MetricValue): Metric {
+  return { description, better, value };
+}
 
 export function predictedClasses(proba: Float64Array, k: number): Int32Array {
   const rows = proba.length / k;

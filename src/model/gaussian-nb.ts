@@ -5,7 +5,7 @@
  */
 import { classMoments, overallMoments } from './class-moments.js';
 import type { Matrix } from '../table/matrix.js';
-import type { ModelImpl } from './types.js';
+import type { ModelCapabilities, ModelImpl } from './types.js';
 import { softmaxRows } from './types.js';
 
 export interface GaussianNbParams {
@@ -14,7 +14,7 @@ export interface GaussianNbParams {
   variance: number[][];
 }
 
-const fromMoments: NonNullable<ModelImpl<GaussianNbParams>['fromMoments']> = (m, options, { classCount }) => {
+const fromMoments: NonNullable<ModelCapabilities<GaussianNbParams>['fromMoments']> = (m, options, { classCount }) => {
   const cols = m.cols;
   const floor = options['variance-floor'] as number;
   const priors = options.priors as number[] | undefined; // already ordered by class code
@@ -58,10 +58,9 @@ export const gaussianNb: ModelImpl<GaussianNbParams> = {
   },
 
   fit: (X, y, options, ctx) => fromMoments(classMoments(X, y, ctx.classCount), options, ctx),
-  fromMoments,
+  capabilities: { fromMoments, predictRows },
 
   predict: (p, X) => predictRows([p], X),
-  predictRows,
 };
 
 /** Rows which[i] (default: every row) scored by models[modelOf[i]] (default: the first). */

@@ -28,15 +28,17 @@ export const knn: ModelImpl<KnnParams> = {
     for (let r = 0; r < X.rows; r++) rows.push(Array.from(X.data.subarray(r * X.cols, (r + 1) * X.cols)));
     return { k, classCount, X: rows, y: Array.from(y) };
   },
-  notes(p) {
-    // Every training row the same: every distance ties, so the neighbours are simply the first k rows in id order.
-    const first = p.X[0];
-    const allSame = p.X.every((row) => row.every((v, j) => v === first[j]));
-    return allSame && p.X.length > p.k
-      ? [
-          'every training row has the same feature values, so all distances tie and the k neighbours are the first k training rows in id order',
-        ]
-      : [];
+  capabilities: {
+    notes(p) {
+      // Every training row the same: every distance ties, so the neighbours are simply the first k rows in id order.
+      const first = p.X[0];
+      const allSame = p.X.every((row) => row.every((v, j) => v === first[j]));
+      return allSame && p.X.length > p.k
+        ? [
+            'every training row has the same feature values, so all distances tie and the k neighbours are the first k training rows in id order',
+          ]
+        : [];
+    },
   },
   predict(p, X) {
     const n = p.y.length;

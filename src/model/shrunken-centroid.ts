@@ -6,7 +6,7 @@
  * shrink = 0 gives plain nearest (standardized) centroids.
  */
 import { classMoments, overallMoments } from './class-moments.js';
-import { FitError, softmaxRows, type ModelImpl } from './types.js';
+import { FitError, softmaxRows, type ModelCapabilities, type ModelImpl } from './types.js';
 
 export interface ShrunkenCentroidParams {
   centroid: (number[] | null)[]; // shrunken centroid per class
@@ -14,7 +14,7 @@ export interface ShrunkenCentroidParams {
   logPrior: (number | null)[];
 }
 
-const fromMoments: NonNullable<ModelImpl<ShrunkenCentroidParams>['fromMoments']> = (moments, options, { classCount }) => {
+const fromMoments: NonNullable<ModelCapabilities<ShrunkenCentroidParams>['fromMoments']> = (moments, options, { classCount }) => {
   const shrink = options.shrink as number;
   const { cols, n, mean } = moments;
   const { rows, mean: overall } = overallMoments(moments);
@@ -60,7 +60,7 @@ export const shrunkenCentroid: ModelImpl<ShrunkenCentroidParams> = {
   },
 
   fit: (X, y, options, ctx) => fromMoments(classMoments(X, y, ctx.classCount), options, ctx),
-  fromMoments,
+  capabilities: { fromMoments },
   predict(p, X) {
     const k = p.centroid.length;
     const { rows, cols, data } = X;

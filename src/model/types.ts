@@ -31,18 +31,23 @@ export interface ModelImpl<P = unknown> {
   fit(X: Matrix, y: Int32Array, options: Record<string, unknown>, ctx: FitContext): P;
   /** Probabilities, row-major rows × classCount; each row sums to 1. */
   predict(params: P, X: Matrix): Float64Array;
-  /**
-   * Optional: the probabilities of rows which[i] of X under models[modelOf[i]], without
-   * copying the rows out — every fold's held-out rows in one call. Equals predict per model.
-   */
-  predictRows?(models: P[], X: Matrix, which: Int32Array, modelOf: Int32Array): Float64Array;
+  /** The one optional object of further capabilities; the fold executor and the runner read it. */
+  readonly capabilities?: ModelCapabilities<P>;
+}
+
+export interface ModelCapabilities<P> {
   /**
    * For models that learn from their training rows only through class moments: the same fit
    * from the moments. `fit` must equal fromMoments(classMoments(X, y)); the runner then fits
    * folds from merged per-fold moments (see class-moments.ts).
    */
   fromMoments?(moments: ClassMoments, options: Record<string, unknown>, ctx: FitContext): P;
-  /** Optional: remarks on a fitted model worth a warning (e.g. every distance tied). */
+  /**
+   * The probabilities of rows which[i] of X under models[modelOf[i]], without copying the rows
+   * out — every fold's held-out rows in one call. Equals predict per model.
+   */
+  predictRows?(models: P[], X: Matrix, which: Int32Array, modelOf: Int32Array): Float64Array;
+  /** Remarks on a fitted model worth a warning (e.g. every distance tied). */
   notes?(params: P): string[];
 }
 

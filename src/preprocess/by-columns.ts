@@ -6,33 +6,32 @@
  * arithmetic and its order are those of the whole-matrix fit (a test holds the two bit for bit):
  * a 20,000-gene table that keeps 100 genes never materializes 20,000 standardized columns.
  */
-import type { PreprocessStep } from '../protocol/types.js';
+import type { PreprocessStep } from './registry.js';
 import { takeRows, type Matrix } from '../table/matrix.js';
 import { presentClasses } from './feature-scores.js';
 import { assertFinite, fitPipeline, type FittedPipeline, type FittedStep } from './pipeline.js';
 import { transforms } from './registry.js';
 import { FitError } from '../problems/problem.js';
-import type { ColumnKernel, TransformImpl } from './types.js';
+import type { ColumnKernel, Selection } from './types.js';
+import { columnKernelOf, selectionOf } from './capability.js';
 
-type Selection = Required<Pick<TransformImpl, 'scoreColumn' | 'fromScores' | 'kept'>>;
 interface ColumnPlan {
-  prefix: { step: PreprocessStep; kernel: ColumnKernel }[];
+  prefix: { step: PreprocessStep; kernel: ColumnKernel<any> }[];
   at: number;
-  selection: Selection;
+  selection: Selection<unknown, any>;
 }
 
 function columnPlan(steps: readonly PreprocessStep[]): ColumnPlan | undefined {
-  const at = steps.findIndex((step) => transforms[step.step].kept);
+  const at = steps.findIndex((step) => selectionOf(transforms[step.step]));
   if (at < 0) return undefined;
-  const { scoreColumn, fromScores, kept } = transforms[steps[at].step];
-  if (!scoreColumn || !fromScores || !kept) return undefined;
+  const selection = selectionOf(transforms[steps[at].step])!;
   const prefix: ColumnPlan['prefix'] = [];
   for (const step of steps.slice(0, at)) {
-    const kernel = transforms[step.step].column;
+    const kernel = columnKernelOf(transforms[step.step]);
     if (!kernel) return undefined;
     prefix.push({ step, kernel });
   }
-  return { prefix, at, selection: { scoreColumn, fromScores, kept } };
+  return { prefix, at, selection };
 }
 
 /** Whether fitting `steps` goes column by column (and so wants the table in column-major order). */
@@ -99,8 +98,7 @@ function byColumns(
   const counts = new Float64Array(classCount);
   for (let i = 0; i < n; i++) counts[y[i]]++;
   const present = presentClasses(counts);
-  const classMean = new Float64Array(classCount);
-  const classSs = new Float64Array(classCount);
+  const work = { counts, mean: new Float64Array(classCount), ss: new Float64Array(classCount), present };
   // values[t][f * width + j]: field f of step t's parameters for column j.
   const values = plan.prefix.map(({ kernel }) => new Float64Array(kernel.fields.length * width));
   const one = plan.prefix.map(({ kernel }) => new Float64Array(kernel.fields.length));
@@ -116,7 +114,7 @@ function byColumns(
       for (let f = 0; f < p.length; f++) values[t][f * width + j] = p[f];
       kernel.apply(v, n, p);
     }
-    scores[j] = scoreColumn(v, n, y, classCount, selectStep, counts, classMean, classSs, present);
+    scores[j] = scoreColumn(v, n, y, classCount, selectStep, work);
   }
   const fitted: FittedStep[] = plan.prefix.map(({ step, kernel }, t) => ({
     step,

@@ -5,6 +5,7 @@
  */
 import { overallMoments, type ClassMoments } from '../model/class-moments.js';
 import type { Matrix } from '../table/matrix.js';
+import type { ScoreWork } from './types.js';
 
 export type ScoreBy = 't-test' | 'f-test' | 'variance';
 
@@ -57,20 +58,11 @@ export function presentClasses(n: Float64Array): number[] {
 }
 
 /**
- * One column's score from its values v[0, rows). `counts` are the rows per class; `mean` and
- * `ss` are scratch space of classCount numbers each (reused across columns: no allocation).
+ * One column's score from its values v[0, rows). `work.counts` are the rows per class; its `mean`
+ * and `ss` are scratch space of classCount numbers each (reused across columns: no allocation).
  */
-export function scoreColumn(
-  v: Float64Array,
-  rows: number,
-  y: Int32Array,
-  classCount: number,
-  by: ScoreBy,
-  counts: Float64Array,
-  mean: Float64Array,
-  ss: Float64Array,
-  present: readonly number[],
-): number {
+export function scoreColumn(v: Float64Array, rows: number, y: Int32Array, classCount: number, by: ScoreBy, work: ScoreWork): number {
+  const { counts, mean, ss, present } = work;
   mean.fill(0);
   ss.fill(0);
   for (let i = 0; i < rows; i++) mean[y[i]] += v[i];

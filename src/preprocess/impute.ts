@@ -1,11 +1,11 @@
 /** Fill missing cells (NaN) with the training mean or median of the column's present values. */
 import { FitError } from '../problems/problem.js';
-import type { TransformImpl } from './types.js';
+import { keepsWidth, type TransformImpl } from './types.js';
 
 export interface ImputeParams {
   fill: number[];
 }
-interface ImputeStep {
+export interface ImputeStep {
   by: 'mean' | 'median';
 }
 
@@ -21,8 +21,12 @@ function fillValue(present: number[], step: ImputeStep, column: number): number 
   return present.length % 2 ? present[h] : (present[h - 1] + present[h]) / 2;
 }
 
-export const impute: TransformImpl<ImputeParams> = {
-  fit(X, _y, _k, step: ImputeStep) {
+export const impute: TransformImpl<ImputeParams, ImputeStep> = {
+  description: 'replace missing cells by a statistic of the column in the training part.',
+  settings: { by: { description: 'Statistic of the training part used to fill missing cells.', enum: ['mean', 'median'] } },
+  fillsMissing: true,
+  check: keepsWidth,
+  fit(X, _y, _k, step) {
     const { rows, cols, data } = X;
     const fill: number[] = [];
     for (let j = 0; j < cols; j++) {
@@ -35,20 +39,20 @@ export const impute: TransformImpl<ImputeParams> = {
     }
     return { fill };
   },
-  column: {
-    fields: ['fill'],
-    fit(v, n, step: ImputeStep, out) {
-      const present: number[] = [];
-      for (let i = 0; i < n; i++) if (v[i] === v[i]) present.push(v[i]);
-      // The column's position is not known here; a failure is re-raised by the whole-matrix fit, which names it.
-      out[0] = fillValue(present, step, -1);
+  fast: {
+    kind: 'column-wise',
+    column: {
+      fields: ['fill'],
+      fit(v, n, step, out) {
+        const present: number[] = [];
+        for (let i = 0; i < n; i++) if (v[i] === v[i]) present.push(v[i]);
+        // The column's position is not known here; a failure is re-raised by the whole-matrix fit, which names it.
+        out[0] = fillValue(present, step, -1);
+      },
+      apply(v, n, p) {
+        for (let i = 0; i < n; i++) if (v[i] !== v[i]) v[i] = p[0];
+      },
     },
-    apply(v, n, p) {
-      for (let i = 0; i < n; i++) if (v[i] !== v[i]) v[i] = p[0];
-    },
-  },
-  restrict(p, positions) {
-    return { fill: positions.map((j) => p.fill[j]) };
   },
   apply(p, X) {
     const out = Float64Array.from(X.data);

@@ -1,24 +1,28 @@
 /** log2(x + 1), for counts and intensities; negative input is rejected rather than turned into NaN. */
 import { FitError } from '../problems/problem.js';
-import type { TransformImpl } from './types.js';
+import { keepsWidth, type TransformImpl } from './types.js';
 
-export const log2p: TransformImpl<Record<string, never>> = {
+export const log2p: TransformImpl<Record<string, never>, Record<string, never>> = {
+  description: 'log2(x + 1), for counts and intensities; a negative value is an error, not NaN.',
+  settings: {},
+  fillsMissing: false,
+  check: keepsWidth,
   fit() {
     return {};
   },
-  column: {
-    fields: [],
-    fit() {},
-    apply(v, n) {
-      for (let i = 0; i < n; i++) {
-        // The position is not known here; the whole-matrix apply re-raises this with it.
-        if (v[i] < 0) throw new FitError('log2p-negative', `log2p got the negative value ${v[i]}`);
-        v[i] = Math.log2(v[i] + 1);
-      }
+  fast: {
+    kind: 'column-wise',
+    column: {
+      fields: [],
+      fit() {},
+      apply(v, n) {
+        for (let i = 0; i < n; i++) {
+          // The position is not known here; the whole-matrix apply re-raises this with it.
+          if (v[i] < 0) throw new FitError('log2p-negative', `log2p got the negative value ${v[i]}`);
+          v[i] = Math.log2(v[i] + 1);
+        }
+      },
     },
-  },
-  restrict(p) {
-    return p;
   },
   apply(_p, X) {
     const out = new Float64Array(X.data.length);

@@ -1,8 +1,9 @@
 /** Fit the protocol's steps in order on the training rows, carrying the feature names along. */
-import type { PreprocessStep } from '../protocol/types.js';
+import type { PreprocessStep } from './registry.js';
 import type { Matrix } from '../table/matrix.js';
 import { takeCells, takeCols, takeRows } from '../table/matrix.js';
 import { transforms } from './registry.js';
+import { outputColumns, restrictParams, selectionOf } from './capability.js';
 import { FitError } from '../problems/problem.js';
 
 export interface FittedStep {
@@ -32,7 +33,7 @@ export function fitPipeline(
     const impl = transforms[step.step];
     const params = impl.fit(current, y, classCount, step);
     current = impl.apply(params, current);
-    if (impl.columns) columns = impl.columns(params, columns);
+    columns = outputColumns(impl, params, columns);
     fitted.push({ step, params });
   }
   // Validation already guarantees finite (or imputed) input; only transforms can create non-finite values.
@@ -74,29 +75,30 @@ export function assertFinite(X: Matrix, columns: readonly string[]): void {
  * 100 stores and applies 100 columns' parameters.
  */
 export function prunePipeline(p: FittedPipeline, inputWidth: number): FittedPipeline {
-  if (!p.steps.some((s) => transforms[s.step.step].kept)) return p;
-  // A transform with only fit and apply (no column-wise restrict) cannot be cut to the survivors:
+  const shape = (s: FittedStep) => transforms[s.step.step].fast?.kind;
+  if (!p.steps.some((s) => shape(s) === 'selection')) return p;
+  // A transform with only fit and apply (not column-wise) cannot be cut to the survivors:
   // the pipeline is then kept whole, which is correct, only larger.
-  if (p.steps.some((s) => !transforms[s.step.step].kept && !transforms[s.step.step].restrict)) return p;
+  if (p.steps.some((s) => shape(s) === undefined)) return p;
   // Original positions present at the input of each step, and at the end.
   const inputs: Int32Array[] = [];
   let current = Int32Array.from({ length: inputWidth }, (_, j) => j);
   for (const s of p.steps) {
     inputs.push(current);
-    const kept = transforms[s.step.step].kept?.(s.params);
-    if (kept) current = Int32Array.from(kept, (k) => current[k]);
+    const selection = selectionOf(transforms[s.step.step]);
+    if (selection) current = Int32Array.from(selection.kept(s.params), (k) => current[k]);
   }
   const survives = new Uint8Array(inputWidth);
   for (const j of current) survives[j] = 1;
   const steps: FittedStep[] = [];
   p.steps.forEach((s, t) => {
     const impl = transforms[s.step.step];
-    if (impl.kept) return;
+    if (selectionOf(impl)) return;
     const positions: number[] = [];
     inputs[t].forEach((orig, k) => {
       if (survives[orig]) positions.push(k);
     });
-    steps.push({ step: s.step, params: impl.restrict!(s.params, positions) });
+    steps.push({ step: s.step, params: restrictParams(impl, s.params, positions) });
   });
   // Selections keep input order, so the survivors' original order is the model's column order.
   return { steps, columns: p.columns, input: Array.from(current) };

@@ -8,13 +8,13 @@
 import { takeCols } from '../table/matrix.js';
 import { restrictMoments } from '../model/class-moments.js';
 import { featureScores, momentScores, scoreColumn, type ScoreBy } from './feature-scores.js';
-import type { TransformImpl } from './types.js';
+import type { StepProblem, TransformImpl } from './types.js';
 
 export interface SelectParams {
   keep: number[];
   scores: (number | null)[];
 }
-interface SelectStep {
+export interface SelectStep {
   top: number;
   by: ScoreBy;
 }
@@ -46,22 +46,57 @@ const fromScores = (scores: Float64Array, step: SelectStep): SelectParams => ({
   scores: Array.from(scores, (s) => (Number.isFinite(s) ? s : null)),
 });
 
-export const select: TransformImpl<SelectParams> = {
-  fit: (X, y, classCount, step: SelectStep) => fromScores(featureScores(X, y, classCount, step.by), step),
-  moments: {
-    fit: (m, step: SelectStep) => fromScores(momentScores(m, step.by), step),
-    after: (p, m) => restrictMoments(m, p.keep),
+export const select: TransformImpl<SelectParams, SelectStep> = {
+  description: 'keep the `top` features by a score computed on the training part.',
+  settings: {
+    top: { description: 'Number of features kept.', type: 'integer', minimum: 1 },
+    by: {
+      description: 't-test: absolute Welch t (two classes only); f-test: one-way ANOVA F; variance: training variance.',
+      enum: ['t-test', 'f-test', 'variance'],
+    },
   },
-  scoreColumn: (v, n, y, classCount, step: SelectStep, counts, mean, ss, present) =>
-    scoreColumn(v, n, y, classCount, step.by, counts, mean, ss, present),
-  fromScores,
+  fillsMissing: false,
+  check(step, ctx) {
+    const problems: StepProblem[] = [];
+    if (step.top > ctx.width)
+      problems.push({
+        severity: 'error',
+        code: 'select-too-many',
+        message: `select keeps the top ${step.top} features but only ${ctx.width} are there`,
+        path: ['top'],
+      });
+    if (step.by === 't-test' && ctx.classCount !== 2)
+      problems.push({
+        severity: 'error',
+        code: 't-test-needs-two-classes',
+        message: `the t-test score needs exactly 2 classes; the label has ${ctx.classCount}`,
+        path: ['by'],
+        hint: 'use by: f-test for more classes',
+      });
+    // Standardized columns all have variance 1: the "top" ones would differ only by rounding.
+    if (step.by === 'variance' && ctx.before.some((earlier) => earlier.step === 'standardize'))
+      problems.push({
+        severity: 'warning',
+        code: 'variance-after-standardize',
+        message:
+          'select by variance comes after standardize, where every column has variance 1: which columns it keeps is decided by rounding',
+        path: ['by'],
+        hint: 'select by variance before standardize, or by t-test or f-test',
+      });
+    return { problems, width: Math.min(ctx.width, step.top) };
+  },
+  fit: (X, y, classCount, step) => fromScores(featureScores(X, y, classCount, step.by), step),
   apply(p, X) {
     return takeCols(X, Int32Array.from(p.keep));
   },
-  kept(p) {
-    return p.keep;
-  },
-  columns(p, names) {
-    return p.keep.map((j) => names[j]);
+  fast: {
+    kind: 'selection',
+    kept: (p) => p.keep,
+    fromScores,
+    scoreColumn: (v, n, y, classCount, step, work) => scoreColumn(v, n, y, classCount, step.by, work),
+    moments: {
+      fit: (m, step) => fromScores(momentScores(m, step.by), step),
+      after: (p, m) => restrictMoments(m, p.keep),
+    },
   },
 };

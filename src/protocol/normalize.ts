@@ -1,4 +1,5 @@
 /** Schema-valid plain data → typed Protocol with defaults. Runs only after the schema passed. */
+import { readStep } from '../preprocess/registry.js';
 import { DEFAULT_METRICS, DEFAULT_MISSING, type PreprocessStep, type Protocol } from './types.js';
 
 /* eslint-disable @typescript-eslint/no-explicit-any */
@@ -15,11 +16,7 @@ export function normalizeProtocol(raw: any): Protocol {
         assign: s.assign ?? 'balanced',
         testFraction: s['test-fraction'],
       };
-  const preprocess: PreprocessStep[] = (raw.preprocess ?? []).map((p: any): PreprocessStep => {
-    if (p === 'standardize' || p === 'log2p') return { step: p };
-    if (p.impute) return { step: 'impute', by: p.impute.by };
-    return { step: 'select', top: p.select.top, by: p.select.by };
-  });
+  const preprocess: PreprocessStep[] = (raw.preprocess ?? []).map(readStep);
   const r = raw.reconcile ?? {};
   const nr = r['new-rows'];
   return {

@@ -5,6 +5,7 @@ import { normalizeProtocol } from './normalize.js';
 import type { ValidateFunction } from 'ajv/dist/2020.js';
 import { schemaProblems } from './schema-problems.js';
 import { isPinned, ruleNeedsSeed, type Protocol } from './types.js';
+import { splitRules } from '../split/registry.js';
 
 export interface ParsedProtocol {
   file: string;
@@ -64,32 +65,26 @@ function structureProblems(p: Protocol, source: SourceDocument): Problem[] {
         }),
       );
     }
-    if (!ruleNeedsSeed(rule) && has('seed'))
-      out.push(warning('unused-field', `split rule ${rule} does not use a seed`, at(['split', 'seed'], true)));
-    if (rule === 'holdout') {
+    const uses = splitRules[rule].uses;
+    if (!uses.seed && has('seed')) out.push(warning('unused-field', `split rule ${rule} does not use a seed`, at(['split', 'seed'], true)));
+    if (uses.testFraction) {
       if (p.split.testFraction === undefined)
-        out.push(error('missing-field', 'split rule holdout needs `test-fraction`', at(['split'], true)));
+        out.push(error('missing-field', `split rule ${rule} needs \`test-fraction\``, at(['split'], true)));
       else if (!hasSixDecimals(p.split.testFraction))
         out.push(
           error('bad-format', `test-fraction ${p.split.testFraction} has more than 6 decimal places`, at(['split', 'test-fraction'])),
         );
-      if (has('folds'))
-        out.push(
-          warning(
-            'unused-field',
-            'split rule holdout does not use `folds` (fold 1 is the test part, fold 2 the training part)',
-            at(['split', 'folds'], true),
-          ),
-        );
     } else if (has('test-fraction'))
-      out.push(error('unused-field', `test-fraction belongs to the holdout rule, not ${rule}`, at(['split', 'test-fraction'], true)));
-    if (rule === 'leave-one-out' || rule === 'leave-group-out') {
-      if (has('folds'))
-        out.push(warning('unused-field', `split rule ${rule} sets the number of folds itself`, at(['split', 'folds'], true)));
-      if (p.split.repeats > 1)
-        out.push(error('out-of-range', `split rule ${rule} has exactly one assignment; repeats must be 1`, at(['split', 'repeats'])));
-      if (has('assign')) out.push(warning('unused-field', `split rule ${rule} does not use \`assign\``, at(['split', 'assign'], true)));
+      out.push(error('unused-field', `split rule ${rule} does not use \`test-fraction\``, at(['split', 'test-fraction'], true)));
+    if (!uses.folds && has('folds')) {
+      const why =
+        splitRules[rule].tests === 'fold-1' ? 'fold 1 is the test part, fold 2 the training part' : 'it sets the number of folds itself';
+      out.push(warning('unused-field', `split rule ${rule} does not use \`folds\` (${why})`, at(['split', 'folds'], true)));
     }
+    if (!uses.repeats && p.split.repeats > 1)
+      out.push(error('out-of-range', `split rule ${rule} has exactly one assignment; repeats must be 1`, at(['split', 'repeats'])));
+    if (!uses.assign && has('assign'))
+      out.push(warning('unused-field', `split rule ${rule} does not use \`assign\``, at(['split', 'assign'], true)));
   } else {
     for (const key of ['rule', 'folds', 'repeats', 'seed', 'assign', 'test-fraction']) {
       if (has(key))

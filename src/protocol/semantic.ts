@@ -7,6 +7,8 @@ import { error, warning, type Problem } from '../problems/problem.js';
 import { assignFolds } from '../split/assign.js';
 import { emptyFolds, type Assignment } from '../split/assignment.js';
 import { parsePinned } from '../split/pinned.js';
+import { splitRules } from '../split/registry.js';
+import { transforms } from '../preprocess/registry.js';
 import type { Table } from '../table/table.js';
 import { locate, type SourceDocument } from './document.js';
 import { isPinned, testsFoldOneOnly, type Protocol } from './types.js';
@@ -79,51 +81,20 @@ export function checkAgainstData(p: Protocol, source: SourceDocument, ev: DataEv
   } else {
     const s = p.split;
     const n = table.ids.length;
-    const groupRule = s.rule === 'grouped-kfold' || s.rule === 'leave-group-out';
-    const folds = (): Problem['position'] => locate(source, ['split', 'folds']);
-    if (groupRule && table.groups === undefined) {
+    const rule = splitRules[s.rule];
+    if (rule.uses.groups && table.groups === undefined) {
       problems.push(error('missing-group', `split rule ${s.rule} needs data.group to name the group column`, at(['split', 'rule'])));
-    } else if (groupRule) {
-      const groupCount = new Set(table.groups).size;
-      if (s.rule === 'grouped-kfold' && s.folds > groupCount)
-        problems.push(
-          error('too-many-folds', `folds is ${s.folds} but the data has only ${groupCount} groups`, {
-            file,
-            path: ['split', 'folds'],
-            position: folds(),
-          }),
-        );
-      if (s.rule === 'leave-group-out' && groupCount < 2)
-        problems.push(
-          error('too-few-groups', `leave-group-out needs at least 2 groups; the data has ${groupCount}`, at(['data', 'group'])),
-        );
-    }
-    if ((s.rule === 'kfold' || s.rule === 'stratified-kfold') && s.folds > n) {
-      problems.push(
-        error('too-many-folds', `folds is ${s.folds} but the data has only ${n} rows`, {
-          file,
-          path: ['split', 'folds'],
-          position: folds(),
-        }),
-      );
-    } else if (s.rule === 'stratified-kfold' && s.assign === 'balanced') {
-      table.classes.forEach((c, k) => {
-        if (classCounts[k] < s.folds)
-          problems.push(
-            error(
-              'class-smaller-than-folds',
-              `class "${c}" has ${classCounts[k]} row${classCounts[k] === 1 ? '' : 's'}, fewer than the ${s.folds} folds, so some folds would have none of it`,
-              { file, path: ['split', 'folds'], position: folds(), hint: `use at most ${Math.min(...classCounts)} folds` },
-            ),
-          );
-      });
+    } else {
+      const groupCount = table.groups ? new Set(table.groups).size : undefined;
+      for (const q of rule.check(s, { rows: n, classCounts, classes: table.classes, groupCount }))
+        problems.push(error(q.code, q.message, q.hint === undefined ? at(q.path) : { ...at(q.path), hint: q.hint }));
     }
     if (problems.every((q) => q.severity !== 'error')) {
       assignment = assignFolds(
         { ids: table.ids, y: table.y, classCount: table.classes.length, groups: table.groups, idKeys: ev.idKeys },
         s,
       );
-      if (s.rule === 'holdout') {
+      if (rule.tests === 'fold-1') {
         // Per repeat: a stable holdout draws each row independently, so any repeat can come out empty.
         for (let r = 1; r <= assignment.repeats; r++) {
           const test = assignment.fold.subarray((r - 1) * n, r * n).filter((f) => f === 1).length;
@@ -158,7 +129,7 @@ export function checkAgainstData(p: Protocol, source: SourceDocument, ev: DataEv
 type At = (path: (string | number)[], key?: boolean) => Partial<Problem>;
 
 function missingValueProblems(p: Protocol, table: Table, at: At): Problem[] {
-  const hasImpute = p.preprocess.some((s) => s.step === 'impute');
+  const hasImpute = p.preprocess.some((s) => transforms[s.step].fillsMissing);
   if (hasImpute || table.hasMissing === false) return [];
   const { rows, cols, data } = table.X;
   const perColumn = new Int32Array(cols);
@@ -184,33 +155,13 @@ function preprocessProblems(p: Protocol, table: Table, at: At): Problem[] {
   const out: Problem[] = [];
   let width = table.X.cols;
   p.preprocess.forEach((s, i) => {
-    if (s.step !== 'select') return;
-    if (s.top > width)
-      out.push(
-        error(
-          'select-too-many',
-          `select keeps the top ${s.top} features but only ${width} are there`,
-          at(['preprocess', i, 'select', 'top']),
-        ),
-      );
-    if (s.by === 't-test' && table.classes.length !== 2)
-      out.push(
-        error('t-test-needs-two-classes', `the t-test score needs exactly 2 classes; the label has ${table.classes.length}`, {
-          ...at(['preprocess', i, 'select', 'by']),
-          hint: 'use by: f-test for more classes',
-        }),
-      );
-    // Standardized columns all have variance 1: the "top" ones would differ only by rounding.
-    if (s.by === 'variance' && p.preprocess.slice(0, i).some((earlier) => earlier.step === 'standardize')) {
-      out.push(
-        warning(
-          'variance-after-standardize',
-          'select by variance comes after standardize, where every column has variance 1: which columns it keeps is decided by rounding',
-          { ...at(['preprocess', i, 'select', 'by']), hint: 'select by variance before standardize, or by t-test or f-test' },
-        ),
-      );
+    const checked = transforms[s.step].check(s, { width, classCount: table.classes.length, before: p.preprocess.slice(0, i) });
+    for (const q of checked.problems) {
+      const where = at(['preprocess', i, s.step, ...q.path]);
+      const extra = q.hint === undefined ? where : { ...where, hint: q.hint };
+      out.push(q.severity === 'error' ? error(q.code, q.message, extra) : warning(q.code, q.message, extra));
     }
-    width = Math.min(width, s.top);
+    width = checked.width;
   });
   return out;
 }

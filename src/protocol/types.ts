@@ -1,28 +1,16 @@
 /** The protocol after schema validation, with every documented default filled in. */
+import { splitRules } from '../split/registry.js';
 import type { RuleSplit, SplitRule } from '../split/types.js';
 export type { AssignMode, RuleSplit, SplitRule } from '../split/types.js';
 export type { ModelKind } from '../model/registry.js';
 import type { ModelKind } from '../model/registry.js';
-export type MetricName =
-  | 'accuracy'
-  | 'balanced-accuracy'
-  | 'precision'
-  | 'recall'
-  | 'f1'
-  | 'mcc'
-  | 'kappa'
-  | 'roc-auc'
-  | 'average-precision'
-  | 'log-loss'
-  | 'brier';
+export type { MetricName } from '../metric/registry.js';
+import type { MetricName } from '../metric/registry.js';
 export type ReconcileRule = 'mean-probability' | 'majority-vote' | 'refit';
 export type TieRule = 'mean-probability' | 'abstain' | 'class-order';
 
-export type PreprocessStep =
-  | { step: 'standardize' }
-  | { step: 'log2p' }
-  | { step: 'impute'; by: 'mean' | 'median' }
-  | { step: 'select'; top: number; by: 't-test' | 'f-test' | 'variance' };
+export type { PreprocessStep } from '../preprocess/registry.js';
+import type { PreprocessStep } from '../preprocess/registry.js';
 
 export interface HashedFile {
   file: string;
@@ -66,7 +54,7 @@ export function isPinned(split: Protocol['split']): split is PinnedSplit {
 
 /** Rules whose assignment draws SHA-256 keys from the seed. */
 export function ruleNeedsSeed(rule: SplitRule): boolean {
-  return rule !== 'leave-one-out' && rule !== 'leave-group-out';
+  return splitRules[rule].uses.seed;
 }
 
 /**
@@ -74,5 +62,5 @@ export function ruleNeedsSeed(rule: SplitRule): boolean {
  * `final: true` protocol, whose fold 1 holds the sealed rows — testing fold 2 would train on them.
  */
 export function testsFoldOneOnly(p: Pick<Protocol, 'split' | 'final'>): boolean {
-  return isPinned(p.split) ? p.final : p.split.rule === 'holdout';
+  return isPinned(p.split) ? p.final : splitRules[p.split.rule].tests === 'fold-1';
 }

@@ -100,7 +100,7 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
   plans.forEach(({ repeat: r, fold: f, train, test }, index) => {
     const { pipeline, model: params, proba: foldProba } = fits[index];
     const impl = models[p.model.kind];
-    for (const note of impl.notes?.(params) ?? [])
+    for (const note of impl.capabilities?.notes?.(params) ?? [])
       warnings.push(warning('model-note', `${p.model.kind} in repeat ${r}, fold ${f}: ${note}`));
     for (let i = 0; i < foldProba.length; i++) {
       if (!Number.isFinite(foldProba[i])) {
@@ -133,7 +133,7 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
     }
     const s = scored(yTest, foldProba, k, positive);
     const values: Record<string, number | null> = {};
-    for (const m of p.metrics) values[m] = metricFns[m](s);
+    for (const m of p.metrics) values[m] = metricFns[m].value(s);
     const majority = trainCounts.indexOf(Math.max(...trainCounts));
     const testClassCounts = new Array<number>(k).fill(0);
     for (let i = 0; i < yTest.length; i++) testClassCounts[yTest[i]]++;
@@ -217,7 +217,7 @@ function pooled(
     }
     const s = scored(takeInt(table.y, idx), p, k, positive);
     const out: Record<string, number | null> = {};
-    for (const m of names) out[m] = metricFns[m](s);
+    for (const m of names) out[m] = metricFns[m].value(s);
     return out;
   });
 }

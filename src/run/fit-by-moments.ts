@@ -10,9 +10,10 @@
  */
 import { mergeMoments, partMoments, type ClassMoments } from '../model/class-moments.js';
 import { fitOptions, models } from '../model/registry.js';
-import type { ModelImpl } from '../model/types.js';
+import type { ModelCapabilities } from '../model/types.js';
 import { applyPipeline, prunePipeline, type FittedPipeline, type FittedStep } from '../preprocess/pipeline.js';
 import { transforms } from '../preprocess/registry.js';
+import { momentsOf, outputColumns } from '../preprocess/capability.js';
 import type { Protocol } from '../protocol/types.js';
 import type { Assignment } from '../split/assignment.js';
 import { idOrder } from '../split/key.js';
@@ -23,8 +24,8 @@ type Parts = Pick<Protocol, 'preprocess' | 'model'>;
 
 /** Worth it when something is learned from moments: a pipeline of moment steps, or a moment model. */
 export function canFitByMoments(p: Parts): boolean {
-  const steps = p.preprocess.every((s) => transforms[s.step].moments);
-  return steps && (p.preprocess.length > 0 || models[p.model.kind].fromMoments !== undefined);
+  const steps = p.preprocess.every((s) => momentsOf(transforms[s.step]));
+  return steps && (p.preprocess.length > 0 || models[p.model.kind].capabilities?.fromMoments !== undefined);
 }
 
 /** The pipelines of every plan, fitted from merged class moments; `modelFromMoments` also fits a moment model from the same moments. */
@@ -66,13 +67,16 @@ export function momentPipelines(
     const steps: FittedStep[] = [];
     for (const step of p.preprocess) {
       const t = transforms[step.step];
-      const params = t.moments!.fit(m, step);
-      m = t.moments!.after(params, m);
-      if (t.columns) columns = t.columns(params, columns);
+      const moments = momentsOf(t)!;
+      const params = moments.fit(m, step);
+      m = moments.after(params, m);
+      columns = outputColumns(t, params, columns);
       steps.push({ step, params });
     }
     const pipeline = prunePipeline({ steps, columns }, d.X.cols);
-    return impl.fromMoments ? { pipeline, model: impl.fromMoments(m, options, { classCount: k }) } : { pipeline };
+    return impl.capabilities?.fromMoments
+      ? { pipeline, model: impl.capabilities.fromMoments(m, options, { classCount: k }) }
+      : { pipeline };
   }
 }
 
@@ -80,7 +84,7 @@ export function fitByMoments(p: Parts, d: FoldData & { ids: readonly string[] },
   const impl = models[p.model.kind];
   const pipelines = momentPipelines(p, d, a, plans);
   // A model that needs rows gets the training rows through the fitted pipeline.
-  if (!impl.fromMoments) {
+  if (!impl.capabilities?.fromMoments) {
     return pipelines.map((f, i) => {
       try {
         return fitModelAfterPipeline(p, d, f.pipeline, plans[i].train, plans[i].test);
@@ -90,18 +94,18 @@ export function fitByMoments(p: Parts, d: FoldData & { ids: readonly string[] },
     });
   }
   const fitted = pipelines.map((f) => ({ pipeline: f.pipeline, model: f.model }));
-  if (p.preprocess.length === 0 && impl.predictRows) return predictTogether(impl.predictRows, fitted, d, plans);
+  if (p.preprocess.length === 0 && impl.capabilities?.predictRows) return predictTogether(impl.capabilities.predictRows, fitted, d, plans);
   return fitted.map((f, i) => ({ ...f, proba: impl.predict(f.model, applyPipeline(f.pipeline, d.X, plans[i].test)) }));
 }
 
 /** Whether the whole fold fit comes from moments (cheap per fold), or a model still fits on rows after moment pipelines. */
 export function modelFromMoments(p: Parts): boolean {
-  return models[p.model.kind].fromMoments !== undefined;
+  return models[p.model.kind].capabilities?.fromMoments !== undefined;
 }
 
 /** Every plan's test rows in one call (rows straight from X, no pipeline), split back by plan. */
 function predictTogether(
-  predictRows: NonNullable<ModelImpl['predictRows']>,
+  predictRows: NonNullable<ModelCapabilities<unknown>['predictRows']>,
   fitted: Omit<FoldFit, 'proba'>[],
   d: FoldData,
   plans: readonly FoldPlan[],

@@ -3,6 +3,7 @@ import type { Problem } from '../problems/problem.js';
 import { isPinned, type Protocol } from '../protocol/types.js';
 import type { Assignment } from '../split/assignment.js';
 import type { Table } from '../table/table.js';
+import { splitRules } from '../split/registry.js';
 import type { CvResult } from './cross-validate.js';
 
 export const RESULTS_VERSION = 1;
@@ -30,7 +31,7 @@ export function buildResults(r: ResultsInput): Record<string, unknown> {
         rule: p.split.rule,
         seed: p.split.seed ?? null,
         assign: p.split.assign,
-        ...(p.split.rule === 'holdout' ? { 'test-fraction': p.split.testFraction } : {}),
+        ...(splitRules[p.split.rule].uses.testFraction ? { 'test-fraction': p.split.testFraction } : {}),
       };
   return {
     'foldseal-results': RESULTS_VERSION,

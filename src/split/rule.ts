@@ -1,5 +1,6 @@
+import type { ProblemCode } from '../problems/codes.js';
 import { deriveKeys } from './key.js';
-import type { AssignMode } from './types.js';
+import type { AssignMode, RuleSplit } from './types.js';
 
 /** What a split rule sees: ids, label codes (classes in UTF-8 byte order), optional group values. */
 export interface SplitInput {
@@ -28,11 +29,58 @@ export interface SplitParams {
   testMicros: number;
 }
 
-/** A split rule: one repeat's fold per row (1-based), and the number of folds it produced. */
+/** The split settings a rule may read; the protocol checks, schema and docs follow from which ones it declares. */
+export interface RuleUses {
+  /** Draws SHA-256 keys from `seed` (then the seed is required). */
+  seed: boolean;
+  /** Reads `folds` (otherwise the rule sets the number of folds itself). */
+  folds: boolean;
+  /** Can draw more than one assignment (`repeats` > 1). */
+  repeats: boolean;
+  /** Reads `assign` (balanced or stable). */
+  assign: boolean;
+  /** Reads `test-fraction` (then it is required). */
+  testFraction: boolean;
+  /** Needs `data.group`. */
+  groups: boolean;
+}
+
+/** What a rule's data check sees: row count, rows per class, and the number of distinct groups (when data.group is set). */
+export interface RuleData {
+  rows: number;
+  classCounts: Int32Array;
+  classes: readonly string[];
+  groupCount?: number;
+}
+
+/** A problem a rule finds in its settings against the data; `path` is the protocol path it is located at. */
+export interface RuleProblem {
+  code: ProblemCode;
+  message: string;
+  path: (string | number)[];
+  hint?: string;
+}
+
+/** A split rule's entry: what it is, which settings it reads, its checks against the data, and its assignment. */
 export interface SplitRuleImpl {
+  /** One sentence for the schema and docs/protocol.md. */
+  readonly description: string;
+  readonly uses: Readonly<RuleUses>;
+  /** 'every-fold': each fold is tested once with the others training; 'fold-1': fold 1 is the test part, fold 2 trains. */
+  readonly tests: 'every-fold' | 'fold-1';
   /** True for rules that key rows by their ids (idKeysOf), so the shell may derive those keys ahead. */
-  keysIds?: true;
+  readonly keysIds: boolean;
+  /** Problems of the settings against the data, before any fold is drawn (data.group is known to be present when uses.groups). */
+  check(split: RuleSplit, data: RuleData): RuleProblem[];
+  /** One repeat's fold per row (1-based), and the number of folds it produced. */
   fold(input: SplitInput, params: SplitParams): { fold: Int32Array; folds: number };
+}
+
+/** The check every k-fold rule shares: no more folds than there are rows. */
+export function foldsWithinRows(split: RuleSplit, data: RuleData): RuleProblem[] {
+  return split.folds > data.rows
+    ? [{ code: 'too-many-folds', message: `folds is ${split.folds} but the data has only ${data.rows} rows`, path: ['split', 'folds'] }]
+    : [];
 }
 
 export function allRows(n: number): Int32Array {

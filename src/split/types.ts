@@ -1,5 +1,6 @@
 /** The settings a split rule is given (the protocol's split section, normalized). Types only. */
-export type SplitRule = 'holdout' | 'kfold' | 'stratified-kfold' | 'grouped-kfold' | 'leave-one-out' | 'leave-group-out';
+export type { SplitRule } from './registry.js';
+import type { SplitRule } from './registry.js';
 export type AssignMode = 'balanced' | 'stable';
 
 export interface RuleSplit {

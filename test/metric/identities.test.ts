@@ -41,8 +41,8 @@ t.test('MCC of a worked 2×2 example', async (t) => {
   const truth = Int32Array.from([1, 1, 1, 1, 1, 1, 0, 0, 0, 0, 0, 0]);
   const pred = [1, 1, 1, 1, 1, 0, 1, 1, 0, 0, 0, 0];
   const s = scored(truth, probaFrom(pred.map((p) => (p ? 0.9 : 0.1))), 2, 1);
-  t.ok(Math.abs(metrics.mcc(s)! - 18 / Math.sqrt(1260)) < 1e-15);
-  t.ok(Math.abs(metrics.mcc(s)! - 0.50709255283711) < 1e-12);
+  t.ok(Math.abs(metrics.mcc.value(s)! - 18 / Math.sqrt(1260)) < 1e-15);
+  t.ok(Math.abs(metrics.mcc.value(s)! - 0.50709255283711) < 1e-12);
 });
 
 // Cohen's kappa, the textbook example (from memory; it is the one on the Wikipedia page for
@@ -62,7 +62,7 @@ t.test("Cohen's kappa of the 50-item textbook example", async (t) => {
   add(0, 1, 10);
   add(0, 0, 15);
   const s = scored(Int32Array.from(truth), probaFrom(pred.map((p) => (p ? 0.8 : 0.2))), 2, 1);
-  t.ok(Math.abs(metrics.kappa(s)! - 0.4) < 1e-12);
+  t.ok(Math.abs(metrics.kappa.value(s)! - 0.4) < 1e-12);
 });
 
 t.test('the multiclass MCC reduces to the 2×2 formula for two classes', async (t) => {
@@ -82,7 +82,7 @@ t.test('the multiclass MCC reduces to the 2×2 formula for two classes', async (
       });
       const d = Math.sqrt((tp + fp) * (tp + fn) * (tn + fp) * (tn + fn));
       const expected = d === 0 ? 0 : (tp * tn - fp * fn) / d;
-      return Math.abs(metrics.mcc(s)! - expected) < 1e-12;
+      return Math.abs(metrics.mcc.value(s)! - expected) < 1e-12;
     }),
     { numRuns: 300 },
   );
@@ -91,12 +91,12 @@ t.test('the multiclass MCC reduces to the 2×2 formula for two classes', async (
 
 t.test('undefined values are null, never NaN', async (t) => {
   const oneClass = scored(Int32Array.from([1, 1, 1]), probaFrom([0.2, 0.6, 0.9]), 2, 1);
-  t.equal(metrics['roc-auc'](oneClass), null);
-  t.equal(metrics['average-precision'](scored(Int32Array.from([0, 0]), probaFrom([0.2, 0.6]), 2, 1)), null);
-  t.equal(metrics.kappa(scored(Int32Array.from([1, 1]), probaFrom([0.9, 0.9]), 2, 1)), null);
-  t.equal(metrics.mcc(oneClass), 0);
+  t.equal(metrics['roc-auc'].value(oneClass), null);
+  t.equal(metrics['average-precision'].value(scored(Int32Array.from([0, 0]), probaFrom([0.2, 0.6]), 2, 1)), null);
+  t.equal(metrics.kappa.value(scored(Int32Array.from([1, 1]), probaFrom([0.9, 0.9]), 2, 1)), null);
+  t.equal(metrics.mcc.value(oneClass), 0);
   t.ok(
-    Number.isFinite(metrics['log-loss'](scored(Int32Array.from([1]), probaFrom([0]), 2, 1))!),
+    Number.isFinite(metrics['log-loss'].value(scored(Int32Array.from([1]), probaFrom([0]), 2, 1))!),
     'a zero probability gives a finite log-loss',
   );
 });
@@ -106,10 +106,10 @@ t.test('three-class macro scores and the multiclass Brier score', async (t) => {
   // recall 1, 0, 1/2 → macro 1/2; accuracy 1/2.
   const proba = Float64Array.from([0.8, 0.1, 0.1, 0.1, 0.2, 0.7, 0.2, 0.2, 0.6, 0.1, 0.6, 0.3]);
   const s = scored(Int32Array.from([0, 1, 2, 2]), proba, 3, 2);
-  t.equal(metrics.accuracy(s), 0.5);
-  t.equal(metrics.precision(s), 0.5);
-  t.equal(metrics.recall(s), 0.5);
-  t.ok(Math.abs(metrics.f1(s)! - 0.5) < 1e-15);
+  t.equal(metrics.accuracy.value(s), 0.5);
+  t.equal(metrics.precision.value(s), 0.5);
+  t.equal(metrics.recall.value(s), 0.5);
+  t.ok(Math.abs(metrics.f1.value(s)! - 0.5) < 1e-15);
   // Brier (1950): mean over rows of Σ_k (p_k − o_k)²: (0.06 + 1.14 + 0.24 + 0.86) / 4 = 0.575.
-  t.ok(Math.abs(metrics.brier(s)! - 0.575) < 1e-12);
+  t.ok(Math.abs(metrics.brier.value(s)! - 0.575) < 1e-12);
 });

@@ -39,7 +39,7 @@ async function compareCase(t: Test, name: string, ref: ReferenceFixture) {
       cv.positive,
     );
     for (const [m, v] of Object.entries(rf.metrics)) {
-      const mine = metrics[m as MetricName](onRef);
+      const mine = metrics[m as MetricName].value(onRef);
       t.ok(
         mine !== null && close(mine, v),
         `repeat ${rf.repeat} fold ${rf.fold} ${m} on the reference probabilities: foldseal ${mine} vs reference ${v}`,
@@ -76,7 +76,7 @@ async function compareCase(t: Test, name: string, ref: ReferenceFixture) {
     }
     const s = scored(truth.subarray(0, m), proba.subarray(0, m * k), k, cv.positive);
     for (const [name, v] of Object.entries(pooledRef)) {
-      const mine = metrics[name as MetricName](s);
+      const mine = metrics[name as MetricName].value(s);
       t.ok(
         mine !== null && close(mine, v),
         `repeat ${r + 1} pooled ${name} on the reference probabilities: foldseal ${mine} vs reference ${v}`,

@@ -9,6 +9,17 @@ import type { SplitRuleImpl } from '../rule.js';
 import { groupIndex } from './strata.js';
 
 export const groupedKfold: SplitRuleImpl = {
+  description:
+    'k folds of whole groups (data.group): all rows of a group share a fold; balanced puts the largest groups first, each into the fold with the fewest rows.',
+  uses: { seed: true, folds: true, repeats: true, assign: true, testFraction: false, groups: true },
+  tests: 'every-fold',
+  keysIds: false,
+  check(split, data) {
+    const groups = data.groupCount!;
+    return split.folds > groups
+      ? [{ code: 'too-many-folds', message: `folds is ${split.folds} but the data has only ${groups} groups`, path: ['split', 'folds'] }]
+      : [];
+  },
   fold(input, p) {
     const n = input.ids.length;
     const { names, of } = groupIndex(input.groups!, compareUtf8);

@@ -12,7 +12,11 @@ export function testCount(m: number, micros: number): number {
 }
 
 export const holdout: SplitRuleImpl = {
+  description: 'one test part (fold 1) of test-fraction of the rows, per class in key order; the rest (fold 2) trains.',
+  uses: { seed: true, folds: false, repeats: true, assign: true, testFraction: true, groups: false },
+  tests: 'fold-1',
   keysIds: true,
+  check: () => [],
   fold(input, p) {
     const n = input.ids.length;
     const keys = idKeysOf(input, p.seed, p.repeat);

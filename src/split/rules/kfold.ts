@@ -1,9 +1,13 @@
 /** Spec §4.1: deal rows in key order round-robin (balanced), or key prefix mod k (stable). */
 import { keyPrefix32, sortByKey } from '../key.js';
-import { allRows, idKeysOf, type SplitRuleImpl } from '../rule.js';
+import { allRows, foldsWithinRows, idKeysOf, type SplitRuleImpl } from '../rule.js';
 
 export const kfold: SplitRuleImpl = {
+  description: 'rows dealt into k folds in the order of their SHA-256 keys, ignoring the label.',
+  uses: { seed: true, folds: true, repeats: true, assign: true, testFraction: false, groups: false },
+  tests: 'every-fold',
   keysIds: true,
+  check: foldsWithinRows,
   fold(input, p) {
     const n = input.ids.length;
     const keys = idKeysOf(input, p.seed, p.repeat);

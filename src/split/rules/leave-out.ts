@@ -5,6 +5,11 @@ import type { SplitRuleImpl } from '../rule.js';
 import { groupIndex } from './strata.js';
 
 export const leaveOneOut: SplitRuleImpl = {
+  description: 'every row is its own fold (fold number = rank of the id in UTF-8 byte order); no seed.',
+  uses: { seed: false, folds: false, repeats: false, assign: false, testFraction: false, groups: false },
+  tests: 'every-fold',
+  keysIds: false,
+  check: () => [],
   fold(input) {
     const order = idOrder(input.ids);
     const fold = new Int32Array(order.length);
@@ -14,6 +19,16 @@ export const leaveOneOut: SplitRuleImpl = {
 };
 
 export const leaveGroupOut: SplitRuleImpl = {
+  description: 'every group (data.group) is its own fold, numbered by the rank of the group value in UTF-8 byte order; no seed.',
+  uses: { seed: false, folds: false, repeats: false, assign: false, testFraction: false, groups: true },
+  tests: 'every-fold',
+  keysIds: false,
+  check(_split, data) {
+    const groups = data.groupCount!;
+    return groups < 2
+      ? [{ code: 'too-few-groups', message: `leave-group-out needs at least 2 groups; the data has ${groups}`, path: ['data', 'group'] }]
+      : [];
+  },
   fold(input) {
     const { names, of } = groupIndex(input.groups!, compareUtf8);
     const fold = new Int32Array(of.length);

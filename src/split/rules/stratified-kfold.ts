@@ -4,11 +4,32 @@
  * counts and fold sizes differ by at most 1. Stable mode is the k-fold stable rule.
  */
 import { keyPrefix32, sortByKey } from '../key.js';
-import { idKeysOf, type SplitRuleImpl } from '../rule.js';
+import { foldsWithinRows, idKeysOf, type SplitRuleImpl } from '../rule.js';
 import { rowsByClass } from './strata.js';
 
 export const stratifiedKfold: SplitRuleImpl = {
+  description: 'k folds whose class counts differ by at most one (each class dealt in key order, one running counter).',
+  uses: { seed: true, folds: true, repeats: true, assign: true, testFraction: false, groups: false },
+  tests: 'every-fold',
   keysIds: true,
+  check(split, data) {
+    const tooMany = foldsWithinRows(split, data);
+    if (tooMany.length || split.assign !== 'balanced') return tooMany;
+    const fewest = Math.min(...data.classCounts);
+    return data.classes.flatMap((c, k) => {
+      const m = data.classCounts[k];
+      return m < split.folds
+        ? [
+            {
+              code: 'class-smaller-than-folds' as const,
+              message: `class "${c}" has ${m} row${m === 1 ? '' : 's'}, fewer than the ${split.folds} folds, so some folds would have none of it`,
+              path: ['split', 'folds'],
+              hint: `use at most ${fewest} folds`,
+            },
+          ]
+        : [];
+    });
+  },
   fold(input, p) {
     const n = input.ids.length;
     const keys = idKeysOf(input, p.seed, p.repeat);
