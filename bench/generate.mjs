@@ -29,11 +29,14 @@ function table(name, rows, cols, informative, seed) {
 const a = table('a-100k-x50', 100000, 50, 10, 1);
 writeFileSync(
   join(out, 'a.yaml'),
-  `foldseal: 1\nname: bench-a\ndata: {file: a-100k-x50.csv, sha256: "${a}", id: id, label: class}\nsplit: {rule: stratified-kfold, folds: 10, seed: 1}\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy, roc-auc, log-loss]\n`,
+  `foldseal: 1\nname: bench-a\ndata: {file: a-100k-x50.csv, sha256: "${a}", id: id, label: class}\nsplit: {rule: ` +
+    `stratified-kfold, folds: 10, seed: 1}\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy, roc-auc, log-loss]\n`,
 );
 const b = table('b-200-x20000', 200, 20000, 50, 2);
 writeFileSync(
   join(out, 'b.yaml'),
-  `foldseal: 1\nname: bench-b\ndata: {file: b-200-x20000.csv, sha256: "${b}", id: id, label: class}\nsplit: {rule: stratified-kfold, folds: 5, repeats: 10, seed: 2}\npreprocess: [standardize, {select: {top: 100, by: f-test}}]\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy, roc-auc, log-loss]\n`,
+  `foldseal: 1\nname: bench-b\ndata: {file: b-200-x20000.csv, sha256: "${b}", id: id, label: class}\nsplit: {rule: ` +
+    `stratified-kfold, folds: 5, repeats: 10, seed: 2}\npreprocess: [standardize, {select: {top: 100, by: f-test}}]\nmodel: ` +
+    `{kind: gaussian-nb}\nmetrics: [accuracy, roc-auc, log-loss]\n`,
 );
 console.log(`wrote ${out}`);

@@ -30,7 +30,9 @@ writeFileSync(data, lines.join('\n') + '\n');
 const sha = createHash('sha256').update(readFileSync(data)).digest('hex');
 writeFileSync(
   join(out, 'tall.yaml'),
-  `foldseal: 1\nname: logistic-tall\ndata: {file: tall.csv, sha256: "${sha}", id: id, label: label}\nsplit: {rule: stratified-kfold, folds: 10, seed: 1}\npreprocess: [standardize]\nmodel: {kind: logistic, options: {l2: 1}}\nmetrics: [accuracy, roc-auc, log-loss]\n`,
+  `foldseal: 1\nname: logistic-tall\ndata: {file: tall.csv, sha256: "${sha}", id: id, label: label}\nsplit: {rule: ` +
+    `stratified-kfold, folds: 10, seed: 1}\npreprocess: [standardize]\nmodel: {kind: logistic, options: {l2: 1}}\nmetrics: ` +
+    `[accuracy, roc-auc, log-loss]\n`,
 );
 const bin = join(here, '..', 'dist', 'src', 'cli', 'main.js');
 const t0 = performance.now();

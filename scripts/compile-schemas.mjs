@@ -17,7 +17,16 @@ for (const name of readdirSync(join(root, 'schema'))
   const ajv = new Ajv2020({ ...AJV_OPTIONS, code: { source: true } });
   const validate = ajv.compile(JSON.parse(bytes.toString('utf8')));
   // Generated code: its branches are Ajv's, not ours, so coverage skips it.
-  const code = `/* c8 ignore start */\n${standaloneCode.default ? standaloneCode.default(ajv, validate) : standaloneCode(ajv, validate)}\nmodule.exports.validate = module.exports;\nmodule.exports.schemaSha256 = ${JSON.stringify(createHash('sha256').update(bytes).digest('hex'))};\n/* c8 ignore stop */\n`;
+  const standalone = standaloneCode.default ? standaloneCode.default(ajv, validate) : standaloneCode(ajv, validate);
+  const sha = JSON.stringify(createHash('sha256').update(bytes).digest('hex'));
+  const code = [
+    '/* c8 ignore start */',
+    standalone,
+    'module.exports.validate = module.exports;',
+    `module.exports.schemaSha256 = ${sha};`,
+    '/* c8 ignore stop */',
+    '',
+  ].join('\n');
   const out = join(root, compiledValidatorPath(name));
   mkdirSync(dirname(out), { recursive: true });
   writeFileSync(out, code);

@@ -110,7 +110,8 @@ function drift(s: ProtocolState, locked: LockEntry): Problem[] {
     out.push(
       error(
         'rule-changed',
-        `the split changed from ${locked.split.rule ?? `pinned ${locked.split.pinned}`} to ${now.split.rule ?? `pinned ${now.split.pinned}`} without a lock update`,
+        `the split changed from ${locked.split.rule ?? `pinned ${locked.split.pinned}`} to ` +
+          `${now.split.rule ?? `pinned ${now.split.pinned}`} without a lock update`,
         at(s, now.split.rule ? ['split', 'rule'] : ['split']),
       ),
     );
@@ -125,7 +126,8 @@ function drift(s: ProtocolState, locked: LockEntry): Problem[] {
     const added = Object.keys(now.assignment).filter((id) => !(id in locked.assignment)).length;
     const removed = Object.keys(locked.assignment).filter((id) => !(id in now.assignment)).length;
     const parts = [
-      `${moved.length} id${moved.length === 1 ? '' : 's'} moved to another fold${moved.length ? ` (${moved.slice(0, LIST).join(', ')}${moved.length > LIST ? ', …' : ''})` : ''}`,
+      `${moved.length} id${moved.length === 1 ? '' : 's'} moved to another ` +
+        `fold${moved.length ? ` (${moved.slice(0, LIST).join(', ')}${moved.length > LIST ? ', …' : ''})` : ''}`,
     ];
     if (added || removed) parts.push(`${added} added, ${removed} removed`);
     out.push(error('split-drift', `split drift in ${now.name}: ${parts.join('; ')}`, at(s, ['split'])));
@@ -167,7 +169,8 @@ export function sealedFindings(g: Pick<GateInput, 'protocols' | 'sealed'>, inSco
         out.push(
           error(
             'sealed-rows-used',
-            `${p.name} uses ${present.length} sealed id${present.length === 1 ? '' : 's'} from ${p.data.file} (reserved for the final evaluation): ${present.slice(0, LIST).join(', ')}${present.length > LIST ? ', …' : ''}`,
+            `${p.name} uses ${present.length} sealed id${present.length === 1 ? '' : 's'} from ${p.data.file} (reserved for the ` +
+              `final evaluation): ${present.slice(0, LIST).join(', ')}${present.length > LIST ? ', …' : ''}`,
             { ...at(s, ['data', 'file']), hint: 'remove the sealed rows from this data, or mark the final protocol with final: true' },
           ),
         );
@@ -178,7 +181,8 @@ export function sealedFindings(g: Pick<GateInput, 'protocols' | 'sealed'>, inSco
           out.push(
             error(
               'sealed-rows-copied',
-              `${p.name} has ${copied.length} row${copied.length === 1 ? '' : 's'} in ${p.data.file} with the same label and feature values as sealed rows, under other ids: ${copied.slice(0, LIST).join(', ')}${copied.length > LIST ? ', …' : ''}`,
+              `${p.name} has ${copied.length} row${copied.length === 1 ? '' : 's'} in ${p.data.file} with the same label and ` +
+                `feature values as sealed rows, under other ids: ${copied.slice(0, LIST).join(', ')}${copied.length > LIST ? ', …' : ''}`,
               { ...at(s, ['data', 'file']), hint: 'sealed rows stay sealed under a new id; remove them from this data' },
             ),
           );
@@ -206,7 +210,8 @@ export function sealedFindings(g: Pick<GateInput, 'protocols' | 'sealed'>, inSco
       out.push(
         error(
           'final-test-mismatch',
-          `the test part (fold 1) of final protocol ${p.name} must be exactly the sealed ids: ${missing.length} sealed ids are not in it, ${extra.length} other ids are${present.length === 0 ? '; the data has no sealed id' : ''}`,
+          `the test part (fold 1) of final protocol ${p.name} must be exactly the sealed ids: ${missing.length} sealed ids are ` +
+            `not in it, ${extra.length} other ids are${present.length === 0 ? '; the data has no sealed id' : ''}`,
           at(s, ['split']),
         ),
       );

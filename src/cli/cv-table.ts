@@ -33,7 +33,8 @@ export function cvTables(cv: CvResult): string {
   const unstable = names.filter((m) => POOLED_PREFERRED.includes(m));
   const tiny =
     smallest < TINY_FOLD && unstable.length
-      ? `test parts hold as few as ${smallest} row${smallest === 1 ? '' : 's'}: per-fold ${unstable.join(', ')} are unstable or undefined there, so report their pooled values\n`
+      ? `test parts hold as few as ${smallest} row${smallest === 1 ? '' : 's'}: per-fold ${unstable.join(', ')} are unstable or ` +
+        `undefined there, so report their pooled values\n`
       : '';
   const folds = cv.folds.length <= 60 ? textTable(header, rows) + '\n' : `${cv.folds.length} folds (table omitted; see results.json)\n\n`;
   return (

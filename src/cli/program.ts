@@ -35,7 +35,8 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .addOption(outsideOption())
     .addHelpText(
       'after',
-      '\nExamples:\n  foldseal validate protocols/demo.yaml\n  foldseal validate protocols/*.yaml --format json\n\nExit: 0 valid, 1 invalid, 2 usage error or unreadable file.',
+      '\nExamples:\n  foldseal validate protocols/demo.yaml\n  foldseal validate protocols/*.yaml --format json\n\nExit: 0 valid, ' +
+        '1 invalid, 2 usage error or unreadable file.',
     )
     .action(async (protocols: string[], o: { format: 'text' | 'json'; allowOutside?: boolean }) =>
       done(await (await import('./commands/validate.js')).validateCommand({ protocols, ...o }, io)),
@@ -84,7 +85,9 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .addOption(outsideOption())
     .addHelpText(
       'after',
-      '\nExample:\n  foldseal run protocols/demo.yaml --out results/demo\n\nThe folder is written to a temporary sibling and renamed at the end, so it is never half-written.\n--force replaces only a folder foldseal wrote (its manifest and the files it lists); any other non-empty folder is refused.',
+      '\nExample:\n  foldseal run protocols/demo.yaml --out results/demo\n\nThe folder is written to a temporary sibling and ' +
+        'renamed at the end, so it is never half-written.\n--force replaces only a folder foldseal wrote (its manifest and the ' +
+        'files it lists); any other non-empty folder is refused.',
     )
     .action(async (protocol: string, o: { out?: string; force?: boolean; refit?: boolean; key?: string; allowOutside?: boolean }) =>
       done(await (await import('./commands/run.js')).runCommand({ protocol, ...o }, io)),
@@ -102,7 +105,9 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .addOption(new Option('--tie <rule>', 'tie rule for majority-vote').choices(['mean-probability', 'abstain', 'class-order']))
     .addHelpText(
       'after',
-      '\nExamples:\n  foldseal apply results/demo protocols/data/seedlings-new.csv --out applied.csv\n  foldseal apply results/demo new.csv --rule majority-vote --tie abstain --out voted.csv\n\nmodels.json and predictions.csv are checked against the hashes in results.json first.',
+      '\nExamples:\n  foldseal apply results/demo protocols/data/seedlings-new.csv --out applied.csv\n  foldseal apply ' +
+        'results/demo new.csv --rule majority-vote --tie abstain --out voted.csv\n\nmodels.json and predictions.csv are checked ' +
+        'against the hashes in results.json first.',
     )
     .action(async (results: string, table: string, o: { out?: string; rule?: ReconcileRule; tie?: TieRule }) =>
       done(await (await import('./commands/apply.js')).applyCommand({ results, table, ...o }, io)),
@@ -114,7 +119,8 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .requiredOption('--out <prefix>', 'writes PREFIX.key (private, mode 0600) and PREFIX.pub (public)')
     .addHelpText(
       'after',
-      '\nExample:\n  foldseal keygen --out ~/.foldseal/lab\n\nThe fingerprint is the SHA-256 of the raw 32-byte public key; publish it with the .pub file.',
+      '\nExample:\n  foldseal keygen --out ~/.foldseal/lab\n\nThe fingerprint is the SHA-256 of the raw 32-byte public key; ' +
+        'publish it with the .pub file.',
     )
     .action(async (o: { out: string }) => done(await (await import('./commands/keygen.js')).keygenCommand(o, io)));
 
@@ -133,7 +139,8 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .addOption(formatOption())
     .addHelpText(
       'after',
-      '\nExamples:\n  foldseal verify results/demo/manifest.json --key author.pub\n  foldseal verify results/demo/manifest.json --key author.pub --rerun\n\nExit: 0 verified (identical), 1 a check failed or the re-run differs, 2 usage or unreadable input.',
+      '\nExamples:\n  foldseal verify results/demo/manifest.json --key author.pub\n  foldseal verify results/demo/manifest.json ' +
+        '--key author.pub --rerun\n\nExit: 0 verified (identical), 1 a check failed or the re-run differs, 2 usage or unreadable input.',
     )
     .action(
       async (
@@ -161,7 +168,8 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .option('--allow-outside', 'let protocols name files outside DIR and FOLDSEAL_TRUSTED')
     .addHelpText(
       'after',
-      '\nExamples:\n  foldseal check\n  foldseal check --staged          # in a pre-commit hook\n  foldseal check . --format json   # for CI annotations\n\nExit: 0 clean, 1 findings, 2 usage error (a corrupt lock, not a git repository).',
+      '\nExamples:\n  foldseal check\n  foldseal check --staged          # in a pre-commit hook\n  foldseal check . --format json ' +
+        '  # for CI annotations\n\nExit: 0 clean, 1 findings, 2 usage error (a corrupt lock, not a git repository).',
     )
     .action(async (dir: string, o: { format: 'text' | 'json'; staged?: boolean; allowOutside?: boolean }) =>
       done(await (await import('./commands/check.js')).checkCommand({ dir, ...o }, io)),
@@ -174,7 +182,8 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .option('--allow-outside', 'let protocols name files outside DIR and FOLDSEAL_TRUSTED')
     .addHelpText(
       'after',
-      '\nExample:\n  foldseal lock && git add foldseal.lock.json\n\nThe lock keeps its sealed and policy sections; commit it so the change is reviewed.',
+      '\nExample:\n  foldseal lock && git add foldseal.lock.json\n\nThe lock keeps its sealed and policy sections; commit it so ' +
+        'the change is reviewed.',
     )
     .action(async (dir: string, o: { allowOutside?: boolean }) =>
       done(await (await import('./commands/lock.js')).lockCommand({ dir, ...o }, io)),

@@ -61,7 +61,8 @@ export async function readSigningKey(path: string, env: NodeJS.ProcessEnv = proc
   } catch {
     throw keyError(
       path,
-      `${path} is not a private key foldseal reads (a PEM key from foldseal keygen, an OpenSSH private key, or an OpenSSH public key to sign through ssh-agent)`,
+      `${path} is not a private key foldseal reads (a PEM key from foldseal keygen, an OpenSSH private key, or an OpenSSH public ` +
+        `key to sign through ssh-agent)`,
     );
   }
   if (key.asymmetricKeyType !== 'ed25519')
@@ -166,7 +167,9 @@ export async function readPinnedKeys(path: string): Promise<PinnedKey[]> {
     throw keyError(
       path,
       keys.length
-        ? `${path} holds no Ed25519 key usable for foldseal manifests (${types.join(', ')}${keys.some((k) => k.namespaces) ? '; or limited to other namespaces' : ''}); foldseal verifies Ed25519 signatures only`
+        ? `${path} holds no Ed25519 key usable for foldseal manifests ` +
+            `(${types.join(', ')}${keys.some((k) => k.namespaces) ? '; or limited to other namespaces' : ''}); foldseal verifies ` +
+            `Ed25519 signatures only`
         : `${path} holds no public key`,
     );
   }

@@ -39,7 +39,8 @@ export async function writeOutputDir(
       throw new FoldsealError(
         error(
           'refuse-foreign-folder',
-          `${shownAs} ${state.why}, so foldseal will not replace it${force ? ' (--force replaces only a results folder foldseal wrote)' : ''}`,
+          `${shownAs} ${state.why}, so foldseal will not replace ` +
+            `it${force ? ' (--force replaces only a results folder foldseal wrote)' : ''}`,
           { file: shownAs, hint: 'choose an empty or new folder with --out' },
         ),
         2,
@@ -115,7 +116,9 @@ async function folderState(dir: string): Promise<FolderState> {
   } catch {
     return {
       kind: 'foreign',
-      why: `is a folder with ${entries.length} entr${entries.length === 1 ? 'y' : 'ies'} (${entries.slice(0, LIST).join(', ')}${entries.length > LIST ? ', …' : ''}) and no foldseal manifest`,
+      why:
+        `is a folder with ${entries.length} entr${entries.length === 1 ? 'y' : 'ies'} ` +
+        `(${entries.slice(0, LIST).join(', ')}${entries.length > LIST ? ', …' : ''}) and no foldseal manifest`,
     };
   }
   const extra: string[] = [];
@@ -126,7 +129,9 @@ async function folderState(dir: string): Promise<FolderState> {
   if (extra.length)
     return {
       kind: 'foreign',
-      why: `holds ${extra.length} entr${extra.length === 1 ? 'y' : 'ies'} foldseal did not write (${extra.slice(0, LIST).join(', ')}${extra.length > LIST ? ', …' : ''})`,
+      why:
+        `holds ${extra.length} entr${extra.length === 1 ? 'y' : 'ies'} foldseal did not write ` +
+        `(${extra.slice(0, LIST).join(', ')}${extra.length > LIST ? ', …' : ''})`,
     };
   return { kind: 'ours' };
 }

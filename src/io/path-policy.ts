@@ -74,10 +74,13 @@ export function outsideProblem(
   if (policy.roots.some((root) => isInside(real, realPath(root)))) return undefined;
   return error(
     'path-outside',
-    `the ${what} ${shownAs} lies outside ${policy.roots.length === 1 ? 'the folder' : 'the folders'} foldseal may read for this file (${policy.roots.map((r) => r).join(', ')})`,
+    `the ${what} ${shownAs} lies outside ${policy.roots.length === 1 ? 'the folder' : 'the folders'} foldseal may read for this ` +
+      `file (${policy.roots.map((r) => r).join(', ')})`,
     {
       ...where,
-      hint: 'keep data next to the protocol, run from the project folder, list the folder in FOLDSEAL_TRUSTED, or pass --allow-outside if you trust the file that names this path',
+      hint:
+        'keep data next to the protocol, run from the project folder, list the folder in FOLDSEAL_TRUSTED, or pass ' +
+        '--allow-outside if you trust the file that names this path',
     },
   );
 }

@@ -79,7 +79,8 @@ export function checkManifest(text: string, o: CheckOptions): ManifestCheck {
       problems: [
         error(
           'manifest-version',
-          `manifest format ${JSON.stringify(manifest['foldseal-manifest'] ?? null)} is not one this foldseal reads (format ${MANIFEST_VERSION})`,
+          `manifest format ${JSON.stringify(manifest['foldseal-manifest'] ?? null)} is not one this foldseal reads (format ` +
+            `${MANIFEST_VERSION})`,
           { file },
         ),
       ],
@@ -162,7 +163,8 @@ export function checkManifest(text: string, o: CheckOptions): ManifestCheck {
     problems.push(
       error(
         'signature-wrong-key',
-        `the manifest is signed by key ${signature['key-sha256']}, not by the given key${pinnedKeys.length === 1 ? '' : 's'} ${pinnedKeys.map((k) => rawFingerprint(k.raw)).join(', ')}`,
+        `the manifest is signed by key ${signature['key-sha256']}, not by the given key${pinnedKeys.length === 1 ? '' : 's'} ` +
+          `${pinnedKeys.map((k) => rawFingerprint(k.raw)).join(', ')}`,
         { file },
       ),
     );
@@ -175,7 +177,7 @@ export function checkManifest(text: string, o: CheckOptions): ManifestCheck {
       error(
         'signature-invalid',
         changed.length
-          ? `the signature does not match the content: ${changed[0]} changed after signing${changed.length > 1 ? ` (and ${changed.length - 1} more member${changed.length === 2 ? '' : 's'}: ${changed.slice(1, 6).join(', ')})` : ''}`
+          ? `the signature does not match the content: ${changed[0]} changed after signing${moreChanged(changed)}`
           : 'the signature does not match the content (the signature itself was changed)',
         { file },
       ),
@@ -203,7 +205,9 @@ function unpinnedProblem(fp: string, file: string, allowUnpinned?: boolean) {
     `the signature is valid for the key embedded in the manifest (${fp}), but that key is not pinned`,
     {
       file,
-      hint: "pass the author's public key with --key AUTHOR.pub (an OpenSSH key line or an allowed_signers file will do), or --allow-unpinned to accept the embedded key",
+      hint:
+        "pass the author's public key with --key AUTHOR.pub (an OpenSSH key line or an allowed_signers file will do), or " +
+        '--allow-unpinned to accept the embedded key',
     },
   );
 }
@@ -238,7 +242,8 @@ function checkDetached(text: string, o: CheckOptions): Omit<ManifestCheck, 'mani
       problems: [
         error(
           'signature-namespace',
-          `manifest.json.sig is a signature for namespace "${sig.namespace}", not "${MANIFEST_NAMESPACE}" (a signature made for another purpose)`,
+          `manifest.json.sig is a signature for namespace "${sig.namespace}", not "${MANIFEST_NAMESPACE}" (a signature made for ` +
+            `another purpose)`,
           { file, hint: `sign with ssh-keygen -Y sign -n ${MANIFEST_NAMESPACE}` },
         ),
       ],
@@ -253,7 +258,8 @@ function checkDetached(text: string, o: CheckOptions): Omit<ManifestCheck, 'mani
       problems: [
         error(
           'signature-wrong-key',
-          `manifest.json.sig is signed by key ${ssh.fingerprint}, not by the given key${pinnedKeys.length === 1 ? '' : 's'} ${pinnedKeys.map((k) => sshFingerprint(ed25519Blob(k.raw))).join(', ')}`,
+          `manifest.json.sig is signed by key ${ssh.fingerprint}, not by the given key${pinnedKeys.length === 1 ? '' : 's'} ` +
+            `${pinnedKeys.map((k) => sshFingerprint(ed25519Blob(k.raw))).join(', ')}`,
           { file },
         ),
       ],
@@ -282,4 +288,11 @@ function checkDetached(text: string, o: CheckOptions): Omit<ManifestCheck, 'mani
     sshFingerprint: ssh.fingerprint,
     pinned: Boolean(match),
   };
+}
+
+/** ` (and N more members: a, b, …)` after the first changed member, or nothing. */
+function moreChanged(changed: readonly string[]): string {
+  if (changed.length < 2) return '';
+  const more = changed.length - 1;
+  return ` (and ${more} more member${more === 1 ? '' : 's'}: ${changed.slice(1, 6).join(', ')})`;
 }

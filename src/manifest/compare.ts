@@ -31,7 +31,9 @@ export function compareRuns(recorded: Manifest, fresh: Manifest, tolerance: numb
   if (fitted && r.tool?.version !== f.tool?.version) {
     out.push({
       kind: 'tool',
-      message: `recorded with foldseal ${r.tool?.version}, re-run with ${f.tool?.version}: fitted values can differ in their last digits between versions (a split-v1 assignment cannot); set verify.tolerance, or re-run with the recorded version`,
+      message:
+        `recorded with foldseal ${r.tool?.version}, re-run with ${f.tool?.version}: fitted values can differ in their last ` +
+        `digits between versions (a split-v1 assignment cannot); set verify.tolerance, or re-run with the recorded version`,
     });
   }
   return out;
@@ -52,7 +54,9 @@ function assignmentDifferences(recorded: Triple[], fresh: Triple[]): Difference[
   if (moved.length)
     out.push({
       kind: 'assignment',
-      message: `${moved.length} id${moved.length === 1 ? '' : 's'} moved to another fold: ${moved.slice(0, MAX_IDS).join(', ')}${moved.length > MAX_IDS ? ', …' : ''}`,
+      message:
+        `${moved.length} id${moved.length === 1 ? '' : 's'} moved to another fold: ` +
+        `${moved.slice(0, MAX_IDS).join(', ')}${moved.length > MAX_IDS ? ', …' : ''}`,
     });
   if (missing || added) out.push({ kind: 'assignment', message: `${missing} recorded assignments are missing now and ${added} are new` });
   return out;

@@ -45,7 +45,8 @@ export function selfCheck(m: any, file: string, resultsJson?: string): Problem[]
   if (outOfRange)
     bad(
       'manifest-assignment-range',
-      `${outOfRange} assignment entr${outOfRange === 1 ? 'y names' : 'ies name'} a repeat or fold outside ${repeats} repeats × ${folds} folds`,
+      `${outOfRange} assignment entr${outOfRange === 1 ? 'y names' : 'ies name'} a repeat or fold outside ${repeats} repeats × ` +
+        `${folds} folds`,
     );
   const counts = [...Array(repeats)].map((_, i) => perRepeat.get(i + 1)?.size ?? 0);
   if (triples.length !== rows * repeats || counts.some((c) => c !== rows))

@@ -1,5 +1,5 @@
 /** Bernoulli naive Bayes: a value above `threshold` counts as present; presence rates smoothed additively. */
-import { classCounts, naiveBayesPosteriors, type ModelImpl } from './types.js';
+import { noChecks, classCounts, naiveBayesPosteriors, type ModelImpl } from './types.js';
 
 export interface BernoulliNbParams {
   threshold: number;
@@ -24,6 +24,7 @@ export const bernoulliNb: ModelImpl<BernoulliNbParams> = {
     },
   },
 
+  check: noChecks,
   fit(X, y, options, { classCount }) {
     const alpha = options.smoothing as number;
     const threshold = options.threshold as number;

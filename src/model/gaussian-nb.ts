@@ -5,7 +5,7 @@
  */
 import { classMoments, overallMoments } from './class-moments.js';
 import type { Matrix } from '../table/matrix.js';
-import type { ModelCapabilities, ModelImpl } from './types.js';
+import { classKeyedProblems, type ModelCapabilities, type ModelImpl } from './types.js';
 import { softmaxRows } from './types.js';
 
 export interface GaussianNbParams {
@@ -50,12 +50,15 @@ export const gaussianNb: ModelImpl<GaussianNbParams> = {
     },
     'variance-floor': {
       description:
-        'Added to every variance, as a multiple of the largest feature variance of the training part. When every feature is constant over the training part the variances stay 0; such features tell the classes nothing and are left out, so the class priors decide.',
+        'Added to every variance, as a multiple of the largest feature variance of the training part. When every feature is ' +
+        'constant over the training part the variances stay 0; such features tell the classes nothing and are left out, so the ' +
+        'class priors decide.',
       type: 'number',
       minimum: 0,
       default: 1e-9,
     },
   },
+  check: (options, data) => (options.priors ? classKeyedProblems('priors', options.priors as Record<string, number>, data.classes, 1) : []),
 
   fit: (X, y, options, ctx) => fromMoments(classMoments(X, y, ctx.classCount), options, ctx),
   capabilities: { fromMoments, predictRows },

@@ -21,6 +21,16 @@ export const knn: ModelImpl<KnnParams> = {
       default: 5,
     },
   },
+  check: (options, data) =>
+    (options.k as number) > data.smallestTrain
+      ? [
+          {
+            code: 'knn-k-too-large',
+            message: `knn k is ${options.k} but the smallest training part has ${data.smallestTrain} rows`,
+            path: ['k'],
+          },
+        ]
+      : [],
 
   fit(X, y, options, { classCount }) {
     const k = options.k as number;
@@ -35,7 +45,8 @@ export const knn: ModelImpl<KnnParams> = {
       const allSame = p.X.every((row) => row.every((v, j) => v === first[j]));
       return allSame && p.X.length > p.k
         ? [
-            'every training row has the same feature values, so all distances tie and the k neighbours are the first k training rows in id order',
+            'every training row has the same feature values, so all distances tie and the k neighbours are the first k training ' +
+              'rows in id order',
           ]
         : [];
     },

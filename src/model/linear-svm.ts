@@ -15,7 +15,7 @@
  */
 import type { Matrix } from '../table/matrix.js';
 import { choleskySolve } from './linalg.js';
-import { classCounts, type ModelImpl } from './types.js';
+import { noChecks, classCounts, type ModelImpl } from './types.js';
 
 export interface LinearSvmParams {
   classCount: number;
@@ -29,7 +29,8 @@ export interface LinearSvmParams {
 
 export const linearSvm: ModelImpl<LinearSvmParams> = {
   description:
-    'Linear support vector machine (squared hinge, L2, intercept penalized) with Platt-scaled probabilities; one machine per class against the rest.',
+    'Linear support vector machine (squared hinge, L2, intercept penalized) with Platt-scaled probabilities; one machine per ' +
+    'class against the rest.',
   options: {
     l2: {
       description: 'L2 penalty λ on the weights and the intercept; the objective is the summed squared hinge loss plus λ/2·‖(w, b)‖².',
@@ -39,6 +40,7 @@ export const linearSvm: ModelImpl<LinearSvmParams> = {
     },
   },
 
+  check: noChecks,
   fit(X, y, options, { classCount }) {
     const l2 = options.l2 as number;
     const counts = classCounts(y, classCount);

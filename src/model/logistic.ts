@@ -16,7 +16,7 @@
  * the projected features XQᵀ, and w = Qᵀu. The penalty is unchanged (‖Qᵀu‖ = ‖u‖).
  */
 import { choleskySolve } from './linalg.js';
-import { FitError, classCounts, type ModelImpl } from './types.js';
+import { noChecks, FitError, classCounts, type ModelImpl } from './types.js';
 import type { Matrix } from '../table/matrix.js';
 
 export interface LogisticParams {
@@ -42,7 +42,10 @@ export const logistic: ModelImpl<LogisticParams> = {
     },
     tolerance: {
       description:
-        'Scale-aware stopping rule of the Newton solver: once the Newton decrement λ² = gᵀH⁻¹g (twice the decrease the next full step predicts; unchanged by rescaling the features) satisfies λ²/2 ≤ tolerance × (1 + objective), one more full step is taken and the solver stops; it also stops when no step lowers the objective. With at least as many features as training rows the fit is done exactly in the span of the training rows.',
+        'Scale-aware stopping rule of the Newton solver: once the Newton decrement λ² = gᵀH⁻¹g (twice the decrease the next full ' +
+        'step predicts; unchanged by rescaling the features) satisfies λ²/2 ≤ tolerance × (1 + objective), one more full step ' +
+        'is taken and the solver stops; it also stops when no step lowers the objective. With at least as many features as ' +
+        'training rows the fit is done exactly in the span of the training rows.',
       type: 'number',
       exclusiveMinimum: 0,
       default: 1e-10,
@@ -55,6 +58,7 @@ export const logistic: ModelImpl<LogisticParams> = {
     },
   },
 
+  check: noChecks,
   fit(X, y, options, { classCount }) {
     const l2 = options.l2 as number;
     const tolerance = options.tolerance as number;
@@ -91,7 +95,8 @@ export const logistic: ModelImpl<LogisticParams> = {
     if (dim > MAX_PARAMETERS)
       throw new FitError(
         'logistic-too-wide',
-        `logistic would fit ${dim} parameters by Newton's method on ${X.rows} rows; at most ${MAX_PARAMETERS} are supported when there are more rows than features`,
+        `logistic would fit ${dim} parameters by Newton's method on ${X.rows} rows; at most ${MAX_PARAMETERS} are supported when ` +
+          `there are more rows than features`,
         'add a select step before the model',
       );
     return { classCount, present, ...newton(X, yl, C, l2, tolerance, maxIterations) };
@@ -195,7 +200,8 @@ function newton(
     if (iterations >= maxIterations) {
       throw new FitError(
         'logistic-no-convergence',
-        `logistic did not converge in ${maxIterations} Newton steps (the next step would still lower the objective by ${(decrement / 2).toExponential(3)}, more than tolerance × (1 + objective) = ${(tolerance * (1 + loss)).toExponential(3)})`,
+        `logistic did not converge in ${maxIterations} Newton steps (the next step would still lower the objective by ` +
+          `${(decrement / 2).toExponential(3)}, more than tolerance × (1 + objective) = ${(tolerance * (1 + loss)).toExponential(3)})`,
         l2 === 0 ? 'the classes may be separable; set model.options.l2 above 0' : 'raise model.options.max-iterations or tolerance',
       );
     }

@@ -1,5 +1,5 @@
 /** Multinomial naive Bayes on non-negative counts with additive smoothing (default 1). */
-import { FitError, classCounts, naiveBayesPosteriors, type ModelImpl } from './types.js';
+import { noChecks, FitError, classCounts, naiveBayesPosteriors, type ModelImpl } from './types.js';
 
 export interface MultinomialNbParams {
   logPrior: (number | null)[];
@@ -17,6 +17,7 @@ export const multinomialNb: ModelImpl<MultinomialNbParams> = {
     },
   },
 
+  check: noChecks,
   fit(X, y, options, { classCount }) {
     const alpha = options.smoothing as number;
     const { rows, cols, data } = X;

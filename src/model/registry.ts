@@ -32,12 +32,15 @@ export function withDefaults(kind: ModelKind, options: Record<string, unknown>):
   return { ...out, ...options };
 }
 
-/** Protocol options → the options a fit sees: defaults filled in, class-keyed maps as arrays in class order. */
+/**
+ * Protocol options → the options a fit sees: defaults filled in, class-keyed maps (options of
+ * type `object`: class label → number) as arrays in class order.
+ */
 export function fitOptions(kind: ModelKind, options: Record<string, unknown>, classes: readonly string[]): Record<string, unknown> {
   const full = withDefaults(kind, options);
-  if (kind === 'gaussian-nb' && full.priors) {
-    const priors = full.priors as Record<string, number>;
-    return { ...full, priors: classes.map((c) => priors[c]) };
+  for (const [name, spec] of Object.entries(models[kind].options)) {
+    const map = full[name] as Record<string, number> | undefined;
+    if (spec.type === 'object' && map !== undefined) full[name] = classes.map((c) => map[c]);
   }
   return full;
 }

@@ -6,7 +6,7 @@
  * shrink = 0 gives plain nearest (standardized) centroids.
  */
 import { classMoments, overallMoments } from './class-moments.js';
-import { FitError, softmaxRows, type ModelCapabilities, type ModelImpl } from './types.js';
+import { noChecks, FitError, softmaxRows, type ModelCapabilities, type ModelImpl } from './types.js';
 
 export interface ShrunkenCentroidParams {
   centroid: (number[] | null)[]; // shrunken centroid per class
@@ -59,6 +59,7 @@ export const shrunkenCentroid: ModelImpl<ShrunkenCentroidParams> = {
     },
   },
 
+  check: noChecks,
   fit: (X, y, options, ctx) => fromMoments(classMoments(X, y, ctx.classCount), options, ctx),
   capabilities: { fromMoments },
   predict(p, X) {

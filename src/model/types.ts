@@ -3,6 +3,7 @@
  * machine learning software"): fit returns plain JSON-able parameters, predict maps rows to
  * class probabilities. Both are pure and deterministic.
  */
+import type { ProblemCode } from '../problems/codes.js';
 import type { Matrix } from '../table/matrix.js';
 import type { ClassMoments } from './class-moments.js';
 
@@ -22,15 +23,35 @@ export interface OptionSpec {
   additionalProperties?: { type: 'number'; minimum?: number; maximum?: number };
 }
 
+/** What a model's check sees: the classes and the smallest training part of the split (rows). */
+export interface ModelData {
+  classes: readonly string[];
+  smallestTrain: number;
+}
+
+/** A problem a model finds in its options against the data; `path` is under `model.options` (`key`: at the key itself). */
+export interface ModelProblem {
+  code: ProblemCode;
+  message: string;
+  path: string[];
+  key?: boolean;
+  hint?: string;
+}
+
 export interface ModelImpl<P = unknown> {
   /** One sentence for the schema and docs/protocol.md. */
   readonly description: string;
   /** The options `model.options` may set; the protocol schema's branch for this kind is generated from them. */
   readonly options: Readonly<Record<string, OptionSpec>>;
-  /** Fit on training rows (row-major X, class codes y). Options are the protocol's `model.options` with every default filled in (registry.ts). */
+  /**
+   * Fit on training rows (row-major X, class codes y). Options are the protocol's `model.options`
+   * with every default filled in (registry.ts).
+   */
   fit(X: Matrix, y: Int32Array, options: Record<string, unknown>, ctx: FitContext): P;
   /** Probabilities, row-major rows × classCount; each row sums to 1. */
   predict(params: P, X: Matrix): Float64Array;
+  /** Problems of the options (every default filled in) against the data. */
+  check(options: Record<string, unknown>, data: ModelData): ModelProblem[];
   /** The one optional object of further capabilities; the fold executor and the runner read it. */
   readonly capabilities?: ModelCapabilities<P>;
 }
@@ -52,6 +73,26 @@ export interface ModelCapabilities<P> {
 }
 
 export { FitError } from '../problems/problem.js';
+
+/** The check of a model with nothing to check against the data. */
+export const noChecks = (): ModelProblem[] => [];
+
+/**
+ * Checks of a class-keyed option (an option of type `object`: class label → number): every
+ * class has a value, no other key is there, and (when `total` is given) the values sum to it.
+ */
+export function classKeyedProblems(name: string, map: Record<string, number>, classes: readonly string[], total?: number): ModelProblem[] {
+  const out: ModelProblem[] = [];
+  for (const c of classes)
+    if (!(c in map)) out.push({ code: 'priors-incomplete', message: `${name} give no value for class "${c}"`, path: [name] });
+  for (const c of Object.keys(map))
+    if (!classes.includes(c))
+      out.push({ code: 'unknown-class', message: `${name} name "${c}", which is not a class`, path: [name, c], key: true });
+  const sum = Object.values(map).reduce((a, b) => a + b, 0);
+  if (total !== undefined && Math.abs(sum - total) > 1e-9)
+    out.push({ code: 'priors-sum', message: `${name} sum to ${sum}, not ${total}`, path: [name] });
+  return out;
+}
 
 export function classCounts(y: Int32Array, classCount: number): Float64Array {
   const c = new Float64Array(classCount);

@@ -2,7 +2,7 @@
  * Checks of a schema-valid protocol against its data (and pinned file). Pure:
  * the caller has read and hashed the files; this only compares and counts.
  */
-import { withDefaults } from '../model/registry.js';
+import { models, withDefaults } from '../model/registry.js';
 import { error, warning, type Problem } from '../problems/problem.js';
 import { assignFolds } from '../split/assign.js';
 import { emptyFolds, type Assignment } from '../split/assignment.js';
@@ -61,7 +61,6 @@ export function checkAgainstData(p: Protocol, source: SourceDocument, ev: DataEv
   }
   problems.push(...missingValueProblems(p, table, at));
   problems.push(...preprocessProblems(p, table, at));
-  problems.push(...modelProblems(p, table, at));
 
   let assignment: Assignment | undefined;
   if (isPinned(p.split)) {
@@ -102,7 +101,8 @@ export function checkAgainstData(p: Protocol, source: SourceDocument, ev: DataEv
             problems.push(
               error(
                 'empty-part',
-                `test-fraction ${s.testFraction} leaves the ${test === 0 ? 'test' : 'training'} part empty for ${n} rows${assignment.repeats > 1 ? ` in repeat ${r}` : ''}`,
+                `test-fraction ${s.testFraction} leaves the ${test === 0 ? 'test' : 'training'} part empty for ${n} ` +
+                  `rows${assignment.repeats > 1 ? ` in repeat ${r}` : ''}`,
                 at(['split', 'test-fraction']),
               ),
             );
@@ -115,16 +115,21 @@ export function checkAgainstData(p: Protocol, source: SourceDocument, ev: DataEv
           problems.push(
             error(
               'empty-fold',
-              `the split leaves ${empty.length} fold${empty.length === 1 ? '' : 's'} without a row (repeat ${empty[0].repeat}, fold ${empty[0].fold}${empty.length > 1 ? ', …' : ''})${s.assign === 'stable' ? "; assign: stable draws each row's fold on its own, so small data can leave a fold empty" : ''}`,
+              `the split leaves ${empty.length} fold${empty.length === 1 ? '' : 's'} without a row (repeat ${empty[0].repeat}, ` +
+                `fold ${empty[0].fold}${empty.length > 1 ? ', …' : ''})${s.assign === 'stable' ? STABLE_EMPTY : ''}`,
               { ...at(['split']), hint: 'use fewer folds, more rows, or assign: balanced' },
             ),
           );
       }
     }
   }
+  // The model's checks see the smallest training part when the split could be drawn, else all rows.
+  problems.push(...modelProblems(p, table, assignment ? smallestTraining(p, table.ids.length, assignment) : table.ids.length, at));
   if (assignment) problems.push(...assignmentProblems(p, table, assignment, at));
   return { problems, assignment };
 }
+
+const STABLE_EMPTY = "; assign: stable draws each row's fold on its own, so small data can leave a fold empty";
 
 type At = (path: (string | number)[], key?: boolean) => Partial<Problem>;
 
@@ -166,39 +171,29 @@ function preprocessProblems(p: Protocol, table: Table, at: At): Problem[] {
   return out;
 }
 
-function modelProblems(p: Protocol, table: Table, at: At): Problem[] {
-  const out: Problem[] = [];
-  const priors = p.model.options.priors as Record<string, number> | undefined;
-  if (p.model.kind === 'gaussian-nb' && priors) {
-    for (const c of table.classes)
-      if (!(c in priors)) out.push(error('priors-incomplete', `priors give no value for class "${c}"`, at(['model', 'options', 'priors'])));
-    for (const c of Object.keys(priors))
-      if (!table.classes.includes(c))
-        out.push(error('unknown-class', `priors name "${c}", which is not a class`, at(['model', 'options', 'priors', c], true)));
-    const sum = Object.values(priors).reduce((a, b) => a + b, 0);
-    if (Math.abs(sum - 1) > 1e-9) out.push(error('priors-sum', `priors sum to ${sum}, not 1`, at(['model', 'options', 'priors'])));
-  }
-  return out;
+function modelProblems(p: Protocol, table: Table, smallestTrain: number, at: At): Problem[] {
+  const options = withDefaults(p.model.kind, p.model.options);
+  return models[p.model.kind].check(options, { classes: table.classes, smallestTrain }).map((q) => {
+    const where = at(['model', 'options', ...q.path], q.key);
+    return error(q.code, q.message, q.hint === undefined ? where : { ...where, hint: q.hint });
+  });
 }
 
-function assignmentProblems(p: Protocol, table: Table, a: Assignment, at: At): Problem[] {
-  const out: Problem[] = [];
-  const n = table.ids.length;
-  let smallestTrain = n;
+/** Rows of the smallest training part over every tested fold of every repeat. */
+function smallestTraining(p: Protocol, n: number, a: Assignment): number {
+  let smallest = n;
   for (let r = 1; r <= a.repeats; r++) {
     const size = new Int32Array(a.folds + 1);
     for (let i = 0; i < n; i++) size[a.fold[(r - 1) * n + i]]++;
     // Holdout trains on fold 2 only; every other assignment trains on all rows outside the test fold.
     const testFolds = testsFoldOneOnly(p) ? [1] : Array.from({ length: a.folds }, (_, k) => k + 1);
-    for (const f of testFolds) smallestTrain = Math.min(smallestTrain, n - size[f]);
+    for (const f of testFolds) smallest = Math.min(smallest, n - size[f]);
   }
-  if (p.model.kind === 'knn') {
-    const k = withDefaults('knn', p.model.options).k as number;
-    if (k > smallestTrain)
-      out.push(
-        error('knn-k-too-large', `knn k is ${k} but the smallest training part has ${smallestTrain} rows`, at(['model', 'options', 'k'])),
-      );
-  }
+  return smallest;
+}
+
+function assignmentProblems(p: Protocol, table: Table, a: Assignment, at: At): Problem[] {
+  const out: Problem[] = [];
   if (p.reconcile.rule === 'majority-vote' && p.reconcile.tie === undefined) {
     const models = testsFoldOneOnly(p) ? a.repeats : a.folds * a.repeats;
     if (models % 2 === 0 || table.classes.length > 2) {

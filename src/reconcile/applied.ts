@@ -69,7 +69,8 @@ export function appliedCsv(rows: readonly AppliedRow[], classes: readonly string
   parts.push(csvLine(['id', 'source', 'predicted', 'agreement', ...classes.map((c) => `p_${c}`)]));
   for (const r of rows) {
     parts.push(
-      `${csvCell(r.id)},${r.source},${r.predicted === -1 ? '' : csvCell(classes[r.predicted])},${r.agreement},${Array.from(r.values, String).join(',')}\n`,
+      `${csvCell(r.id)},${r.source},${r.predicted === -1 ? '' : csvCell(classes[r.predicted])},${r.agreement},` +
+        `${Array.from(r.values, String).join(',')}\n`,
     );
   }
   return parts.join('');
@@ -79,12 +80,14 @@ export function appliedCsv(rows: readonly AppliedRow[], classes: readonly string
 export function disagreementReport(rows: readonly AppliedRow[], classes: readonly string[], limit = 10): string {
   const split = rows.filter((r) => r.agreement < 1 || r.tied);
   const lines = [
-    `${split.length} of ${rows.length} rows have fold models that disagree (agreement < 1)${rows.some((r) => r.tied) ? `; ${rows.filter((r) => r.tied).length} tied votes` : ''}`,
+    `${split.length} of ${rows.length} rows have fold models that disagree (agreement < ` +
+      `1)${rows.some((r) => r.tied) ? `; ${rows.filter((r) => r.tied).length} tied votes` : ''}`,
   ];
   const worst = [...split].sort((a, b) => a.agreement - b.agreement || compareUtf8(a.id, b.id)).slice(0, limit);
   for (const r of worst) {
     lines.push(
-      `  ${r.id}  ${r.source}  agreement ${r.agreement.toFixed(2)}  predicted ${r.predicted === -1 ? '(abstained)' : classes[r.predicted]}  models: ${r.tops.map((t) => classes[t]).join(' ')}`,
+      `  ${r.id}  ${r.source}  agreement ${r.agreement.toFixed(2)}  predicted ` +
+        `${r.predicted === -1 ? '(abstained)' : classes[r.predicted]}  models: ${r.tops.map((t) => classes[t]).join(' ')}`,
     );
   }
   return lines.join('\n') + '\n';

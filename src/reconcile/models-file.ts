@@ -31,7 +31,10 @@ export interface ModelsFile {
   folds: SavedModel[];
   /** A model fitted on every labeled row (rule refit, or run --refit); null otherwise. */
   refit: SavedModel | null;
-  /** id → feature digest (see table/row-digest.ts) of every row of the cross-validation: a new row under one of these ids must be that row. */
+  /**
+   * id → feature digest (see table/row-digest.ts) of every row of the cross-validation: a new
+   * row under one of these ids must be that row.
+   */
   'known-rows': Record<string, string>;
 }
 

@@ -107,7 +107,8 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
         const row = test[Math.floor(i / k)];
         throw new FitError(
           'non-finite-prediction',
-          `${p.model.kind} gave a non-finite probability (${foldProba[i]}) for row "${table.ids[row]}" in repeat ${r}, fold ${f}: the features are too extreme or too degenerate for this model to compute with`,
+          `${p.model.kind} gave a non-finite probability (${foldProba[i]}) for row "${table.ids[row]}" in repeat ${r}, fold ${f}: ` +
+            `the features are too extreme or too degenerate for this model to compute with`,
           'rescale the features (standardize, log2p), or drop constant and near-constant columns',
         );
       }
@@ -121,7 +122,8 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
         warnings.push(
           warning(
             'class-absent-from-training',
-            `class "${table.classes[cls]}" has no row in the training part of repeat ${r}, fold ${f}; that fold's model gives it probability 0`,
+            `class "${table.classes[cls]}" has no row in the training part of repeat ${r}, fold ${f}; that fold's model gives it ` +
+              `probability 0`,
           ),
         );
     });
@@ -158,7 +160,8 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
       warnings.push(
         warning(
           'metric-undefined-in-folds',
-          `${m} is undefined in ${missing} of ${folds.length} folds (their test part lacks a class the metric needs); its mean and SD are over the other ${folds.length - missing} folds, while the pooled value uses every out-of-fold prediction`,
+          `${m} is undefined in ${missing} of ${folds.length} folds (their test part lacks a class the metric needs); its mean ` +
+            `and SD are over the other ${folds.length - missing} folds, while the pooled value uses every out-of-fold prediction`,
         ),
       );
   }

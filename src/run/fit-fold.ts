@@ -33,7 +33,10 @@ export function fitFold(p: Pick<Protocol, 'preprocess' | 'model'>, d: FoldData, 
   return { pipeline, model, proba };
 }
 
-/** The model of a fold whose pipeline is already fitted (from class moments): fitted on the training rows through it, then the test rows predicted. */
+/**
+ * The model of a fold whose pipeline is already fitted (from class moments): fitted on the
+ * training rows through it, then the test rows predicted.
+ */
 export function fitModelAfterPipeline(
   p: Pick<Protocol, 'model'>,
   d: FoldData,

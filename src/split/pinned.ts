@@ -68,7 +68,8 @@ export function parsePinned(bytes: Uint8Array, file: string, ids: readonly strin
       problems.push(
         error(
           'pinned-missing-id',
-          `${absent.length} id${absent.length === 1 ? '' : 's'} of the data ${absent.length === 1 ? 'has' : 'have'} no fold in repeat ${rep}: ${listed}${absent.length > MAX_LISTED ? ', …' : ''}`,
+          `${absent.length} id${absent.length === 1 ? '' : 's'} of the data ${absent.length === 1 ? 'has' : 'have'} no fold in ` +
+            `repeat ${rep}: ${listed}${absent.length > MAX_LISTED ? ', …' : ''}`,
           { file, position: { line: 1, col: 1 } },
         ),
       );

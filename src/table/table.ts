@@ -161,7 +161,8 @@ export function buildTable(
       problems.push(
         error(
           'data-one-class',
-          `the label column "${roles.label}" has ${classes.length} class${classes.length === 1 ? ` ("${classes[0]}")` : 'es'}; at least 2 are needed`,
+          `the label column "${roles.label}" has ${classes.length} class${classes.length === 1 ? ` ("${classes[0]}")` : 'es'}; at ` +
+            `least 2 are needed`,
           { position: locate('label') },
         ),
       );
@@ -268,7 +269,8 @@ function checkIds(t: Grid, ids: string[], idCol: number, file: string, problems:
       problems.push(
         warning(
           'data-id-normalization',
-          `ids "${other}" and "${id}" differ only by Unicode normalization; the split spec hashes bytes as given, so they are different ids`,
+          `ids "${other}" and "${id}" differ only by Unicode normalization; the split spec hashes bytes as given, so they are ` +
+            `different ids`,
           { file, position: t.position(seen.get(id)!, idCol) },
         ),
       );

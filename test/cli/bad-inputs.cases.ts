@@ -88,7 +88,8 @@ export const badInputs: BadInput[] = [
     name: 'alias bomb',
     files: {
       'p.yaml':
-        'a: &a [x,x,x,x,x,x,x,x,x,x]\nb: &b [*a,*a,*a,*a,*a,*a,*a,*a,*a,*a]\nc: &c [*b,*b,*b,*b,*b,*b,*b,*b,*b,*b]\nd: [*c,*c,*c,*c,*c,*c,*c,*c,*c,*c]\n',
+        'a: &a [x,x,x,x,x,x,x,x,x,x]\nb: &b [*a,*a,*a,*a,*a,*a,*a,*a,*a,*a]\nc: &c [*b,*b,*b,*b,*b,*b,*b,*b,*b,*b]\nd: ' +
+        '[*c,*c,*c,*c,*c,*c,*c,*c,*c,*c]\n',
     },
     args: validate,
     exit: 1,

@@ -64,7 +64,9 @@ t.test('split keys of many ids derived on two threads equal those from one', asy
   const csv = lines.join('\n') + '\n';
   const dir = tempDir({
     'd.csv': csv,
-    'p.yaml': `foldseal: 1\nname: many\ndata: {file: d.csv, sha256: "${sha256(csv)}", id: id, label: label}\nsplit: {rule: stratified-kfold, folds: 4, repeats: 2, seed: 5}\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy]\n`,
+    'p.yaml':
+      `foldseal: 1\nname: many\ndata: {file: d.csv, sha256: "${sha256(csv)}", id: id, label: label}\nsplit: {rule: ` +
+      `stratified-kfold, folds: 4, repeats: 2, seed: 5}\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy]\n`,
   });
   // Without an id column the ids are row numbers, and the keys are split between threads afterwards.
   writeFileSync(join(dir, 'q.yaml'), readFileSync(join(dir, 'p.yaml'), 'utf8').replace(', id: id', ''));

@@ -26,4 +26,5 @@ export function complete(dir: string): boolean {
 
 export const csv = smallCsv(20);
 export const protocolFor = (name: string, data = 'data.csv', dataText = csv) =>
-  `foldseal: 1\nname: ${name}\ndata: {file: ${data}, sha256: "${sha256(dataText)}", id: id, label: label, features: [a, b, c]}\nsplit: {rule: stratified-kfold, folds: 2, seed: 7}\nmodel: {kind: gaussian-nb}\n`;
+  `foldseal: 1\nname: ${name}\ndata: {file: ${data}, sha256: "${sha256(dataText)}", id: id, label: label, features: [a, b, ` +
+  `c]}\nsplit: {rule: stratified-kfold, folds: 2, seed: 7}\nmodel: {kind: gaussian-nb}\n`;

@@ -19,7 +19,9 @@ t.test('the gate finds protocols by parsing, however the key is spelled', async 
     'protocols/quoted.yaml': `"foldseal": 1\n${body.replace('name: x', 'name: quoted')}`,
     'protocols/escaped.yaml': `"\\x66oldseal": 1\n${body.replace('name: x', 'name: escaped')}`,
     'protocols/explicit.yml': `? foldseal\n: 1\n${body.replace('name: x', 'name: explicit')}`,
-    'protocols/flow.yaml': `{foldseal: 1, name: flow, data: {file: ../data/data.csv, sha256: "${sha256(csv)}", id: id, label: label}, split: {rule: kfold, folds: 2, seed: 1}, model: {kind: gaussian-nb}}\n`,
+    'protocols/flow.yaml':
+      `{foldseal: 1, name: flow, data: {file: ../data/data.csv, sha256: "${sha256(csv)}", id: id, label: ` +
+      `label}, split: {rule: kfold, folds: 2, seed: 1}, model: {kind: gaussian-nb}}\n`,
     'protocols/json.json': JSON.stringify({
       '\u0066oldseal': 1,
       name: 'json',
@@ -52,7 +54,8 @@ t.test('skipped folders are named in the summary; the lock policy adds folders t
   const first = cli(['check', '.'], dir);
   t.match(
     first.stderr,
-    "2 protocols checked: 0 errors, 1 warning; not searched: .hidden, node_modules (add folders to the lock's policy.include to search them)",
+    "2 protocols checked: 0 errors, 1 warning; not searched: .hidden, node_modules (add folders to the lock's policy.include to " +
+      'search them)',
   );
   t.equal(cli(['lock', '.'], dir).code, 0);
   const lockPath = join(dir, 'foldseal.lock.json');
@@ -77,7 +80,10 @@ t.test('sealed rows are sealed by content: a copy under new ids is caught; run r
       .sort()
       .join('\n') +
     '\n';
-  const finalP = `foldseal: 1\nname: final\nfinal: true\ndata: {file: data/data.csv, sha256: "${sha256(csv)}", id: id, label: label, features: [a, b, c]}\nsplit: {pinned: {file: splits/final.csv, sha256: "${sha256(pinned)}"}}\npreprocess: [standardize]\nmodel: {kind: gaussian-nb}\n`;
+  const finalP =
+    `foldseal: 1\nname: final\nfinal: true\ndata: {file: data/data.csv, sha256: "${sha256(csv)}", id: id, label: ` +
+    `label, features: [a, b, c]}\nsplit: {pinned: {file: splits/final.csv, sha256: "${sha256(pinned)}"}}\npreprocess: ` +
+    `[standardize]\nmodel: {kind: gaussian-nb}\n`;
   const rows = csv.trimEnd().split('\n');
   const copied = [rows[0], ...rows.slice(5), ...rows.slice(1, 5).map((l) => l.replace(/^r(\d+),/, 'copy$1,'))].join('\n') + '\n';
   const dir = tempDir({
@@ -100,7 +106,8 @@ t.test('sealed rows are sealed by content: a copy under new ids is caught; run r
   t.equal(r.code, 1);
   t.match(
     r.stderr,
-    'dev.yaml:3:14: error: dev has 4 rows in data/dev.csv with the same label and feature values as sealed rows, under other ids: copy1, copy2, copy3, copy4',
+    'dev.yaml:3:14: error: dev has 4 rows in data/dev.csv with the same label and feature values as sealed rows, under other ids: ' +
+      'copy1, copy2, copy3, copy4',
   );
   // The final data is gone: the digests in the lock still catch the copy.
   writeFileSync(join(dir, 'final.yaml'), finalP.replace('final: true\n', 'final: true\ndescription: moved\n'));
@@ -231,7 +238,8 @@ t.test('verify checks the manifest against itself before any re-run', async (t) 
   t.equal(r.code, 1, 'a manifest without any of its result files is not verified');
   t.match(
     r.stderr,
-    'none of the 4 result files the manifest lists (applied.csv, models.json, predictions.csv, results.json) is next to it, so there is nothing left to vouch for',
+    'none of the 4 result files the manifest lists (applied.csv, models.json, predictions.csv, results.json) is next to it, so ' +
+      'there is nothing left to vouch for',
   );
   t.match(r.stdout, /\nnot verified \(results-missing\)\n$/);
 });
@@ -256,7 +264,8 @@ t.test('a new row under a training id must be that row: else an error at both pl
   t.equal(r.code, 1);
   t.equal(
     r.stderr.split('\n')[0],
-    'data/seedlings-new.csv:3:1: error: new row "CS-0002" has the id of a row of the cross-validation (data/seedlings.csv line 3) but different feature values',
+    'data/seedlings-new.csv:3:1: error: new row "CS-0002" has the id of a row of the cross-validation (data/seedlings.csv line 3) ' +
+      'but different feature values',
   );
   t.notMatch(r.stderr, 'CS-0001', 'the same row under its own id is fine');
   // apply: the saved models know the training rows by content.

@@ -50,7 +50,8 @@ t.test('RFC 8785 Appendix B number serialization samples', async (t) => {
 // RFC 8785 §3.2.4 (and §3.2.3 sorting): the document's own worked example of the whole transformation.
 t.test('RFC 8785 §3.2.4 example', async (t) => {
   const input = JSON.parse(
-    '{"numbers": [333333333.33333329, 1E30, 4.50, 2e-3, 0.000000000000000000000000001], "string": "\\u20ac$\\u000F\\u000aA\'\\u0042\\u0022\\u005c\\\\\\"\\/", "literals": [null, true, false]}',
+    '{"numbers": [333333333.33333329, 1E30, 4.50, 2e-3, 0.000000000000000000000000001], "string": ' +
+      '"\\u20ac$\\u000F\\u000aA\'\\u0042\\u0022\\u005c\\\\\\"\\/", "literals": [null, true, false]}',
   );
   t.equal(
     canonicalJson(input),

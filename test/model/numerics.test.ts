@@ -51,7 +51,9 @@ t.test('a fit that fails names its repeat and fold', async (t) => {
   const csv = 'id,label,a\n' + Array.from({ length: 12 }, (_, i) => `r${i},${i < 6 ? 'x' : 'y'},${i < 6 ? i : i + 100}`).join('\n') + '\n';
   const dir = tempDir({
     'data.csv': csv,
-    'p.yaml': `foldseal: 1\nname: s\ndata: {file: data.csv, sha256: "${sha256(csv)}", id: id, label: label}\nsplit: {rule: stratified-kfold, folds: 2, repeats: 2, seed: 3}\nmodel: {kind: logistic, options: {l2: 0, max-iterations: 5}}\n`,
+    'p.yaml':
+      `foldseal: 1\nname: s\ndata: {file: data.csv, sha256: "${sha256(csv)}", id: id, label: label}\nsplit: {rule: ` +
+      `stratified-kfold, folds: 2, repeats: 2, seed: 3}\nmodel: {kind: logistic, options: {l2: 0, max-iterations: 5}}\n`,
   });
   const r = cli(['run', 'p.yaml', '--out', 'res'], dir);
   t.equal(r.code, 1);
@@ -63,7 +65,9 @@ t.test('summaries say over how many folds a metric was defined, and recommend po
   const csv = 'id,label,a\n' + Array.from({ length: 8 }, (_, i) => `r${i},${i % 2 ? 'x' : 'y'},${i + (i % 2) * 3}`).join('\n') + '\n';
   const dir = tempDir({
     'data.csv': csv,
-    'p.yaml': `foldseal: 1\nname: loo\ndata: {file: data.csv, sha256: "${sha256(csv)}", id: id, label: label}\nsplit: {rule: leave-one-out}\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy, roc-auc, mcc]\n`,
+    'p.yaml':
+      `foldseal: 1\nname: loo\ndata: {file: data.csv, sha256: "${sha256(csv)}", id: id, label: label}\nsplit: {rule: ` +
+      `leave-one-out}\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy, roc-auc, mcc]\n`,
   });
   const r = cli(['run', 'p.yaml', '--out', 'res'], dir);
   t.equal(r.code, 0, r.stderr);
@@ -82,7 +86,9 @@ t.test('a long problem list reaches a pipe whole, and is capped per kind unless 
     '\n';
   const dir = tempDir({
     'data.csv': bad,
-    'p.yaml': `foldseal: 1\nname: many\ndata: {file: data.csv, sha256: "${sha256(bad)}", id: id, label: label, features: [a]}\nsplit: {rule: kfold, folds: 2, seed: 1}\nmodel: {kind: gaussian-nb}\n`,
+    'p.yaml':
+      `foldseal: 1\nname: many\ndata: {file: data.csv, sha256: "${sha256(bad)}", id: id, label: label, features: ` +
+      `[a]}\nsplit: {rule: kfold, folds: 2, seed: 1}\nmodel: {kind: gaussian-nb}\n`,
   });
   const capped = cli(['validate', 'p.yaml'], dir);
   t.equal(capped.code, 1);

@@ -97,7 +97,8 @@ check(
   'a YAML alias bomb',
   {
     'p.yaml':
-      'a: &a [x,x,x,x,x,x,x,x,x,x]\nb: &b [*a,*a,*a,*a,*a,*a,*a,*a,*a,*a]\nc: &c [*b,*b,*b,*b,*b,*b,*b,*b,*b,*b]\nd: [*c,*c,*c,*c,*c,*c,*c,*c,*c,*c]\n',
+      'a: &a [x,x,x,x,x,x,x,x,x,x]\nb: &b [*a,*a,*a,*a,*a,*a,*a,*a,*a,*a]\nc: &c [*b,*b,*b,*b,*b,*b,*b,*b,*b,*b]\nd: ' +
+      '[*c,*c,*c,*c,*c,*c,*c,*c,*c,*c]\n',
   },
   ['p.yaml:2:8: error: aliases expand past the limit of 100 (a resource-exhaustion guard)'],
 );
@@ -148,7 +149,8 @@ check(
   'ids that differ only by Unicode normalization (a warning)',
   { 'data.csv': nfc, 'p.yaml': protocolText(nfc) },
   [
-    'data.csv:3:1: warning: ids "caf\u00e9" and "cafe\u0301" differ only by Unicode normalization; the split spec hashes bytes as given, so they are different ids',
+    'data.csv:3:1: warning: ids "caf\u00e9" and "cafe\u0301" differ only by Unicode normalization; the split spec hashes bytes as ' +
+      'given, so they are different ids',
   ],
   0,
 );
@@ -181,7 +183,8 @@ check(
   'select by variance after standardize (a warning)',
   { 'p.yaml': protocolText(csv, { extra: 'preprocess: [standardize, {select: {top: 2, by: variance}}]' }) },
   [
-    'p.yaml:13:49: warning: select by variance comes after standardize, where every column has variance 1: which columns it keeps is decided by rounding',
+    'p.yaml:13:49: warning: select by variance comes after standardize, where every column has variance 1: which columns it keeps ' +
+      'is decided by rounding',
     '  hint: select by variance before standardize, or by t-test or f-test',
   ],
   0,

@@ -35,7 +35,8 @@ t.test('shapes that are not a protocol', async (t) => {
   );
   const wrong = parseProtocol(
     head.replace('foldseal: 1', 'foldseal: 2') +
-      'split: {rule: kfold, seed: 1}\npreprocess: [{select: {top: 0, by: t-test}}, {impute: {}}, 5]\nmetrics: [accuracy, accuracy]\nverify: {tolerance: -1}\n',
+      'split: {rule: kfold, seed: 1}\npreprocess: [{select: {top: 0, by: t-test}}, {impute: {}}, 5]\nmetrics: [accuracy, ' +
+      'accuracy]\nverify: {tolerance: -1}\n',
     'p.yaml',
     validate,
   );

@@ -21,7 +21,9 @@ t.test('mean of per-fold accuracies in a hand-made 4-fold example', async (t) =>
   const dir = tempDir({
     'd.csv': data,
     'f.csv': folds,
-    'p.yaml': `foldseal: 1\nname: four\ndata: {file: d.csv, sha256: "${sha256(data)}", id: id, label: label}\nsplit: {pinned: {file: f.csv, sha256: "${sha256(folds)}"}}\nmodel: {kind: knn, options: {k: 1}}\nmetrics: [accuracy]\n`,
+    'p.yaml':
+      `foldseal: 1\nname: four\ndata: {file: d.csv, sha256: "${sha256(data)}", id: id, label: label}\nsplit: {pinned: ` +
+      `{file: f.csv, sha256: "${sha256(folds)}"}}\nmodel: {kind: knn, options: {k: 1}}\nmetrics: [accuracy]\n`,
   });
   const r = await validateProtocol(join(dir, 'p.yaml'));
   t.same(r.problems, []);

@@ -20,7 +20,9 @@ async function runOn(file: string, text: string, rule: string) {
   const dir = tempDir({ [file]: text });
   writeFileSync(
     join(dir, 'p.yaml'),
-    `foldseal: 1\nname: inv\ndata: {file: ${file}, sha256: "${sha256(text)}", id: seedling_id, label: resistant, group: tray, features: {exclude: [bench]}}\nsplit: ${rule}\npreprocess: [standardize, {select: {top: 4, by: f-test}}]\nmodel: {kind: logistic, options: {l2: 2}}\nmetrics: [accuracy, roc-auc, log-loss]\n`,
+    `foldseal: 1\nname: inv\ndata: {file: ${file}, sha256: "${sha256(text)}", id: seedling_id, label: resistant, group: tray, ` +
+      `features: {exclude: [bench]}}\nsplit: ${rule}\npreprocess: [standardize, {select: {top: 4, by: f-test}}]\nmodel: {kind: ` +
+      `logistic, options: {l2: 2}}\nmetrics: [accuracy, roc-auc, log-loss]\n`,
   );
   const r = await validateProtocol(join(dir, 'p.yaml'));
   t.same(

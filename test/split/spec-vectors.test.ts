@@ -60,7 +60,9 @@ t.test('spec §8 rejection vectors are refused with their problem code', async (
     });
     const dir = tempDir({
       'data.csv': csv,
-      'p.yaml': `foldseal: 1\nname: v\ndata: {file: data.csv, sha256: "${sha256(csv)}", id: id, label: label${grouped ? ', group: g' : ''}}\nsplit: ${split}\nmodel: {kind: gaussian-nb}\n`,
+      'p.yaml':
+        `foldseal: 1\nname: v\ndata: {file: data.csv, sha256: "${sha256(csv)}", id: id, label: ` +
+        `label${grouped ? ', group: g' : ''}}\nsplit: ${split}\nmodel: {kind: gaussian-nb}\n`,
     });
     const r = cli(['validate', 'p.yaml', '--format', 'json'], dir);
     t.equal(r.code, 1, v.name);

@@ -49,7 +49,8 @@ export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<Exit
     throw new FoldsealError(
       error(
         'results-version',
-        `${shown(resultsPath)} has results format ${JSON.stringify(results?.['foldseal-results'])}; this foldseal reads format ${RESULTS_VERSION}`,
+        `${shown(resultsPath)} has results format ${JSON.stringify(results?.['foldseal-results'])}; this foldseal reads format ` +
+          `${RESULTS_VERSION}`,
         { file: shown(resultsPath) },
       ),
       1,
@@ -131,7 +132,8 @@ export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<Exit
   }
   const overridden = rule !== saved.reconcile.rule || tie !== saved.reconcile.tie;
   const comment = overridden
-    ? `foldseal apply: rule ${rule}${tie ? `, tie ${tie}` : ''} (the protocol declares ${saved.reconcile.rule}${saved.reconcile.tie ? `, tie ${saved.reconcile.tie}` : ''})`
+    ? `foldseal apply: rule ${rule}${tie ? `, tie ${tie}` : ''} (the protocol declares ` +
+      `${saved.reconcile.rule}${saved.reconcile.tie ? `, tie ${saved.reconcile.tie}` : ''})`
     : undefined;
   const csv = appliedCsv(rows, saved.classes, comment);
   if (args.out) {

@@ -71,7 +71,8 @@ export async function runCommand(args: RunArgs, io: CommandIo): Promise<ExitCode
   io.out(cvTables(out.cv));
   if (out.applied) io.out(`\nnew rows (reconcile: ${input.protocol.reconcile.rule}):\n` + disagreementReport(out.applied, out.cv.classes));
   io.out(
-    `wrote ${Object.keys(written).sort().join(', ')} to ${shown(dir)}${key?.kind === 'ssh' ? ` (manifest signed with SSH key ${key.describe})` : key ? ' (manifest signed)' : ''}\n`,
+    `wrote ${Object.keys(written).sort().join(', ')} to ` +
+      `${shown(dir)}${key?.kind === 'ssh' ? ` (manifest signed with SSH key ${key.describe})` : key ? ' (manifest signed)' : ''}\n`,
   );
   return 0;
 }

@@ -69,7 +69,8 @@ export async function verifyCommand(args: VerifyArgs, io: CommandIo): Promise<Ex
       problems.push(
         error(
           'rerun-untrusted',
-          `the manifest is not ${check.signedBy ? 'signed by a pinned key' : 'validly signed'}, so its protocol was not re-run: a re-run reads the files the manifest names`,
+          `the manifest is not ${check.signedBy ? 'signed by a pinned key' : 'validly signed'}, so its protocol was not re-run: a ` +
+            `re-run reads the files the manifest names`,
           { file, hint: "pin the author's key with --key AUTHOR.pub, or pass --allow-unsigned if you trust where this manifest came from" },
         ),
       );
@@ -131,7 +132,8 @@ async function checkSiblings(
     problems.push(
       error(
         'results-missing',
-        `none of the ${names.length} result files the manifest lists (${names.join(', ')}) is next to it, so there is nothing left to vouch for`,
+        `none of the ${names.length} result files the manifest lists (${names.join(', ')}) is next to it, so there is nothing ` +
+          `left to vouch for`,
         { file: shown(join(dir, 'manifest.json')), hint: 'verify the manifest inside its results folder' },
       ),
     );
@@ -237,7 +239,9 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
     }
     const n = (m.split.assignment as unknown[]).length;
     const lines = [
-      `rerun: ${n} assignments, ${countMetrics(m.results)} metric values and ${sha256Bytes(out.files['predictions.csv']) === m.files['predictions.csv'] ? 'identical' : 'changed'} predictions compared (tolerance ${doc.verify?.tolerance ?? 0})`,
+      `rerun: ${n} assignments, ${countMetrics(m.results)} metric values and ` +
+        `${sha256Bytes(out.files['predictions.csv']) === m.files['predictions.csv'] ? 'identical' : 'changed'} predictions ` +
+        `compared (tolerance ${doc.verify?.tolerance ?? 0})`,
     ];
     return { differences, lines };
   } finally {
@@ -297,7 +301,10 @@ function signatureLine(check: ManifestCheck): string {
   if (!check.signedBy) return 'signature: not verified';
   if (check.ssh) {
     const who = check.ssh.principals?.length ? ` (${check.ssh.principals.join(', ')})` : '';
-    return `signature: valid SSH signature (manifest.json.sig), signed by ${check.ssh.fingerprint}${who}${check.pinned ? '' : ' (key in the signature, not pinned)'}`;
+    return (
+      `signature: valid SSH signature (manifest.json.sig), signed by ` +
+      `${check.ssh.fingerprint}${who}${check.pinned ? '' : ' (key in the signature, not pinned)'}`
+    );
   }
   return `signature: valid, signed by ${check.signedBy}${check.pinned ? '' : ' (embedded key, not pinned)'}`;
 }

@@ -10,7 +10,8 @@ import { groupIndex } from './strata.js';
 
 export const groupedKfold: SplitRuleImpl = {
   description:
-    'k folds of whole groups (data.group): all rows of a group share a fold; balanced puts the largest groups first, each into the fold with the fewest rows.',
+    'k folds of whole groups (data.group): all rows of a group share a fold; balanced puts the largest groups first, each into ' +
+    'the fold with the fewest rows.',
   uses: { seed: true, folds: true, repeats: true, assign: true, testFraction: false, groups: true },
   tests: 'every-fold',
   keysIds: false,

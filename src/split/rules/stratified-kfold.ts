@@ -22,7 +22,9 @@ export const stratifiedKfold: SplitRuleImpl = {
         ? [
             {
               code: 'class-smaller-than-folds' as const,
-              message: `class "${c}" has ${m} row${m === 1 ? '' : 's'}, fewer than the ${split.folds} folds, so some folds would have none of it`,
+              message:
+                `class "${c}" has ${m} row${m === 1 ? '' : 's'}, fewer than the ${split.folds} folds, so some folds would ` +
+                `have none of it`,
               path: ['split', 'folds'],
               hint: `use at most ${fewest} folds`,
             },
