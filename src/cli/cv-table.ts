@@ -1,5 +1,6 @@
 /** Per-fold table and summary lines of a run, for the terminal. */
 import type { CvResult } from '../run/cross-validate.js';
+import type { RunStatistics } from '../run/statistics.js';
 import { textTable } from './text-table.js';
 
 const fmt = (v: number | null) => (v === null ? '—' : v.toFixed(4));
@@ -43,4 +44,48 @@ export function cvTables(cv: CvResult): string {
     tiny +
     `baseline = always predicting the training part's most common class; largest class share ${fmt(cv.baseline.largestClassShare)}\n`
   );
+}
+
+const range = (i: [number, number] | null) => (i === null ? '—' : `${fmt(i[0])}–${fmt(i[1])}`);
+
+/** The intervals and the permutation test of a run, for the terminal (empty when the protocol asks for none). */
+export function statisticsLines(s: RunStatistics | undefined): string {
+  if (!s) return '';
+  const i = s.intervals;
+  const pct = Math.round(i.level * 1e6) / 1e4;
+  const names = Object.keys(i.metrics);
+  const table = textTable(
+    ['metric', 'pooled', 'bootstrap percentile', 'bootstrap BCa', 'DeLong', 'fold mean', 'corrected t', 'naive t'],
+    names.map((m) => {
+      const v = i.metrics[m];
+      return [
+        m,
+        fmt(v.pooled.value),
+        range(v.pooled.percentile),
+        range(v.pooled.bca),
+        range(v.pooled.delong),
+        fmt(v.folds.mean),
+        range(v.folds.corrected),
+        range(v.folds.naive),
+      ];
+    }),
+  );
+  const boot = i.replicates === null ? 'no bootstrap' : `${i.replicates} stratified bootstrap replicates, seed ${i.seed}`;
+  let out =
+    `\n${pct} % intervals (${i.version}; ${boot}):\n` +
+    table +
+    'the naive t interval treats the folds as independent samples, but their training parts overlap and every row is\n' +
+    'tested once per repeat, so it is too narrow; the corrected t interval (Nadeau & Bengio 2003) accounts for that\n';
+  for (const note of i.notes) out += `note: ${note}\n`;
+  const p = s.permutation;
+  if (p) {
+    const within = p.within === 'group' ? 'within groups' : 'among all rows';
+    const floor = p.atLeastAsGood === 0 ? ` (= 1/(N+1), the smallest possible with ${p.count} permutations)` : '';
+    out +=
+      `\npermutation test (${p.metric}, mean over folds; ${p.count} permutations of the labels ${within}, seed ${p.seed}):\n` +
+      `  observed ${fmt(p.observed)}; permuted: median ${fmt(p.null.median)}, 5–95 % ${fmt(p.null.q05)}–${fmt(p.null.q95)}, ` +
+      `max ${fmt(p.null.max)}\n` +
+      `  p = ${p.pValue.toPrecision(3)}${floor}: ${p.atLeastAsGood} permutation${p.atLeastAsGood === 1 ? '' : 's'} scored at least as well\n`;
+  }
+  return out;
 }

@@ -25,6 +25,7 @@ export const PROBLEM_CODES = {
   'data-empty-group': {},
   'data-empty-id': {},
   'data-feature-role': {},
+  'permutation-metric-not-reported': {},
   'data-hash-mismatch': { hint: 'if the data changed on purpose, put the new hash in the protocol (`foldseal hash FILE`)' },
   'data-id-normalization': {},
   'data-invalid-utf8': {},

@@ -44,6 +44,13 @@ export function normalizeProtocol(raw: any): Protocol {
       newRows: nr ? { file: nr.file, sha256: nr.sha256, id: nr.id } : undefined,
     },
     metrics: raw.metrics ?? DEFAULT_METRICS,
+    statistics: raw.statistics
+      ? {
+          level: raw.statistics.level ?? 0.95,
+          bootstrap: raw.statistics.bootstrap,
+          permutation: raw.statistics.permutation && { within: 'all', ...raw.statistics.permutation },
+        }
+      : undefined,
     verify: { tolerance: raw.verify?.tolerance ?? 0 },
   };
 }

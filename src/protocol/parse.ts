@@ -97,6 +97,26 @@ function structureProblems(p: Protocol, source: SourceDocument): Problem[] {
         );
     }
   }
+  const stats = p.statistics;
+  if (stats && !hasSixDecimals(stats.level))
+    out.push(error('bad-format', `statistics.level ${stats.level} has more than 6 decimal places`, at(['statistics', 'level'])));
+  if (stats?.permutation && !p.metrics.includes(stats.permutation.metric))
+    out.push(
+      error(
+        'permutation-metric-not-reported',
+        `the permutation test's metric ${stats.permutation.metric} is not among the protocol's metrics`,
+        {
+          ...at(['statistics', 'permutation', 'metric']),
+          hint: `add ${stats.permutation.metric} to metrics, or test one of: ${p.metrics.join(', ')}`,
+        },
+      ),
+    );
+  if (stats?.permutation?.within === 'group' && p.data.group === undefined)
+    out.push(
+      error('missing-group', 'statistics.permutation.within: group needs data.group to name the group column', {
+        ...at(['statistics', 'permutation', 'within']),
+      }),
+    );
   if (p.reconcile.tie !== undefined && p.reconcile.rule !== 'majority-vote') {
     out.push(
       warning('unused-field', `reconcile.tie only applies to majority-vote, not ${p.reconcile.rule}`, at(['reconcile', 'tie'], true)),

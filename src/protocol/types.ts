@@ -42,7 +42,15 @@ export interface Protocol {
   model: { kind: ModelKind; options: Record<string, unknown> };
   reconcile: { rule: ReconcileRule; tie?: TieRule; newRows?: HashedFile & { id?: string } };
   metrics: MetricName[];
+  /** Intervals and the permutation test (docs/resample-spec.md); absent when the protocol has no statistics section. */
+  statistics?: StatisticsSettings;
   verify: { tolerance: number };
+}
+
+export interface StatisticsSettings {
+  level: number;
+  bootstrap?: { replicates: number; seed: number };
+  permutation?: { count: number; seed: number; metric: MetricName; within: 'all' | 'group' };
 }
 
 export const DEFAULT_METRICS: MetricName[] = ['accuracy', 'balanced-accuracy', 'roc-auc', 'mcc', 'log-loss'];

@@ -5,6 +5,7 @@ import type { Assignment } from '../split/assignment.js';
 import type { Table } from '../table/table.js';
 import { splitRules } from '../split/registry.js';
 import type { CvResult } from './cross-validate.js';
+import { statisticsJson, type RunStatistics } from './statistics.js';
 
 export const RESULTS_VERSION = 1;
 
@@ -18,6 +19,8 @@ export interface ResultsInput {
   cv: CvResult;
   files: Record<string, string>;
   warnings: Problem[];
+  /** Intervals and the permutation test, when the protocol asks for them. */
+  statistics?: RunStatistics;
 }
 
 export function buildResults(r: ResultsInput): Record<string, unknown> {
@@ -61,6 +64,7 @@ export function buildResults(r: ResultsInput): Record<string, unknown> {
       'accuracy-pooled': cv.baseline.pooled,
       'largest-class-share': cv.baseline.largestClassShare,
     },
+    ...(r.statistics ? { statistics: statisticsJson(r.statistics) } : {}),
     files: r.files,
     warnings: r.warnings.map((w) => w.message),
   };

@@ -22,6 +22,7 @@ import { knownColumns } from '../protocol/known-columns.js';
 import { crossValidate, type CvHooks, type CvResult } from './cross-validate.js';
 import { predictionsCsv } from './predictions.js';
 import { buildResults } from './results.js';
+import { runStatistics, type RunStatistics } from './statistics.js';
 
 export interface RunInput {
   /** Rows to predict after the cross-validation (the protocol's reconcile.new-rows). */
@@ -40,6 +41,7 @@ export interface RunInput {
 
 export interface RunOutput {
   cv: CvResult;
+  statistics?: RunStatistics;
   applied?: AppliedRow[];
   results: Record<string, unknown>;
   assignmentCsv: string;
@@ -91,7 +93,9 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
   }
   const digests = Object.fromEntries(Object.entries(files).map(([name, text]) => [name, sha256Bytes(text)]));
   const assignmentSha256 = sha256Bytes(folds);
+  const statistics = guardFit(input.protocolFile, () => runStatistics(p, input.table, input.assignment, cv));
   const results = buildResults({
+    statistics,
     protocol: input.protocol,
     protocolSha256,
     dataSha256: input.dataSha256,
@@ -104,7 +108,7 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
   });
   files['results.json'] = JSON.stringify(results, null, 2) + '\n';
   digests['results.json'] = sha256Bytes(files['results.json']);
-  return { cv, results, assignmentCsv: folds, assignmentSha256, files, digests, applied };
+  return { cv, results, assignmentCsv: folds, assignmentSha256, files, digests, applied, statistics };
 }
 
 export function guardFit<T>(protocolFile: string, f: () => T): T {
