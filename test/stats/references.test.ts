@@ -124,6 +124,7 @@ t.test('the independent Python reading of the spec agrees with the vectors', asy
       .join('\n') + '\n',
   );
   const r = spawnSync(python, [new URL('../reference/resample_v1.py', import.meta.url).pathname, 'check', file], { encoding: 'utf8' });
-  if (r.error) return t.skip(`${python} not available (${r.error.message}); CI installs it`);
+  // CI installs Debian's python3; a machine without it cannot run this cross-check.
+  t.equal(r.error, undefined, `${python} runs`);
   t.equal(r.status, 0, r.stdout + r.stderr);
 });
