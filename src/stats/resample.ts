@@ -75,9 +75,9 @@ export function permutedLabels(
   const groups = new Map<string, number[]>();
   for (const row of order) {
     const s = strata ? strata[row] : '';
-    let list = groups.get(s);
-    if (!list) groups.set(s, (list = []));
-    list.push(row);
+    const list = groups.get(s);
+    if (list) list.push(row);
+    else groups.set(s, [row]);
   }
   for (const rows of groups.values()) {
     const byKey = [...rows].sort((a, b) => compareKeyBytes(keys, a, b) || compareUtf8(ids[a], ids[b]));
