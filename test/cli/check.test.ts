@@ -1,6 +1,6 @@
 /** The repository gate on temporary team repositories: each finding kind with its exact line. */
 import { execFileSync } from 'node:child_process';
-import { mkdirSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import t from 'tap';
 import { cli, sha256, smallCsv, tempDir } from '../helpers.js';
@@ -239,4 +239,21 @@ t.test('--staged checks only the touched protocols and those sharing their data'
   t.match(r.stderr, '2 protocols checked', 'p1 and p2, which shares its data');
   t.match(cli(['check'], dir).stderr, 'protocols/p4.yaml:12:9: error: the seed changed from 3 to 4');
   t.equal(cli(['check', '--staged'], tempDir()).code, 2, 'outside git');
+});
+
+t.test("--staged runs no program the repository's config names (core.fsmonitor, an external diff)", async (t) => {
+  const dir = team();
+  const git = (...args: string[]) => execFileSync('git', args, { cwd: dir, encoding: 'utf8' });
+  git('init', '-q');
+  git('-c', 'user.email=t@example.org', '-c', 'user.name=t', 'add', '.');
+  git('-c', 'user.email=t@example.org', '-c', 'user.name=t', 'commit', '-qm', 'start');
+  const marker = join(dir, 'RAN');
+  writeFileSync(join(dir, 'hook.sh'), `#!/bin/sh\ntouch '${marker}'\n`, { mode: 0o755 });
+  writeFileSync(join(dir, 'protocols/p1.yaml'), protocol('first', 9));
+  git('add', 'protocols/p1.yaml');
+  git('config', 'core.fsmonitor', join(dir, 'hook.sh'));
+  git('config', 'diff.external', join(dir, 'hook.sh'));
+  const r = cli(['check', '--staged'], dir);
+  t.equal(r.code, 1, r.stderr);
+  t.notOk(existsSync(marker), 'the configured program did not run');
 });

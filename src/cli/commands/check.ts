@@ -33,7 +33,11 @@ export async function checkCommand(args: CheckArgs, io: CommandIo): Promise<Exit
 /** Protocols touched by the staged change, plus every protocol that shares data with them. */
 function stagedScope(root: string, input: GateInput): Set<string> {
   let staged: string[];
-  const git = (args: string[]) => execFileSync('git', args, { cwd: root, encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'] });
+  // A repository's own config can name programs git runs (core.fsmonitor on every index read, an
+  // external diff): the user asked for git's staged list, not for those, so they are switched off.
+  const safe = ['-c', 'core.fsmonitor=false'];
+  const git = (args: string[]) =>
+    execFileSync('git', [...safe, ...args], { cwd: root, encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'] });
   try {
     git(['rev-parse', '--is-inside-work-tree']);
   } catch {
@@ -45,7 +49,7 @@ function stagedScope(root: string, input: GateInput): Set<string> {
     );
   }
   try {
-    staged = git(['diff', '--cached', '--name-only', '--relative']).split('\n').filter(Boolean);
+    staged = git(['diff', '--cached', '--name-only', '--relative', '--no-ext-diff', '--no-textconv']).split('\n').filter(Boolean);
   } catch (e) {
     throw new FoldsealError(
       error(
