@@ -37,3 +37,15 @@ export function predictedClasses(proba: Float64Array, k: number): Int32Array {
 export function scored(truth: Int32Array, proba: Float64Array, classCount: number, positive: number): Scored {
   return { truth, proba, classCount, positive, predicted: predictedClasses(proba, classCount) };
 }
+
+/** Rows `rows` of a whole table's true codes y and probabilities (table rows × k), scored in that order. */
+export function scoredRows(y: Int32Array, proba: Float64Array, classCount: number, positive: number, rows: Int32Array): Scored {
+  const k = classCount;
+  const truth = new Int32Array(rows.length);
+  const p = new Float64Array(rows.length * k);
+  for (let i = 0; i < rows.length; i++) {
+    truth[i] = y[rows[i]];
+    for (let c = 0; c < k; c++) p[i * k + c] = proba[rows[i] * k + c];
+  }
+  return scored(truth, p, k, positive);
+}

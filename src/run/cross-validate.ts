@@ -5,7 +5,7 @@
  */
 import { metrics as metricFns } from '../metric/registry.js';
 import { confusionRows } from '../metric/confusion.js';
-import { scored } from '../metric/types.js';
+import { scored, scoredRows } from '../metric/types.js';
 import type { FittedPipeline } from '../preprocess/pipeline.js';
 import type { FoldFit } from './fit-fold.js';
 export { atFold } from './fit-fold.js';
@@ -207,18 +207,13 @@ function pooled(
   const k = table.classes.length;
   return oof.map((proba, r) => {
     const tested = testedIn[r];
-    let count = 0;
-    for (let i = 0; i < order.length; i++) if (tested[order[i]] > 0) count++;
-    const idx = new Int32Array(count);
-    const p = new Float64Array(count * k);
-    for (let i = 0, n = 0; i < order.length; i++) {
-      const row = order[i];
-      if (tested[row] === 0) continue;
-      idx[n] = row;
-      for (let c = 0; c < k; c++) p[n * k + c] = proba[row * k + c];
-      n++;
-    }
-    const s = scored(takeInt(table.y, idx), p, k, positive);
+    const s = scoredRows(
+      table.y,
+      proba,
+      k,
+      positive,
+      order.filter((row) => tested[row] > 0),
+    );
     const out: Record<string, number | null> = {};
     for (const m of names) out[m] = metricFns[m].value(s);
     return out;

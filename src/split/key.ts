@@ -15,8 +15,12 @@ export function keyMessage(seed: number, repeat: number, id: string): Buffer {
 
 /** 32-byte keys for every id, laid end to end. */
 export function deriveKeys(ids: readonly string[], seed: number, repeat: number): Uint8Array {
+  return keysAfterPrefix(utf8.encode(`${DOMAIN}\0${seed}\0${repeat}\0`), ids);
+}
+
+/** SHA-256(prefix ‖ UTF-8(s)) for every string s, laid end to end (the split keys, and resample-v1's permutation keys). */
+export function keysAfterPrefix(prefix: Uint8Array, ids: readonly string[]): Uint8Array {
   const out = new Uint8Array(ids.length * 32);
-  const prefix = Buffer.from(`${DOMAIN}\0${seed}\0${repeat}\0`, 'utf8');
   const p = prefix.length;
   const hasher = new ShortHasher();
   hasher.block.set(prefix);

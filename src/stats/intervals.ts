@@ -7,7 +7,7 @@
  */
 import type { MetricName } from '../metric/registry.js';
 import { metrics } from '../metric/registry.js';
-import { scored } from '../metric/types.js';
+import { scoredRows } from '../metric/types.js';
 import { placements, delongInterval } from './delong.js';
 import { BootstrapDrawer, MAX_CLASS_ROWS } from './resample.js';
 import { normalCdf, normalQuantile, tQuantile } from './special.js';
@@ -75,15 +75,7 @@ function pooledValue(name: MetricName, d: IntervalData, rowsByRepeat: readonly I
   const k = d.classes.length;
   let total = 0;
   for (let r = 0; r < rowsByRepeat.length; r++) {
-    const rows = rowsByRepeat[r];
-    const truth = new Int32Array(rows.length);
-    const proba = new Float64Array(rows.length * k);
-    const oof = d.oof[r];
-    for (let i = 0; i < rows.length; i++) {
-      truth[i] = d.y[rows[i]];
-      for (let c = 0; c < k; c++) proba[i * k + c] = oof[rows[i] * k + c];
-    }
-    const v = metrics[name].value(scored(truth, proba, k, d.positive));
+    const v = metrics[name].value(scoredRows(d.y, d.oof[r], k, d.positive, rowsByRepeat[r]));
     if (v === null) return null;
     total += v;
   }

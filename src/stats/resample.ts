@@ -3,7 +3,7 @@
  * so an independent implementation draws the same replicates and permutations. Pure.
  */
 import { ShortHasher } from '../split/sha256.js';
-import { compareUtf8 } from '../util/bytes.js';
+import { keysAfterPrefix, sortByKey } from '../split/key.js';
 
 export const RESAMPLE_VERSION = 'resample-v1';
 const DOMAIN = 'foldseal/resample-v1';
@@ -42,21 +42,6 @@ export class BootstrapDrawer {
   }
 }
 
-/** The 32-byte permutation key of every id: SHA-256(DOMAIN 0 "permute" 0 seed 0 permutation 0 id). */
-function permutationKeys(ids: readonly string[], seed: number, permutation: number): Uint8Array {
-  const hasher = new ShortHasher();
-  const out = new Uint8Array(ids.length * 32);
-  const prefix = utf8.encode(`${DOMAIN}\0permute\0${seed}\0${permutation}\0`);
-  for (let i = 0; i < ids.length; i++) {
-    const id = utf8.encode(ids[i]);
-    hasher.reserve(prefix.length + id.length);
-    hasher.block.set(prefix);
-    hasher.block.set(id, prefix.length);
-    hasher.digestBlockInto(prefix.length + id.length, out, i * 32);
-  }
-  return out;
-}
-
 /**
  * Labels of permutation `permutation`: within each stratum (all rows, or the rows of one group),
  * the rows in id order r₁…rₙ and the same rows in key order s₁…sₙ (ties by id bytes); s_k gets
@@ -70,7 +55,8 @@ export function permutedLabels(
   permutation: number,
   strata?: readonly string[],
 ): Int32Array {
-  const keys = permutationKeys(ids, seed, permutation);
+  // Key order with ties by id bytes: the split spec's own ordering (split/key.ts).
+  const keys = keysAfterPrefix(utf8.encode(`${DOMAIN}\0permute\0${seed}\0${permutation}\0`), ids);
   const out = new Int32Array(y.length);
   const groups = new Map<string, number[]>();
   for (const row of order) {
@@ -80,15 +66,8 @@ export function permutedLabels(
     else groups.set(s, [row]);
   }
   for (const rows of groups.values()) {
-    const byKey = [...rows].sort((a, b) => compareKeyBytes(keys, a, b) || compareUtf8(ids[a], ids[b]));
+    const byKey = sortByKey(Int32Array.from(rows), keys, ids);
     for (let k = 0; k < rows.length; k++) out[byKey[k]] = y[rows[k]];
   }
   return out;
-}
-
-function compareKeyBytes(keys: Uint8Array, a: number, b: number): number {
-  const oa = a * 32;
-  const ob = b * 32;
-  for (let i = 0; i < 32; i++) if (keys[oa + i] !== keys[ob + i]) return keys[oa + i] - keys[ob + i];
-  return 0;
 }
