@@ -1,8 +1,8 @@
 /** Worker thread entry: fits the folds it is sent on the shared table (see fold-workers.ts). */
 import { parentPort, workerData } from 'node:worker_threads';
-import { FitError } from '../model/types.js';
 import type { FoldData } from '../run/fit-fold.js';
 import { runJob, type FoldJob } from '../run/executor.js';
+import { toWorkerError } from './worker-errors.js';
 
 const w = workerData as {
   protocol: Parameters<typeof runJob>[0];
@@ -27,15 +27,6 @@ parentPort!.on('message', (job: FoldJob) => {
     const fit = runJob(w.protocol, table, job);
     parentPort!.postMessage({ index: job.index, fit }, [fit.proba.buffer as ArrayBuffer]);
   } catch (e) {
-    const user = e instanceof FitError;
-    parentPort!.postMessage({
-      index: job.index,
-      error: {
-        kind: user ? e.name : 'bug',
-        code: user ? e.code : '',
-        message: user ? e.message : String((e as Error).stack ?? e),
-        hint: user ? e.hint : undefined,
-      },
-    });
+    parentPort!.postMessage({ index: job.index, error: toWorkerError(e) });
   }
 });

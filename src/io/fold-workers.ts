@@ -6,8 +6,7 @@
 import { availableParallelism } from 'node:os';
 import { Worker } from 'node:worker_threads';
 import { forcedThreads } from './threads.js';
-import { FitError } from '../model/types.js';
-import type { ProblemCode } from '../problems/problem.js';
+import { fromWorkerError, type WorkerError } from './worker-errors.js';
 import type { Protocol } from '../protocol/types.js';
 import type { Assignment } from '../split/assignment.js';
 import type { Table } from '../table/table.js';
@@ -66,13 +65,9 @@ export async function crossValidateInWorkers(p: Protocol, table: Table, a: Assig
         w.postMessage(jobs[index]);
       };
       for (const w of workers) {
-        w.on('message', (m: { index: number; fit?: FoldFit; error?: { kind: string; code: string; message: string; hint?: string } }) => {
+        w.on('message', (m: { index: number; fit?: FoldFit; error?: WorkerError }) => {
           if (m.error) {
-            const e =
-              m.error.kind === 'FitError'
-                ? new FitError(m.error.code as ProblemCode, m.error.message, m.error.hint)
-                : new Error(m.error.message);
-            reject(atFold(e, plans[m.index].repeat, plans[m.index].fold));
+            reject(atFold(fromWorkerError(m.error), plans[m.index].repeat, plans[m.index].fold));
             return;
           }
           fits[m.index] = m.fit!;

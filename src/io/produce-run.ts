@@ -3,6 +3,7 @@ import { hasErrors } from '../problems/problem.js';
 import type { CvHooks } from '../run/cross-validate.js';
 import { asUserError, runProtocol, type RunInput, type RunOutput } from '../run/run.js';
 import { crossValidateInWorkers } from './fold-workers.js';
+import { permutedScoresInWorkers, type PermutationProgress } from './permutation-workers.js';
 import { validateProtocol, type ValidationReport } from './validate.js';
 import type { PathPolicy } from './path-policy.js';
 import { lockedRepoProblems } from './repo-guard.js';
@@ -16,6 +17,8 @@ export interface Produced {
 export interface ProduceOptions {
   refit?: boolean;
   hooks?: CvHooks;
+  /** Called as permutations of a permutation test are done (for progress lines at the edge). */
+  onPermutation?: PermutationProgress;
   /** Where the protocol's files may lie (default: protocolPolicy). */
   access?: PathPolicy;
   /** Apply a locked repository's rules (protocols the gate cannot see, sealed rows). */
@@ -40,5 +43,10 @@ export async function produceRun(protocolPath: string, options: ProduceOptions =
   const cv = await crossValidateInWorkers(input.protocol, input.table, input.assignment, options.hooks).catch((e: unknown) => {
     throw asUserError(e, input.protocolFile);
   });
-  return { report, input, out: runProtocol(input, options.hooks, cv) };
+  const permuted = await permutedScoresInWorkers(input.protocol, input.table, input.assignment, options.onPermutation).catch(
+    (e: unknown) => {
+      throw asUserError(e, input.protocolFile);
+    },
+  );
+  return { report, input, out: runProtocol(input, options.hooks, cv, permuted) };
 }

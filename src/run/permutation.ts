@@ -88,7 +88,3 @@ export function permutationResult(p: Protocol, observed: number, scores: Float64
     undefinedIn,
   };
 }
-
-export function permutationTest(p: Protocol, table: Table, a: Assignment, observed: number): PermutationResult {
-  return permutationResult(p, observed, permutedScores(p, table, a, 1, p.statistics!.permutation!.count));
-}

@@ -51,8 +51,11 @@ export interface RunOutput {
   digests: Record<string, string>;
 }
 
-/** `fitted` is a cross-validation already done elsewhere (on worker threads); without it the folds are fitted here. */
-export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvResult): RunOutput {
+/**
+ * `fitted` is a cross-validation already done elsewhere (on worker threads), `permuted` the
+ * permutation test's permuted scores likewise; without them they are computed here.
+ */
+export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvResult, permuted?: Float64Array): RunOutput {
   const cv: CvResult = fitted ?? guardFit(input.protocolFile, () => crossValidate(input.protocol, input.table, input.assignment, hooks));
   const folds = assignmentCsv(input.assignment);
   const predictions = predictionsCsv(cv, input.table);
@@ -93,7 +96,7 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
   }
   const digests = Object.fromEntries(Object.entries(files).map(([name, text]) => [name, sha256Bytes(text)]));
   const assignmentSha256 = sha256Bytes(folds);
-  const statistics = guardFit(input.protocolFile, () => runStatistics(p, input.table, input.assignment, cv));
+  const statistics = guardFit(input.protocolFile, () => runStatistics(p, input.table, input.assignment, cv, permuted));
   const results = buildResults({
     statistics,
     protocol: input.protocol,

@@ -5,14 +5,15 @@ import { idOrder } from '../split/key.js';
 import { metricIntervals, type IntervalsResult } from '../stats/intervals.js';
 import type { Table } from '../table/table.js';
 import type { CvResult } from './cross-validate.js';
-import { permutationTest, type PermutationResult } from './permutation.js';
+import { permutationResult, permutedScores, type PermutationResult } from './permutation.js';
 
 export interface RunStatistics {
   intervals: IntervalsResult;
   permutation: PermutationResult | null;
 }
 
-export function runStatistics(p: Protocol, table: Table, a: Assignment, cv: CvResult): RunStatistics | undefined {
+/** `permuted`: the permuted scores computed elsewhere (on worker threads); without them they are computed here. */
+export function runStatistics(p: Protocol, table: Table, a: Assignment, cv: CvResult, permuted?: Float64Array): RunStatistics | undefined {
   const s = p.statistics;
   if (!s) return undefined;
   const intervals = metricIntervals(
@@ -28,7 +29,13 @@ export function runStatistics(p: Protocol, table: Table, a: Assignment, cv: CvRe
     },
     { level: s.level, bootstrap: s.bootstrap },
   );
-  const permutation = s.permutation ? permutationTest(p, table, a, cv.summary[s.permutation.metric].mean ?? Number.NaN) : null;
+  const permutation = s.permutation
+    ? permutationResult(
+        p,
+        cv.summary[s.permutation.metric].mean ?? Number.NaN,
+        permuted ?? permutedScores(p, table, a, 1, s.permutation.count),
+      )
+    : null;
   return { intervals, permutation };
 }
 

@@ -89,3 +89,21 @@ t.test('a data hash computed on the second thread is checked like one computed h
   t.match(one.stdout + one.stderr, '914fdee0');
   t.equal(two.stdout + two.stderr, one.stdout + one.stderr, 'same report');
 });
+
+t.test('a permutation test on three threads scores every permutation as one thread does', async (t) => {
+  const withTest = demo.replace('verify:', 'statistics: {permutation: {count: 40, seed: 9, metric: roc-auc}}\nverify:');
+  const dir = tempDir({
+    'p.yaml': withTest,
+    'q.yaml': withTest.replace('preprocess: [standardize,', 'preprocess: [{impute: {by: median}}, standardize,'),
+  });
+  for (const p of ['p', 'q']) {
+    for (const threads of ['1', '3']) {
+      const r = run(threads, ['run', `${p}.yaml`, '--out', `${p}-${threads}`], dir);
+      t.equal(r.status, 0, r.stderr);
+      t.match(r.stdout, /permutation test \(roc-auc/);
+    }
+    const one = readFileSync(join(dir, `${p}-1`, 'results.json'), 'utf8');
+    t.equal(readFileSync(join(dir, `${p}-3`, 'results.json'), 'utf8'), one, `${p}: results.json identical`);
+    t.equal(JSON.parse(one).statistics.permutation.count, 40);
+  }
+});

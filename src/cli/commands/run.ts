@@ -26,17 +26,18 @@ export async function runCommand(args: RunArgs, io: CommandIo): Promise<ExitCode
   const key = args.key ? await readSigningKey(args.key) : undefined;
   const started = Date.now();
   let lastShown = 0;
-  const onFold = (done: number, total: number) => {
+  const progress = (what: string) => (done: number, total: number) => {
     // Progress only for a person at a terminal, and only once the run has taken a while.
     const now = Date.now();
     if (io.errIsTty && now - started > 1500 && now - lastShown > 200) {
-      io.err(`\rfitting fold ${done}/${total}`);
+      io.err(`\r\x1b[K${what} ${done}/${total}`);
       lastShown = now;
     }
   };
   const { report, input, out } = await produceRun(args.protocol, {
     refit: args.refit,
-    hooks: { onFold },
+    hooks: { onFold: progress('fitting fold') },
+    onPermutation: progress('permutation'),
     access: protocolPolicy(args.protocol, Boolean(args.allowOutside)),
     repoRules: true,
   });
