@@ -58,7 +58,12 @@ const sides = {
 };
 const times = Object.fromEntries(Object.keys(sides).map((k) => [k, []]));
 const last = {};
-for (let i = 0; i < 5; i++) for (const [k, f] of Object.entries(sides)) (last[k] = f()), times[k].push(last[k].seconds);
+for (let i = 0; i < 5; i++) {
+  for (const [k, f] of Object.entries(sides)) {
+    last[k] = f();
+    times[k].push(last[k].seconds);
+  }
+}
 
 const results = JSON.parse(readFileSync(join(out, 'results', 'results.json'), 'utf8'));
 const perm = results.statistics.permutation;
