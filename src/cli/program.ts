@@ -114,6 +114,25 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     );
 
   program
+    .command('compare')
+    .description('paired comparison of two cross-validations of the same data on the same folds: B against A, per metric')
+    .argument('<a>', 'results folder (or its manifest.json), or a protocol to run in memory')
+    .argument('<b>', 'results folder (or its manifest.json), or a protocol to run in memory')
+    .option('--level <level>', 'confidence level of the intervals; the tests are read at 1 − level', '0.95')
+    .option('--metric <metric>', 'the metric the one-line verdict is about (default: the first metric both report)')
+    .addOption(formatOption())
+    .addOption(outsideOption())
+    .addHelpText(
+      'after',
+      '\nExamples:\n  foldseal compare results/demo results/demo-knn\n  foldseal compare protocols/demo.yaml ' +
+        'protocols/demo-knn.yaml --metric roc-auc --format json\n\nBoth must use the same data (by hash) and the same fold ' +
+        'assignment, or the comparison is refused.\nExit: 0 compared (whatever the verdict), 1 refused or invalid, 2 usage error.',
+    )
+    .action(async (a: string, b: string, o: { level: string; metric?: string; format: 'text' | 'json'; allowOutside?: boolean }) =>
+      done(await (await import('./commands/compare.js')).compareCommand({ a, b, ...o }, io)),
+    );
+
+  program
     .command('keygen')
     .description('make an Ed25519 key pair for signing manifests; prints the key fingerprint')
     .requiredOption('--out <prefix>', 'writes PREFIX.key (private, mode 0600) and PREFIX.pub (public)')

@@ -21,6 +21,8 @@ export interface ProduceOptions {
   onPermutation?: PermutationProgress;
   /** Where the protocol's files may lie (default: protocolPolicy). */
   access?: PathPolicy;
+  /** Leave out the protocol's statistics section (intervals, permutation test): `compare` needs only the folds. */
+  withoutStatistics?: boolean;
   /** Apply a locked repository's rules (protocols the gate cannot see, sealed rows). */
   repoRules?: boolean;
 }
@@ -30,7 +32,7 @@ export async function produceRun(protocolPath: string, options: ProduceOptions =
   if (options.repoRules && report.protocol && !report.unreadable) report.problems.push(...(await lockedRepoProblems(protocolPath, report)));
   if (report.unreadable || hasErrors(report.problems) || !report.protocol || !report.table || !report.assignment) return { report };
   const input: RunInput = {
-    protocol: report.protocol,
+    protocol: options.withoutStatistics ? { ...report.protocol, statistics: undefined } : report.protocol,
     raw: report.raw,
     protocolFile: report.file,
     table: report.table,

@@ -10,9 +10,14 @@ export interface CodeInfo {
 
 export const PROBLEM_CODES = {
   'bad-format': {},
+  'bad-option': {},
   'bad-key': {},
   'class-absent-from-training': {},
   'class-smaller-than-folds': {},
+  'compare-different-classes': {},
+  'compare-different-data': {},
+  'compare-different-folds': {},
+  'compare-same-protocol': {},
   'constant-features': {},
   'csv-ragged-row': {},
   'csv-text-after-quote': {},

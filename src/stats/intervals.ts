@@ -10,9 +10,10 @@ import { metrics } from '../metric/registry.js';
 import { scoredRows } from '../metric/types.js';
 import { placements, delongInterval } from './delong.js';
 import { BootstrapDrawer, MAX_CLASS_ROWS } from './resample.js';
-import { normalCdf, normalQuantile, tQuantile } from './special.js';
+import { correctedT, type Interval } from './corrected-t.js';
+import { normalCdf, normalQuantile } from './special.js';
 
-export type Interval = [number, number];
+export type { Interval };
 
 /** What the intervals are computed from: the cross-validation's out-of-fold predictions and fold results. */
 export interface IntervalData {
@@ -121,23 +122,6 @@ export function bcaInterval(sorted: Float64Array, estimate: number, jackknife: F
   const lo = Math.min(Math.max(Math.floor((b + 1) * a1), 1), b);
   const hi = Math.min(Math.max(Math.ceil((b + 1) * a2), 1), b);
   return [sorted[lo - 1], sorted[hi - 1]];
-}
-
-/** Corrected resampled t interval of the mean of fold values, and the naive one (df = J − 1). */
-export function correctedT(
-  values: readonly number[],
-  testRows: number,
-  trainRows: number,
-  level: number,
-): { mean: number; corrected: Interval; naive: Interval; df: number } | null {
-  const j = values.length;
-  if (j < 2) return null;
-  const mean = values.reduce((a, b) => a + b, 0) / j;
-  const s2 = values.reduce((a, v) => a + (v - mean) * (v - mean), 0) / (j - 1);
-  const t = tQuantile(1 - (1 - level) / 2, j - 1);
-  const corrected = t * Math.sqrt((1 / j + testRows / trainRows) * s2);
-  const naive = t * Math.sqrt(s2 / j);
-  return { mean, corrected: [mean - corrected, mean + corrected], naive: [mean - naive, mean + naive], df: j - 1 };
 }
 
 export function metricIntervals(names: readonly MetricName[], d: IntervalData, s: IntervalSettings): IntervalsResult {

@@ -91,19 +91,15 @@ t.test('a data hash computed on the second thread is checked like one computed h
 });
 
 t.test('a permutation test on three threads scores every permutation as one thread does', async (t) => {
-  const withTest = demo.replace('verify:', 'statistics: {permutation: {count: 40, seed: 9, metric: roc-auc}}\nverify:');
-  const dir = tempDir({
-    'p.yaml': withTest,
-    'q.yaml': withTest.replace('preprocess: [standardize,', 'preprocess: [{impute: {by: median}}, standardize,'),
-  });
-  for (const p of ['p', 'q']) {
-    for (const threads of ['1', '3']) {
-      const r = run(threads, ['run', `${p}.yaml`, '--out', `${p}-${threads}`], dir);
-      t.equal(r.status, 0, r.stderr);
-      t.match(r.stdout, /permutation test \(roc-auc/);
-    }
-    const one = readFileSync(join(dir, `${p}-1`, 'results.json'), 'utf8');
-    t.equal(readFileSync(join(dir, `${p}-3`, 'results.json'), 'utf8'), one, `${p}: results.json identical`);
-    t.equal(JSON.parse(one).statistics.permutation.count, 40);
+  // The impute step keeps these folds off the class-moment path, so the workers refit the pipeline row by row.
+  const withTest = onWorkers.replace('verify:', 'statistics: {permutation: {count: 24, seed: 9, metric: roc-auc}}\nverify:');
+  const dir = tempDir({ 'p.yaml': withTest });
+  for (const threads of ['1', '3']) {
+    const r = run(threads, ['run', 'p.yaml', '--out', `res-${threads}`], dir);
+    t.equal(r.status, 0, r.stderr);
+    t.match(r.stdout, /permutation test \(roc-auc/);
   }
+  const one = readFileSync(join(dir, 'res-1', 'results.json'), 'utf8');
+  t.equal(readFileSync(join(dir, 'res-3', 'results.json'), 'utf8'), one, 'results.json identical');
+  t.equal(JSON.parse(one).statistics.permutation.count, 24);
 });

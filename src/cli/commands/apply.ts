@@ -2,14 +2,13 @@ import { join, resolve } from 'node:path';
 import { writeOutputFile } from '../../io/output-file.js';
 import { error, FoldsealError, hasErrors, type Problem } from '../../problems/problem.js';
 import { sha256Bytes } from '../../io/hash.js';
-import { fileProblem, readRegular } from '../../io/files.js';
+import { parseJson, readInput, readRecorded, readResults } from '../../io/results-dir.js';
 import { shown } from '../../io/validate.js';
 import { applyRows, appliedCsv, disagreementReport } from '../../reconcile/applied.js';
 import { heldOutFromPredictions } from '../../reconcile/held-out.js';
 import { knownIdProblems } from '../../reconcile/known-ids.js';
 import { MODELS_VERSION, type ModelsFile } from '../../reconcile/models-file.js';
 import { tiePossible } from '../../reconcile/reconcile.js';
-import { RESULTS_VERSION } from '../../run/results.js';
 import type { ReconcileRule, TieRule } from '../../protocol/types.js';
 import { newRowsFromBytes } from '../../table/new-rows.js';
 import { asUserError } from '../../run/run.js';
@@ -24,50 +23,17 @@ export interface ApplyArgs {
   tie?: TieRule;
 }
 
-async function read(path: string): Promise<Buffer> {
-  try {
-    return await readRegular(path);
-  } catch (e) {
-    throw new FoldsealError(fileProblem(e as NodeJS.ErrnoException, shown(path), { file: shown(path) }), 2);
-  }
-}
-
-function parseJson(bytes: Buffer, path: string): any {
-  try {
-    return JSON.parse(bytes.toString('utf8'));
-  } catch (e) {
-    throw new FoldsealError(error('not-json', `${shown(path)} is not valid JSON (${(e as Error).message})`, { file: shown(path) }), 1);
-  }
-}
-
 export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<ExitCode> {
-  const resultsPath = join(args.results, 'results.json');
   const modelsPath = join(args.results, 'models.json');
-  const predictionsPath = join(args.results, 'predictions.csv');
-  const results = parseJson(await read(resultsPath), resultsPath);
-  if (results?.['foldseal-results'] !== RESULTS_VERSION) {
-    throw new FoldsealError(
-      error(
-        'results-version',
-        `${shown(resultsPath)} has results format ${JSON.stringify(results?.['foldseal-results'])}; this foldseal reads format ` +
-          `${RESULTS_VERSION}`,
-        { file: shown(resultsPath) },
-      ),
-      1,
-    );
-  }
-  const modelBytes = await read(modelsPath);
+  const results = await readResults(args.results);
   const expected = results.files?.['models.json'];
-  if (sha256Bytes(modelBytes) !== expected) {
-    throw new FoldsealError(
-      error(
-        'models-hash-mismatch',
-        `${shown(modelsPath)} does not match the SHA-256 recorded in results.json (it was changed after the run)`,
-        { file: shown(modelsPath), hint: 're-run the protocol instead of editing saved models' },
-      ),
-      1,
-    );
-  }
+  const modelBytes = await readRecorded(
+    args.results,
+    'models.json',
+    results,
+    'models-hash-mismatch',
+    're-run the protocol instead of editing saved models',
+  );
   const saved = parseJson(modelBytes, modelsPath) as ModelsFile;
   if (saved['foldseal-models'] !== MODELS_VERSION)
     throw new FoldsealError(
@@ -78,15 +44,7 @@ export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<Exit
       ),
       1,
     );
-  const predictionBytes = await read(predictionsPath);
-  if (sha256Bytes(predictionBytes) !== results.files?.['predictions.csv']) {
-    throw new FoldsealError(
-      error('predictions-hash-mismatch', `${shown(predictionsPath)} does not match the SHA-256 recorded in results.json`, {
-        file: shown(predictionsPath),
-      }),
-      1,
-    );
-  }
+  const predictionBytes = await readRecorded(args.results, 'predictions.csv', results, 'predictions-hash-mismatch');
   const rule = args.rule ?? saved.reconcile.rule;
   const tie = args.tie ?? (rule === saved.reconcile.rule ? saved.reconcile.tie : null);
   const problems: Problem[] = [];
@@ -105,7 +63,7 @@ export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<Exit
     );
   if (problems.length) throw new FoldsealError(problems, 2);
 
-  const tableBytes = await read(args.table);
+  const tableBytes = await readInput(args.table);
   const nr = newRowsFromBytes(tableBytes, shown(args.table), saved.features, saved.id ?? undefined, saved.missing, saved['known-columns']);
   if (nr.rows)
     nr.problems.push(
