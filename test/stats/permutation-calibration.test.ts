@@ -18,7 +18,7 @@ import { crossValidate } from '../../src/run/cross-validate.js';
 import { permutationResult, permutedScores } from '../../src/run/permutation.js';
 import { sha256, tempDir } from '../helpers.js';
 
-const DATASETS = 120;
+const DATASETS = 100;
 const PERMUTATIONS = 39;
 
 t.test('null datasets: permutation p-values are uniform (KS at α = 0.01)', async (t) => {
