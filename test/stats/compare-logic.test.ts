@@ -103,3 +103,10 @@ t.test("McNemar's exact p-value, worked by hand (statsmodels is checked live in 
   t.equal(mcnemarExact(5, 5), 1);
   t.equal(mcnemarExact(0, 0), 1);
 });
+
+t.test('the two demo protocols compare as a pair', async (t) => {
+  const r = cli(['compare', 'protocols/demo.yaml', 'protocols/demo-logistic.yaml', '--metric', 'roc-auc']);
+  t.equal(r.code, 0, r.stderr);
+  t.match(r.stdout, /^A: protocols\/demo\.yaml \(seedling-blight-nb\)\nB: protocols\/demo-logistic\.yaml \(seedling-blight-logistic\)/);
+  t.match(r.stdout, /\nroc-auc: (no evidence of a difference|[AB] \()/);
+});
