@@ -37,6 +37,7 @@ export async function produceRun(protocolPath: string, options: ProduceOptions =
     protocolFile: report.file,
     table: report.table,
     dataSha256: report.dataSha256!,
+    joined: report.joined,
     assignment: report.assignment,
     newRows: report.newRows,
     refit: options.refit,

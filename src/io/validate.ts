@@ -12,7 +12,8 @@ import { schemaValidator } from './schemas.js';
 import { checkAgainstData } from '../protocol/semantic.js';
 import { isPinned, type Protocol, type RuleSplit } from '../protocol/types.js';
 import { splitRules } from '../split/registry.js';
-import { tableFromBytes } from '../table/load.js';
+import { tableFromBytes, tableFromLayout, type SheetInput } from '../table/load.js';
+import { decompressed } from './decompress.js';
 import { knownColumns } from '../protocol/known-columns.js';
 import { newRowsFromBytes, type NewRows } from '../table/new-rows.js';
 import { fileProblem, readBytes, readRegularText } from './files.js';
@@ -73,12 +74,16 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
   const at = (docPath: (string | number)[]) => ({ file: parsed.file, path: docPath, position: locate(source, docPath) });
   const paths = {
     data: options.dataOverride ? resolve(options.dataOverride) : resolve(base, p.data.file),
+    samples: p.data.samples ? resolve(base, p.data.samples.file) : undefined,
     pinned: isPinned(p.split) ? resolve(base, p.split.pinned.file) : undefined,
     newRows: p.reconcile.newRows ? resolve(base, p.reconcile.newRows.file) : undefined,
   };
   const access = options.access ?? protocolPolicy(path);
   const outside = [
     options.dataOverride ? undefined : outsideProblem(paths.data, access, p.data.file, 'data file', at(['data', 'file'])),
+    paths.samples
+      ? outsideProblem(paths.samples, access, p.data.samples!.file, 'sample sheet', at(['data', 'samples', 'file']))
+      : undefined,
     paths.pinned
       ? outsideProblem(
           paths.pinned,
@@ -108,7 +113,7 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
 
 async function validateWithData(
   parsed: ParsedProtocol & { protocol: Protocol; source: NonNullable<ParsedProtocol['source']> },
-  paths: { data: string; pinned?: string; newRows?: string },
+  paths: { data: string; samples?: string; pinned?: string; newRows?: string },
   at: (docPath: (string | number)[]) => Partial<Problem>,
   rowThread: RowThread | undefined,
 ): Promise<ValidationReport> {
@@ -145,14 +150,47 @@ async function validateWithData(
     problems.push(data.problem);
     return { ...parsed, problems, paths };
   }
+  // The declared hashes are of the bytes on disk; a gzip file is then read as its text.
+  const text = decompressed(data.bytes!, shown(paths.data), at(['data', 'file']));
+  let sheet: SheetInput | undefined;
+  if (paths.samples && p.data.samples) {
+    const raw = await readBytes(paths.samples, shown(paths.samples), at(['data', 'samples', 'file']));
+    const plain = raw.problem ? raw : decompressed(raw.bytes!, shown(paths.samples), at(['data', 'samples', 'file']));
+    if (plain.problem) problems.push(plain.problem);
+    else if (raw.sha256 !== p.data.samples.sha256)
+      problems.push(
+        error(
+          'samples-hash-mismatch',
+          `the sample sheet's SHA-256 is ${raw.sha256}, not the ${p.data.samples.sha256} this protocol records`,
+          at(['data', 'samples', 'sha256']),
+        ),
+      );
+    else
+      sheet = {
+        bytes: plain.bytes!,
+        file: shown(paths.samples),
+        format: p.data.samples.format,
+        unmatched: p.data.samples.unmatched,
+        at: at(['data', 'samples']),
+      };
+  }
+  if (text.problem || (p.data.samples && !sheet)) {
+    if (text.problem) problems.push(text.problem);
+    return { ...parsed, problems, paths };
+  }
   const roleLocate = (role: 'id' | 'label' | 'group' | 'features', index?: number) =>
     locate(
       source,
       index === undefined ? ['data', role] : ['data', 'features', ...(Array.isArray(p.data.features) ? [] : ['exclude']), index],
     );
-  if (rowThread && hashesIds(p.split) && p.data.id !== undefined)
-    rowThread.expectKeys({ idColumn: p.data.id, seed: p.split.seed ?? 0, repeats: p.split.repeats });
-  const built = tableFromBytes(data.bytes!, shown(paths.data), dataRoles(p), p.data.format, roleLocate, rowThread);
+  // The second thread parses half of a plain, uncompressed samples-in-rows file; other files are read here.
+  const simple = text.bytes === data.bytes && p.data.layout === 'samples-in-rows' && !sheet;
+  const helper = simple ? rowThread : undefined;
+  if (helper && hashesIds(p.split) && p.data.id !== undefined)
+    helper.expectKeys({ idColumn: p.data.id, seed: p.split.seed ?? 0, repeats: p.split.repeats });
+  const built: ReturnType<typeof tableFromLayout> = simple
+    ? tableFromBytes(text.bytes, shown(paths.data), dataRoles(p), p.data.format, roleLocate, helper)
+    : tableFromLayout(text.bytes, shown(paths.data), dataRoles(p), p.data.format, p.data.layout, sheet, roleLocate);
   // A file that is not the recorded one is reported as that alone: its structural problems would
   // only distract. (The hash is taken while the file is parsed, on the second thread for large files.)
   if (data.sha256 !== p.data.sha256) {
@@ -172,7 +210,7 @@ async function validateWithData(
     table: built.table,
     sha256: data.sha256!,
     pinned,
-    idKeys: rowThread && splitKeysOnTwoThreads(p, built.table.ids, rowThread),
+    idKeys: helper && splitKeysOnTwoThreads(p, built.table.ids, helper),
   });
   problems.push(...semantic.problems);
   let newRows: NewRows | undefined;
@@ -206,6 +244,7 @@ async function validateWithData(
     paths,
     table: built.table,
     dataSha256: data.sha256,
+    joined: built.joined,
     newRows,
     assignment: hasErrors(problems) ? undefined : semantic.assignment,
   };

@@ -28,6 +28,10 @@ export function normalizeProtocol(raw: any): Protocol {
       file: d.file,
       sha256: d.sha256,
       format: d.format,
+      layout: d.layout ?? 'samples-in-rows',
+      samples: d.samples
+        ? { file: d.samples.file, sha256: d.samples.sha256, format: d.samples.format, unmatched: d.samples.unmatched ?? 'error' }
+        : undefined,
       id: d.id,
       label: d.label,
       positive: d.positive,

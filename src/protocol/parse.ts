@@ -122,7 +122,20 @@ function structureProblems(p: Protocol, source: SourceDocument): Problem[] {
       warning('unused-field', `reconcile.tie only applies to majority-vote, not ${p.reconcile.rule}`, at(['reconcile', 'tie'], true)),
     );
   }
-  if (p.data.id === undefined) {
+  if (p.data.layout === 'features-in-rows' && !p.data.samples)
+    out.push(
+      error('layout-needs-samples', 'a features-in-rows data file holds no labels: name a sample sheet under data.samples', {
+        ...at(['data', 'layout']),
+        hint: 'samples: {file: samples.csv, sha256: "…"} with the id column (data.id) and the label column (data.label)',
+      }),
+    );
+  if (p.data.samples && p.data.id === undefined)
+    out.push(
+      error('samples-without-id', 'a sample sheet is joined by id: name its id column in data.id', {
+        ...at(['data', 'samples'], true),
+      }),
+    );
+  if (p.data.id === undefined && !p.data.samples) {
     out.push(
       warning('no-id-column', 'data.id is not set: row numbers become the ids, so the folds depend on row order', {
         ...at(['data'], true),

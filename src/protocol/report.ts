@@ -9,8 +9,10 @@ export interface ValidationReport extends ParsedProtocol {
   unreadable?: boolean;
   table?: Table;
   dataSha256?: string;
+  /** Samples a sample-sheet join left out (data.samples.unmatched: drop). */
+  joined?: { 'data-only': number; 'sheet-only': number };
   assignment?: Assignment;
   newRows?: NewRows;
   /** Absolute paths of the files the protocol names. */
-  paths?: { data: string; pinned?: string; newRows?: string };
+  paths?: { data: string; samples?: string; pinned?: string; newRows?: string };
 }

@@ -30,6 +30,9 @@ export interface Protocol {
     file: string;
     sha256: string;
     format?: 'csv' | 'tsv';
+    layout: DataLayout;
+    /** A sample sheet joined by id: label, group and covariates (never features). */
+    samples?: SampleSheet;
     id?: string;
     label: string;
     positive?: string;
@@ -45,6 +48,15 @@ export interface Protocol {
   /** Intervals and the permutation test (docs/resample-spec.md); absent when the protocol has no statistics section. */
   statistics?: StatisticsSettings;
   verify: { tolerance: number };
+}
+
+export type DataLayout = 'samples-in-rows' | 'features-in-rows';
+
+export interface SampleSheet {
+  file: string;
+  sha256: string;
+  format?: 'csv' | 'tsv';
+  unmatched: 'error' | 'drop';
 }
 
 export interface StatisticsSettings {

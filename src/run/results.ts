@@ -13,6 +13,7 @@ export interface ResultsInput {
   protocol: Protocol;
   protocolSha256: string;
   dataSha256: string;
+  joined?: { 'data-only': number; 'sheet-only': number };
   table: Table;
   assignment: Assignment;
   assignmentSha256: string;
@@ -39,7 +40,17 @@ export function buildResults(r: ResultsInput): Record<string, unknown> {
   return {
     'foldseal-results': RESULTS_VERSION,
     protocol: { name: p.name, sha256: r.protocolSha256 },
-    data: { sha256: r.dataSha256, rows: table.ids.length, features: table.featureNames, classes: table.classes, 'class-counts': counts },
+    data: {
+      sha256: r.dataSha256,
+      ...(p.data.layout !== 'samples-in-rows' ? { layout: p.data.layout } : {}),
+      ...(p.data.samples
+        ? { samples: { sha256: p.data.samples.sha256, 'left-out': r.joined ?? { 'data-only': 0, 'sheet-only': 0 } } }
+        : {}),
+      rows: table.ids.length,
+      features: table.featureNames,
+      classes: table.classes,
+      'class-counts': counts,
+    },
     split: { ...split, folds: r.assignment.folds, repeats: r.assignment.repeats, 'assignment-sha256': r.assignmentSha256 },
     model: { kind: p.model.kind, options: p.model.options },
     preprocess: p.preprocess.map((s) => s.step),

@@ -35,6 +35,8 @@ export interface RunInput {
   protocolFile: string;
   table: Table;
   dataSha256: string;
+  /** Samples a sample-sheet join left out (data.samples.unmatched: drop). */
+  joined?: { 'data-only': number; 'sheet-only': number };
   assignment: Assignment;
   warnings: Problem[];
 }
@@ -102,6 +104,7 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
     protocol: input.protocol,
     protocolSha256,
     dataSha256: input.dataSha256,
+    joined: input.joined,
     table: input.table,
     assignment: input.assignment,
     assignmentSha256,

@@ -20,7 +20,8 @@ export interface Grid {
   text(row: number, col: number): string;
   /** The cell as a number by the strict grammar of number.ts, NaN when it is not one. */
   number(row: number, col: number): number;
-  position(row: number, col: number): { line: number; col: number };
+  /** `file` when the cell lies in another file than the table's (a sample sheet's cell in a joined grid). */
+  position(row: number, col: number): { line: number; col: number; file?: string };
   /**
    * One pass over the rows. Undefined when a row turns out not to have the header's cell count:
    * only the fast reader can find that this late, and its caller then reads the file with the
@@ -59,4 +60,10 @@ export function charColumn(bytes: Uint8Array, lineStart: number, at: number): { 
   const lineOffset = prefix.split('\n').length - 1;
   const chars = lastBreak === -1 ? prefix.length : prefix.length - lastBreak - 1;
   return { lineOffset, col: chars + 1 };
+}
+
+/** Where a cell is, for a problem: its own file when the grid says so, else the table's. */
+export function cellAt(t: Grid, row: number, col: number, file: string): { file: string; position: { line: number; col: number } } {
+  const p = t.position(row, col);
+  return { file: p.file ?? file, position: { line: p.line, col: p.col } };
 }

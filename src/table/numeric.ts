@@ -1,6 +1,6 @@
 /** Problems for the numeric cells that did not parse: missing tokens become NaN, anything else is reported. */
 import { error, type Problem } from '../problems/problem.js';
-import type { Extracted, Grid } from './grid.js';
+import { cellAt, type Extracted, type Grid } from './grid.js';
 
 const MAX_LISTED = 1000;
 
@@ -23,8 +23,7 @@ export function numberProblems(
     if (bad++ < MAX_LISTED) {
       problems.push(
         error('data-not-a-number', `cell "${text}" in column "${grid.header[c]}" (row ${r + 1}) is not a number`, {
-          file,
-          position: grid.position(r, c),
+          ...cellAt(grid, r, c, file),
           hint: text.includes(',') ? 'use a dot as the decimal separator' : 'list the token under data.missing if it marks a missing value',
         }),
       );
@@ -61,8 +60,7 @@ export function rangeProblems(grid: Grid, numbers: Float64Array, columns: readon
         : `is outside the range foldseal computes with safely (0, or 1e-150 to 1e150 in magnitude)`;
     problems.push(
       error('data-out-of-range', `cell "${text}" in column "${grid.header[c]}" (row ${r + 1}) ${why}`, {
-        file,
-        position: grid.position(r, c),
+        ...cellAt(grid, r, c, file),
         hint: 'rescale the column (another unit, or a logarithm) before foldseal reads it',
       }),
     );

@@ -5,7 +5,7 @@
 import { error, warning, type Problem } from '../problems/problem.js';
 import { idOrder } from '../util/id-order.js';
 import { compareUtf8 } from '../util/bytes.js';
-import type { Grid } from './grid.js';
+import { cellAt, type Grid } from './grid.js';
 import type { Matrix } from './matrix.js';
 import { numberProblems } from './numeric.js';
 
@@ -151,7 +151,7 @@ export function buildTable(
     for (let r = 0; r < rows; r++) {
       if (labels[r] === '' || missing.has(labels[r])) {
         if (emptyLabels++ < MAX_CELL_PROBLEMS)
-          problems.push(error('data-missing-label', `row ${r + 1} has no label`, { file, position: t.position(r, labelCol) }));
+          problems.push(error('data-missing-label', `row ${r + 1} has no label`, cellAt(t, r, labelCol, file)));
       }
     }
     classes = [...new Set(labels)].sort(compareUtf8);
@@ -174,8 +174,7 @@ export function buildTable(
       if (groups[r] === '' && empty++ < MAX_CELL_PROBLEMS)
         problems.push(
           error('data-empty-group', `row ${r + 1} has an empty group cell in column "${roles.group}"`, {
-            file,
-            position: t.position(r, groupCol!),
+            ...cellAt(t, r, groupCol!, file),
           }),
         );
     }
@@ -240,7 +239,7 @@ function checkIds(t: Grid, ids: string[], idCol: number, file: string, problems:
   for (let r = 0; r < ids.length && reported < MAX_CELL_PROBLEMS; r++) {
     if (ids[r] === '') {
       reported++;
-      problems.push(error('data-empty-id', `row ${r + 1} has an empty id`, { file, position: t.position(r, idCol) }));
+      problems.push(error('data-empty-id', `row ${r + 1} has an empty id`, cellAt(t, r, idCol, file)));
       continue;
     }
     const first = firstOf.get(r);
@@ -248,8 +247,7 @@ function checkIds(t: Grid, ids: string[], idCol: number, file: string, problems:
       reported++;
       problems.push(
         error('data-duplicate-id', `id "${ids[r]}" appears again (first on line ${t.rowLine[first]})`, {
-          file,
-          position: t.position(r, idCol),
+          ...cellAt(t, r, idCol, file),
         }),
       );
     }
@@ -271,7 +269,7 @@ function checkIds(t: Grid, ids: string[], idCol: number, file: string, problems:
           'data-id-normalization',
           `ids "${other}" and "${id}" differ only by Unicode normalization; the split spec hashes bytes as given, so they are ` +
             `different ids`,
-          { file, position: t.position(seen.get(id)!, idCol) },
+          cellAt(t, seen.get(id)!, idCol, file),
         ),
       );
     } else normalized.set(nfc, id);

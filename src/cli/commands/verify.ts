@@ -179,6 +179,7 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
   // Nothing is read before every path the manifest (or protocol) names is known to lie inside the review folders.
   const named: [string, string, string][] = [];
   if (!args.data) named.push([resolve(base, doc.data.file), doc.data.file, 'data file']);
+  if (doc.data.samples) named.push([resolve(base, doc.data.samples.file), doc.data.samples.file, 'sample sheet']);
   if (doc.split?.pinned) named.push([resolve(base, doc.split.pinned.file), doc.split.pinned.file, 'pinned assignment file']);
   if (doc.reconcile?.['new-rows'])
     named.push([resolve(base, doc.reconcile['new-rows'].file), doc.reconcile['new-rows'].file, 'new-rows file']);
@@ -195,6 +196,7 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
     return { differences: [], lines: [] };
   }
   doc.data.file = args.data ? resolve(args.data) : resolve(base, doc.data.file);
+  if (doc.data.samples) doc.data.samples.file = resolve(base, doc.data.samples.file);
   if (doc.split?.pinned) doc.split.pinned.file = resolve(base, doc.split.pinned.file);
   if (doc.reconcile?.['new-rows']) doc.reconcile['new-rows'].file = resolve(base, doc.reconcile['new-rows'].file);
   let localSha: string;

@@ -1,0 +1,126 @@
+// Data as expression-matrix users hold it: scikit-learn's bundled breast-cancer table written
+// features-in-rows (one row per feature, one column per sample), gzip-compressed, with the label
+// in a separate sample sheet. Checked against the reference: its out-of-fold probabilities equal
+// scikit-learn 1.2.1's on the same folds (fixtures/breast-cancer-ftest-gaussian-nb.json, made by
+// sklearn_reference.py) to 1e-9, exactly as the samples-in-rows CSV does.
+import { readFileSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { gzipSync } from 'node:zlib';
+import t from 'tap';
+import { cli, sha256, tempDir } from '../helpers.js';
+
+const csv = readFileSync(new URL('../reference/data/breast-cancer.csv', import.meta.url), 'utf8');
+const ref = JSON.parse(readFileSync(new URL('../reference/fixtures/breast-cancer-ftest-gaussian-nb.json', import.meta.url), 'utf8'));
+const lines = csv
+  .trimEnd()
+  .split('\n')
+  .map((l) => l.split(','));
+const header = lines[0];
+const body = lines.slice(1);
+const label = header.indexOf('diagnosis');
+const features = header.map((_, c) => c).filter((c) => c !== 0 && c !== label);
+// Features in rows: first column the feature name, then one column per sample, the header naming the samples.
+const matrix =
+  ['feature', ...body.map((r) => r[0])].join('\t') +
+  '\n' +
+  features.map((c) => [header[c], ...body.map((r) => r[c])].join('\t')).join('\n') +
+  '\n';
+// The sample sheet: id, label and a covariate column (a batch number derived from the row position) that must never become a feature.
+const sheetRows = body.map((r, i) => `${r[0]},${r[label]},${(i % 3) + 1}`);
+const sheet = ['sample,diagnosis,batch', ...sheetRows].join('\n') + '\n';
+const gz = gzipSync(Buffer.from(matrix));
+
+function protocol(files: { matrix: string; matrixBytes: Uint8Array; sheet: string; sheetBytes: string }, extra = ''): string {
+  return (
+    'foldseal: 1\nname: bc-features-in-rows\ndata:\n' +
+    `  file: ${files.matrix}\n  sha256: "${sha256(files.matrixBytes)}"\n  layout: features-in-rows\n` +
+    `  samples: {file: ${files.sheet}, sha256: "${sha256(files.sheetBytes)}"${extra}}\n` +
+    '  id: sample\n  label: diagnosis\n  positive: malignant\n' +
+    'split: {rule: stratified-kfold, folds: 10, seed: 1993}\n' +
+    'preprocess: [standardize, {select: {top: 10, by: f-test}}]\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy, roc-auc, log-loss]\n'
+  );
+}
+
+t.test('a gzipped features-in-rows matrix with a sample sheet runs end to end and matches scikit-learn', async (t) => {
+  const dir = tempDir({ 'expr.tsv.gz': gz, 'samples.csv': sheet });
+  writeFileSync(join(dir, 'p.yaml'), protocol({ matrix: 'expr.tsv.gz', matrixBytes: gz, sheet: 'samples.csv', sheetBytes: sheet }));
+  const v = cli(['validate', 'p.yaml'], dir);
+  t.equal(v.code, 0, v.stderr + v.stdout);
+  // The declared hash is of the bytes on disk: `foldseal hash` (like sha256sum) prints it.
+  t.match(cli(['hash', 'expr.tsv.gz'], dir).stdout, sha256(gz));
+  const r = cli(['run', 'p.yaml', '--out', 'res'], dir);
+  t.equal(r.code, 0, r.stderr);
+  const results = JSON.parse(readFileSync(join(dir, 'res', 'results.json'), 'utf8'));
+  t.equal(results.data.rows, 569);
+  t.equal(results.data.layout, 'features-in-rows');
+  t.same(results.data.samples, { sha256: sha256(sheet), 'left-out': { 'data-only': 0, 'sheet-only': 0 } });
+  t.equal(results.data.features.length, 30, 'the 30 measurements; the sheet’s batch column is not a feature');
+  t.notOk(results.data.features.includes('batch'));
+  const proba = new Map<string, number[]>();
+  for (const line of readFileSync(join(dir, 'res', 'predictions.csv'), 'utf8')
+    .trimEnd()
+    .split('\n')
+    .slice(1)) {
+    const cells = line.split(',');
+    proba.set(cells[0], [Number(cells[5]), Number(cells[6])]);
+  }
+  let worst = 0;
+  let compared = 0;
+  for (const f of ref.folds)
+    f.ids.forEach((id: string, i: number) => {
+      for (let c = 0; c < 2; c++) worst = Math.max(worst, Math.abs(proba.get(id)![c] - f.proba[i][c]));
+      compared++;
+    });
+  t.equal(compared, 569);
+  t.ok(worst <= 1e-9, `largest out-of-fold probability difference from scikit-learn ${worst.toExponential(2)} ≤ 1e-9`);
+  const rerun = cli(['verify', 'res/manifest.json', '--rerun', '--allow-unsigned', '--allow-unpinned'], dir);
+  t.equal(rerun.code, 0, rerun.stderr + rerun.stdout);
+  t.match(rerun.stdout, /identical/);
+});
+
+t.test('gzip is recognized by its bytes, not its name; a broken one is a located error', async (t) => {
+  const dir = tempDir({ 'expr.tsv': gz, 'samples.csv': sheet });
+  writeFileSync(join(dir, 'p.yaml'), protocol({ matrix: 'expr.tsv', matrixBytes: gz, sheet: 'samples.csv', sheetBytes: sheet }));
+  t.equal(cli(['validate', 'p.yaml'], dir).code, 0);
+  const broken = Buffer.concat([gz.subarray(0, 200), Buffer.alloc(50)]);
+  writeFileSync(join(dir, 'broken.tsv.gz'), broken);
+  writeFileSync(join(dir, 'q.yaml'), protocol({ matrix: 'broken.tsv.gz', matrixBytes: broken, sheet: 'samples.csv', sheetBytes: sheet }));
+  const r = cli(['validate', 'q.yaml'], dir);
+  t.equal(r.code, 1);
+  t.match(r.stderr, /q\.yaml:\d+:\d+: error: file broken\.tsv\.gz starts like a gzip file but cannot be decompressed/);
+});
+
+t.test('samples in only one file: an error naming them, or left out and counted', async (t) => {
+  const short = ['sample,diagnosis,batch', ...sheetRows.slice(0, -2), 'extra-1,benign,1'].join('\n') + '\n';
+  const dir = tempDir({ 'expr.tsv.gz': gz, 'samples.csv': short });
+  const files = { matrix: 'expr.tsv.gz', matrixBytes: gz, sheet: 'samples.csv', sheetBytes: short };
+  writeFileSync(join(dir, 'p.yaml'), protocol(files));
+  const r = cli(['validate', 'p.yaml'], dir);
+  t.equal(r.code, 1);
+  t.match(r.stderr, /error: 2 samples of expr\.tsv\.gz are not in the sample sheet: "/);
+  t.match(r.stderr, /error: 1 sample-sheet row are not in expr\.tsv\.gz: "extra-1"/);
+  writeFileSync(join(dir, 'q.yaml'), protocol(files, ', unmatched: drop'));
+  const run = cli(['run', 'q.yaml', '--out', 'res'], dir);
+  t.equal(run.code, 0, run.stderr);
+  t.match(run.stderr, /warning: 2 samples of expr\.tsv\.gz were left out: not in the sample sheet/);
+  const results = JSON.parse(readFileSync(join(dir, 'res', 'results.json'), 'utf8'));
+  t.equal(results.data.rows, 567);
+  t.same(results.data.samples['left-out'], { 'data-only': 2, 'sheet-only': 1 });
+});
+
+t.test('problems in the sample sheet point into the sample sheet', async (t) => {
+  const bad = sheet.replace(',malignant,', ',,');
+  const dir = tempDir({ 'expr.tsv.gz': gz, 'samples.csv': bad });
+  writeFileSync(join(dir, 'p.yaml'), protocol({ matrix: 'expr.tsv.gz', matrixBytes: gz, sheet: 'samples.csv', sheetBytes: bad }));
+  const r = cli(['validate', 'p.yaml'], dir);
+  t.equal(r.code, 1);
+  t.match(r.stderr, /samples\.csv:\d+:\d+: error: row \d+ has no label/);
+  const noSheet = protocol({ matrix: 'expr.tsv.gz', matrixBytes: gz, sheet: 'samples.csv', sheetBytes: bad }).replace(
+    / {2}samples: .*\n/,
+    '',
+  );
+  writeFileSync(join(dir, 'q.yaml'), noSheet);
+  const q = cli(['validate', 'q.yaml'], dir);
+  t.equal(q.code, 1);
+  t.match(q.stderr, /error: a features-in-rows data file holds no labels: name a sample sheet under data\.samples/);
+});
