@@ -38,6 +38,7 @@ export async function produceRun(protocolPath: string, options: ProduceOptions =
     table: report.table,
     dataSha256: report.dataSha256!,
     joined: report.joined,
+    filtered: report.filtered,
     assignment: report.assignment,
     newRows: report.newRows,
     refit: options.refit,

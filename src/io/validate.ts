@@ -184,13 +184,15 @@ async function validateWithData(
       index === undefined ? ['data', role] : ['data', 'features', ...(Array.isArray(p.data.features) ? [] : ['exclude']), index],
     );
   // The second thread parses half of a plain, uncompressed samples-in-rows file; other files are read here.
-  const simple = text.bytes === data.bytes && p.data.layout === 'samples-in-rows' && !sheet;
+  const simple = text.bytes === data.bytes && p.data.layout === 'samples-in-rows' && !sheet && !p.data.where && !p.data.classes;
   const helper = simple ? rowThread : undefined;
   if (helper && hashesIds(p.split) && p.data.id !== undefined)
     helper.expectKeys({ idColumn: p.data.id, seed: p.split.seed ?? 0, repeats: p.split.repeats });
   const built: ReturnType<typeof tableFromLayout> = simple
     ? tableFromBytes(text.bytes, shown(paths.data), dataRoles(p), p.data.format, roleLocate, helper)
-    : tableFromLayout(text.bytes, shown(paths.data), dataRoles(p), p.data.format, p.data.layout, sheet, roleLocate);
+    : tableFromLayout(text.bytes, shown(paths.data), dataRoles(p), p.data.format, p.data.layout, sheet, roleLocate, (column) =>
+        at(['data', 'where', column]),
+      );
   // A file that is not the recorded one is reported as that alone: its structural problems would
   // only distract. (The hash is taken while the file is parsed, on the second thread for large files.)
   if (data.sha256 !== p.data.sha256) {
@@ -245,6 +247,7 @@ async function validateWithData(
     table: built.table,
     dataSha256: data.sha256,
     joined: built.joined,
+    filtered: built.filtered,
     newRows,
     assignment: hasErrors(problems) ? undefined : semantic.assignment,
   };
@@ -268,5 +271,13 @@ function splitKeysOnTwoThreads(
 }
 
 export function dataRoles(p: Protocol) {
-  return { id: p.data.id, label: p.data.label, group: p.data.group, features: p.data.features, missing: p.data.missing };
+  return {
+    id: p.data.id,
+    label: p.data.label,
+    group: p.data.group,
+    features: p.data.features,
+    missing: p.data.missing,
+    where: p.data.where,
+    classes: p.data.classes,
+  };
 }

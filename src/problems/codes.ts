@@ -143,6 +143,8 @@ export const PROBLEM_CODES = {
   'samples-without-id': {},
   'data-bad-gzip': {},
   'layout-needs-samples': {},
+  'label-unmapped': {},
+  'label-in-two-classes': {},
   'sealed-hash-mismatch': {},
   'sealed-missing': {},
   'sealed-rows-copied': {},

@@ -38,6 +38,8 @@ export function normalizeProtocol(raw: any): Protocol {
       group: d.group,
       features: d.features,
       missing: d.missing ?? DEFAULT_MISSING,
+      where: d.where,
+      classes: d.classes,
     },
     split,
     preprocess,

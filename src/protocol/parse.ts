@@ -129,6 +129,22 @@ function structureProblems(p: Protocol, source: SourceDocument): Problem[] {
         hint: 'samples: {file: samples.csv, sha256: "…"} with the id column (data.id) and the label column (data.label)',
       }),
     );
+  if (p.data.classes) {
+    const classOf = new Map<string, string>();
+    for (const [name, values] of Object.entries(p.data.classes))
+      values.forEach((v, i) => {
+        const other = classOf.get(v);
+        if (other !== undefined)
+          out.push(
+            error(
+              'label-in-two-classes',
+              `label value "${v}" is listed in class "${other}" and in class "${name}"`,
+              at(['data', 'classes', name, i]),
+            ),
+          );
+        else classOf.set(v, name);
+      });
+  }
   if (p.data.samples && p.data.id === undefined)
     out.push(
       error('samples-without-id', 'a sample sheet is joined by id: name its id column in data.id', {

@@ -11,6 +11,8 @@ export interface ValidationReport extends ParsedProtocol {
   dataSha256?: string;
   /** Samples a sample-sheet join left out (data.samples.unmatched: drop). */
   joined?: { 'data-only': number; 'sheet-only': number };
+  /** Rows before and after data.where. */
+  filtered?: { before: number; after: number };
   assignment?: Assignment;
   newRows?: NewRows;
   /** Absolute paths of the files the protocol names. */

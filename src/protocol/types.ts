@@ -39,6 +39,8 @@ export interface Protocol {
     group?: string;
     features?: string[] | { exclude: string[] };
     missing: string[];
+    where?: Record<string, string[]>;
+    classes?: Record<string, string[]>;
   };
   split: RuleSplit | PinnedSplit;
   preprocess: PreprocessStep[];

@@ -14,6 +14,7 @@ export interface ResultsInput {
   protocolSha256: string;
   dataSha256: string;
   joined?: { 'data-only': number; 'sheet-only': number };
+  filtered?: { before: number; after: number };
   table: Table;
   assignment: Assignment;
   assignmentSha256: string;
@@ -46,6 +47,10 @@ export function buildResults(r: ResultsInput): Record<string, unknown> {
       ...(p.data.samples
         ? { samples: { sha256: p.data.samples.sha256, 'left-out': r.joined ?? { 'data-only': 0, 'sheet-only': 0 } } }
         : {}),
+      ...(p.data.where
+        ? { where: { columns: p.data.where, 'rows-before': r.filtered?.before ?? null, 'rows-after': table.ids.length } }
+        : {}),
+      ...(p.data.classes ? { 'class-map': p.data.classes } : {}),
       rows: table.ids.length,
       features: table.featureNames,
       classes: table.classes,

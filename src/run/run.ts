@@ -37,6 +37,7 @@ export interface RunInput {
   dataSha256: string;
   /** Samples a sample-sheet join left out (data.samples.unmatched: drop). */
   joined?: { 'data-only': number; 'sheet-only': number };
+  filtered?: { before: number; after: number };
   assignment: Assignment;
   warnings: Problem[];
 }
@@ -105,6 +106,7 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
     protocolSha256,
     dataSha256: input.dataSha256,
     joined: input.joined,
+    filtered: input.filtered,
     table: input.table,
     assignment: input.assignment,
     assignmentSha256,

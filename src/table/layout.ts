@@ -171,3 +171,99 @@ export function joinedGrid(m: Grid, s: Grid, j: JoinSettings): JoinResult {
   };
   return { grid, problems, matrixOnly, sheetOnly };
 }
+
+/** The rows of `g` listed in `rows`, in that order. */
+export function rowsOf(g: Grid, rows: Int32Array): Grid {
+  return {
+    header: g.header,
+    rows: rows.length,
+    rowLine: Int32Array.from(rows, (r) => g.rowLine[r]),
+    text: (r, c) => g.text(rows[r], c),
+    number: (r, c) => g.number(rows[r], c),
+    position: (r, c) => g.position(rows[r], c),
+    extract(numberCols, textCols) {
+      const width = numberCols.length;
+      const numbers = new Float64Array(rows.length * width);
+      const failed: number[] = [];
+      for (let r = 0; r < rows.length; r++)
+        for (let k = 0; k < width; k++) {
+          const v = g.number(rows[r], numberCols[k]);
+          if (v !== v) failed.push(r * width + k);
+          numbers[r * width + k] = v;
+        }
+      return { numbers, failed, texts: textCols.map((c) => Array.from({ length: rows.length }, (_, r) => g.text(rows[r], c))) };
+    },
+  };
+}
+
+export interface FilterResult {
+  grid?: Grid;
+  problems: Problem[];
+  before: number;
+  after: number;
+}
+
+/** Rows whose cell in every `where` column is one of its listed values (a declarative filter: nothing is evaluated). */
+export function filteredGrid(g: Grid, where: Record<string, string[]>, at: (column: string) => Partial<Problem>): FilterResult {
+  const problems: Problem[] = [];
+  const tests: [number, Set<string>][] = [];
+  for (const [column, values] of Object.entries(where)) {
+    const c = g.header.indexOf(column);
+    if (c < 0)
+      problems.push(
+        error('data-missing-column', `column "${column}" (data.where) is in neither the data file nor the sample sheet`, at(column)),
+      );
+    else tests.push([c, new Set(values)]);
+  }
+  if (problems.length) return { problems, before: g.rows, after: 0 };
+  const kept: number[] = [];
+  for (let r = 0; r < g.rows; r++) if (tests.every(([c, values]) => values.has(g.text(r, c)))) kept.push(r);
+  if (!kept.length)
+    problems.push(
+      error('data-no-rows', `no row has ${Object.keys(where).join(' and ')} among the values data.where lists`, at(Object.keys(where)[0])),
+    );
+  return { grid: rowsOf(g, Int32Array.from(kept)), problems, before: g.rows, after: kept.length };
+}
+
+/** The label column read through a map of label values to classes; a value in no class is an error at its cell. */
+export function relabeledGrid(
+  g: Grid,
+  labelCol: number,
+  classes: Record<string, string[]>,
+  file: string,
+  missing: ReadonlySet<string>,
+): { grid: Grid; problems: Problem[] } {
+  const classOf = new Map<string, string>();
+  for (const [name, values] of Object.entries(classes)) for (const v of values) classOf.set(v, name);
+  const problems: Problem[] = [];
+  const unmapped = new Map<string, number>();
+  for (let r = 0; r < g.rows; r++) {
+    const v = g.text(r, labelCol);
+    if (v === '' || missing.has(v) || classOf.has(v)) continue;
+    unmapped.set(v, (unmapped.get(v) ?? 0) + 1);
+    if (unmapped.get(v) === 1) {
+      const p = g.position(r, labelCol);
+      problems.push(
+        error('label-unmapped', `label value "${v}" is in no class of data.classes`, {
+          file: p.file ?? file,
+          position: { line: p.line, col: p.col },
+          hint: `add it to one of the classes (${Object.keys(classes).join(', ')}), or leave such rows out with data.where`,
+        }),
+      );
+    }
+  }
+  const mapped = (r: number, c: number) => (c === labelCol ? (classOf.get(g.text(r, c)) ?? g.text(r, c)) : g.text(r, c));
+  return {
+    grid: {
+      ...g,
+      text: mapped,
+      extract(numberCols, textCols) {
+        const out = g.extract(numberCols, textCols)!;
+        const k = textCols.indexOf(labelCol);
+        if (k >= 0) out.texts[k] = out.texts[k].map((v) => classOf.get(v) ?? v);
+        return out;
+      },
+    },
+    problems,
+  };
+}

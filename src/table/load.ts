@@ -5,7 +5,7 @@ import { plainGrid, readPlain, type RowHelper } from './plain.js';
 import { contentProblems } from './content-check.js';
 import { buildTable, type DataRoles, type RolePaths, type TableResult } from './table.js';
 import { hasErrors } from '../problems/problem.js';
-import { joinedGrid, transposedGrid } from './layout.js';
+import { filteredGrid, joinedGrid, relabeledGrid, transposedGrid } from './layout.js';
 import type { Grid } from './grid.js';
 
 export function delimiterFor(file: string, format?: 'csv' | 'tsv'): number {
@@ -51,6 +51,12 @@ export interface JoinCounts {
   'sheet-only': number;
 }
 
+/** Rows before and after data.where. */
+export interface FilterCounts {
+  before: number;
+  after: number;
+}
+
 function gridOf(bytes: Uint8Array, file: string, format: 'csv' | 'tsv' | undefined): { grid?: Grid; problems: Problem[] } {
   const content = contentProblems(bytes, file);
   if (content.length) return { problems: content };
@@ -70,19 +76,31 @@ export function tableFromLayout(
   layout: 'samples-in-rows' | 'features-in-rows',
   sheet: SheetInput | undefined,
   locate: (role: keyof RolePaths, index?: number) => Problem['position'],
-): TableResult & { joined?: JoinCounts } {
+  whereAt: (column: string) => Partial<Problem> = () => ({}),
+): TableResult & { joined?: JoinCounts; filtered?: FilterCounts } {
   const matrix = gridOf(bytes, file, format);
   if (!matrix.grid) return { problems: matrix.problems };
   let grid = layout === 'features-in-rows' ? transposedGrid(matrix.grid, roles.id ?? 'id') : matrix.grid;
   const problems = [...matrix.problems];
+  const whereCols = Object.keys(roles.where ?? {});
   let joined: JoinCounts | undefined;
   if (sheet) {
     const s = gridOf(sheet.bytes, sheet.file, sheet.format);
     problems.push(...s.problems);
     if (!s.grid) return { problems };
+    // Carried from the sheet: the label and group, the columns a filter reads, and sheet columns listed as features.
+    const fromSheet = (name: string) => s.grid!.header.includes(name) && !grid.header.includes(name);
+    const carry = [
+      ...new Set([
+        roles.label,
+        ...(roles.group ? [roles.group] : []),
+        ...whereCols.filter(fromSheet),
+        ...(Array.isArray(roles.features) ? roles.features.filter(fromSheet) : []),
+      ]),
+    ];
     const j = joinedGrid(grid, s.grid, {
       id: roles.id!,
-      carry: [roles.label, ...(roles.group ? [roles.group] : [])],
+      carry,
       unmatched: sheet.unmatched,
       matrixFile: file,
       sheetFile: sheet.file,
@@ -93,6 +111,27 @@ export function tableFromLayout(
     grid = j.grid;
     joined = { 'data-only': j.matrixOnly.length, 'sheet-only': j.sheetOnly.length };
   }
-  const built = buildTable(grid, roles, file, locate);
-  return { ...built, problems: [...problems, ...built.problems], joined };
+  let filtered: FilterCounts | undefined;
+  if (roles.where) {
+    const f = filteredGrid(grid, roles.where, whereAt);
+    problems.push(...f.problems);
+    if (!f.grid || hasErrors(f.problems)) return { problems };
+    grid = f.grid;
+    filtered = { before: f.before, after: f.after };
+  }
+  if (roles.classes) {
+    const labelCol = grid.header.indexOf(roles.label);
+    if (labelCol >= 0) {
+      const r = relabeledGrid(grid, labelCol, roles.classes, file, new Set(roles.missing));
+      problems.push(...r.problems);
+      grid = r.grid;
+    }
+  }
+  // The columns a filter reads describe the rows; they are not features unless listed.
+  const featureRoles: DataRoles =
+    whereCols.length && !Array.isArray(roles.features)
+      ? { ...roles, features: { exclude: [...new Set([...(roles.features?.exclude ?? []), ...whereCols])] } }
+      : roles;
+  const built = buildTable(grid, featureRoles, file, locate);
+  return { ...built, problems: [...problems, ...built.problems], joined, filtered };
 }

@@ -16,6 +16,10 @@ export interface DataRoles {
   /** Explicit feature list, or columns to leave out of the default (every numeric column). */
   features?: string[] | { exclude: string[] };
   missing: string[];
+  /** Keep only rows whose cell in each column is one of the listed values (data.where). */
+  where?: Record<string, string[]>;
+  /** Classes as lists of label values (data.classes). */
+  classes?: Record<string, string[]>;
 }
 
 export interface Table {
