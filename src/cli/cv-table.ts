@@ -1,6 +1,7 @@
 /** Per-fold table and summary lines of a run, for the terminal. */
 import type { CvResult } from '../run/cross-validate.js';
 import type { RunStatistics } from '../run/statistics.js';
+import type { NewRowScores } from '../reconcile/new-row-scores.js';
 import { textTable } from './text-table.js';
 
 const fmt = (v: number | null) => (v === null ? '—' : v.toFixed(4));
@@ -88,4 +89,18 @@ export function statisticsLines(s: RunStatistics | undefined): string {
       `  p = ${p.pValue.toPrecision(3)}${floor}: ${p.atLeastAsGood} permutation${p.atLeastAsGood === 1 ? '' : 's'} scored at least as well\n`;
   }
   return out;
+}
+
+/** Scores of labeled new rows (a held-back test set), for the terminal. */
+export function newRowScoreLines(s: NewRowScores, label: string): string {
+  const left = s['left-out'];
+  const out = [
+    `scored on the new rows' own labels (column "${label}"): ${s.rows} row${s.rows === 1 ? '' : 's'}` +
+      (left['held-out']
+        ? `; ${left['held-out']} row${left['held-out'] === 1 ? ' was' : 's were'} in the cross-validation and not scored`
+        : '') +
+      (left.unlabeled ? `; ${left.unlabeled} without a label` : ''),
+    ...Object.entries(s.metrics).map(([m, v]) => `  ${m.padEnd(18)} ${fmt(v)}`),
+  ];
+  return out.join('\n') + '\n';
 }

@@ -4,7 +4,7 @@ import { packageVersion } from '../io/package-root.js';
 import type { CommandIo, ExitCode } from './io.js';
 import { showAllProblems } from './report-problems.js';
 // Commands load when chosen: a quick `validate` does not pay for the runner and the signer.
-import type { ReconcileRule, TieRule } from '../protocol/types.js';
+import type { DataLayout, ReconcileRule, TieRule } from '../protocol/types.js';
 
 export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Command {
   const program = new Command('foldseal')
@@ -97,19 +97,25 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .command('apply')
     .description('predict a table of new rows with the saved fold models of a results folder')
     .argument('<results-dir>', 'folder written by foldseal run')
-    .argument('<table>', 'CSV or TSV with the id column and the feature columns')
+    .argument('<table>', 'CSV or TSV (gzip allowed): the id column and the features the fold models read; a label column is scored')
     .option('--out <file>', 'write the predictions here instead of stdout')
     .addOption(
       new Option('--rule <rule>', "reconcile rule (default: the protocol's)").choices(['mean-probability', 'majority-vote', 'refit']),
     )
     .addOption(new Option('--tie <rule>', 'tie rule for majority-vote').choices(['mean-probability', 'abstain', 'class-order']))
+    .addOption(
+      new Option('--layout <layout>', 'features-in-rows: one row per feature, one column per sample (default: samples-in-rows)').choices([
+        'samples-in-rows',
+        'features-in-rows',
+      ]),
+    )
     .addHelpText(
       'after',
       '\nExamples:\n  foldseal apply results/demo protocols/data/seedlings-new.csv --out applied.csv\n  foldseal apply ' +
         'results/demo new.csv --rule majority-vote --tie abstain --out voted.csv\n\nmodels.json and predictions.csv are checked ' +
         'against the hashes in results.json first.',
     )
-    .action(async (results: string, table: string, o: { out?: string; rule?: ReconcileRule; tie?: TieRule }) =>
+    .action(async (results: string, table: string, o: { out?: string; rule?: ReconcileRule; tie?: TieRule; layout?: DataLayout }) =>
       done(await (await import('./commands/apply.js')).applyCommand({ results, table, ...o }, io)),
     );
 

@@ -144,7 +144,11 @@ async function validateWithData(
           at(['reconcile', 'new-rows', 'sha256']),
         ),
       );
-    } else newRowBytes = nr.bytes;
+    } else {
+      const plain = decompressed(nr.bytes!, shown(paths.newRows), at(['reconcile', 'new-rows', 'file']));
+      if (plain.problem) problems.push(plain.problem);
+      else newRowBytes = plain.bytes;
+    }
   }
   if (data.problem) {
     problems.push(data.problem);
@@ -223,7 +227,11 @@ async function validateWithData(
       built.table.featureNames,
       p.reconcile.newRows!.id ?? p.data.id,
       p.data.missing,
-      knownColumns(p),
+      {
+        known: knownColumns(p),
+        layout: p.reconcile.newRows!.layout,
+        label: p.data.label,
+      },
     );
     problems.push(...nr.problems);
     newRows = nr.rows;

@@ -96,6 +96,7 @@ export const PROBLEM_CODES = {
   'new-rows-hash-mismatch': {},
   'new-rows-missing-feature': {},
   'new-rows-missing-id': {},
+  'new-rows-unknown-label': {},
   'no-id-column': {},
   'no-refit-model': {},
   'non-finite-feature': {},

@@ -47,7 +47,7 @@ export function normalizeProtocol(raw: any): Protocol {
     reconcile: {
       rule: r.rule ?? 'mean-probability',
       tie: r.tie,
-      newRows: nr ? { file: nr.file, sha256: nr.sha256, id: nr.id } : undefined,
+      newRows: nr ? { file: nr.file, sha256: nr.sha256, id: nr.id, layout: nr.layout ?? 'samples-in-rows' } : undefined,
     },
     metrics: raw.metrics ?? DEFAULT_METRICS,
     statistics: raw.statistics

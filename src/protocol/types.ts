@@ -45,7 +45,7 @@ export interface Protocol {
   split: RuleSplit | PinnedSplit;
   preprocess: PreprocessStep[];
   model: { kind: ModelKind; options: Record<string, unknown> };
-  reconcile: { rule: ReconcileRule; tie?: TieRule; newRows?: HashedFile & { id?: string } };
+  reconcile: { rule: ReconcileRule; tie?: TieRule; newRows?: HashedFile & { id?: string; layout: DataLayout } };
   metrics: MetricName[];
   /** Intervals and the permutation test (docs/resample-spec.md); absent when the protocol has no statistics section. */
   statistics?: StatisticsSettings;

@@ -63,13 +63,19 @@ export function applyRows(a: ApplyInput): AppliedRow[] {
   return out.sort((x, y) => compareUtf8(x.id, y.id));
 }
 
-export function appliedCsv(rows: readonly AppliedRow[], classes: readonly string[], comment?: string): string {
+/** `labels`: the new rows' own labels by id (a held-back test set), kept in a `label` column after the id. */
+export function appliedCsv(
+  rows: readonly AppliedRow[],
+  classes: readonly string[],
+  comment?: string,
+  labels?: ReadonlyMap<string, string>,
+): string {
   const parts: string[] = [];
   if (comment) parts.push(`# ${comment}\n`);
-  parts.push(csvLine(['id', 'source', 'predicted', 'agreement', ...classes.map((c) => `p_${c}`)]));
+  parts.push(csvLine(['id', ...(labels ? ['label'] : []), 'source', 'predicted', 'agreement', ...classes.map((c) => `p_${c}`)]));
   for (const r of rows) {
     parts.push(
-      `${csvCell(r.id)},${r.source},${r.predicted === -1 ? '' : csvCell(classes[r.predicted])},${r.agreement},` +
+      `${csvCell(r.id)},${labels ? `${csvCell(labels.get(r.id) ?? '')},` : ''}${r.source},${r.predicted === -1 ? '' : csvCell(classes[r.predicted])},${r.agreement},` +
         `${Array.from(r.values, String).join(',')}\n`,
     );
   }

@@ -22,9 +22,23 @@ export function knownIdProblems(
   rows.ids.forEach((id, r) => {
     const recorded = known.get(id);
     if (recorded === undefined) return;
+    const p = place(id);
+    if (rows.absent) {
+      out.push(
+        error(
+          'new-row-known-id',
+          `new row "${id}" has the id of a row of the cross-validation (${p.where}), and without every feature column its values cannot be compared with that row's`,
+          {
+            file,
+            position: { line: rows.lines[r], col: 1 },
+            hint: 'give the new sample an id of its own, or include every feature column so foldseal can tell whether it is that row',
+          },
+        ),
+      );
+      return;
+    }
     digests ??= featureDigests(rows.X, features);
     if (digests[r] === recorded) return;
-    const p = place(id);
     out.push(
       error('new-row-known-id', `new row "${id}" has the id of a row of the cross-validation (${p.where}) but different feature values`, {
         file,

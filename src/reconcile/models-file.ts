@@ -23,8 +23,10 @@ export interface ModelsFile {
   /** Input feature names, in the order the pipeline expects them. */
   features: string[];
   missing: string[];
-  /** Columns the protocol accounts for without using them (label, group, exclusions): ignored quietly in new rows. */
+  /** Columns the protocol accounts for without using them (the label first, then group, exclusions): ignored quietly in new rows. */
   'known-columns': string[];
+  /** data.classes: label values per class, when the protocol maps them (labels of new rows are read through it). */
+  'class-map'?: Record<string, string[]>;
   /** Id column of new-row tables (the protocol's new-rows id, else its data id). */
   id: string | null;
   reconcile: { rule: ReconcileRule; tie: TieRule | null };
@@ -40,4 +42,15 @@ export interface ModelsFile {
 
 export function modelsJson(m: ModelsFile): string {
   return JSON.stringify(m) + '\n';
+}
+
+/** 1 for each input feature that some model the rule uses reads (all of them for a model whose pipeline is not pruned). */
+export function neededFeatures(m: Pick<ModelsFile, 'features' | 'folds' | 'refit'>, rule: ReconcileRule): Uint8Array {
+  const needed = new Uint8Array(m.features.length);
+  const used = rule === 'refit' ? (m.refit ? [m.refit] : []) : m.folds;
+  for (const s of used) {
+    if (s.pipeline.input) for (const j of s.pipeline.input) needed[j] = 1;
+    else needed.fill(1);
+  }
+  return needed;
 }

@@ -6,6 +6,7 @@ import type { Table } from '../table/table.js';
 import { splitRules } from '../split/registry.js';
 import type { CvResult } from './cross-validate.js';
 import { statisticsJson, type RunStatistics } from './statistics.js';
+import type { NewRowScores } from '../reconcile/new-row-scores.js';
 
 export const RESULTS_VERSION = 1;
 
@@ -23,6 +24,8 @@ export interface ResultsInput {
   warnings: Problem[];
   /** Intervals and the permutation test, when the protocol asks for them. */
   statistics?: RunStatistics;
+  /** Scores of labeled new rows (a held-back test set). */
+  newRowScores?: NewRowScores;
 }
 
 export function buildResults(r: ResultsInput): Record<string, unknown> {
@@ -81,6 +84,7 @@ export function buildResults(r: ResultsInput): Record<string, unknown> {
       'largest-class-share': cv.baseline.largestClassShare,
     },
     ...(r.statistics ? { statistics: statisticsJson(r.statistics) } : {}),
+    ...(r.newRowScores ? { 'new-rows': r.newRowScores } : {}),
     files: r.files,
     warnings: r.warnings.map((w) => w.message),
   };

@@ -1,7 +1,8 @@
 /** A validated protocol and its data → every output file of a run, as text. Pure. */
 import { canonicalSha256 } from '../manifest/canonical.js';
 import { FitError } from '../model/types.js';
-import { error, FoldsealError, type Problem } from '../problems/problem.js';
+import { error, FoldsealError, hasErrors, type Problem } from '../problems/problem.js';
+import { scoreNewRows, type NewRowScores } from '../reconcile/new-row-scores.js';
 import { testsFoldOneOnly, type Protocol } from '../protocol/types.js';
 import type { Assignment } from '../split/assignment.js';
 import { assignmentCsv } from '../split/csv.js';
@@ -46,6 +47,8 @@ export interface RunOutput {
   cv: CvResult;
   statistics?: RunStatistics;
   applied?: AppliedRow[];
+  /** Scores of the new rows on their own labels, when the new-rows file has the label column. */
+  newRowScores?: NewRowScores;
   results: Record<string, unknown>;
   assignmentCsv: string;
   assignmentSha256: string;
@@ -74,6 +77,7 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
     features: input.table.featureNames,
     missing: p.data.missing,
     'known-columns': knownColumns(p),
+    ...(p.data.classes ? { 'class-map': p.data.classes } : {}),
     id: p.reconcile.newRows?.id ?? p.data.id ?? null,
     reconcile: { rule: p.reconcile.rule, tie: p.reconcile.tie ?? null },
     folds: cv.models,
@@ -82,6 +86,7 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
   };
   const files: Record<string, string> = { 'predictions.csv': predictions, 'models.json': modelsJson(saved) };
   let applied: AppliedRow[] | undefined;
+  let newRowScores: NewRowScores | undefined;
   if (input.newRows) {
     applied = guardFit(input.protocolFile, () =>
       applyRows({
@@ -95,13 +100,27 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
         heldOut: heldOutFromOof(input.table.ids, cv.oof, cv.testedIn, cv.classes.length),
       }),
     );
-    files['applied.csv'] = appliedCsv(applied, cv.classes);
+    const labels = input.newRows.labels && new Map(input.newRows.ids.map((id, i) => [id, input.newRows!.labels![i]]));
+    if (labels) {
+      const s = scoreNewRows(
+        applied,
+        { byId: labels, classMap: p.data.classes, missing: p.data.missing },
+        cv.classes,
+        cv.positive,
+        p.metrics,
+        input.protocolFile,
+      );
+      if (hasErrors(s.problems)) throw new FoldsealError(s.problems, 1);
+      newRowScores = s.scores;
+    }
+    files['applied.csv'] = appliedCsv(applied, cv.classes, undefined, labels);
   }
   const digests = Object.fromEntries(Object.entries(files).map(([name, text]) => [name, sha256Bytes(text)]));
   const assignmentSha256 = sha256Bytes(folds);
   const statistics = guardFit(input.protocolFile, () => runStatistics(p, input.table, input.assignment, cv, permuted));
   const results = buildResults({
     statistics,
+    newRowScores,
     protocol: input.protocol,
     protocolSha256,
     dataSha256: input.dataSha256,
@@ -116,7 +135,7 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
   });
   files['results.json'] = JSON.stringify(results, null, 2) + '\n';
   digests['results.json'] = sha256Bytes(files['results.json']);
-  return { cv, results, assignmentCsv: folds, assignmentSha256, files, digests, applied, statistics };
+  return { cv, results, assignmentCsv: folds, assignmentSha256, files, digests, applied, statistics, newRowScores };
 }
 
 export function guardFit<T>(protocolFile: string, f: () => T): T {

@@ -182,3 +182,65 @@ t.test('a row filter and a label map, declared: pandas and scikit-learn read and
   writeFileSync(join(dir, 'w.yaml'), readFileSync(join(dir, 'p.yaml'), 'utf8').replace('"B":["benign"]', '"B":["benign","malignant"]'));
   t.match(cli(['validate', 'w.yaml'], dir).stderr, /error: label value "malignant" is listed in class "B" and in class "M"/);
 });
+
+t.test('apply: held-back samples with only the features the fold models read, scored on their own labels', async (t) => {
+  const inRun = sheetRows.filter((r) => !r.endsWith(',3'));
+  const heldBack = body.filter((_, i) => i % 3 === 2);
+  const runSheet = ['sample,diagnosis,batch', ...inRun].join('\n') + '\n';
+  const runMatrix =
+    ['feature', ...body.filter((_, i) => i % 3 !== 2).map((r) => r[0])].join('\t') +
+    '\n' +
+    features.map((c) => [header[c], ...body.filter((_, i) => i % 3 !== 2).map((r) => r[c])].join('\t')).join('\n') +
+    '\n';
+  const runGz = gzipSync(Buffer.from(runMatrix));
+  const dir = tempDir({ 'expr.tsv.gz': runGz, 'samples.csv': runSheet });
+  writeFileSync(
+    join(dir, 'p.yaml'),
+    protocol({ matrix: 'expr.tsv.gz', matrixBytes: runGz, sheet: 'samples.csv', sheetBytes: runSheet }).replace('folds: 10', 'folds: 5'),
+  );
+  t.equal(cli(['run', 'p.yaml', '--out', 'res'], dir).code, 0);
+  const models = JSON.parse(readFileSync(join(dir, 'res', 'models.json'), 'utf8'));
+  const used = new Set<number>(models.folds.flatMap((f: { pipeline: { input: number[] } }) => f.pipeline.input));
+  t.ok(used.size >= 10 && used.size < 30, `the fold models read ${used.size} of the 30 features`);
+  const keep = [...used].sort((a, b) => a - b).map((j) => models.features[j] as string);
+  // The held-back samples as a plain CSV: id, label and only the features some fold model reads.
+  const cols = keep.map((name) => header.indexOf(name));
+  const table =
+    ['sample,diagnosis,' + keep.join(','), ...heldBack.map((r) => [r[0], r[label], ...cols.map((c) => r[c])].join(','))].join('\n') + '\n';
+  writeFileSync(join(dir, 'held-back.csv'), table);
+  const a = cli(['apply', 'res', 'held-back.csv', '--out', 'applied.csv'], dir);
+  t.equal(a.code, 0, a.stderr);
+  t.match(a.stderr, new RegExp(`scored on the new rows' own labels \\(column "diagnosis"\\): ${heldBack.length} rows`));
+  t.match(a.stderr, /\n {2}roc-auc\s+0\.9\d{3}\n/);
+  const applied = readFileSync(join(dir, 'applied.csv'), 'utf8').split('\n');
+  t.equal(applied[0], 'id,label,source,predicted,agreement,p_benign,p_malignant');
+  t.equal(applied.length - 2, heldBack.length);
+  // The same samples features-in-rows and gzipped, without labels: the same predictions.
+  const fir =
+    ['feature', ...heldBack.map((r) => r[0])].join('\t') +
+    '\n' +
+    cols.map((c) => [header[c], ...heldBack.map((r) => r[c])].join('\t')).join('\n') +
+    '\n';
+  writeFileSync(join(dir, 'held-back.tsv.gz'), gzipSync(Buffer.from(fir)));
+  const b = cli(['apply', 'res', 'held-back.tsv.gz', '--layout', 'features-in-rows', '--out', 'applied-2.csv'], dir);
+  t.equal(b.code, 0, b.stderr);
+  const strip = (lines: string[]) =>
+    lines.map((l) =>
+      l
+        .split(',')
+        .filter((_, i) => i !== 1)
+        .join(','),
+    );
+  t.same(readFileSync(join(dir, 'applied-2.csv'), 'utf8').split('\n'), strip(applied));
+  // A feature some fold model reads cannot be left out.
+  writeFileSync(
+    join(dir, 'short.csv'),
+    table
+      .split('\n')
+      .map((l) => l.split(',').slice(0, -1).join(','))
+      .join('\n'),
+  );
+  const c = cli(['apply', 'res', 'short.csv'], dir);
+  t.equal(c.code, 1);
+  t.match(c.stderr, new RegExp(`error: feature "${keep[keep.length - 1]}" is not in the new-rows file's header`));
+});

@@ -7,9 +7,12 @@ import { shown } from '../../io/validate.js';
 import { applyRows, appliedCsv, disagreementReport } from '../../reconcile/applied.js';
 import { heldOutFromPredictions } from '../../reconcile/held-out.js';
 import { knownIdProblems } from '../../reconcile/known-ids.js';
-import { MODELS_VERSION, type ModelsFile } from '../../reconcile/models-file.js';
+import { MODELS_VERSION, neededFeatures, type ModelsFile } from '../../reconcile/models-file.js';
 import { tiePossible } from '../../reconcile/reconcile.js';
-import type { ReconcileRule, TieRule } from '../../protocol/types.js';
+import type { DataLayout, ReconcileRule, TieRule } from '../../protocol/types.js';
+import { decompressed } from '../../io/decompress.js';
+import { scoreNewRows, type NewRowScores } from '../../reconcile/new-row-scores.js';
+import { newRowScoreLines } from '../cv-table.js';
 import { newRowsFromBytes } from '../../table/new-rows.js';
 import { asUserError } from '../../run/run.js';
 import type { CommandIo, ExitCode } from '../io.js';
@@ -21,6 +24,7 @@ export interface ApplyArgs {
   out?: string;
   rule?: ReconcileRule;
   tie?: TieRule;
+  layout?: DataLayout;
 }
 
 export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<ExitCode> {
@@ -64,7 +68,15 @@ export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<Exit
   if (problems.length) throw new FoldsealError(problems, 2);
 
   const tableBytes = await readInput(args.table);
-  const nr = newRowsFromBytes(tableBytes, shown(args.table), saved.features, saved.id ?? undefined, saved.missing, saved['known-columns']);
+  const plain = decompressed(tableBytes, shown(args.table), { file: shown(args.table) });
+  if (plain.problem) throw new FoldsealError(plain.problem, 1);
+  const label = saved['known-columns'][0];
+  const nr = newRowsFromBytes(plain.bytes, shown(args.table), saved.features, saved.id ?? undefined, saved.missing, {
+    known: saved['known-columns'],
+    needed: neededFeatures(saved, rule),
+    layout: args.layout,
+    label,
+  });
   if (nr.rows)
     nr.problems.push(
       ...knownIdProblems(nr.rows, shown(args.table), saved.features, new Map(Object.entries(saved['known-rows'] ?? {})), () => ({
@@ -93,7 +105,22 @@ export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<Exit
     ? `foldseal apply: rule ${rule}${tie ? `, tie ${tie}` : ''} (the protocol declares ` +
       `${saved.reconcile.rule}${saved.reconcile.tie ? `, tie ${saved.reconcile.tie}` : ''})`
     : undefined;
-  const csv = appliedCsv(rows, saved.classes, comment);
+  const labels = nr.rows.labels && new Map(nr.rows.ids.map((id, i) => [id, nr.rows!.labels![i]]));
+  let scores: NewRowScores | undefined;
+  if (labels) {
+    const s = scoreNewRows(
+      rows,
+      { byId: labels, classMap: saved['class-map'], missing: saved.missing },
+      saved.classes,
+      Math.max(0, saved.classes.indexOf(results.positive)),
+      results.metrics,
+      shown(args.table),
+    );
+    reportProblems(io, s.problems, 'text');
+    if (hasErrors(s.problems)) return 1;
+    scores = s.scores;
+  }
+  const csv = appliedCsv(rows, saved.classes, comment, labels);
   if (args.out) {
     await writeOutputFile(resolve(args.out), csv, shown(resolve(args.out)), true);
     if (overridden) {
@@ -112,5 +139,6 @@ export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<Exit
     io.err(`wrote ${args.out}${overridden ? ` and ${args.out}.json` : ''}\n`);
   } else io.out(csv);
   io.err(disagreementReport(rows, saved.classes));
+  if (scores) io.err(newRowScoreLines(scores, label));
   return 0;
 }

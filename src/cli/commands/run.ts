@@ -8,7 +8,7 @@ import { protocolPolicy } from '../../io/path-policy.js';
 import { shown } from '../../io/validate.js';
 import { manifestForRun } from '../../run/manifest-of-run.js';
 import { disagreementReport } from '../../reconcile/applied.js';
-import { cvTables, statisticsLines } from '../cv-table.js';
+import { cvTables, newRowScoreLines, statisticsLines } from '../cv-table.js';
 import type { CommandIo, ExitCode } from '../io.js';
 import { reportProblems } from '../report-problems.js';
 import { toolInfo } from '../tool-info.js';
@@ -71,6 +71,7 @@ export async function runCommand(args: RunArgs, io: CommandIo): Promise<ExitCode
   await writeOutputDir(dir, written, Boolean(args.force), shown(dir));
   io.out(cvTables(out.cv) + statisticsLines(out.statistics));
   if (out.applied) io.out(`\nnew rows (reconcile: ${input.protocol.reconcile.rule}):\n` + disagreementReport(out.applied, out.cv.classes));
+  if (out.newRowScores) io.out(newRowScoreLines(out.newRowScores, input.protocol.data.label));
   io.out(
     `wrote ${Object.keys(written).sort().join(', ')} to ` +
       `${shown(dir)}${key?.kind === 'ssh' ? ` (manifest signed with SSH key ${key.describe})` : key ? ' (manifest signed)' : ''}\n`,
