@@ -49,18 +49,43 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .addHelpText('after', '\nExample:\n  foldseal hash protocols/data/trial.csv')
     .action(async (files: string[]) => done(await (await import('./commands/hash.js')).hashCommand({ files }, io)));
 
+  const collect = (value: string, previous: string[] = []) => [...previous, value];
   program
     .command('init')
-    .description('write a protocol for a data file, hash filled in, that validates as is')
-    .argument('<data>', 'CSV or TSV data file')
-    .requiredOption('--label <column>', 'column holding the class label')
-    .option('--id <column>', 'column holding a unique row id')
+    .description('write a protocol for a data file (CSV/TSV, gzip allowed; with a sample sheet), hash filled in, that validates as is')
+    .argument('<data>', 'CSV or TSV data file, samples in rows or (with --samples) features in rows')
+    .requiredOption('--label <column>', 'column holding the class label (in the sample sheet when there is one)')
+    .option('--id <column>', 'column holding a unique row id (needed with --samples)')
     .option('--group <column>', 'column whose equal values must stay in one fold')
+    .option('--samples <file>', 'sample sheet with the id, label and group; the orientation of DATA is detected from it')
+    .option('--exclude <column>', 'leave this column out of the features (repeatable)', collect)
+    .option('--positive <class>', 'positive class of binary metrics')
+    .option('--where <column=values>', 'keep only rows whose COLUMN is one of VALUE,VALUE… (repeatable)', collect)
+    .option('--class <class=values>', 'the label values VALUE,VALUE… make up class CLASS (repeat for every class)', collect)
     .option('--out <file>', 'where to write the protocol (default: <data name>.protocol.yaml)')
     .option('--force', 'replace an existing protocol file')
-    .addHelpText('after', '\nExample:\n  foldseal init data/trial.csv --label outcome --id plot_id --out protocols/trial.yaml')
-    .action(async (data: string, o: { label: string; id?: string; group?: string; out?: string; force?: boolean }) =>
-      done(await (await import('./commands/init.js')).initCommand({ data, ...o }, io)),
+    .addHelpText(
+      'after',
+      '\nExamples:\n  foldseal init data/trial.csv --label outcome --id plot_id --out protocols/trial.yaml\n' +
+        '  foldseal init expr.tsv.gz --samples samples.csv --id sample --label cell_type --where cell_type=B,T\n\n' +
+        'Numeric-looking codes, ids and covariates (age, batch, …) are left out of the features, with a note.',
+    )
+    .action(
+      async (
+        data: string,
+        o: {
+          label: string;
+          id?: string;
+          group?: string;
+          out?: string;
+          force?: boolean;
+          samples?: string;
+          exclude?: string[];
+          positive?: string;
+          where?: string[];
+          class?: string[];
+        },
+      ) => done(await (await import('./commands/init.js')).initCommand({ data, ...o }, io)),
     );
 
   program

@@ -10,6 +10,13 @@ export interface TemplateInput {
   groupCount?: number;
   schemaPath: string;
   seed: number;
+  layout?: 'samples-in-rows' | 'features-in-rows';
+  samples?: { file: string; sha256: string };
+  /** Columns left out of the features, each with why (a comment in the protocol). */
+  exclude?: { column: string; reason: string }[];
+  positive?: string;
+  where?: Record<string, string[]>;
+  classes?: Record<string, string[]>;
 }
 
 export function protocolTemplate(t: TemplateInput): string {
@@ -25,9 +32,28 @@ export function protocolTemplate(t: TemplateInput): string {
     `data:`,
     `  file: ${q(t.dataFile)}`,
     `  sha256: ${q(t.sha256)}   # foldseal hash prints it; update it only when the data changes on purpose`,
+    ...(t.layout === 'features-in-rows' ? ['  layout: features-in-rows   # one row per feature, one column per sample'] : []),
+    ...(t.samples
+      ? [
+          `  samples:   # the sample sheet: id, label${grouped ? ', group' : ''} and covariates (never features)`,
+          `    file: ${q(t.samples.file)}`,
+          `    sha256: ${q(t.samples.sha256)}`,
+        ]
+      : []),
     ...(t.id ? [`  id: ${q(t.id)}`] : []),
     `  label: ${q(t.label)}`,
+    ...(t.positive !== undefined ? [`  positive: ${q(t.positive)}`] : []),
     ...(grouped ? [`  group: ${q(t.group!)}`] : []),
+    ...(t.where && Object.keys(t.where).length
+      ? ['  where:   # only these rows are used', ...Object.entries(t.where).map(([c, v]) => `    ${q(c)}: ${JSON.stringify(v)}`)]
+      : []),
+    ...(t.classes
+      ? [
+          '  classes:   # label values that make up each class',
+          ...Object.entries(t.classes).map(([c, v]) => `    ${q(c)}: ${JSON.stringify(v)}`),
+        ]
+      : []),
+    ...(t.exclude?.length ? ['  features:', '    exclude:', ...t.exclude.map((e) => `      - ${q(e.column)}   # ${e.reason}`)] : []),
     `split:`,
     `  rule: ${grouped ? 'grouped-kfold' : 'stratified-kfold'}`,
     `  folds: ${folds}`,

@@ -89,7 +89,9 @@ t.test('init writes a protocol that validates as is, and refuses to overwrite', 
   t.match(readFileSync(join(dir, 'protocols', 'trial.yaml'), 'utf8'), 'file: "../data/trial.csv"');
   const ok = cli(['init', 'data/trial.csv', '--label', 'label', '--id', 'id', '--group', 'g', '--out', 'trial.yaml'], dir);
   t.equal(ok.code, 0, ok.stderr);
-  t.match(ok.stderr, 'wrote trial.yaml (20 rows, 2 classes, 3 features)');
+  // Column a holds 1, 2, … 20: a row number, not a measurement, so it is left out with a note.
+  t.match(ok.stderr, 'note: column "a" is not a feature: it looks like an id (consecutive whole numbers)');
+  t.match(ok.stderr, 'wrote trial.yaml (20 rows, 2 classes, 2 features)');
   const text = readFileSync(join(dir, 'trial.yaml'), 'utf8');
   t.match(text, `sha256: "${sha256(csv)}"`);
   t.match(text, 'rule: grouped-kfold');

@@ -2,7 +2,7 @@
 """Outside reference for reading data as people hold it: pandas (Debian's python3-pandas) reads a
 gzip-compressed features-in-rows matrix and a sample sheet, joins them by id, keeps the rows a
 filter names, maps label values to classes; scikit-learn (Debian's python3-sklearn) then fits
-StandardScaler + SelectKBest(f_classif, k) + GaussianNB on foldseal's folds (`foldseal folds`)
+StandardScaler + SelectKBest(f_classif, k) (none when k = 0) + GaussianNB on foldseal's folds (`foldseal folds`)
 and prints the out-of-fold probabilities by id as JSON.
 
 Usage: layout_reference.py MATRIX SHEET FOLDS ID_COLUMN LABEL_COLUMN FILTER_JSON CLASSES_JSON K"""
@@ -30,7 +30,8 @@ f = pd.read_csv(folds, dtype={"id": str}).set_index("id").loc[d.index, "fold"].t
 out = {}
 for fold in sorted(set(f)):
     train, test = f != fold, f == fold
-    model = make_pipeline(StandardScaler(), SelectKBest(f_classif, k=int(k)), GaussianNB()).fit(X[train], y[train])
+    steps = [StandardScaler()] + ([SelectKBest(f_classif, k=int(k))] if int(k) > 0 else []) + [GaussianNB()]
+    model = make_pipeline(*steps).fit(X[train], y[train])
     for i, p in zip(d.index[test], model.predict_proba(X[test])):
         out[i] = dict(zip(model.classes_, p.tolist()))
 print(json.dumps(out))

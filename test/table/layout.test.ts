@@ -244,3 +244,78 @@ t.test('apply: held-back samples with only the features the fold models read, sc
   t.equal(c.code, 1);
   t.match(c.stderr, new RegExp(`error: feature "${keep[keep.length - 1]}" is not in the new-rows file's header`));
 });
+
+t.test('end to end with no hand step: init → validate → run → verify --rerun → apply on held-back samples', async (t) => {
+  const dir = tempDir({ 'expr.tsv.gz': gz, 'samples.csv': sheet });
+  const init = cli(
+    [
+      'init',
+      'expr.tsv.gz',
+      '--samples',
+      'samples.csv',
+      '--id',
+      'sample',
+      '--label',
+      'diagnosis',
+      '--where',
+      'batch=1,2',
+      '--class',
+      'B=benign',
+      '--class',
+      'M=malignant',
+      '--positive',
+      'M',
+      '--out',
+      'p.yaml',
+    ],
+    dir,
+  );
+  t.equal(init.code, 0, init.stderr);
+  t.match(init.stderr, 'wrote p.yaml (features in rows, 380 rows, 2 classes, 30 features; 380 of 569 rows kept by --where)');
+  const text = readFileSync(join(dir, 'p.yaml'), 'utf8');
+  t.match(text, 'layout: features-in-rows');
+  t.equal(cli(['validate', 'p.yaml'], dir).code, 0);
+  const r = cli(['run', 'p.yaml', '--out', 'res'], dir);
+  t.equal(r.code, 0, r.stderr);
+  t.equal(cli(['folds', 'p.yaml', '--out', 'folds.csv'], dir).code, 0);
+  const ref = spawnSync(
+    '/usr/bin/python3',
+    [
+      new URL('../reference/layout_reference.py', import.meta.url).pathname,
+      join(dir, 'expr.tsv.gz'),
+      join(dir, 'samples.csv'),
+      join(dir, 'folds.csv'),
+      'sample',
+      'diagnosis',
+      JSON.stringify({ batch: ['1', '2'] }),
+      JSON.stringify({ B: ['benign'], M: ['malignant'] }),
+      '0',
+    ],
+    { encoding: 'utf8' },
+  );
+  t.equal(ref.status, 0, ref.stderr);
+  const want = JSON.parse(ref.stdout) as Record<string, Record<string, number>>;
+  let worst = 0;
+  let n = 0;
+  for (const line of readFileSync(join(dir, 'res', 'predictions.csv'), 'utf8')
+    .trimEnd()
+    .split('\n')
+    .slice(1)) {
+    const [id, , , , , pB, pM] = line.split(',');
+    worst = Math.max(worst, Math.abs(Number(pB) - want[id].B), Math.abs(Number(pM) - want[id].M));
+    n++;
+  }
+  t.equal(n, 380);
+  t.ok(worst <= 1e-9, `out-of-fold probabilities within ${worst.toExponential(2)} of pandas + scikit-learn`);
+  const v = cli(['verify', 'res/manifest.json', '--rerun', '--allow-unsigned', '--allow-unpinned'], dir);
+  t.equal(v.code, 0, v.stdout + v.stderr);
+  // The held-back samples (batch 3), as the lab would send them: the sheet's label and every measurement.
+  const held = ['sample,diagnosis,' + features.map((c) => header[c]).join(',')];
+  body.forEach((row, i) => {
+    if (i % 3 === 2) held.push([row[0], row[label], ...features.map((c) => row[c])].join(','));
+  });
+  writeFileSync(join(dir, 'batch3.csv'), held.join('\n') + '\n');
+  const a = cli(['apply', 'res', 'batch3.csv', '--out', 'batch3-applied.csv'], dir);
+  t.equal(a.code, 0, a.stderr);
+  t.match(a.stderr, `scored on the new rows' own labels (column "diagnosis"): ${held.length - 1} rows`);
+});
