@@ -14,6 +14,8 @@ import { isPinned, type Protocol, type RuleSplit } from '../protocol/types.js';
 import { splitRules } from '../split/registry.js';
 import { tableFromBytes, tableFromLayout, type SheetInput } from '../table/load.js';
 import { decompressed } from './decompress.js';
+import { isParquet, readParquet } from './parquet.js';
+import type { ColumnTable } from '../table/columns.js';
 import { knownColumns } from '../protocol/known-columns.js';
 import { newRowsFromBytes, type NewRows } from '../table/new-rows.js';
 import { fileProblem, readBytes, readRegularText } from './files.js';
@@ -187,14 +189,24 @@ async function validateWithData(
       source,
       index === undefined ? ['data', role] : ['data', 'features', ...(Array.isArray(p.data.features) ? [] : ['exclude']), index],
     );
+  // A Parquet file is decoded column by column first.
+  let columns: ColumnTable | undefined;
+  if (isParquet(text.bytes)) {
+    const pq = await readParquet(text.bytes, shown(paths.data), at(['data', 'file']));
+    if (pq.problem) {
+      problems.push(pq.problem);
+      return { ...parsed, problems, paths };
+    }
+    columns = pq.table;
+  }
   // The second thread parses half of a plain, uncompressed samples-in-rows file; other files are read here.
-  const simple = text.bytes === data.bytes && p.data.layout === 'samples-in-rows' && !sheet && !p.data.where && !p.data.classes;
+  const simple = !columns && text.bytes === data.bytes && p.data.layout === 'samples-in-rows' && !sheet && !p.data.where && !p.data.classes;
   const helper = simple ? rowThread : undefined;
   if (helper && hashesIds(p.split) && p.data.id !== undefined)
     helper.expectKeys({ idColumn: p.data.id, seed: p.split.seed ?? 0, repeats: p.split.repeats });
   const built: ReturnType<typeof tableFromLayout> = simple
     ? tableFromBytes(text.bytes, shown(paths.data), dataRoles(p), p.data.format, roleLocate, helper)
-    : tableFromLayout(text.bytes, shown(paths.data), dataRoles(p), p.data.format, p.data.layout, sheet, roleLocate, (column) =>
+    : tableFromLayout(columns ?? text.bytes, shown(paths.data), dataRoles(p), p.data.format, p.data.layout, sheet, roleLocate, (column) =>
         at(['data', 'where', column]),
       );
   // A file that is not the recorded one is reported as that alone: its structural problems would

@@ -143,6 +143,7 @@ export const PROBLEM_CODES = {
   'samples-unmatched': {},
   'samples-without-id': {},
   'data-bad-gzip': {},
+  'data-bad-parquet': {},
   'layout-needs-samples': {},
   'label-unmapped': {},
   'label-in-two-classes': {},

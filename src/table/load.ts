@@ -7,6 +7,7 @@ import { buildTable, type DataRoles, type RolePaths, type TableResult } from './
 import { hasErrors } from '../problems/problem.js';
 import { filteredGrid, joinedGrid, relabeledGrid, transposedGrid } from './layout.js';
 import type { Grid } from './grid.js';
+import { columnsGrid, type ColumnTable } from './columns.js';
 
 export function delimiterFor(file: string, format?: 'csv' | 'tsv'): number {
   const f = format ?? (/\.(tsv|tab)(\.gz)?$/i.test(file) ? 'tsv' : 'csv');
@@ -65,11 +66,12 @@ function gridOf(bytes: Uint8Array, file: string, format: 'csv' | 'tsv' | undefin
 }
 
 /**
- * A data file in either layout, joined to a sample sheet when there is one → Table. Features come
+ * A data file in either layout (its bytes, or a columnar file already decoded), joined to a
+ * sample sheet when there is one → Table. Features come
  * only from the data file; the label and group from the sample sheet when it is given.
  */
 export function tableFromLayout(
-  bytes: Uint8Array,
+  bytes: Uint8Array | ColumnTable,
   file: string,
   roles: DataRoles,
   format: 'csv' | 'tsv' | undefined,
@@ -78,7 +80,7 @@ export function tableFromLayout(
   locate: (role: keyof RolePaths, index?: number) => Problem['position'],
   whereAt: (column: string) => Partial<Problem> = () => ({}),
 ): TableResult & { joined?: JoinCounts; filtered?: FilterCounts } {
-  const matrix = gridOf(bytes, file, format);
+  const matrix = bytes instanceof Uint8Array ? gridOf(bytes, file, format) : { grid: columnsGrid(bytes), problems: [] };
   if (!matrix.grid) return { problems: matrix.problems };
   let grid = layout === 'features-in-rows' ? transposedGrid(matrix.grid, roles.id ?? 'id') : matrix.grid;
   const problems = [...matrix.problems];

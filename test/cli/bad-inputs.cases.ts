@@ -321,11 +321,18 @@ export const badInputs: BadInput[] = [
     match: 'lies outside the folder foldseal may read',
   },
   {
-    name: 'gzip-compressed data',
+    name: 'gzip-compressed data is read as its text',
     files: withData(gzipSync(csv)),
     args: validate,
+    exit: 0,
+    match: 'valid (0 errors',
+  },
+  {
+    name: 'truncated gzip data',
+    files: withData(gzipSync(csv).subarray(0, 30)),
+    args: validate,
     exit: 1,
-    match: 'looks like a gzip-compressed file, not a CSV or TSV table',
+    match: 'starts like a gzip file but cannot be decompressed',
   },
   {
     name: 'zip archive as data',
