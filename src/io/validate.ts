@@ -13,8 +13,7 @@ import { checkAgainstData } from '../protocol/semantic.js';
 import { isPinned, type Protocol, type RuleSplit } from '../protocol/types.js';
 import { splitRules } from '../split/registry.js';
 import { tableFromBytes, tableFromLayout, type SheetInput } from '../table/load.js';
-import { decompressed } from './decompress.js';
-import { isParquet, readParquet } from './parquet.js';
+import { tableContent } from './parquet.js';
 import type { ColumnTable } from '../table/columns.js';
 import { knownColumns } from '../protocol/known-columns.js';
 import { newRowsFromBytes, type NewRows } from '../table/new-rows.js';
@@ -134,7 +133,7 @@ async function validateWithData(
     if (pin.problem) problems.push(pin.problem);
     else pinned = { bytes: pin.bytes!, sha256: pin.sha256!, shownAs: shown(paths.pinned) };
   }
-  let newRowBytes: Uint8Array | undefined;
+  let newRowBytes: Uint8Array | ColumnTable | undefined;
   if (paths.newRows && p.reconcile.newRows) {
     const nr = await readBytes(paths.newRows, shown(paths.newRows), at(['reconcile', 'new-rows', 'file']));
     if (nr.problem) problems.push(nr.problem);
@@ -147,9 +146,9 @@ async function validateWithData(
         ),
       );
     } else {
-      const plain = decompressed(nr.bytes!, shown(paths.newRows), at(['reconcile', 'new-rows', 'file']));
+      const plain = await tableContent(nr.bytes!, shown(paths.newRows), at(['reconcile', 'new-rows', 'file']));
       if (plain.problem) problems.push(plain.problem);
-      else newRowBytes = plain.bytes;
+      else newRowBytes = plain.content;
     }
   }
   if (data.problem) {
@@ -157,12 +156,13 @@ async function validateWithData(
     return { ...parsed, problems, paths };
   }
   // The declared hashes are of the bytes on disk; a gzip file is then read as its text.
-  const text = decompressed(data.bytes!, shown(paths.data), at(['data', 'file']));
+  const text = await tableContent(data.bytes!, shown(paths.data), at(['data', 'file']));
   let sheet: SheetInput | undefined;
   if (paths.samples && p.data.samples) {
     const raw = await readBytes(paths.samples, shown(paths.samples), at(['data', 'samples', 'file']));
-    const plain = raw.problem ? raw : decompressed(raw.bytes!, shown(paths.samples), at(['data', 'samples', 'file']));
-    if (plain.problem) problems.push(plain.problem);
+    const plain = raw.problem ? undefined : await tableContent(raw.bytes!, shown(paths.samples), at(['data', 'samples', 'file']));
+    if (raw.problem) problems.push(raw.problem);
+    else if (plain?.problem) problems.push(plain.problem);
     else if (raw.sha256 !== p.data.samples.sha256)
       problems.push(
         error(
@@ -173,7 +173,7 @@ async function validateWithData(
       );
     else
       sheet = {
-        bytes: plain.bytes!,
+        bytes: plain!.content!,
         file: shown(paths.samples),
         format: p.data.samples.format,
         unmatched: p.data.samples.unmatched,
@@ -189,24 +189,14 @@ async function validateWithData(
       source,
       index === undefined ? ['data', role] : ['data', 'features', ...(Array.isArray(p.data.features) ? [] : ['exclude']), index],
     );
-  // A Parquet file is decoded column by column first.
-  let columns: ColumnTable | undefined;
-  if (isParquet(text.bytes)) {
-    const pq = await readParquet(text.bytes, shown(paths.data), at(['data', 'file']));
-    if (pq.problem) {
-      problems.push(pq.problem);
-      return { ...parsed, problems, paths };
-    }
-    columns = pq.table;
-  }
   // The second thread parses half of a plain, uncompressed samples-in-rows file; other files are read here.
-  const simple = !columns && text.bytes === data.bytes && p.data.layout === 'samples-in-rows' && !sheet && !p.data.where && !p.data.classes;
+  const simple = text.content === data.bytes && p.data.layout === 'samples-in-rows' && !sheet && !p.data.where && !p.data.classes;
   const helper = simple ? rowThread : undefined;
   if (helper && hashesIds(p.split) && p.data.id !== undefined)
     helper.expectKeys({ idColumn: p.data.id, seed: p.split.seed ?? 0, repeats: p.split.repeats });
   const built: ReturnType<typeof tableFromLayout> = simple
-    ? tableFromBytes(text.bytes, shown(paths.data), dataRoles(p), p.data.format, roleLocate, helper)
-    : tableFromLayout(columns ?? text.bytes, shown(paths.data), dataRoles(p), p.data.format, p.data.layout, sheet, roleLocate, (column) =>
+    ? tableFromBytes(data.bytes!, shown(paths.data), dataRoles(p), p.data.format, roleLocate, helper)
+    : tableFromLayout(text.content, shown(paths.data), dataRoles(p), p.data.format, p.data.layout, sheet, roleLocate, (column) =>
         at(['data', 'where', column]),
       );
   // A file that is not the recorded one is reported as that alone: its structural problems would

@@ -38,7 +38,8 @@ export function tableFromBytes(
 }
 
 export interface SheetInput {
-  bytes: Uint8Array;
+  /** The sample sheet's bytes, or its decoded columns (Parquet). */
+  bytes: Uint8Array | ColumnTable;
   file: string;
   format?: 'csv' | 'tsv';
   unmatched: 'error' | 'drop';
@@ -58,7 +59,8 @@ export interface FilterCounts {
   after: number;
 }
 
-function gridOf(bytes: Uint8Array, file: string, format: 'csv' | 'tsv' | undefined): { grid?: Grid; problems: Problem[] } {
+function gridOf(bytes: Uint8Array | ColumnTable, file: string, format: 'csv' | 'tsv' | undefined): { grid?: Grid; problems: Problem[] } {
+  if (!(bytes instanceof Uint8Array)) return { grid: columnsGrid(bytes), problems: [] };
   const content = contentProblems(bytes, file);
   if (content.length) return { problems: content };
   const read = readDelimited(bytes, delimiterFor(file, format), file);
@@ -80,7 +82,7 @@ export function tableFromLayout(
   locate: (role: keyof RolePaths, index?: number) => Problem['position'],
   whereAt: (column: string) => Partial<Problem> = () => ({}),
 ): TableResult & { joined?: JoinCounts; filtered?: FilterCounts } {
-  const matrix = bytes instanceof Uint8Array ? gridOf(bytes, file, format) : { grid: columnsGrid(bytes), problems: [] };
+  const matrix = gridOf(bytes, file, format);
   if (!matrix.grid) return { problems: matrix.problems };
   let grid = layout === 'features-in-rows' ? transposedGrid(matrix.grid, roles.id ?? 'id') : matrix.grid;
   const problems = [...matrix.problems];

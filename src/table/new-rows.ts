@@ -7,6 +7,7 @@ import { error, warning, type Problem } from '../problems/problem.js';
 import { delimitedGrid, readDelimited } from './delimited.js';
 import { cellAt, type Grid } from './grid.js';
 import { transposedGrid } from './layout.js';
+import { columnsGrid, type ColumnTable } from './columns.js';
 import { delimiterFor } from './load.js';
 import { contentProblems } from './content-check.js';
 import type { Matrix } from './matrix.js';
@@ -34,20 +35,24 @@ export interface NewRowsOptions {
   label?: string;
 }
 
+/** `bytes`: a delimited file's bytes, or a columnar file already decoded (Parquet). */
 export function newRowsFromBytes(
-  bytes: Uint8Array,
+  bytes: Uint8Array | ColumnTable,
   file: string,
   features: readonly string[],
   idColumn: string | undefined,
   missing: readonly string[],
   options: NewRowsOptions = {},
 ): { rows?: NewRows; problems: Problem[] } {
-  const content = contentProblems(bytes, file);
-  if (content.length) return { problems: content };
-  const read = readDelimited(bytes, delimiterFor(file), file);
-  if (!read.table) return { problems: read.problems };
-  const t: Grid =
-    options.layout === 'features-in-rows' ? transposedGrid(delimitedGrid(read.table), idColumn ?? 'id') : delimitedGrid(read.table);
+  let grid: Grid;
+  if (bytes instanceof Uint8Array) {
+    const content = contentProblems(bytes, file);
+    if (content.length) return { problems: content };
+    const read = readDelimited(bytes, delimiterFor(file), file);
+    if (!read.table) return { problems: read.problems };
+    grid = delimitedGrid(read.table);
+  } else grid = columnsGrid(bytes);
+  const t: Grid = options.layout === 'features-in-rows' ? transposedGrid(grid, idColumn ?? 'id') : grid;
   const problems: Problem[] = [];
   const at = (line = 1, col = 1) => ({ file, position: { line, col } });
   if (t.rows === 0) return { problems: [error('data-no-rows', 'the new-rows file has a header but no data rows', at())] };

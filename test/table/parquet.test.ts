@@ -75,6 +75,14 @@ t.test('Parquet (snappy, gzip, Brotli, uncompressed; dictionary or plain pages) 
   const dir = tempDir({ 'bc.csv': csv, 'csv.yaml': protocol('bc.csv', csv), 'bc.data': bytes, 'pq.yaml': protocol('bc.data', bytes) });
   for (const name of ['csv', 'pq']) t.equal(cli(['run', `${name}.yaml`, '--out', name], dir).code, 0);
   t.equal(readFileSync(join(dir, 'pq', 'predictions.csv'), 'utf8'), readFileSync(join(dir, 'csv', 'predictions.csv'), 'utf8'));
+  // apply reads a Parquet table of rows as it reads the CSV.
+  t.equal(cli(['apply', 'pq', 'bc.data', '--out', 'from-pq.csv'], dir).code, 0);
+  t.equal(cli(['apply', 'pq', 'bc.csv', '--out', 'from-csv.csv'], dir).code, 0);
+  t.equal(readFileSync(join(dir, 'from-pq.csv'), 'utf8'), readFileSync(join(dir, 'from-csv.csv'), 'utf8'));
+  // init writes a protocol for a Parquet file that validates as is.
+  const init = cli(['init', 'bc.data', '--id', 'id', '--label', 'diagnosis', '--out', 'init.yaml'], dir);
+  t.equal(init.code, 0, init.stderr);
+  t.match(init.stderr, 'wrote init.yaml (569 rows, 2 classes, 30 features)');
 });
 
 t.test('null cells are missing values: an impute step is needed, as for empty CSV cells', async (t) => {

@@ -10,7 +10,7 @@ import { knownIdProblems } from '../../reconcile/known-ids.js';
 import { MODELS_VERSION, neededFeatures, type ModelsFile } from '../../reconcile/models-file.js';
 import { tiePossible } from '../../reconcile/reconcile.js';
 import type { DataLayout, ReconcileRule, TieRule } from '../../protocol/types.js';
-import { decompressed } from '../../io/decompress.js';
+import { tableContent } from '../../io/parquet.js';
 import { scoreNewRows, type NewRowScores } from '../../reconcile/new-row-scores.js';
 import { newRowScoreLines } from '../cv-table.js';
 import { newRowsFromBytes } from '../../table/new-rows.js';
@@ -68,10 +68,10 @@ export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<Exit
   if (problems.length) throw new FoldsealError(problems, 2);
 
   const tableBytes = await readInput(args.table);
-  const plain = decompressed(tableBytes, shown(args.table), { file: shown(args.table) });
+  const plain = await tableContent(tableBytes, shown(args.table), { file: shown(args.table) });
   if (plain.problem) throw new FoldsealError(plain.problem, 1);
   const label = saved['known-columns'][0];
-  const nr = newRowsFromBytes(plain.bytes, shown(args.table), saved.features, saved.id ?? undefined, saved.missing, {
+  const nr = newRowsFromBytes(plain.content, shown(args.table), saved.features, saved.id ?? undefined, saved.missing, {
     known: saved['known-columns'],
     needed: neededFeatures(saved, rule),
     layout: args.layout,

@@ -1,5 +1,5 @@
 import { basename, dirname, relative, resolve } from 'node:path';
-import { decompressed } from '../../io/decompress.js';
+import { tableContent } from '../../io/parquet.js';
 import { readBytes } from '../../io/files.js';
 import { writeOutputFile } from '../../io/output-file.js';
 import { protocolPolicy } from '../../io/path-policy.js';
@@ -8,7 +8,9 @@ import { shown, validateProtocol } from '../../io/validate.js';
 import { error, FoldsealError, hasErrors } from '../../problems/problem.js';
 import { protocolTemplate, slugFrom } from '../../protocol/template.js';
 import { DEFAULT_MISSING } from '../../protocol/types.js';
-import { delimitedGrid, readDelimited, textColumn } from '../../table/delimited.js';
+import { columnsGrid, type ColumnTable } from '../../table/columns.js';
+import { delimitedGrid, readDelimited } from '../../table/delimited.js';
+import type { Grid } from '../../table/grid.js';
 import { samplesAreColumns, suspectColumns, type Suspect } from '../../table/detect.js';
 import { delimiterFor, tableFromLayout } from '../../table/load.js';
 import type { CommandIo, ExitCode } from '../io.js';
@@ -31,13 +33,20 @@ export interface InitArgs {
   class?: string[];
 }
 
-/** The file's bytes as text (gzip decompressed) and the SHA-256 of its bytes on disk. */
-async function readText(path: string): Promise<{ bytes: Uint8Array; sha256: string }> {
+/** The file's content (gzip decompressed, Parquet decoded) and the SHA-256 of its bytes on disk. */
+async function readText(path: string): Promise<{ bytes: Uint8Array | ColumnTable; sha256: string }> {
   const read = await readBytes(path, shown(path));
   if (read.problem) throw new FoldsealError(read.problem, 2);
-  const plain = decompressed(read.bytes!, shown(path), { file: shown(path) });
+  const plain = await tableContent(read.bytes!, shown(path), { file: shown(path) });
   if (plain.problem) throw new FoldsealError(plain.problem, 1);
-  return { bytes: plain.bytes, sha256: read.sha256! };
+  return { bytes: plain.content, sha256: read.sha256! };
+}
+
+/** A read file as a Grid (undefined when it is not a table). */
+function gridOfContent(content: Uint8Array | ColumnTable, path: string): Grid | undefined {
+  if (!(content instanceof Uint8Array)) return columnsGrid(content);
+  const read = readDelimited(content, delimiterFor(path), shown(path));
+  return read.table && delimitedGrid(read.table);
 }
 
 function parseLists(option: string, items: readonly string[], example: string): Record<string, string[]> {
@@ -75,11 +84,11 @@ export async function initCommand(args: InitArgs, io: CommandIo): Promise<ExitCo
   // Orientation: a header that names the sheet's samples means one column per sample.
   let layout: 'samples-in-rows' | 'features-in-rows' = 'samples-in-rows';
   if (sheet && sheetPath) {
-    const s = readDelimited(sheet.bytes, delimiterFor(sheetPath), shown(sheetPath));
-    const m = readDelimited(data.bytes, delimiterFor(dataPath), shown(dataPath));
-    const idCol = s.table?.header.indexOf(args.id!) ?? -1;
-    if (s.table && m.table && idCol >= 0 && samplesAreColumns(m.table.header, new Set(textColumn(s.table, idCol))))
-      layout = 'features-in-rows';
+    const s = gridOfContent(sheet.bytes, sheetPath);
+    const m = gridOfContent(data.bytes, dataPath);
+    const idCol = s?.header.indexOf(args.id!) ?? -1;
+    const ids = s && idCol >= 0 ? new Set(Array.from({ length: s.rows }, (_, r) => s.text(r, idCol))) : new Set<string>();
+    if (m && samplesAreColumns(m.header, ids)) layout = 'features-in-rows';
   }
   const exclude: Suspect[] = (args.exclude ?? []).map((column) => ({ column, reason: 'left out with --exclude' }));
   const build = () =>
@@ -103,9 +112,8 @@ export async function initCommand(args: InitArgs, io: CommandIo): Promise<ExitCo
   let built = build();
   // Codes, ids and covariates that look numeric are left out, said so here and in the protocol.
   if (layout === 'samples-in-rows' && built.table) {
-    const m = readDelimited(data.bytes, delimiterFor(dataPath), shown(dataPath));
-    if (m.table) {
-      const g = delimitedGrid(m.table);
+    const g = gridOfContent(data.bytes, dataPath);
+    if (g) {
       const names = new Set(built.table.featureNames);
       const found = suspectColumns(
         g,
