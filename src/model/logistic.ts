@@ -31,6 +31,9 @@ export interface LogisticParams {
 /** Parameters of the dense Newton system above which a tall fit is refused (its Hessian would not fit the time). */
 const MAX_PARAMETERS = 2000;
 
+/** Features above which auto picks newton-cg for two classes on tall data. */
+const CG_FROM = 64;
+
 export const logistic: ModelImpl<LogisticParams> = {
   description: "L2-regularized logistic regression (softmax for more than two classes), fitted by Newton's method.",
   options: {
@@ -49,6 +52,16 @@ export const logistic: ModelImpl<LogisticParams> = {
       type: 'number',
       exclusiveMinimum: 0,
       default: 1e-10,
+    },
+    solver: {
+      description:
+        'newton: the exact Newton system, O(rows × parameters²) per step. newton-cg (two classes): the Newton step solved by ' +
+        'conjugate gradients with Hessian-vector products, O(rows × features) per inner step, for many features on tall data. ' +
+        `auto: newton-cg for two classes with more than ${CG_FROM} features (on more rows than features), newton otherwise. ` +
+        'The objective, the stopping rule and the floor are the same; the fitted weights agree to rounding.',
+      type: 'string',
+      enum: ['auto', 'newton', 'newton-cg'],
+      default: 'auto',
     },
     'max-iterations': {
       description: 'Newton iterations allowed before giving up with an error.',
@@ -91,12 +104,15 @@ export const logistic: ModelImpl<LogisticParams> = {
       });
       return { classCount, present, weights, iterations: inner.iterations };
     }
+    const solver = options.solver as 'auto' | 'newton' | 'newton-cg' | undefined;
+    if (C === 2 && (solver === 'newton-cg' || (solver !== 'newton' && p > CG_FROM)))
+      return { classCount, present, ...newtonCg(X, yl, l2, tolerance, maxIterations) };
     const dim = blocks * (p + 1) - (C === 2 ? 0 : 1);
     if (dim > MAX_PARAMETERS)
       throw new FitError(
         'logistic-too-wide',
         `logistic would fit ${dim} parameters by Newton's method on ${X.rows} rows; at most ${MAX_PARAMETERS} are supported when ` +
-          `there are more rows than features`,
+          `there are more rows than features (newton-cg, for two classes, has no such limit)`,
         'add a select step before the model',
       );
     return { classCount, present, ...newton(X, yl, C, l2, tolerance, maxIterations) };
@@ -457,4 +473,181 @@ function unpack(theta: Float64Array, step: Float64Array, scale: number, out: Flo
   out.set(theta);
   const dim = C === 2 ? blocks * width : blocks * width - 1;
   for (let i = 0; i < dim; i++) out[i] += scale * step[i];
+}
+
+/**
+ * Two classes, Newton's method with the step solved by preconditioned conjugate gradients on
+ * Hessian-vector products Hv = Xᵀ(V·(Xv)) + l2·v (truncated Newton; Nocedal & Wright 2006, §7.1):
+ * each inner step costs two passes over X, never the p × p Hessian. The inner solve stops at
+ * ‖r‖ ≤ η‖g‖ with η = min(0.5, √(‖g‖/‖g₀‖)) (a forcing sequence that gives superlinear
+ * convergence), and at η = 1e-8 for the final polishing step once the outer rule is met. Stopping rule and floor as in `newton`, with λ² = gᵀd for the CG solution d.
+ */
+function newtonCg(
+  X: Matrix,
+  yl: Int32Array,
+  l2: number,
+  tolerance: number,
+  maxIterations: number,
+): { weights: number[][]; iterations: number } {
+  const n = X.rows;
+  const p = X.cols;
+  const width = p + 1;
+  const columns = columnMajor(X);
+  const theta = new Float64Array(width);
+  let ones = 0;
+  for (let i = 0; i < n; i++) ones += yl[i];
+  theta[p] = Math.log(ones / (n - ones));
+  const z = new Float64Array(n);
+  const v = new Float64Array(n);
+  const r = new Float64Array(n);
+  const evaluate = (t: Float64Array, derivatives: boolean): { loss: number; grad?: Float64Array } => {
+    z.fill(t[p]);
+    for (let j = 0; j < p; j++) {
+      const w = t[j];
+      if (w === 0) continue;
+      const o = j * n;
+      for (let i = 0; i < n; i++) z[i] += w * columns[o + i];
+    }
+    let loss = 0;
+    for (let i = 0; i < n; i++) {
+      const zi = z[i];
+      const target = yl[i] === 1 ? 1 : 0;
+      loss += (zi > 0 ? zi + Math.log1p(Math.exp(-zi)) : Math.log1p(Math.exp(zi))) - target * zi;
+      if (derivatives) {
+        const q = 1 / (1 + Math.exp(-zi));
+        r[i] = q - target;
+        v[i] = q * (1 - q);
+      }
+    }
+    for (let j = 0; j < p; j++) loss += 0.5 * l2 * t[j] * t[j];
+    if (!derivatives) return { loss };
+    const grad = new Float64Array(width);
+    for (let j = 0; j <= p; j++) {
+      const o = j * n;
+      let s = 0;
+      for (let i = 0; i < n; i++) s += r[i] * columns[o + i];
+      grad[j] = s + (j < p ? l2 * t[j] : 0);
+    }
+    return { loss, grad };
+  };
+  const xv = new Float64Array(n);
+  const hessianTimes = (d: Float64Array, out: Float64Array) => {
+    xv.fill(0);
+    for (let j = 0; j <= p; j++) {
+      const w = d[j];
+      if (w === 0) continue;
+      const o = j * n;
+      for (let i = 0; i < n; i++) xv[i] += w * columns[o + i];
+    }
+    for (let i = 0; i < n; i++) xv[i] *= v[i];
+    for (let j = 0; j <= p; j++) {
+      const o = j * n;
+      let s = 0;
+      for (let i = 0; i < n; i++) s += xv[i] * columns[o + i];
+      out[j] = s + (j < p ? l2 * d[j] : 0);
+    }
+  };
+  let iterations = 0;
+  let polished = false;
+  let first: number | undefined;
+  for (;;) {
+    const { loss, grad } = evaluate(theta, true);
+    const g = grad!;
+    // Jacobi preconditioner: the Hessian's diagonal (a tiny floor keeps it invertible when l2 = 0).
+    const diag = new Float64Array(width);
+    for (let j = 0; j <= p; j++) {
+      const o = j * n;
+      let s = 0;
+      for (let i = 0; i < n; i++) s += v[i] * columns[o + i] * columns[o + i];
+      diag[j] = s + (j < p ? l2 : 0) + 1e-12;
+    }
+    let gnorm = 0;
+    for (let j = 0; j <= p; j++) gnorm += g[j] * g[j];
+    gnorm = Math.sqrt(gnorm);
+    first ??= gnorm;
+    const eta = Math.min(0.5, Math.sqrt(gnorm / first));
+    const inner = Math.max(2 * width, 50);
+    let step = conjugateGradients(hessianTimes, g, diag, eta * gnorm, inner);
+    let decrement = 0;
+    for (let j = 0; j <= p; j++) decrement += g[j] * step[j];
+    if (!Number.isFinite(loss) || !Number.isFinite(decrement))
+      throw new FitError(
+        'logistic-non-finite',
+        'logistic: the loss or its gradient is not finite (feature values too large for the model to compute with)',
+        'rescale the features (standardize, or log2p)',
+      );
+    if (decrement / 2 <= tolerance * (1 + loss)) {
+      if (polished) break;
+      polished = true;
+      // The polishing step is solved tighter (its error is then far below the optimum's own rounding).
+      step = conjugateGradients(hessianTimes, g, diag, POLISH * gnorm, inner);
+      decrement = 0;
+      for (let j = 0; j <= p; j++) decrement += g[j] * step[j];
+    }
+    if (iterations >= maxIterations)
+      throw new FitError(
+        'logistic-no-convergence',
+        `logistic did not converge in ${maxIterations} Newton steps (the next step would still lower the objective by ` +
+          `${(decrement / 2).toExponential(3)}, more than tolerance × (1 + objective) = ${(tolerance * (1 + loss)).toExponential(3)})`,
+        l2 === 0 ? 'the classes may be separable; set model.options.l2 above 0' : 'raise model.options.max-iterations or tolerance',
+      );
+    const candidate = new Float64Array(width);
+    let decreased = false;
+    if (polished) {
+      for (let j = 0; j <= p; j++) candidate[j] = theta[j] - step[j];
+      decreased = true;
+    }
+    for (let t = 1, tries = 0; tries < 60 && !decreased; tries++, t /= 2) {
+      for (let j = 0; j <= p; j++) candidate[j] = theta[j] - t * step[j];
+      if (evaluate(candidate, false).loss <= loss - 1e-4 * t * decrement) decreased = true;
+    }
+    if (!decreased) break;
+    theta.set(candidate);
+    iterations++;
+  }
+  return { weights: [Array.from(theta)], iterations };
+}
+
+/** Relative residual of the polishing step's inner solve. */
+const POLISH = 1e-8;
+
+/** Preconditioned conjugate gradients for H d = g (H symmetric positive definite, given as a product). */
+function conjugateGradients(
+  times: (d: Float64Array, out: Float64Array) => void,
+  g: Float64Array,
+  diag: Float64Array,
+  tolerance: number,
+  maxSteps: number,
+): Float64Array {
+  const m = g.length;
+  const d = new Float64Array(m);
+  const res = Float64Array.from(g);
+  const zr = new Float64Array(m);
+  for (let j = 0; j < m; j++) zr[j] = res[j] / diag[j];
+  const dir = Float64Array.from(zr);
+  const hd = new Float64Array(m);
+  let rz = 0;
+  for (let j = 0; j < m; j++) rz += res[j] * zr[j];
+  for (let k = 0; k < maxSteps; k++) {
+    let rnorm = 0;
+    for (let j = 0; j < m; j++) rnorm += res[j] * res[j];
+    if (Math.sqrt(rnorm) <= tolerance) break;
+    times(dir, hd);
+    let dhd = 0;
+    for (let j = 0; j < m; j++) dhd += dir[j] * hd[j];
+    /* c8 ignore next -- H is positive definite; a non-positive curvature means rounding has taken over */
+    if (!(dhd > 0)) break;
+    const alpha = rz / dhd;
+    for (let j = 0; j < m; j++) {
+      d[j] += alpha * dir[j];
+      res[j] -= alpha * hd[j];
+      zr[j] = res[j] / diag[j];
+    }
+    let next = 0;
+    for (let j = 0; j < m; j++) next += res[j] * zr[j];
+    const beta = next / rz;
+    rz = next;
+    for (let j = 0; j < m; j++) dir[j] = zr[j] + beta * dir[j];
+  }
+  return d;
 }

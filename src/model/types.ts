@@ -15,11 +15,13 @@ export interface FitContext {
 /** One option of a model, as JSON Schema (2020-12) keywords: the single place its type, range and default live. */
 export interface OptionSpec {
   description: string;
-  type: 'number' | 'integer' | 'object';
+  type: 'number' | 'integer' | 'object' | 'string';
+  /** For a string option: the values it takes. */
+  enum?: string[];
   minimum?: number;
   maximum?: number;
   exclusiveMinimum?: number;
-  default?: number;
+  default?: number | string;
   additionalProperties?: { type: 'number'; minimum?: number; maximum?: number };
 }
 
