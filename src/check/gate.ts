@@ -8,7 +8,7 @@ import { isPinned } from '../protocol/types.js';
 import type { ValidationReport } from '../protocol/report.js';
 import { rawFingerprint, type ManifestCheck } from '../manifest/check.js';
 import { parseKeyLines } from '../manifest/ssh.js';
-import type { LockEntry, ParsedLock } from './lock.js';
+import { lockPosition, type LockEntry, type ParsedLock } from './lock.js';
 import { rowDigests } from '../table/row-digest.js';
 import { splitRules } from '../split/registry.js';
 
@@ -39,7 +39,7 @@ export function gate(g: GateInput): Problem[] {
   const lock = g.lock?.lock;
   const lockAt = (path: (string | number)[]) => ({
     file: g.lockFile,
-    position: g.lock?.source ? locate(g.lock.source, path, true) : undefined,
+    position: g.lock?.text ? lockPosition(g.lock.text, path) : undefined,
   });
   for (const s of g.protocols) if (inScope(s.path)) out.push(...s.report.problems);
 

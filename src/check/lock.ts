@@ -1,6 +1,5 @@
 /** foldseal.lock.json: what the team accepted for each protocol, plus sealed rows and policy. Pure. */
 import { error, type Problem } from '../problems/problem.js';
-import { parseYaml, type SourceDocument } from '../protocol/document.js';
 
 export const LOCK_FILE = 'foldseal.lock.json';
 export const LOCK_VERSION = 1;
@@ -44,16 +43,58 @@ export interface Lock {
 
 export interface ParsedLock {
   lock?: Lock;
-  source?: SourceDocument;
+  /** The lock's text, for the positions of findings (lockPosition). */
+  text?: string;
   problems: Problem[];
 }
 
+/** 1-based line and column of byte-free character offset `at` in `text`. */
+function lineCol(text: string, at: number): { line: number; col: number } {
+  let line = 1;
+  let start = 0;
+  for (let i = text.indexOf('\n'); i !== -1 && i < at; i = text.indexOf('\n', i + 1)) {
+    line++;
+    start = i + 1;
+  }
+  return { line, col: at - start + 1 };
+}
+
+/**
+ * Where a key path (e.g. ["protocols", "demo.yaml"]) is in the lock's text: each key is looked
+ * for after the previous one, as a JSON string followed by a colon. Linear in the text, and only
+ * run for the findings that are reported (the lock itself is read with JSON.parse: a 100,000-row
+ * lock is 2.5 MB, and a YAML parser with positions took minutes on it).
+ */
+export function lockPosition(text: string, path: readonly (string | number)[]): { line: number; col: number } | undefined {
+  let from = 0;
+  let found = -1;
+  for (const key of path) {
+    const re = new RegExp(`${JSON.stringify(String(key)).replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}\\s*:`, 'g');
+    re.lastIndex = from;
+    const m = re.exec(text);
+    if (!m) return undefined;
+    found = m.index;
+    from = m.index + m[0].length;
+  }
+  return found < 0 ? undefined : lineCol(text, found);
+}
+
 export function parseLock(text: string, file: string): ParsedLock {
-  // JSON is YAML: the YAML parser keeps positions for located findings.
-  const parsed = parseYaml(text, file);
-  if (parsed.problems.some((p) => p.severity === 'error'))
-    return { problems: parsed.problems.map((p) => ({ ...p, code: 'lock-corrupt', message: `the lock is not valid JSON: ${p.message}` })) };
-  const v = parsed.value as Lock | undefined;
+  let v: Lock | undefined;
+  try {
+    v = JSON.parse(text) as Lock;
+  } catch (e) {
+    const message = (e as Error).message;
+    const at = /position (\d+)/.exec(message);
+    return {
+      problems: [
+        error('lock-corrupt', `the lock is not valid JSON: ${message}`, {
+          file,
+          position: at ? lineCol(text, Number(at[1])) : { line: 1, col: 1 },
+        }),
+      ],
+    };
+  }
   const at = { file, position: { line: 1, col: 1 } };
   if (!v || typeof v !== 'object' || Array.isArray(v)) return { problems: [error('lock-corrupt', 'the lock is not a JSON object', at)] };
   if (v['foldseal-lock'] !== LOCK_VERSION)
@@ -68,7 +109,7 @@ export function parseLock(text: string, file: string): ParsedLock {
     };
   if (!v.protocols || typeof v.protocols !== 'object')
     return { problems: [error('lock-corrupt', 'the lock has no "protocols" object', at)] };
-  return { lock: v, source: parsed.source, problems: [] };
+  return { lock: v, text, problems: [] };
 }
 
 export function lockText(lock: Lock): string {
