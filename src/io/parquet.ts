@@ -5,7 +5,7 @@
  * with node:zlib; snappy is hyparquet's own; other codecs are reported.
  */
 import { brotliDecompressSync, gunzipSync } from 'node:zlib';
-import { parquetMetadata, parquetRead, type FileMetaData } from 'hyparquet';
+import type { FileMetaData } from 'hyparquet';
 import { error, type Problem } from '../problems/problem.js';
 import type { ColumnTable } from '../table/columns.js';
 import { decompressed } from './decompress.js';
@@ -36,6 +36,8 @@ export async function readParquet(
     bytes.buffer instanceof ArrayBuffer
       ? bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength)
       : Uint8Array.from(bytes).buffer;
+  // Loaded only for a Parquet file: the library costs every other run ~45 ms of start-up.
+  const { parquetMetadata } = await import('hyparquet');
   let metadata: FileMetaData;
   try {
     metadata = parquetMetadata(file);
@@ -73,6 +75,7 @@ async function decodeColumns(
     numeric[c] ? new Float64Array(rows).fill(Number.NaN) : new Array<string>(rows).fill(''),
   );
   if (!names.length) return columns;
+  const { parquetRead } = await import('hyparquet');
   await parquetRead({
     file,
     metadata,

@@ -92,7 +92,7 @@ t.test('a data hash computed on the second thread is checked like one computed h
 
 t.test('a permutation test on three threads scores every permutation as one thread does', async (t) => {
   // The impute step keeps these folds off the class-moment path, so the workers refit the pipeline row by row.
-  const withTest = onWorkers.replace('verify:', 'statistics: {permutation: {count: 24, seed: 9, metric: roc-auc}}\nverify:');
+  const withTest = onWorkers.replace('verify:', 'statistics: {permutation: {count: 12, seed: 9, metric: roc-auc}}\nverify:');
   const dir = tempDir({ 'p.yaml': withTest });
   for (const threads of ['1', '3']) {
     const r = run(threads, ['run', 'p.yaml', '--out', `res-${threads}`], dir);
@@ -101,5 +101,5 @@ t.test('a permutation test on three threads scores every permutation as one thre
   }
   const one = readFileSync(join(dir, 'res-1', 'results.json'), 'utf8');
   t.equal(readFileSync(join(dir, 'res-3', 'results.json'), 'utf8'), one, 'results.json identical');
-  t.equal(JSON.parse(one).statistics.permutation.count, 24);
+  t.equal(JSON.parse(one).statistics.permutation.count, 12);
 });

@@ -74,9 +74,7 @@ t.test('a gzipped features-in-rows matrix with a sample sheet runs end to end an
     });
   t.equal(compared, 569);
   t.ok(worst <= 1e-9, `largest out-of-fold probability difference from scikit-learn ${worst.toExponential(2)} ≤ 1e-9`);
-  const rerun = cli(['verify', 'res/manifest.json', '--rerun', '--allow-unsigned', '--allow-unpinned'], dir);
-  t.equal(rerun.code, 0, rerun.stderr + rerun.stdout);
-  t.match(rerun.stdout, /identical/);
+  // verify --rerun of such a run: in the end-to-end test below.
 });
 
 t.test('gzip is recognized by its bytes, not its name; a broken one is a located error', async (t) => {
