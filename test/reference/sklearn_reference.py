@@ -16,7 +16,7 @@ Mapping of foldseal's steps to the reference (scikit-learn's own names stay in t
   multinomial-nb        MultinomialNB(alpha=smoothing)
   bernoulli-nb          BernoulliNB(alpha=smoothing, binarize=threshold)
   logistic              LogisticRegression(C=1/l2, tol=1e-10, max_iter=10000; solver newton-cholesky
-                        for two classes, then 3 exact Newton steps; newton-cg for more classes)
+                        for two classes, lbfgs (multinomial) for more; then 3 exact Newton steps)
   knn                   KNeighborsClassifier(n_neighbors=k, algorithm="brute")
   shrunken-centroid     NumPy transcription of Tibshirani et al. (2002), PNAS 99:6567, eqs. 1-6
 """
@@ -90,7 +90,8 @@ class PolishedLogistic:
     gradient near 1e-8, which moves probabilities by ~1e-8 and would hide real differences.
     Two classes start from the newton-cholesky solver (exact Newton, new in scikit-learn 1.2;
     10 x faster here than newton-cg, which spends seconds on failed line searches); more
-    classes need newton-cg, the solver that fits the multinomial model."""
+    classes start from lbfgs (multinomial), then take three exact Newton steps of the
+    multinomial objective in NumPy."""
 
     def __init__(self, C):
         self.C = C
@@ -98,7 +99,7 @@ class PolishedLogistic:
     def fit(self, X, y):
         import warnings
         from sklearn.exceptions import ConvergenceWarning
-        solver = "newton-cholesky" if len(np.unique(y)) == 2 else "newton-cg"
+        solver = "newton-cholesky" if len(np.unique(y)) == 2 else "lbfgs"
         self.inner = LogisticRegression(C=self.C, solver=solver, tol=1e-10, max_iter=10000)
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", ConvergenceWarning)  # polished below, then compared at 1e-9
@@ -115,11 +116,41 @@ class PolishedLogistic:
                 H = self.C * (Z * (p * (1 - p))[:, None]).T @ Z + np.diag(ridge)
                 theta = theta - np.linalg.solve(H, g)
             self.theta = theta
+        else:
+            # Multinomial: exact Newton steps on C * sum(-log softmax) + 0.5 * ||W||^2 over the
+            # weights of every class and all intercepts but the last (fixed at 0: shifting every
+            # intercept by one constant changes no probability).
+            K, p = len(self.classes_), X.shape[1]
+            Y = (y[:, None] == self.classes_[None, :]).astype(float)
+            Z = np.hstack([X, np.ones((len(X), 1))])
+            B = np.hstack([self.inner.coef_, (self.inner.intercept_ - self.inner.intercept_[-1])[:, None]])
+            keep = np.ones(K * (p + 1), dtype=bool)
+            keep[-1] = False
+            ridge = np.tile(np.append(np.ones(p), 0.0), K)[keep]
+            for _ in range(3):
+                S = Z @ B.T
+                S -= S.max(axis=1, keepdims=True)
+                P = np.exp(S)
+                P /= P.sum(axis=1, keepdims=True)
+                g = (self.C * (P - Y).T @ Z).ravel()[keep] + ridge * B.ravel()[keep]
+                H = np.zeros((K * (p + 1), K * (p + 1)))
+                for a in range(K):
+                    for b in range(K):
+                        w = P[:, a] * ((a == b) - P[:, b])
+                        H[a * (p + 1):(a + 1) * (p + 1), b * (p + 1):(b + 1) * (p + 1)] = self.C * (Z * w[:, None]).T @ Z
+                H = H[np.ix_(keep, keep)] + np.diag(ridge)
+                step = np.zeros(K * (p + 1))
+                step[keep] = np.linalg.solve(H, g)
+                B = B - step.reshape(K, p + 1)
+            self.B = B
         return self
 
     def predict_proba(self, X):
         if len(self.classes_) != 2:
-            return self.inner.predict_proba(X)
+            S = np.hstack([X, np.ones((len(X), 1))]) @ self.B.T
+            S -= S.max(axis=1, keepdims=True)
+            P = np.exp(S)
+            return P / P.sum(axis=1, keepdims=True)
         p = 1 / (1 + np.exp(-(X @ self.theta[:-1] + self.theta[-1])))
         return np.column_stack([1 - p, p])
 
