@@ -129,10 +129,10 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     )
     .addOption(new Option('--tie <rule>', 'tie rule for majority-vote').choices(['mean-probability', 'abstain', 'class-order']))
     .addOption(
-      new Option('--layout <layout>', 'features-in-rows: one row per feature, one column per sample (default: samples-in-rows)').choices([
-        'samples-in-rows',
-        'features-in-rows',
-      ]),
+      new Option(
+        '--layout <layout>',
+        'samples-in-rows or features-in-rows (one row per feature, one column per sample); default: detected from the header',
+      ).choices(['samples-in-rows', 'features-in-rows']),
     )
     .addHelpText(
       'after',

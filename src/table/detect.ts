@@ -66,3 +66,20 @@ export function suspectColumns(g: Grid, candidates: readonly number[], missing: 
   }
   return out;
 }
+
+/**
+ * The layout of a table of new rows for models that read `features`: samples in rows when its
+ * header names a feature or the id column; features in rows when instead its first column names
+ * features. Undefined when neither holds (the reader then reports the missing columns).
+ */
+export function newRowsLayout(
+  header: readonly string[],
+  firstColumn: readonly string[],
+  features: readonly string[],
+  id: string | undefined,
+): 'samples-in-rows' | 'features-in-rows' | undefined {
+  const names = new Set(features);
+  if ((id !== undefined && header.includes(id)) || header.some((h) => names.has(h))) return 'samples-in-rows';
+  if (firstColumn.some((v) => names.has(v))) return 'features-in-rows';
+  return undefined;
+}

@@ -8,6 +8,7 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { gzipSync } from 'node:zlib';
 import t from 'tap';
+import { newRowsLayout } from '../../src/table/detect.js';
 import { cli, sha256, tempDir } from '../helpers.js';
 
 const csv = readFileSync(new URL('../reference/data/breast-cancer.csv', import.meta.url), 'utf8');
@@ -177,7 +178,8 @@ t.test('apply: held-back samples with only the features the fold models read, sc
     cols.map((c) => [header[c], ...heldBack.map((r) => r[c])].join('\t')).join('\n') +
     '\n';
   writeFileSync(join(dir, 'held-back.tsv.gz'), gzipSync(Buffer.from(fir)));
-  const b = cli(['apply', 'res', 'held-back.tsv.gz', '--layout', 'features-in-rows', '--out', 'applied-2.csv'], dir);
+  // The layout is detected (no --layout): the header names samples, the first column features.
+  const b = cli(['apply', 'res', 'held-back.tsv.gz', '--out', 'applied-2.csv'], dir);
   t.equal(b.code, 0, b.stderr);
   const strip = (lines: string[]) =>
     lines.map((l) =>
@@ -278,4 +280,12 @@ t.test('end to end with no hand step: init → validate → run → verify --rer
   const a = cli(['apply', 'res', 'batch3.csv', '--out', 'batch3-applied.csv'], dir);
   t.equal(a.code, 0, a.stderr);
   t.match(a.stderr, `scored on the new rows' own labels (column "diagnosis"): ${held.length - 1} rows`);
+});
+
+t.test('the layout of new rows, from their header and first column', async (t) => {
+  const f = ['mean_radius', 'mean_texture'];
+  t.equal(newRowsLayout(['id', 'mean_radius'], ['a'], f, 'id'), 'samples-in-rows');
+  t.equal(newRowsLayout(['sample', 'x'], ['a'], f, 'sample'), 'samples-in-rows', 'the id column alone says samples in rows');
+  t.equal(newRowsLayout(['feature', 'S1', 'S2'], ['mean_texture', 'other'], f, 'sample'), 'features-in-rows');
+  t.equal(newRowsLayout(['a', 'b'], ['c'], f, undefined), undefined);
 });

@@ -11,6 +11,10 @@ import { MODELS_VERSION, neededFeatures, type ModelsFile } from '../../reconcile
 import { tiePossible } from '../../reconcile/reconcile.js';
 import type { DataLayout, ReconcileRule, TieRule } from '../../protocol/types.js';
 import { tableContent } from '../../io/parquet.js';
+import type { ColumnTable } from '../../table/columns.js';
+import { readDelimited, textColumn } from '../../table/delimited.js';
+import { newRowsLayout } from '../../table/detect.js';
+import { delimiterFor } from '../../table/load.js';
 import { scoreNewRows, type NewRowScores } from '../../reconcile/new-row-scores.js';
 import { newRowScoreLines } from '../cv-table.js';
 import { newRowsFromBytes } from '../../table/new-rows.js';
@@ -74,7 +78,7 @@ export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<Exit
   const nr = newRowsFromBytes(plain.content, shown(args.table), saved.features, saved.id ?? undefined, saved.missing, {
     known: saved['known-columns'],
     needed: neededFeatures(saved, rule),
-    layout: args.layout,
+    layout: args.layout ?? detectLayout(plain.content, shown(args.table), saved.features, saved.id ?? undefined),
     label,
   });
   if (nr.rows)
@@ -141,4 +145,25 @@ export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<Exit
   io.err(disagreementReport(rows, saved.classes));
   if (scores) io.err(newRowScoreLines(scores, label));
   return 0;
+}
+
+/** The layout of a new-rows table when --layout is not given: from its header and first column. */
+function detectLayout(
+  content: Uint8Array | ColumnTable,
+  file: string,
+  features: readonly string[],
+  id: string | undefined,
+): DataLayout | undefined {
+  let header: string[];
+  let first: string[];
+  if (content instanceof Uint8Array) {
+    const read = readDelimited(content, delimiterFor(file), file);
+    if (!read.table) return undefined;
+    header = read.table.header;
+    first = textColumn(read.table, 0);
+  } else {
+    header = content.names;
+    first = content.columns[0] instanceof Float64Array ? [] : content.columns[0];
+  }
+  return newRowsLayout(header, first, features, id);
 }
