@@ -203,38 +203,22 @@ function newton(
     if (step === null) throw new FitError('logistic-singular', 'logistic: the Newton system is singular');
     let decrement = 0;
     for (let i = 0; i < dim; i++) decrement += g[i] * step[i];
-    if (!Number.isFinite(loss) || !Number.isFinite(decrement))
-      throw new FitError(
-        'logistic-non-finite',
-        'logistic: the loss or its gradient is not finite (feature values too large for the model to compute with)',
-        'rescale the features (standardize, or log2p)',
-      );
+    checkFinite(loss, decrement);
     if (decrement / 2 <= tolerance * (1 + loss)) {
       if (polished) break;
       polished = true;
     }
-    if (iterations >= maxIterations) {
-      throw new FitError(
-        'logistic-no-convergence',
-        `logistic did not converge in ${maxIterations} Newton steps (the next step would still lower the objective by ` +
-          `${(decrement / 2).toExponential(3)}, more than tolerance × (1 + objective) = ${(tolerance * (1 + loss)).toExponential(3)})`,
-        l2 === 0 ? 'the classes may be separable; set model.options.l2 above 0' : 'raise model.options.max-iterations or tolerance',
-      );
-    }
-    const candidate = new Float64Array(theta.length);
-    let decreased = false;
-    // Inside the tolerance the full Newton step is taken as is: the loss change is then below
-    // rounding, so a line search could not tell a good step from a bad one.
-    if (polished) {
-      unpack(theta, step, -1, candidate, blocks, width, C);
-      decreased = true;
-    }
-    for (let t = 1, tries = 0; tries < 60 && !decreased; tries++, t /= 2) {
-      unpack(theta, step, -t, candidate, blocks, width, C);
-      if (evaluate(candidate, false).loss <= loss - 1e-4 * t * decrement) decreased = true;
-    }
+    if (iterations >= maxIterations) throw noConvergence(maxIterations, decrement, loss, tolerance, l2);
+    const candidate = lineSearch(
+      theta.length,
+      polished,
+      loss,
+      decrement,
+      (t, out) => unpack(theta, step, -t, out, blocks, width, C),
+      (c) => evaluate(c, false).loss,
+    );
     // No step lowers the loss any more: we are at the floating-point floor of the optimum.
-    if (!decreased) break;
+    if (!candidate) break;
     theta.set(candidate);
     iterations++;
   }
@@ -570,12 +554,7 @@ function newtonCg(
     let step = conjugateGradients(hessianTimes, g, diag, eta * gnorm, inner);
     let decrement = 0;
     for (let j = 0; j <= p; j++) decrement += g[j] * step[j];
-    if (!Number.isFinite(loss) || !Number.isFinite(decrement))
-      throw new FitError(
-        'logistic-non-finite',
-        'logistic: the loss or its gradient is not finite (feature values too large for the model to compute with)',
-        'rescale the features (standardize, or log2p)',
-      );
+    checkFinite(loss, decrement);
     if (decrement / 2 <= tolerance * (1 + loss)) {
       if (polished) break;
       polished = true;
@@ -584,24 +563,18 @@ function newtonCg(
       decrement = 0;
       for (let j = 0; j <= p; j++) decrement += g[j] * step[j];
     }
-    if (iterations >= maxIterations)
-      throw new FitError(
-        'logistic-no-convergence',
-        `logistic did not converge in ${maxIterations} Newton steps (the next step would still lower the objective by ` +
-          `${(decrement / 2).toExponential(3)}, more than tolerance × (1 + objective) = ${(tolerance * (1 + loss)).toExponential(3)})`,
-        l2 === 0 ? 'the classes may be separable; set model.options.l2 above 0' : 'raise model.options.max-iterations or tolerance',
-      );
-    const candidate = new Float64Array(width);
-    let decreased = false;
-    if (polished) {
-      for (let j = 0; j <= p; j++) candidate[j] = theta[j] - step[j];
-      decreased = true;
-    }
-    for (let t = 1, tries = 0; tries < 60 && !decreased; tries++, t /= 2) {
-      for (let j = 0; j <= p; j++) candidate[j] = theta[j] - t * step[j];
-      if (evaluate(candidate, false).loss <= loss - 1e-4 * t * decrement) decreased = true;
-    }
-    if (!decreased) break;
+    if (iterations >= maxIterations) throw noConvergence(maxIterations, decrement, loss, tolerance, l2);
+    const candidate = lineSearch(
+      width,
+      polished,
+      loss,
+      decrement,
+      (t, out) => {
+        for (let k = 0; k <= p; k++) out[k] = theta[k] - t * step[k];
+      },
+      (c) => evaluate(c, false).loss,
+    );
+    if (!candidate) break;
     theta.set(candidate);
     iterations++;
   }
@@ -650,4 +623,48 @@ function conjugateGradients(
     for (let j = 0; j < m; j++) dir[j] = zr[j] + beta * dir[j];
   }
   return d;
+}
+
+function checkFinite(loss: number, decrement: number): void {
+  if (!Number.isFinite(loss) || !Number.isFinite(decrement))
+    throw new FitError(
+      'logistic-non-finite',
+      'logistic: the loss or its gradient is not finite (feature values too large for the model to compute with)',
+      'rescale the features (standardize, or log2p)',
+    );
+}
+
+function noConvergence(maxIterations: number, decrement: number, loss: number, tolerance: number, l2: number): FitError {
+  return new FitError(
+    'logistic-no-convergence',
+    `logistic did not converge in ${maxIterations} Newton steps (the next step would still lower the objective by ` +
+      `${(decrement / 2).toExponential(3)}, more than tolerance × (1 + objective) = ${(tolerance * (1 + loss)).toExponential(3)})`,
+    l2 === 0 ? 'the classes may be separable; set model.options.l2 above 0' : 'raise model.options.max-iterations or tolerance',
+  );
+}
+
+/**
+ * The point to move to: once polishing, the full step as is (the loss change is then below
+ * rounding, so a line search could not tell a good step from a bad one); otherwise the first of
+ * t = 1, ½, ¼, … whose loss falls by at least 1e-4·t·λ² (Armijo). Null when none does: the
+ * floating-point floor of the optimum.
+ */
+function lineSearch(
+  size: number,
+  polished: boolean,
+  loss: number,
+  decrement: number,
+  move: (t: number, out: Float64Array) => void,
+  lossAt: (candidate: Float64Array) => number,
+): Float64Array | null {
+  const candidate = new Float64Array(size);
+  if (polished) {
+    move(1, candidate);
+    return candidate;
+  }
+  for (let t = 1, tries = 0; tries < 60; tries++, t /= 2) {
+    move(t, candidate);
+    if (lossAt(candidate) <= loss - 1e-4 * t * decrement) return candidate;
+  }
+  return null;
 }
