@@ -1,7 +1,7 @@
 /** Test fixtures: temporary folders with data and protocols, and a runner for the built binary. */
 import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
-import { mkdtempSync, mkdirSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -52,4 +52,14 @@ export function protocolText(csv: string, overrides: Partial<Record<'split' | 'm
       overrides.extra ?? '',
     ].join('\n') + '\n'
   );
+}
+
+/** A table of test/reference/data/ as text and as cells (header, then rows): the open datasets the tests read. */
+export function referenceTable(name: string): { csv: string; header: string[]; body: string[][] } {
+  const csv = readFileSync(join(root, 'test', 'reference', 'data', name), 'utf8');
+  const lines = csv
+    .trimEnd()
+    .split('\n')
+    .map((l) => l.split(','));
+  return { csv, header: lines[0], body: lines.slice(1) };
 }

@@ -9,16 +9,10 @@ import { join } from 'node:path';
 import { gzipSync } from 'node:zlib';
 import t from 'tap';
 import { newRowsLayout } from '../../src/table/detect.js';
-import { cli, sha256, tempDir } from '../helpers.js';
+import { cli, referenceTable, sha256, tempDir } from '../helpers.js';
 
-const csv = readFileSync(new URL('../reference/data/breast-cancer.csv', import.meta.url), 'utf8');
+const { header, body } = referenceTable('breast-cancer.csv');
 const ref = JSON.parse(readFileSync(new URL('../reference/fixtures/breast-cancer-ftest-gaussian-nb.json', import.meta.url), 'utf8'));
-const lines = csv
-  .trimEnd()
-  .split('\n')
-  .map((l) => l.split(','));
-const header = lines[0];
-const body = lines.slice(1);
 const label = header.indexOf('diagnosis');
 const features = header.map((_, c) => c).filter((c) => c !== 0 && c !== label);
 // Features in rows: first column the feature name, then one column per sample, the header naming the samples.

@@ -8,7 +8,7 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { join } from 'node:path';
 import t from 'tap';
-import { cli, sha256, tempDir } from '../helpers.js';
+import { cli, referenceTable, sha256, tempDir } from '../helpers.js';
 import { isParquet, readParquet } from '../../src/io/parquet.js';
 import { tableFromLayout } from '../../src/table/load.js';
 
@@ -18,13 +18,7 @@ const require = createRequire(import.meta.url);
 const pq = require('parquet-wasm/node');
 const arrow = require('apache-arrow');
 
-const csv = readFileSync(new URL('../reference/data/breast-cancer.csv', import.meta.url), 'utf8');
-const lines = csv
-  .trimEnd()
-  .split('\n')
-  .map((l) => l.split(','));
-const header = lines[0];
-const body = lines.slice(1);
+const { csv, header, body } = referenceTable('breast-cancer.csv');
 
 function parquet(compression: number, options: { nulls?: boolean; dictionary?: boolean } = {}): Uint8Array {
   const columns: Record<string, unknown> = {};
