@@ -5,6 +5,7 @@ import type { CommandIo, ExitCode } from './io.js';
 import { showAllProblems } from './report-problems.js';
 // Commands load when chosen: a quick `validate` does not pay for the runner and the signer.
 import type { DataLayout, ReconcileRule, TieRule } from '../protocol/types.js';
+import type { InitArgs } from './commands/init.js';
 
 export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Command {
   const program = new Command('foldseal')
@@ -70,22 +71,8 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
         '  foldseal init expr.tsv.gz --samples samples.csv --id sample --label cell_type --where cell_type=B,T\n\n' +
         'Numeric-looking codes, ids and covariates (age, batch, …) are left out of the features, with a note.',
     )
-    .action(
-      async (
-        data: string,
-        o: {
-          label: string;
-          id?: string;
-          group?: string;
-          out?: string;
-          force?: boolean;
-          samples?: string;
-          exclude?: string[];
-          positive?: string;
-          where?: string[];
-          class?: string[];
-        },
-      ) => done(await (await import('./commands/init.js')).initCommand({ data, ...o }, io)),
+    .action(async (data: string, o: Omit<InitArgs, 'data'>) =>
+      done(await (await import('./commands/init.js')).initCommand({ data, ...o }, io)),
     );
 
   program

@@ -8,7 +8,6 @@ import { brotliDecompressSync, gunzipSync } from 'node:zlib';
 import type { FileMetaData } from 'hyparquet';
 import { error, type Problem } from '../problems/problem.js';
 import type { ColumnTable } from '../table/columns.js';
-import { decompressed } from './decompress.js';
 
 export function isParquet(bytes: Uint8Array): boolean {
   const n = bytes.length;
@@ -97,17 +96,4 @@ async function decodeColumns(
     },
   });
   return columns;
-}
-
-/** A table file's content as foldseal reads it: gzip decompressed, Parquet decoded. */
-export async function tableContent(
-  bytes: Uint8Array,
-  shownAs: string,
-  where: Partial<Problem> = {},
-): Promise<{ content: Uint8Array | ColumnTable; problem?: undefined } | { problem: Problem }> {
-  const text = decompressed(bytes, shownAs, where);
-  if (text.problem) return text;
-  if (!isParquet(text.bytes)) return { content: text.bytes };
-  const pq = await readParquet(text.bytes, shownAs, where);
-  return pq.problem ? pq : { content: pq.table };
 }

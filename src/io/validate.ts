@@ -13,7 +13,7 @@ import { checkAgainstData } from '../protocol/semantic.js';
 import { isPinned, type Protocol, type RuleSplit } from '../protocol/types.js';
 import { splitRules } from '../split/registry.js';
 import { tableFromBytes, tableFromLayout, type SheetInput } from '../table/load.js';
-import { tableContent } from './parquet.js';
+import { tableContent } from './table-content.js';
 import type { ColumnTable } from '../table/columns.js';
 import { knownColumns } from '../protocol/known-columns.js';
 import { newRowsFromBytes, type NewRows } from '../table/new-rows.js';

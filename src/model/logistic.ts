@@ -244,40 +244,12 @@ function binaryLossGradHess(X: Matrix, columns: Float64Array, y: Int32Array, the
   const n = X.rows;
   const p = X.cols;
   const width = p + 1;
-  const z = new Float64Array(n).fill(theta[p]);
-  for (let j = 0; j < p; j++) {
-    const w = theta[j];
-    if (w === 0) continue;
-    const o = j * n;
-    for (let i = 0; i < n; i++) z[i] += w * columns[o + i];
-  }
-  let loss = 0;
   const r = withDerivatives ? new Float64Array(n) : undefined;
   const v = withDerivatives ? new Float64Array(n) : undefined;
-  for (let i = 0; i < n; i++) {
-    const zi = z[i];
-    const t = y[i] === 1 ? 1 : 0;
-    // log(1 + e^z) − t·z, computed stably
-    loss += (zi > 0 ? zi + Math.log1p(Math.exp(-zi)) : Math.log1p(Math.exp(zi))) - t * zi;
-    if (withDerivatives) {
-      const q = 1 / (1 + Math.exp(-zi));
-      r![i] = q - t;
-      v![i] = q * (1 - q);
-    }
-  }
-  for (let j = 0; j < p; j++) loss += 0.5 * l2 * theta[j] * theta[j];
+  const loss = binaryLoss(columns, y, theta, l2, n, p, new Float64Array(n), r, v);
   if (!withDerivatives) return { loss, grad: new Float64Array(0), hess: undefined };
-  const grad = new Float64Array(width);
+  const grad = binaryGradient(columns, r!, theta, l2, n, p);
   const hess = new Float64Array(width * width);
-  for (let a = 0; a < p; a++) {
-    const oa = a * n;
-    let ga = 0;
-    for (let i = 0; i < n; i++) ga += r![i] * columns[oa + i];
-    grad[a] = ga + l2 * theta[a];
-  }
-  let gi = 0;
-  for (let i = 0; i < n; i++) gi += r![i];
-  grad[p] = gi;
   // XᵀVX in blocks of rows, so the block's columns stay in cache while every pair is summed; four
   // columns at a time share each load of v·x_a. The intercept is the last column, all ones.
   const BLOCK = 1024;
@@ -485,34 +457,8 @@ function newtonCg(
   const v = new Float64Array(n);
   const r = new Float64Array(n);
   const evaluate = (t: Float64Array, derivatives: boolean): { loss: number; grad?: Float64Array } => {
-    z.fill(t[p]);
-    for (let j = 0; j < p; j++) {
-      const w = t[j];
-      if (w === 0) continue;
-      const o = j * n;
-      for (let i = 0; i < n; i++) z[i] += w * columns[o + i];
-    }
-    let loss = 0;
-    for (let i = 0; i < n; i++) {
-      const zi = z[i];
-      const target = yl[i] === 1 ? 1 : 0;
-      loss += (zi > 0 ? zi + Math.log1p(Math.exp(-zi)) : Math.log1p(Math.exp(zi))) - target * zi;
-      if (derivatives) {
-        const q = 1 / (1 + Math.exp(-zi));
-        r[i] = q - target;
-        v[i] = q * (1 - q);
-      }
-    }
-    for (let j = 0; j < p; j++) loss += 0.5 * l2 * t[j] * t[j];
-    if (!derivatives) return { loss };
-    const grad = new Float64Array(width);
-    for (let j = 0; j <= p; j++) {
-      const o = j * n;
-      let s = 0;
-      for (let i = 0; i < n; i++) s += r[i] * columns[o + i];
-      grad[j] = s + (j < p ? l2 * t[j] : 0);
-    }
-    return { loss, grad };
+    const loss = binaryLoss(columns, yl, t, l2, n, p, z, derivatives ? r : undefined, derivatives ? v : undefined);
+    return derivatives ? { loss, grad: binaryGradient(columns, r, t, l2, n, p) } : { loss };
   };
   const xv = new Float64Array(n);
   const hessianTimes = (d: Float64Array, out: Float64Array) => {
@@ -667,4 +613,55 @@ function lineSearch(
     if (lossAt(candidate) <= loss - 1e-4 * t * decrement) return candidate;
   }
   return null;
+}
+
+/**
+ * Two classes: the scores z = Xθ (columns contiguous, the intercept last), the penalized loss
+ * Σ log(1 + e^z) − t·z + l2/2·‖w‖², and, when r and v are given, the residuals q − t and the
+ * weights q(1 − q) of every row.
+ */
+function binaryLoss(
+  columns: Float64Array,
+  y: Int32Array,
+  theta: Float64Array,
+  l2: number,
+  n: number,
+  p: number,
+  z: Float64Array,
+  r?: Float64Array,
+  v?: Float64Array,
+): number {
+  z.fill(theta[p]);
+  for (let j = 0; j < p; j++) {
+    const w = theta[j];
+    if (w === 0) continue;
+    const o = j * n;
+    for (let i = 0; i < n; i++) z[i] += w * columns[o + i];
+  }
+  let loss = 0;
+  for (let i = 0; i < n; i++) {
+    const zi = z[i];
+    const t = y[i] === 1 ? 1 : 0;
+    // log(1 + e^z) − t·z, computed stably
+    loss += (zi > 0 ? zi + Math.log1p(Math.exp(-zi)) : Math.log1p(Math.exp(zi))) - t * zi;
+    if (r) {
+      const q = 1 / (1 + Math.exp(-zi));
+      r[i] = q - t;
+      v![i] = q * (1 - q);
+    }
+  }
+  for (let j = 0; j < p; j++) loss += 0.5 * l2 * theta[j] * theta[j];
+  return loss;
+}
+
+/** Two classes: the gradient Xᵀr + l2·w (the intercept unpenalized; its column is all ones). */
+function binaryGradient(columns: Float64Array, r: Float64Array, theta: Float64Array, l2: number, n: number, p: number): Float64Array {
+  const grad = new Float64Array(p + 1);
+  for (let j = 0; j <= p; j++) {
+    const o = j * n;
+    let s = 0;
+    for (let i = 0; i < n; i++) s += r[i] * columns[o + i];
+    grad[j] = s + (j < p ? l2 * theta[j] : 0);
+  }
+  return grad;
 }

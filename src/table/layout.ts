@@ -155,21 +155,29 @@ export function joinedGrid(m: Grid, s: Grid, j: JoinSettings): JoinResult {
     text: (r, c) => (c < mw ? m.text(kept[r], c) : s.text(keptSheet[r], carried[c - mw])),
     number: (r, c) => (c < mw ? m.number(kept[r], c) : s.number(keptSheet[r], carried[c - mw])),
     position: (r, c) => (c < mw ? m.position(kept[r], c) : { ...s.position(keptSheet[r], carried[c - mw]), file: j.sheetFile }),
-    extract(numberCols, textCols): Extracted {
-      const width = numberCols.length;
-      const numbers = new Float64Array(rows * width);
-      const failed: number[] = [];
-      for (let r = 0; r < rows; r++) {
-        for (let k = 0; k < width; k++) {
-          const v = this.number(r, numberCols[k]);
-          if (v !== v) failed.push(r * width + k);
-          numbers[r * width + k] = v;
-        }
-      }
-      return { numbers, failed, texts: textCols.map((c) => Array.from({ length: rows }, (_, r) => this.text(r, c))) };
-    },
+    extract: (numberCols, textCols) => extractCells(rows, grid.number, grid.text, numberCols, textCols),
   };
   return { grid, problems, matrixOnly, sheetOnly };
+}
+
+/** One pass of a grid built over another: every row's number cells, then the text columns (Grid.extract). */
+function extractCells(
+  rows: number,
+  number: (r: number, c: number) => number,
+  text: (r: number, c: number) => string,
+  numberCols: readonly number[],
+  textCols: readonly number[],
+): Extracted {
+  const width = numberCols.length;
+  const numbers = new Float64Array(rows * width);
+  const failed: number[] = [];
+  for (let r = 0; r < rows; r++)
+    for (let k = 0; k < width; k++) {
+      const v = number(r, numberCols[k]);
+      if (v !== v) failed.push(r * width + k);
+      numbers[r * width + k] = v;
+    }
+  return { numbers, failed, texts: textCols.map((c) => Array.from({ length: rows }, (_, r) => text(r, c))) };
 }
 
 /** The rows of `g` listed in `rows`, in that order. */
@@ -181,18 +189,14 @@ export function rowsOf(g: Grid, rows: Int32Array): Grid {
     text: (r, c) => g.text(rows[r], c),
     number: (r, c) => g.number(rows[r], c),
     position: (r, c) => g.position(rows[r], c),
-    extract(numberCols, textCols) {
-      const width = numberCols.length;
-      const numbers = new Float64Array(rows.length * width);
-      const failed: number[] = [];
-      for (let r = 0; r < rows.length; r++)
-        for (let k = 0; k < width; k++) {
-          const v = g.number(rows[r], numberCols[k]);
-          if (v !== v) failed.push(r * width + k);
-          numbers[r * width + k] = v;
-        }
-      return { numbers, failed, texts: textCols.map((c) => Array.from({ length: rows.length }, (_, r) => g.text(rows[r], c))) };
-    },
+    extract: (numberCols, textCols) =>
+      extractCells(
+        rows.length,
+        (r, c) => g.number(rows[r], c),
+        (r, c) => g.text(rows[r], c),
+        numberCols,
+        textCols,
+      ),
   };
 }
 

@@ -10,7 +10,7 @@ import { knownIdProblems } from '../../reconcile/known-ids.js';
 import { MODELS_VERSION, neededFeatures, type ModelsFile } from '../../reconcile/models-file.js';
 import { tiePossible } from '../../reconcile/reconcile.js';
 import type { DataLayout, ReconcileRule, TieRule } from '../../protocol/types.js';
-import { tableContent } from '../../io/parquet.js';
+import { tableContent } from '../../io/table-content.js';
 import type { ColumnTable } from '../../table/columns.js';
 import { readDelimited, textColumn } from '../../table/delimited.js';
 import { newRowsLayout } from '../../table/detect.js';

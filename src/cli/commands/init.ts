@@ -1,5 +1,5 @@
 import { basename, dirname, relative, resolve } from 'node:path';
-import { tableContent } from '../../io/parquet.js';
+import { tableContent } from '../../io/table-content.js';
 import { readBytes } from '../../io/files.js';
 import { writeOutputFile } from '../../io/output-file.js';
 import { protocolPolicy } from '../../io/path-policy.js';
