@@ -6,7 +6,7 @@ import { cli, root, tempDir } from '../helpers.js';
 const demoNew = join(root, 'protocols', 'data', 'seedlings-new.csv');
 const dir = tempDir();
 const res = join(dir, 'res');
-const run = cli(['run', 'protocols/demo.yaml', '--out', res, '--refit'], root);
+const run = await cli(['run', 'protocols/demo.yaml', '--out', res, '--refit'], root);
 
 t.test('run on the demo writes models.json and applied.csv with held-out and folds rows', async (t) => {
   t.equal(run.code, 0, run.stderr);
@@ -32,17 +32,17 @@ t.test('run on the demo writes models.json and applied.csv with held-out and fol
 });
 
 t.test("apply reproduces run's applied.csv byte for byte from models.json", async (t) => {
-  const r = cli(['apply', res, demoNew, '--out', join(dir, 'again.csv')]);
+  const r = await cli(['apply', res, demoNew, '--out', join(dir, 'again.csv')]);
   t.equal(r.code, 0, r.stderr);
   t.equal(readFileSync(join(dir, 'again.csv'), 'utf8'), readFileSync(join(res, 'applied.csv'), 'utf8'));
   t.notMatch(r.stderr, 'warning', 'columns the protocol knows about are not reported');
-  const stdout = cli(['apply', res, demoNew]);
+  const stdout = await cli(['apply', res, demoNew]);
   t.equal(stdout.stdout, readFileSync(join(res, 'applied.csv'), 'utf8'));
 });
 
 t.test('apply with another rule records it in a header comment and a sidecar', async (t) => {
   const out = join(dir, 'refit.csv');
-  const r = cli(['apply', res, demoNew, '--rule', 'refit', '--out', out]);
+  const r = await cli(['apply', res, demoNew, '--rule', 'refit', '--out', out]);
   t.equal(r.code, 0, r.stderr);
   const text = readFileSync(out, 'utf8');
   t.equal(text.split('\n')[0], '# foldseal apply: rule refit (the protocol declares mean-probability)');
@@ -50,17 +50,17 @@ t.test('apply with another rule records it in a header comment and a sidecar', a
   t.ok(text.includes(',held-out,'), 'known rows keep their held-out values');
   const sidecar = JSON.parse(readFileSync(`${out}.json`, 'utf8'));
   t.same([sidecar.rule, sidecar['protocol-rule']], ['refit', 'mean-probability']);
-  const vote = cli(['apply', res, demoNew, '--rule', 'majority-vote']);
+  const vote = await cli(['apply', res, demoNew, '--rule', 'majority-vote']);
   t.equal(vote.code, 2);
   t.match(vote.stderr, 'error: majority-vote over 10 fold models and 2 classes can tie');
-  t.equal(cli(['apply', res, demoNew, '--rule', 'majority-vote', '--tie', 'class-order']).code, 0);
+  t.equal((await cli(['apply', res, demoNew, '--rule', 'majority-vote', '--tie', 'class-order'])).code, 0);
 });
 
 function broken(name: string, setup: (d: string) => string[], expected: string, code = 1) {
   t.test(`apply refuses: ${name}`, async (t) => {
     const d = tempDir();
     for (const f of ['results.json', 'models.json', 'predictions.csv']) copyFileSync(join(res, f), join(d, f));
-    const r = cli(['apply', d, ...setup(d)]);
+    const r = await cli(['apply', d, ...setup(d)]);
     t.equal(r.code, code, r.stderr);
     t.match(r.stderr, expected);
   });
@@ -126,7 +126,7 @@ t.test('run with reconcile rule refit writes refit rows; majority-vote without a
     `file: ${join(root, 'protocols', 'data')}/`,
   );
   writeFileSync(join(d, 'refit.yaml'), demo.replace('rule: mean-probability', 'rule: refit'));
-  const r = cli(['run', 'refit.yaml', '--out', 'res', '--allow-outside'], d);
+  const r = await cli(['run', 'refit.yaml', '--out', 'res', '--allow-outside'], d);
   t.equal(r.code, 0, r.stderr);
   const sources = readFileSync(join(d, 'res', 'applied.csv'), 'utf8')
     .trimEnd()
@@ -136,7 +136,7 @@ t.test('run with reconcile rule refit writes refit rows; majority-vote without a
   t.same([...new Set(sources)].sort(), ['held-out', 'refit']);
   t.ok(JSON.parse(readFileSync(join(d, 'res', 'models.json'), 'utf8')).refit, 'the refit model is saved');
   writeFileSync(join(d, 'vote.yaml'), demo.replace('rule: mean-probability', 'rule: majority-vote'));
-  const v = cli(['validate', 'vote.yaml', '--allow-outside'], d);
+  const v = await cli(['validate', 'vote.yaml', '--allow-outside'], d);
   t.equal(v.code, 1);
   t.match(v.stderr, /vote\.yaml:\d+:9: error: majority-vote over 10 fold models and 2 classes can tie, and reconcile\.tie is not set/);
   t.match(v.stderr, 'hint: add `tie: mean-probability`, `tie: abstain` or `tie: class-order`');

@@ -1,8 +1,10 @@
-/** Runs cases of the bad-input table: exit code, message, no stack trace, no hang, no partial output. */
-import { spawnSync } from 'node:child_process';
+/**
+ * Runs cases of the bad-input table in this process (the binary's own entry is covered by
+ * test/cli/run.test.ts): exit code, message, no stack trace, no hang, no partial output.
+ */
 import { existsSync, readdirSync } from 'node:fs';
 import t from 'tap';
-import { bin, tempDir } from '../helpers.js';
+import { cli, tempDir } from '../helpers.js';
 import type { BadInput } from './bad-inputs.cases.js';
 
 export function runBadInputs(cases: readonly BadInput[]): void {
@@ -12,15 +14,10 @@ export function runBadInputs(cases: readonly BadInput[]): void {
       c.setup?.(dir);
       const before = new Set(readdirSync(dir));
       const started = Date.now();
-      const r = spawnSync(process.execPath, [bin, ...c.args], {
-        cwd: dir,
-        encoding: 'utf8',
-        timeout: 10_000,
-        env: { ...process.env, NO_COLOR: '1' },
-      });
-      t.ok(Date.now() - started < 10_000 && r.signal === null, 'finishes within 10 s');
+      const r = await cli(c.args, dir);
+      t.ok(Date.now() - started < 10_000, 'finishes within 10 s');
       const text = r.stderr + r.stdout;
-      t.equal(r.status, c.exit, `exit ${c.exit}: ${text.slice(0, 400)}`);
+      t.equal(r.code, c.exit, `exit ${c.exit}: ${text.slice(0, 400)}`);
       t.notMatch(text, /internal error|\n\s+at .*:\d+:\d+\)?\n/, 'no stack trace');
       t.match(text, c.match);
       if (c.exit !== 0) {

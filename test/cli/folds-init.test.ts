@@ -10,7 +10,7 @@ t.test('folds writes the id,repeat,fold CSV sorted by repeat then id bytes, and 
     'data.csv': csv,
     'p.yaml': protocolText(csv, { split: 'split: {rule: stratified-kfold, folds: 4, repeats: 2, seed: 3}' }),
   });
-  const r = cli(['folds', 'p.yaml'], dir);
+  const r = await cli(['folds', 'p.yaml'], dir);
   t.equal(r.code, 0, r.stderr);
   const lines = r.stdout.trimEnd().split('\n');
   t.equal(lines[0], 'id,repeat,fold');
@@ -20,7 +20,7 @@ t.test('folds writes the id,repeat,fold CSV sorted by repeat then id bytes, and 
   t.match(r.stderr, 'split-v1: 20 ids, 2 repeats, 4 folds');
   t.match(r.stderr, /repeat\s+fold\s+rows\s+n\[x\]\s+n\[y\]/);
   t.match(r.stderr, 'fold sizes: 5 to 5 rows');
-  const out = cli(['folds', 'p.yaml', '--out', 'f.csv'], dir);
+  const out = await cli(['folds', 'p.yaml', '--out', 'f.csv'], dir);
   t.equal(out.code, 0);
   t.equal(readFileSync(join(dir, 'f.csv'), 'utf8'), r.stdout);
   t.match(out.stderr, 'wrote f.csv');
@@ -28,7 +28,7 @@ t.test('folds writes the id,repeat,fold CSV sorted by repeat then id bytes, and 
 
 t.test('holdout folds are labelled test and train', async (t) => {
   const dir = tempDir({ 'data.csv': csv, 'p.yaml': protocolText(csv, { split: 'split: {rule: holdout, test-fraction: 0.25, seed: 3}' }) });
-  const r = cli(['folds', 'p.yaml'], dir);
+  const r = await cli(['folds', 'p.yaml'], dir);
   t.equal(r.code, 0, r.stderr);
   t.match(r.stderr, /1\s+test\s+6\s+3\s+3/);
   t.match(r.stderr, /1\s+train\s+14\s+7\s+7/);
@@ -41,7 +41,7 @@ function pinnedCase(name: string, pinned: string, expected: string[], hash?: str
       'f.csv': pinned,
       'p.yaml': protocolText(csv, { split: `split:\n  pinned: {file: f.csv, sha256: "${hash ?? sha256(pinned)}"}` }),
     });
-    const r = cli(['validate', 'p.yaml'], dir);
+    const r = await cli(['validate', 'p.yaml'], dir);
     t.equal(r.code, 1);
     for (const e of expected) t.ok(r.stderr.split('\n').includes(e), `${e}\n--- got:\n${r.stderr}`);
   });
@@ -73,21 +73,21 @@ t.test('a valid pinned file is used as the assignment', async (t) => {
     'f.csv': pinned,
     'p.yaml': protocolText(csv, { split: `split:\n  pinned: {file: f.csv, sha256: "${sha256(pinned)}"}` }),
   });
-  const r = cli(['folds', 'p.yaml'], dir);
+  const r = await cli(['folds', 'p.yaml'], dir);
   t.equal(r.code, 0, r.stderr);
   t.equal(r.stdout.split('\n').filter((l) => l.endsWith(',1,1')).length, 10);
 });
 
 t.test('init writes a protocol that validates as is, and refuses to overwrite', async (t) => {
   const dir = tempDir({ 'data/trial.csv': csv });
-  const missing = cli(['init', 'data/trial.csv', '--label', 'label', '--id', 'id', '--out', 'protocols/trial.yaml'], dir);
+  const missing = await cli(['init', 'data/trial.csv', '--label', 'label', '--id', 'id', '--out', 'protocols/trial.yaml'], dir);
   t.equal(missing.code, 2, "a missing parent folder is not created behind the user's back");
   t.equal(missing.stderr, 'protocols/trial.yaml: error: protocols/trial.yaml cannot be written: the folder protocols does not exist\n');
   mkdirSync(join(dir, 'protocols'));
-  const r = cli(['init', 'data/trial.csv', '--label', 'label', '--id', 'id', '--out', 'protocols/trial.yaml'], dir);
+  const r = await cli(['init', 'data/trial.csv', '--label', 'label', '--id', 'id', '--out', 'protocols/trial.yaml'], dir);
   t.equal(r.code, 0, r.stderr);
   t.match(readFileSync(join(dir, 'protocols', 'trial.yaml'), 'utf8'), 'file: "../data/trial.csv"');
-  const ok = cli(['init', 'data/trial.csv', '--label', 'label', '--id', 'id', '--group', 'g', '--out', 'trial.yaml'], dir);
+  const ok = await cli(['init', 'data/trial.csv', '--label', 'label', '--id', 'id', '--group', 'g', '--out', 'trial.yaml'], dir);
   t.equal(ok.code, 0, ok.stderr);
   // Column a holds 1, 2, … 20: a row number, not a measurement, so it is left out with a note.
   t.match(ok.stderr, 'note: column "a" is not a feature: it looks like an id (consecutive whole numbers)');
@@ -96,26 +96,26 @@ t.test('init writes a protocol that validates as is, and refuses to overwrite', 
   t.match(text, `sha256: "${sha256(csv)}"`);
   t.match(text, 'rule: grouped-kfold');
   t.match(text, /^# yaml-language-server: \$schema=.*schema\/protocol\.schema\.json$/m);
-  t.equal(cli(['validate', 'trial.yaml'], dir).code, 0);
-  const again = cli(['init', 'data/trial.csv', '--label', 'label', '--out', 'trial.yaml'], dir);
+  t.equal((await cli(['validate', 'trial.yaml'], dir)).code, 0);
+  const again = await cli(['init', 'data/trial.csv', '--label', 'label', '--out', 'trial.yaml'], dir);
   t.equal(again.code, 2);
   t.match(again.stderr, 'trial.yaml already exists');
-  const plain = cli(['init', 'data/trial.csv', '--label', 'label'], dir);
+  const plain = await cli(['init', 'data/trial.csv', '--label', 'label'], dir);
   t.equal(plain.code, 0, plain.stderr);
   t.match(readFileSync(join(dir, 'trial.protocol.yaml'), 'utf8'), 'rule: stratified-kfold');
   t.match(plain.stderr, 'warning: data.id is not set');
-  const bad = cli(['init', 'data/trial.csv', '--label', 'nope'], dir);
+  const bad = await cli(['init', 'data/trial.csv', '--label', 'nope'], dir);
   t.equal(bad.code, 1);
   t.match(bad.stderr, 'column "nope" (data.label) is not in the data file\'s header');
-  t.equal(cli(['init', 'missing.csv', '--label', 'x'], dir).code, 2);
+  t.equal((await cli(['init', 'missing.csv', '--label', 'x'], dir)).code, 2);
 });
 
 t.test('help, version and usage errors', async (t) => {
-  const help = cli(['--help']);
+  const help = await cli(['--help']);
   t.equal(help.code, 0);
   for (const c of ['validate', 'hash', 'init', 'folds', 'run']) t.match(help.stdout, c);
-  t.match(cli(['run', '--help']).stdout, 'Example:');
-  t.match(cli(['--version']).stdout, /^\d+\.\d+\.\d+/);
-  t.equal(cli(['valdate', 'x']).code, 2);
-  t.equal(cli(['validate']).code, 2);
+  t.match((await cli(['run', '--help'])).stdout, 'Example:');
+  t.match((await cli(['--version'])).stdout, /^\d+\.\d+\.\d+/);
+  t.equal((await cli(['valdate', 'x'])).code, 2);
+  t.equal((await cli(['validate'])).code, 2);
 });

@@ -1,11 +1,11 @@
 import { existsSync, readFileSync, readdirSync } from 'node:fs';
 import { join } from 'node:path';
 import t from 'tap';
-import { cli, protocolText, sha256, smallCsv, tempDir, root } from '../helpers.js';
+import { spawnCli, protocolText, sha256, smallCsv, tempDir, root } from '../helpers.js';
 
 t.test('run on the demo writes predictions and results and prints the tables', async (t) => {
   const out = join(tempDir(), 'res');
-  const r = cli(['run', 'protocols/demo.yaml', '--out', out], root);
+  const r = spawnCli(['run', 'protocols/demo.yaml', '--out', out], root);
   t.equal(r.code, 0, r.stderr);
   t.match(r.stdout, /repeat\s+fold\s+test\s+accuracy/);
   t.match(r.stdout, /baseline accuracy/);
@@ -22,17 +22,17 @@ t.test('run on the demo writes predictions and results and prints the tables', a
     'no temporary folder is left behind',
   );
 
-  const again = cli(['run', 'protocols/demo.yaml', '--out', out], root);
+  const again = spawnCli(['run', 'protocols/demo.yaml', '--out', out], root);
   t.equal(again.code, 2);
   t.match(again.stderr, 'already exists');
   t.match(again.stderr, 'hint: pass --force to replace it');
-  t.equal(cli(['run', 'protocols/demo.yaml', '--out', out, '--force'], root).code, 0);
+  t.equal(spawnCli(['run', 'protocols/demo.yaml', '--out', out, '--force'], root).code, 0);
 });
 
 function runFails(name: string, files: Record<string, string>, expected: RegExp | string) {
   t.test(name, async (t) => {
     const dir = tempDir(files);
-    const r = cli(['run', 'p.yaml', '--out', 'res'], dir);
+    const r = spawnCli(['run', 'p.yaml', '--out', 'res'], dir);
     t.equal(r.code, 1, r.stdout + r.stderr);
     t.match(r.stderr, expected);
     t.notOk(existsSync(join(dir, 'res')), 'nothing is written');
@@ -66,7 +66,7 @@ runFails(
 t.test('a label value only in the test part is a warning and probability 0, never NaN', async (t) => {
   const rare = 'id,label,a\nr1,x,1\nr2,y,2\nr3,x,3\nr4,y,4\nr5,z,5\nr6,x,6\nr7,y,7\n';
   const dir = tempDir({ 'data.csv': rare, 'p.yaml': protocolText(rare, { split: 'split: {rule: kfold, folds: 2, seed: 1}' }) });
-  const r = cli(['run', 'p.yaml', '--out', 'res'], dir);
+  const r = spawnCli(['run', 'p.yaml', '--out', 'res'], dir);
   t.equal(r.code, 0, r.stderr);
   t.match(r.stderr, /warning: class "z" has no row in the training part of repeat 1, fold \d; that fold's model gives it probability 0/);
   const text = readFileSync(join(dir, 'res', 'predictions.csv'), 'utf8') + readFileSync(join(dir, 'res', 'results.json'), 'utf8');

@@ -46,7 +46,7 @@ const opts = haveSsh ? {} : { skip: 'ssh-keygen (Debian openssh-client) is not i
 t.test('a manifest signed with an OpenSSH key file verifies with stock ssh-keygen -Y verify', opts, async (t) => {
   const dir = project();
   keypair(dir, 'alice');
-  const r = cli(['run', 'demo.yaml', '--out', 'res', '--key', 'alice'], dir);
+  const r = await cli(['run', 'demo.yaml', '--out', 'res', '--key', 'alice'], dir);
   t.equal(r.code, 0, r.stderr);
   const fp = sshKeygen(['-l', '-f', 'alice.pub'], dir).stdout.split(' ')[1];
   t.match(r.stdout, `(manifest signed with SSH key ${fp} (alice@example.org))`, 'the fingerprint is the one ssh-keygen -l prints');
@@ -66,7 +66,7 @@ t.test('a manifest signed with an OpenSSH key file verifies with stock ssh-keyge
   );
   t.not(edited.status, 0, 'ssh-keygen rejects a changed manifest');
   for (const key of ['alice.pub', 'allowed_signers']) {
-    const v = cli(['verify', 'res/manifest.json', '--key', key, '--rerun'], dir);
+    const v = await cli(['verify', 'res/manifest.json', '--key', key, '--rerun'], dir);
     t.equal(v.code, 0, v.stderr);
     t.match(
       v.stdout,
@@ -74,7 +74,7 @@ t.test('a manifest signed with an OpenSSH key file verifies with stock ssh-keyge
     );
     t.match(v.stdout, /identical\n$/);
   }
-  const unpinned = cli(['verify', 'res/manifest.json'], dir);
+  const unpinned = await cli(['verify', 'res/manifest.json'], dir);
   t.equal(unpinned.code, 1);
   t.match(unpinned.stderr, `error: the signature is valid for the key embedded in the manifest (${fp}), but that key is not pinned`);
 });
@@ -83,25 +83,25 @@ t.test('a signature made by ssh-keygen -Y sign over manifest.json is accepted by
   const dir = project();
   keypair(dir, 'bob');
   keypair(dir, 'mallory');
-  t.equal(cli(['run', 'demo.yaml', '--out', 'res'], dir).code, 0);
+  t.equal((await cli(['run', 'demo.yaml', '--out', 'res'], dir)).code, 0);
   const signed = sshKeygen(['-Y', 'sign', '-f', 'bob', '-n', 'foldseal-manifest', 'res/manifest.json'], dir);
   t.equal(signed.status, 0, signed.stderr);
-  const v = cli(['verify', 'res/manifest.json', '--key', 'bob.pub'], dir);
+  const v = await cli(['verify', 'res/manifest.json', '--key', 'bob.pub'], dir);
   t.equal(v.code, 0, v.stderr);
   t.match(v.stdout, /verified\n$/);
-  const wrong = cli(['verify', 'res/manifest.json', '--key', 'mallory.pub'], dir);
+  const wrong = await cli(['verify', 'res/manifest.json', '--key', 'mallory.pub'], dir);
   t.equal(wrong.code, 1);
   t.match(wrong.stderr, 'error: manifest.json.sig is signed by key SHA256:');
   const original = readFileSync(join(dir, 'res', 'manifest.json'), 'utf8');
   writeFileSync(join(dir, 'res', 'manifest.json'), original.replace('"rows":120', '"rows":121'));
-  const tampered = cli(['verify', 'res/manifest.json', '--key', 'bob.pub'], dir);
+  const tampered = await cli(['verify', 'res/manifest.json', '--key', 'bob.pub'], dir);
   t.equal(tampered.code, 1);
   t.match(tampered.stderr, 'manifest.json.sig does not match the bytes of manifest.json');
   writeFileSync(join(dir, 'res', 'manifest.json'), original);
   // A signature made for another purpose (namespace "file") is not a manifest signature.
   rmSync(join(dir, 'res', 'manifest.json.sig'));
   t.equal(sshKeygen(['-Y', 'sign', '-f', 'bob', '-n', 'file', 'res/manifest.json'], dir).status, 0);
-  const other = cli(['verify', 'res/manifest.json', '--key', 'bob.pub'], dir);
+  const other = await cli(['verify', 'res/manifest.json', '--key', 'bob.pub'], dir);
   t.equal(other.code, 1);
   t.match(other.stderr, 'manifest.json.sig is a signature for namespace "file", not "foldseal-manifest"');
 });
@@ -134,7 +134,7 @@ t.test('signing through a real ssh-agent: the private key never reaches foldseal
       readFileSync(join(dir, 'res', 'manifest.json'), 'utf8'),
     );
     t.equal(ok.status, 0, ok.stderr);
-    t.equal(cli(['verify', 'res/manifest.json', '--key', 'allowed_signers'], dir).code, 0);
+    t.equal((await cli(['verify', 'res/manifest.json', '--key', 'allowed_signers'], dir)).code, 0);
     const { SSH_AUTH_SOCK: _drop, ...noAgent } = env;
     void _drop;
     const none = runWith(['run', 'demo.yaml', '--out', 'res2', '--key', 'carol.pub'], noAgent);
@@ -149,19 +149,19 @@ t.test('keys foldseal does not sign with are refused by name', opts, async (t) =
   const dir = project();
   keypair(dir, 'locked', 'ed25519', 'a passphrase');
   keypair(dir, 'rsa', 'rsa');
-  const enc = cli(['run', 'demo.yaml', '--out', 'res', '--key', 'locked'], dir);
+  const enc = await cli(['run', 'demo.yaml', '--out', 'res', '--key', 'locked'], dir);
   t.equal(enc.code, 2);
   t.match(enc.stderr, 'locked: error: locked is protected by a passphrase (aes256-ctr); foldseal never asks for passphrases');
   t.match(enc.stderr, 'hint: load it into your agent (ssh-add locked) and pass the public key: --key locked.pub');
-  const rsa = cli(['run', 'demo.yaml', '--out', 'res', '--key', 'rsa'], dir);
+  const rsa = await cli(['run', 'demo.yaml', '--out', 'res', '--key', 'rsa'], dir);
   t.equal(rsa.code, 2);
   t.match(rsa.stderr, 'rsa is a ssh-rsa key; foldseal signs with Ed25519 keys only');
-  t.equal(cli(['run', 'demo.yaml', '--out', 'res'], dir).code, 0);
+  t.equal((await cli(['run', 'demo.yaml', '--out', 'res'], dir)).code, 0);
   sshKeygen(['-Y', 'sign', '-f', 'rsa', '-n', 'foldseal-manifest', 'res/manifest.json'], dir);
-  const v = cli(['verify', 'res/manifest.json', '--allow-unpinned'], dir);
+  const v = await cli(['verify', 'res/manifest.json', '--allow-unpinned'], dir);
   t.equal(v.code, 1);
   t.match(v.stderr, 'manifest.json.sig is made with a ssh-rsa key; foldseal verifies Ed25519 signatures only');
-  const pin = cli(['verify', 'res/manifest.json', '--key', 'rsa.pub'], dir);
+  const pin = await cli(['verify', 'res/manifest.json', '--key', 'rsa.pub'], dir);
   t.equal(pin.code, 2);
   t.match(pin.stderr, 'rsa.pub holds no Ed25519 key usable for foldseal manifests (ssh-rsa)');
   t.notOk(existsSync(join(dir, 'res', 'unexpected')));
@@ -172,8 +172,8 @@ t.test('the team policy accepts OpenSSH fingerprints and key lines as signers', 
   keypair(dir, 'dana');
   const pub = readFileSync(join(dir, 'dana.pub'), 'utf8').trim();
   const fp = sshKeygen(['-l', '-f', 'dana.pub'], dir).stdout.split(' ')[1];
-  t.equal(cli(['run', 'demo.yaml', '--out', 'results/demo', '--key', 'dana'], dir).code, 0);
-  t.equal(cli(['lock', '.'], dir).code, 0);
+  t.equal((await cli(['run', 'demo.yaml', '--out', 'results/demo', '--key', 'dana'], dir)).code, 0);
+  t.equal((await cli(['lock', '.'], dir)).code, 0);
   const lockPath = join(dir, 'foldseal.lock.json');
   const lock = JSON.parse(readFileSync(lockPath, 'utf8'));
   for (const [signer, code] of [
@@ -184,7 +184,7 @@ t.test('the team policy accepts OpenSSH fingerprints and key lines as signers', 
   ] as const) {
     lock.policy = { signers: [signer] };
     writeFileSync(lockPath, JSON.stringify(lock));
-    const r = cli(['check', '.'], dir);
+    const r = await cli(['check', '.'], dir);
     t.equal(r.code, code, `${signer.slice(0, 30)}: ${r.stderr}`);
   }
 });

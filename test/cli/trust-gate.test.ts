@@ -34,11 +34,11 @@ t.test('the gate finds protocols by parsing, however the key is spelled', async 
   };
   const dir = tempDir({ ...data, ...variants });
   for (const path of Object.keys(variants).filter((p) => p.startsWith('protocols/') && !p.includes('not-a'))) {
-    t.equal(cli(['validate', path], dir).code, 0, `run would accept ${path}`);
+    t.equal((await cli(['validate', path], dir)).code, 0, `run would accept ${path}`);
   }
-  const r = cli(['check', '.'], dir);
+  const r = await cli(['check', '.'], dir);
   t.match(r.stderr, '6 protocols checked', r.stderr);
-  const bad = cli(['run', 'p.txt'], tempDir({ 'p.txt': protocolFor('txt') }));
+  const bad = await cli(['run', 'p.txt'], tempDir({ 'p.txt': protocolFor('txt') }));
   t.equal(bad.code, 2, 'run refuses a protocol the gate would not look for');
   t.match(bad.stderr, 'does not end in .yaml, .yml or .json');
 });
@@ -51,23 +51,23 @@ t.test('skipped folders are named in the summary; the lock policy adds folders t
     'scratch/three.yaml': protocolFor('three', '../data/data.csv'),
     'node_modules/m/four.yaml': protocolFor('four', '../../data/data.csv'),
   });
-  const first = cli(['check', '.'], dir);
+  const first = await cli(['check', '.'], dir);
   t.match(
     first.stderr,
     "2 protocols checked: 0 errors, 1 warning; not searched: .hidden, node_modules (add folders to the lock's policy.include to " +
       'search them)',
   );
-  t.equal(cli(['lock', '.'], dir).code, 0);
+  t.equal((await cli(['lock', '.'], dir)).code, 0);
   const lockPath = join(dir, 'foldseal.lock.json');
   const lock = JSON.parse(readFileSync(lockPath, 'utf8'));
   lock.policy = { skip: ['scratch'], include: ['.hidden'] };
   writeFileSync(lockPath, JSON.stringify(lock));
-  const r = cli(['check', '.'], dir);
+  const r = await cli(['check', '.'], dir);
   t.match(r.stderr, '2 protocols checked', r.stderr);
   t.match(r.stderr, 'not searched: node_modules, scratch');
   t.match(r.stderr, '.hidden/two.yaml');
   t.match(r.stderr, '.hidden/two.yaml is not in the lock');
-  const run = cli(['run', 'scratch/three.yaml', '--out', 'res'], dir);
+  const run = await cli(['run', 'scratch/three.yaml', '--out', 'res'], dir);
   t.equal(run.code, 1, 'run refuses a protocol the gate does not search');
   t.match(run.stderr, 'scratch/three.yaml lies in a folder that the repository gate of . does not search');
 });
@@ -98,11 +98,11 @@ t.test('sealed rows are sealed by content: a copy under new ids is caught; run r
     join(dir, 'foldseal.lock.json'),
     JSON.stringify({ 'foldseal-lock': 1, sealed: { file: 'splits/final.ids', sha256: sha256(sealedIds) }, protocols: {} }),
   );
-  const lock = cli(['lock', '.'], dir);
+  const lock = await cli(['lock', '.'], dir);
   t.equal(lock.code, 0, lock.stderr);
   t.match(lock.stdout, 'sealed rows: 4 content digests recorded');
   t.equal(JSON.parse(readFileSync(join(dir, 'foldseal.lock.json'), 'utf8')).sealed.rows.length, 4);
-  const r = cli(['check', '.'], dir);
+  const r = await cli(['check', '.'], dir);
   t.equal(r.code, 1);
   t.match(
     r.stderr,
@@ -111,11 +111,11 @@ t.test('sealed rows are sealed by content: a copy under new ids is caught; run r
   );
   // The final data is gone: the digests in the lock still catch the copy.
   writeFileSync(join(dir, 'final.yaml'), finalP.replace('final: true\n', 'final: true\ndescription: moved\n'));
-  const dev = cli(['run', 'dev.yaml', '--out', 'res-dev'], dir);
+  const dev = await cli(['run', 'dev.yaml', '--out', 'res-dev'], dir);
   t.equal(dev.code, 1, 'run refuses to test on sealed rows in a locked repository');
   t.match(dev.stderr, 'same label and feature values as sealed rows');
   t.notOk(existsSync(join(dir, 'res-dev')));
-  const refit = cli(['run', 'final.yaml', '--out', 'res-final', '--refit'], dir);
+  const refit = await cli(['run', 'final.yaml', '--out', 'res-final', '--refit'], dir);
   t.equal(refit.code, 0, refit.stderr);
   const models = JSON.parse(readFileSync(join(dir, 'res-final', 'models.json'), 'utf8'));
   const train = rows.slice(5).map((l) => Number(l.split(',')[3]));
@@ -130,20 +130,20 @@ t.test('sealed rows are sealed by content: a copy under new ids is caught; run r
 
 t.test('verify --rerun runs only a pinned signature, reads only inside the review folder, never a device', async (t) => {
   const dir = project();
-  t.equal(cli(['keygen', '--out', 'author'], dir).code, 0);
-  t.equal(cli(['run', 'demo.yaml', '--out', 'signed', '--key', 'author.key'], dir).code, 0);
-  t.equal(cli(['run', 'demo.yaml', '--out', 'unsigned'], dir).code, 0);
-  const unpinned = cli(['verify', 'signed/manifest.json', '--rerun', '--allow-unpinned'], dir);
+  t.equal((await cli(['keygen', '--out', 'author'], dir)).code, 0);
+  t.equal((await cli(['run', 'demo.yaml', '--out', 'signed', '--key', 'author.key'], dir)).code, 0);
+  t.equal((await cli(['run', 'demo.yaml', '--out', 'unsigned'], dir)).code, 0);
+  const unpinned = await cli(['verify', 'signed/manifest.json', '--rerun', '--allow-unpinned'], dir);
   t.equal(unpinned.code, 1);
   t.match(unpinned.stderr, 'error: the manifest is not signed by a pinned key, so its protocol was not re-run');
   t.notMatch(unpinned.stdout, 'rerun:');
-  const unsigned = cli(['verify', 'unsigned/manifest.json', '--rerun'], dir);
+  const unsigned = await cli(['verify', 'unsigned/manifest.json', '--rerun'], dir);
   t.equal(unsigned.code, 1);
   t.match(unsigned.stderr, 'the manifest is not validly signed, so its protocol was not re-run');
-  const allowed = cli(['verify', 'unsigned/manifest.json', '--rerun', '--allow-unsigned', '--allow-unpinned'], dir);
+  const allowed = await cli(['verify', 'unsigned/manifest.json', '--rerun', '--allow-unsigned', '--allow-unpinned'], dir);
   t.equal(allowed.code, 0, allowed.stderr);
   t.match(allowed.stdout, /identical\n$/);
-  t.equal(cli(['verify', 'signed/manifest.json', '--rerun', '--key', 'author.pub'], dir).code, 0);
+  t.equal((await cli(['verify', 'signed/manifest.json', '--rerun', '--key', 'author.pub'], dir)).code, 0);
 
   // A hostile manifest: its protocol names a file outside the folder (signed, even by a pinned key).
   const outside = tempDir({ 'secret.csv': 'not yours\n' });
@@ -157,7 +157,7 @@ t.test('verify --rerun runs only a pinned signature, reads only inside the revie
     hostile.protocol.document.data.file = file;
     hostile.protocol.sha256 = sha256(canonicalJson(hostile.protocol.document));
     writeFileSync(join(dir, 'unsigned', 'manifest.json'), canonicalJson(hostile) + '\n');
-    const r = cli(['verify', 'unsigned/manifest.json', '--rerun', '--allow-unsigned', '--allow-unpinned'], dir);
+    const r = await cli(['verify', 'unsigned/manifest.json', '--rerun', '--allow-unsigned', '--allow-unpinned'], dir);
     t.equal(r.code, 1, `location ${location}, file ${file}`);
     t.match(r.stderr, 'lies outside the folder foldseal may read for this file');
     t.match(r.stderr, 'the re-run would read files outside the review folders, so it was not started');
@@ -167,23 +167,26 @@ t.test('verify --rerun runs only a pinned signature, reads only inside the revie
   const fifo = demoText.replace('file: data/seedlings.csv', 'file: data/fifo.csv');
   writeFileSync(join(dir, 'fifo.yaml'), fifo);
   const started = Date.now();
-  const v = cli(['validate', 'fifo.yaml'], dir);
+  const v = await cli(['validate', 'fifo.yaml'], dir);
   t.equal(v.code, 1);
   t.match(v.stderr, 'file data/fifo.csv is not a regular file (a FIFO); foldseal reads only plain files');
   writeFileSync(join(dir, 'zero.yaml'), demoText.replace('file: data/seedlings.csv', 'file: /dev/zero'));
-  const z = cli(['validate', 'zero.yaml', '--allow-outside'], dir);
+  const z = await cli(['validate', 'zero.yaml', '--allow-outside'], dir);
   t.equal(z.code, 1);
   t.match(z.stderr, 'file /dev/zero is not a regular file (a device)');
-  const zOutside = cli(['validate', 'zero.yaml'], dir);
+  const zOutside = await cli(['validate', 'zero.yaml'], dir);
   t.match(zOutside.stderr, 'the data file /dev/zero lies outside');
-  const newRows = cli(['validate', 'nr.yaml'], tempDir({ 'nr.yaml': demoText.replace('file: data/seedlings-new.csv', 'file: fifo.csv') }));
+  const newRows = await cli(
+    ['validate', 'nr.yaml'],
+    tempDir({ 'nr.yaml': demoText.replace('file: data/seedlings-new.csv', 'file: fifo.csv') }),
+  );
   t.equal(newRows.code, 1);
   t.ok(Date.now() - started < 10_000, 'nothing hangs');
 });
 
 t.test('verify checks the manifest against itself before any re-run', async (t) => {
   const dir = project();
-  t.equal(cli(['run', 'demo.yaml', '--out', 'res'], dir).code, 0);
+  t.equal((await cli(['run', 'demo.yaml', '--out', 'res'], dir)).code, 0);
   const original = readFileSync(join(dir, 'res', 'manifest.json'), 'utf8');
   const cases: [string, (m: any) => void, string][] = [
     [
@@ -226,15 +229,15 @@ t.test('verify checks the manifest against itself before any re-run', async (t) 
     const m = JSON.parse(original);
     edit(m);
     writeFileSync(join(dir, 'res', 'manifest.json'), canonicalJson(m) + '\n');
-    const r = cli(['verify', 'res/manifest.json', '--allow-unpinned', '--rerun', '--allow-unsigned'], dir);
+    const r = await cli(['verify', 'res/manifest.json', '--allow-unpinned', '--rerun', '--allow-unsigned'], dir);
     t.equal(r.code, 1, name);
     t.match(r.stderr, message, name);
     t.match(r.stderr, 'the manifest contradicts itself, so it was not re-run', name);
   }
   writeFileSync(join(dir, 'res', 'manifest.json'), original);
-  t.equal(cli(['verify', 'res/manifest.json', '--allow-unpinned'], dir).code, 0);
+  t.equal((await cli(['verify', 'res/manifest.json', '--allow-unpinned'], dir)).code, 0);
   const alone = tempDir({ 'manifest.json': original });
-  const r = cli(['verify', 'manifest.json', '--allow-unpinned'], alone);
+  const r = await cli(['verify', 'manifest.json', '--allow-unpinned'], alone);
   t.equal(r.code, 1, 'a manifest without any of its result files is not verified');
   t.match(
     r.stderr,
@@ -260,7 +263,7 @@ t.test('a new row under a training id must be that row: else an error at both pl
       `new-rows: {file: data/seedlings-new.csv, sha256: "${sha256(text)}"}`,
     ),
   );
-  const r = cli(['validate', 'demo.yaml'], dir);
+  const r = await cli(['validate', 'demo.yaml'], dir);
   t.equal(r.code, 1);
   t.equal(
     r.stderr.split('\n')[0],
@@ -270,28 +273,28 @@ t.test('a new row under a training id must be that row: else an error at both pl
   t.notMatch(r.stderr, 'CS-0001', 'the same row under its own id is fine');
   // apply: the saved models know the training rows by content.
   const p2 = project();
-  t.equal(cli(['run', 'demo.yaml', '--out', 'res'], p2).code, 0);
+  t.equal((await cli(['run', 'demo.yaml', '--out', 'res'], p2)).code, 0);
   writeFileSync(join(p2, 'later.csv'), [news[0], same, other].join('\n') + '\n');
-  const a = cli(['apply', 'res', 'later.csv'], p2);
+  const a = await cli(['apply', 'res', 'later.csv'], p2);
   t.equal(a.code, 1);
   t.match(
     a.stderr,
     'later.csv:3:1: error: new row "CS-0002" has the id of a row of the cross-validation (in the run of res) but different feature values',
   );
   writeFileSync(join(p2, 'later.csv'), [news[0], same].join('\n') + '\n');
-  const ok = cli(['apply', 'res', 'later.csv'], p2);
+  const ok = await cli(['apply', 'res', 'later.csv'], p2);
   t.equal(ok.code, 0, ok.stderr);
   t.match(ok.stdout, /^CS-0001,held-out,/m);
 });
 
 t.test("verify's last line agrees with its exit code", async (t) => {
   const dir = project();
-  t.equal(cli(['keygen', '--out', 'author'], dir).code, 0);
-  t.equal(cli(['run', 'demo.yaml', '--out', 'res', '--key', 'author.key'], dir).code, 0);
-  const r = cli(['verify', 'res/manifest.json', '--rerun', '--allow-unsigned'], dir);
+  t.equal((await cli(['keygen', '--out', 'author'], dir)).code, 0);
+  t.equal((await cli(['run', 'demo.yaml', '--out', 'res', '--key', 'author.key'], dir)).code, 0);
+  const r = await cli(['verify', 'res/manifest.json', '--rerun', '--allow-unsigned'], dir);
   t.equal(r.code, 1, 'the signature is valid but not pinned');
   t.match(r.stdout, /\nnot verified \(signature-unpinned\); the re-run itself was identical\n$/);
-  const pinned = cli(['verify', 'res/manifest.json', '--rerun', '--key', 'author.pub'], dir);
+  const pinned = await cli(['verify', 'res/manifest.json', '--rerun', '--key', 'author.pub'], dir);
   t.equal(pinned.code, 0);
   t.match(pinned.stdout, /\nidentical\n$/);
 });

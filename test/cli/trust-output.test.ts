@@ -16,7 +16,7 @@ t.test('run --out . --force refuses a folder foldseal did not write; nothing is 
   writeFileSync(join(dir, '.git', 'HEAD'), 'ref: refs/heads/main\n');
   const before = readdirSync(dir).sort();
   for (const out of ['.', 'data']) {
-    const r = cli(['run', 'demo.yaml', '--out', out, '--force'], dir);
+    const r = await cli(['run', 'demo.yaml', '--out', out, '--force'], dir);
     t.equal(r.code, 2, `--out ${out}`);
     t.match(
       r.stderr,
@@ -29,9 +29,9 @@ t.test('run --out . --force refuses a folder foldseal did not write; nothing is 
 
 t.test('a results folder with a file foldseal did not write is not replaced, --force or not', async (t) => {
   const dir = project();
-  t.equal(cli(['run', 'demo.yaml', '--out', 'res'], dir).code, 0);
+  t.equal((await cli(['run', 'demo.yaml', '--out', 'res'], dir)).code, 0);
   writeFileSync(join(dir, 'res', 'notes.txt'), 'my notes\n');
-  const r = cli(['run', 'demo.yaml', '--out', 'res', '--force'], dir);
+  const r = await cli(['run', 'demo.yaml', '--out', 'res', '--force'], dir);
   t.equal(r.code, 2);
   t.match(r.stderr, 'res: error: res holds 1 entry foldseal did not write (notes.txt), so foldseal will not replace it');
   t.equal(readFileSync(join(dir, 'res', 'notes.txt'), 'utf8'), 'my notes\n');
@@ -40,12 +40,12 @@ t.test('a results folder with a file foldseal did not write is not replaced, --f
 t.test('an empty folder is written into; a results folder of ours needs --force and is swapped whole', async (t) => {
   const dir = project();
   mkdirSync(join(dir, 'empty'));
-  t.equal(cli(['run', 'demo.yaml', '--out', 'empty'], dir).code, 0);
+  t.equal((await cli(['run', 'demo.yaml', '--out', 'empty'], dir)).code, 0);
   t.ok(complete(join(dir, 'empty')));
-  const again = cli(['run', 'demo.yaml', '--out', 'empty'], dir);
+  const again = await cli(['run', 'demo.yaml', '--out', 'empty'], dir);
   t.equal(again.code, 2);
   t.match(again.stderr, 'empty: error: empty already exists');
-  t.equal(cli(['run', 'demo.yaml', '--out', 'empty', '--force'], dir).code, 0);
+  t.equal((await cli(['run', 'demo.yaml', '--out', 'empty', '--force'], dir)).code, 0);
   t.ok(complete(join(dir, 'empty')));
   t.same(
     readdirSync(dir).filter((e) => e.includes('foldseal')),
@@ -56,7 +56,7 @@ t.test('an empty folder is written into; a results folder of ours needs --force 
 
 t.test('kill -9 at any moment: the old or the new complete folder, and the next run cleans up', async (t) => {
   const dir = project();
-  t.equal(cli(['run', 'demo.yaml', '--out', 'res'], dir).code, 0);
+  t.equal((await cli(['run', 'demo.yaml', '--out', 'res'], dir)).code, 0);
   const start = Date.now();
   const r = spawnSync(process.execPath, [bin, 'run', 'demo.yaml', '--out', 'res', '--force'], { cwd: dir });
   const span = Math.max(60, Date.now() - start);
@@ -82,7 +82,7 @@ t.test('kill -9 at any moment: the old or the new complete folder, and the next 
       );
   }
   t.ok(killedMidway > 0, `${killedMidway} of 12 runs were killed before they finished`);
-  const next = cli(['run', 'demo.yaml', '--out', 'res', '--force'], dir);
+  const next = await cli(['run', 'demo.yaml', '--out', 'res', '--force'], dir);
   t.equal(next.code, 0, next.stderr);
   t.ok(complete(join(dir, 'res')));
   t.same(
@@ -94,7 +94,7 @@ t.test('kill -9 at any moment: the old or the new complete folder, and the next 
 
 t.test('a previous folder left aside by a crash is put back by the next run', async (t) => {
   const dir = project();
-  t.equal(cli(['run', 'demo.yaml', '--out', 'res'], dir).code, 0);
+  t.equal((await cli(['run', 'demo.yaml', '--out', 'res'], dir)).code, 0);
   const recorded = readFileSync(join(dir, 'res', 'manifest.json'), 'utf8');
   mkdirSync(join(dir, '.res.foldseal-old-abc123'));
   cpSync(join(dir, 'res'), join(dir, '.res.foldseal-old-abc123', 'previous'), { recursive: true });
@@ -102,7 +102,7 @@ t.test('a previous folder left aside by a crash is put back by the next run', as
   writeFileSync(join(dir, '.res.foldseal-new-def456', 'predictions.csv'), 'half');
   // The crash came between the two renames: nothing under the name.
   spawnSync('rm', ['-rf', join(dir, 'res')]);
-  const r = cli(['run', 'demo.yaml', '--out', 'res'], dir);
+  const r = await cli(['run', 'demo.yaml', '--out', 'res'], dir);
   t.equal(r.code, 2, 'the restored folder is ours, so replacing it still needs --force');
   t.equal(readFileSync(join(dir, 'res', 'manifest.json'), 'utf8'), recorded, 'the previous output is back under its name');
   t.same(
@@ -114,13 +114,13 @@ t.test('a previous folder left aside by a crash is put back by the next run', as
 t.test('two writers: a live lock holder makes the second refuse; a dead one is taken over', async (t) => {
   const dir = project();
   writeFileSync(join(dir, '.res.foldseal-lock'), `${process.pid}\n`);
-  const busy = cli(['run', 'demo.yaml', '--out', 'res'], dir);
+  const busy = await cli(['run', 'demo.yaml', '--out', 'res'], dir);
   t.equal(busy.code, 2);
   t.match(busy.stderr, `res: error: another foldseal process (pid ${process.pid}) is writing res`);
   t.notOk(existsSync(join(dir, 'res')));
   const gone = spawnSync(process.execPath, ['-e', 'process.stdout.write(String(process.pid))'], { encoding: 'utf8' });
   writeFileSync(join(dir, '.res.foldseal-lock'), `${gone.stdout}\n`);
-  const r = cli(['run', 'demo.yaml', '--out', 'res'], dir);
+  const r = await cli(['run', 'demo.yaml', '--out', 'res'], dir);
   t.equal(r.code, 0, r.stderr);
   t.ok(complete(join(dir, 'res')));
   t.notOk(existsSync(join(dir, '.res.foldseal-lock')));
@@ -152,7 +152,7 @@ function tmpfs(size: string, readOnly = false): string | undefined {
 
 t.test('file outputs: missing folder, a folder in the way, read-only, full disk — clear errors, nothing half-written', async (t) => {
   const dir = tempDir({ 'data.csv': csv, 'p.yaml': protocolFor('out') });
-  t.equal(cli(['run', 'p.yaml', '--out', 'res'], dir).code, 0);
+  t.equal((await cli(['run', 'p.yaml', '--out', 'res'], dir)).code, 0);
   mkdirSync(join(dir, 'a-folder'));
   const commands: [string, (out: string) => string[]][] = [
     ['folds', (out) => ['folds', 'p.yaml', '--out', out]],
@@ -160,10 +160,10 @@ t.test('file outputs: missing folder, a folder in the way, read-only, full disk 
     ['init', (out) => ['init', 'data.csv', '--label', 'label', '--id', 'id', '--out', out]],
   ];
   for (const [name, args] of commands) {
-    const missing = cli(args('no/such/out.csv'), dir);
+    const missing = await cli(args('no/such/out.csv'), dir);
     t.equal(missing.code, 2, `${name}: missing parent`);
     t.match(missing.stderr, 'error: no/such/out.csv cannot be written: the folder no/such does not exist');
-    const folder = cli(args('a-folder'), dir);
+    const folder = await cli(args('a-folder'), dir);
     t.equal(folder.code, 2, `${name}: a folder in place of the file`);
     t.match(folder.stderr, 'error: a-folder is a folder; give a file name');
     t.notMatch(missing.stderr + folder.stderr, /internal error|at .*\.js:\d+/, `${name}: no stack trace`);
@@ -180,12 +180,12 @@ t.test('file outputs: missing folder, a folder in the way, read-only, full disk 
       // The disk is now full.
     }
     for (const [name, args] of commands) {
-      const r = cli(args(join(full, 'out.csv')), dir);
+      const r = await cli(args(join(full, 'out.csv')), dir);
       t.equal(r.code, 2, `${name}: full disk`);
       t.match(r.stderr, 'cannot be written: the disk is full', name);
       t.same(readdirSync(full), ['filler'], `${name}: no partial file left`);
     }
-    const key = cli(['keygen', '--out', join(full, 'k')]);
+    const key = await cli(['keygen', '--out', join(full, 'k')]);
     t.equal(key.code, 2);
     t.same(readdirSync(full), ['filler'], 'keygen: neither key file is left');
   } finally {
@@ -195,7 +195,7 @@ t.test('file outputs: missing folder, a folder in the way, read-only, full disk 
   /* c8 ignore next -- mounting worked a moment ago */
   if (!ro) return;
   try {
-    const r = cli(['folds', 'p.yaml', '--out', join(ro, 'f.csv')], dir);
+    const r = await cli(['folds', 'p.yaml', '--out', join(ro, 'f.csv')], dir);
     t.equal(r.code, 2);
     t.match(r.stderr, 'cannot be written (the file system is read-only)');
   } finally {
@@ -205,11 +205,11 @@ t.test('file outputs: missing folder, a folder in the way, read-only, full disk 
 
 t.test('keygen writes both key files or neither, and names a missing folder', async (t) => {
   const dir = tempDir();
-  const missing = cli(['keygen', '--out', 'no/dir/k'], dir);
+  const missing = await cli(['keygen', '--out', 'no/dir/k'], dir);
   t.equal(missing.code, 2);
   t.equal(missing.stderr, 'no/dir/k.key: error: no/dir/k.key cannot be written: the folder no/dir does not exist\n');
   writeFileSync(join(dir, 'k.pub'), "someone else's\n");
-  const clash = cli(['keygen', '--out', 'k'], dir);
+  const clash = await cli(['keygen', '--out', 'k'], dir);
   t.equal(clash.code, 2);
   t.match(clash.stderr, 'k.pub: error: k.pub already exists');
   t.notOk(existsSync(join(dir, 'k.key')), 'no private key without its public half');
@@ -223,7 +223,7 @@ t.test("leftover cleaning touches only what foldseal leaves: a user's entries un
   writeFileSync(join(dir, '.res.foldseal-old-file'), 'a plain file, not a folder foldseal set aside\n');
   mkdirSync(join(dir, '.res.foldseal-old-other'));
   writeFileSync(join(dir, '.res.foldseal-old-other', 'thesis.tex'), 'mine\n');
-  const r = cli(['run', 'demo.yaml', '--out', 'res'], dir);
+  const r = await cli(['run', 'demo.yaml', '--out', 'res'], dir);
   t.equal(r.code, 0, r.stderr);
   t.ok(complete(join(dir, 'res')));
   t.equal(readFileSync(join(dir, '.res.foldseal-new-mine', 'sub', 'notes.txt'), 'utf8'), 'mine\n');

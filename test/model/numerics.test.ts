@@ -55,7 +55,7 @@ t.test('a fit that fails names its repeat and fold', async (t) => {
       `foldseal: 1\nname: s\ndata: {file: data.csv, sha256: "${sha256(csv)}", id: id, label: label}\nsplit: {rule: ` +
       `stratified-kfold, folds: 2, repeats: 2, seed: 3}\nmodel: {kind: logistic, options: {l2: 0, max-iterations: 5}}\n`,
   });
-  const r = cli(['run', 'p.yaml', '--out', 'res'], dir);
+  const r = await cli(['run', 'p.yaml', '--out', 'res'], dir);
   t.equal(r.code, 1);
   t.match(r.stderr, /error: logistic did not converge in 5 Newton steps .* \(repeat 1, fold 1\)/);
   t.match(r.stderr, 'hint: the classes may be separable; set model.options.l2 above 0');
@@ -69,7 +69,7 @@ t.test('summaries say over how many folds a metric was defined, and recommend po
       `foldseal: 1\nname: loo\ndata: {file: data.csv, sha256: "${sha256(csv)}", id: id, label: label}\nsplit: {rule: ` +
       `leave-one-out}\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy, roc-auc, mcc]\n`,
   });
-  const r = cli(['run', 'p.yaml', '--out', 'res'], dir);
+  const r = await cli(['run', 'p.yaml', '--out', 'res'], dir);
   t.equal(r.code, 0, r.stderr);
   t.match(r.stdout, /roc-auc\s+— \(0 of 8 folds\)/);
   t.match(
@@ -90,13 +90,13 @@ t.test('a long problem list reaches a pipe whole, and is capped per kind unless 
       `foldseal: 1\nname: many\ndata: {file: data.csv, sha256: "${sha256(bad)}", id: id, label: label, features: ` +
       `[a]}\nsplit: {rule: kfold, folds: 2, seed: 1}\nmodel: {kind: gaussian-nb}\n`,
   });
-  const capped = cli(['validate', 'p.yaml'], dir);
+  const capped = await cli(['validate', 'p.yaml'], dir);
   t.equal(capped.code, 1);
   // 50 problems of the kind are printed: the count of unlisted cells, then 49 located ones.
   t.equal(capped.stderr.split('\n').filter((l) => l.includes('is not a number')).length, 49);
   t.match(capped.stderr, 'data.csv: error: 2999 more non-numeric cells not listed');
   t.match(capped.stderr, '… and 951 more data-not-a-number problems not shown (--all-problems shows them)');
-  const all = cli(['validate', '--all-problems', 'p.yaml'], dir);
+  const all = await cli(['validate', '--all-problems', 'p.yaml'], dir);
   const lines = all.stderr.split('\n').filter((l) => l.includes('is not a number')).length;
   t.ok(all.stderr.length > 128 * 1024, `${all.stderr.length} bytes of problems on stderr`);
   t.equal(lines, 1000, 'every listed problem arrives; the reader lists 1,000 and counts the rest');

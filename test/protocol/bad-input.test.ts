@@ -13,7 +13,7 @@ function check(t: Test, name: string, files: Record<string, string>, expected: s
   t.test(name, async (t) => {
     const dir = tempDir({ 'data.csv': csv, ...files });
     const before = readdirSync(dir).sort();
-    const r = cli(['validate', 'p.yaml'], dir);
+    const r = await cli(['validate', 'p.yaml'], dir);
     t.equal(r.code, code, r.stderr);
     const lines = r.stderr.trimEnd().split('\n');
     for (const e of expected) t.ok(lines.includes(e), `has line: ${e}\n--- got:\n${r.stderr}`);
@@ -156,14 +156,14 @@ check(
 );
 
 t.test('an unreadable protocol path is exit 2', async (t) => {
-  const r = cli(['validate', 'missing.yaml'], tempDir());
+  const r = await cli(['validate', 'missing.yaml'], tempDir());
   t.equal(r.code, 2);
   t.match(r.stderr, 'missing.yaml: error: file missing.yaml does not exist');
 });
 
 t.test('--format json prints the same findings as data', async (t) => {
   const dir = tempDir({ 'data.csv': csv, 'p.yaml': protocolText(csv, { extra: 'metrix: [accuracy]' }) });
-  const r = cli(['validate', 'p.yaml', '--format', 'json'], dir);
+  const r = await cli(['validate', 'p.yaml', '--format', 'json'], dir);
   t.equal(r.code, 1);
   t.same(JSON.parse(r.stdout), [
     {

@@ -64,7 +64,7 @@ t.test('spec §8 rejection vectors are refused with their problem code', async (
         `foldseal: 1\nname: v\ndata: {file: data.csv, sha256: "${sha256(csv)}", id: id, label: ` +
         `label${grouped ? ', group: g' : ''}}\nsplit: ${split}\nmodel: {kind: gaussian-nb}\n`,
     });
-    const r = cli(['validate', 'p.yaml', '--format', 'json'], dir);
+    const r = await cli(['validate', 'p.yaml', '--format', 'json'], dir);
     t.equal(r.code, 1, v.name);
     t.ok(
       (JSON.parse(r.stdout) as { code: string }[]).some((p) => p.code === v.reject),

@@ -2,14 +2,15 @@
 // (scikit-learn's bundled iris table), metrics on one side only, folds where a metric is undefined,
 // too few folds, and the direction of a lower-is-better metric.
 import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
 import t from 'tap';
 import { compareSides, pairingProblems } from '../../src/compare/paired.js';
 import type { ComparedSide } from '../../src/compare/side.js';
 import { mcnemarExact } from '../../src/stats/mcnemar.js';
-import { cli, sha256, tempDir } from '../helpers.js';
+import { cli, root, sha256, tempDir } from '../helpers.js';
 
 t.test('three classes: McNemar per repeat, no DeLong, and a note saying why', async (t) => {
-  const iris = readFileSync(new URL('../reference/data/iris.csv', import.meta.url), 'utf8');
+  const iris = readFileSync(join(root, 'test/reference/data/iris.csv'), 'utf8');
   const head =
     `foldseal: 1\ndata: {file: iris.csv, sha256: "${sha256(iris)}", id: id, label: species}\n` +
     'split: {rule: stratified-kfold, folds: 5, seed: 4}\nmetrics: [accuracy, log-loss]\n';
@@ -18,14 +19,14 @@ t.test('three classes: McNemar per repeat, no DeLong, and a note saying why', as
     'a.yaml': `${head}name: iris-nb\nmodel: {kind: gaussian-nb}\n`,
     'b.yaml': `${head}name: iris-knn\nmodel: {kind: knn, options: {k: 5}}\n`,
   });
-  const r = cli(['compare', 'a.yaml', 'b.yaml', '--format', 'json'], dir);
+  const r = await cli(['compare', 'a.yaml', 'b.yaml', '--format', 'json'], dir);
   t.equal(r.code, 0, r.stderr);
   const c = JSON.parse(r.stdout).comparison;
   t.equal(c.delong, null);
   t.match(c.notes.join('\n'), "DeLong's test compares two-class ROC AUCs");
   t.equal(c.mcnemar.length, 1);
   t.equal(c.mcnemar[0].rows, 150);
-  const text = cli(['compare', 'a.yaml', 'b.yaml'], dir);
+  const text = await cli(['compare', 'a.yaml', 'b.yaml'], dir);
   t.notMatch(text.stdout, /DeLong's paired test/);
 });
 
@@ -105,7 +106,7 @@ t.test("McNemar's exact p-value, worked by hand (statsmodels is checked live in 
 });
 
 t.test('the two demo protocols compare as a pair', async (t) => {
-  const r = cli(['compare', 'protocols/demo.yaml', 'protocols/demo-logistic.yaml', '--metric', 'roc-auc']);
+  const r = await cli(['compare', 'protocols/demo.yaml', 'protocols/demo-logistic.yaml', '--metric', 'roc-auc']);
   t.equal(r.code, 0, r.stderr);
   t.match(r.stdout, /^A: protocols\/demo\.yaml \(seedling-blight-nb\)\nB: protocols\/demo-logistic\.yaml \(seedling-blight-logistic\)/);
   t.match(r.stdout, /\nroc-auc: (no evidence of a difference|[AB] \()/);

@@ -11,28 +11,24 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import t from 'tap';
 import { comparePair } from '../reference/compare-protocols.mjs';
-import { cli, sha256, tempDir } from '../helpers.js';
+import { cli, root, sha256, tempDir } from '../helpers.js';
 
 const close = (a: number, b: number, tol: number) => Math.abs(a - b) <= tol * Math.max(1, Math.abs(b));
 const pair = comparePair();
 const dir = tempDir({ 'a.yaml': pair.a, 'b.yaml': pair.b });
 for (const side of ['a', 'b']) {
-  const r = cli(['run', `${side}.yaml`, '--out', side, '--allow-outside'], dir);
+  const r = await cli(['run', `${side}.yaml`, '--out', side, '--allow-outside'], dir);
   if (r.code !== 0) throw new Error(r.stderr);
 }
-const compared = cli(['compare', 'a', 'b', '--format', 'json'], dir);
+const compared = await cli(['compare', 'a', 'b', '--format', 'json'], dir);
 const c = JSON.parse(compared.stdout).comparison;
 
 t.test('corrected t-test and McNemar match scipy and statsmodels', async (t) => {
   t.equal(compared.code, 0, compared.stderr);
   const python = '/usr/bin/python3';
-  const r = spawnSync(
-    python,
-    [new URL('../reference/compare_reference.py', import.meta.url).pathname, join(dir, 'a'), join(dir, 'b'), '0.95'],
-    {
-      encoding: 'utf8',
-    },
-  );
+  const r = spawnSync(python, [join(root, 'test/reference/compare_reference.py'), join(dir, 'a'), join(dir, 'b'), '0.95'], {
+    encoding: 'utf8',
+  });
   // CI installs Debian's python3-scipy and python3-statsmodels; a machine without them cannot run this check.
   t.equal(r.status, 0, r.stderr);
   const ref = JSON.parse(r.stdout);
@@ -62,7 +58,7 @@ t.test('corrected t-test and McNemar match scipy and statsmodels', async (t) => 
 });
 
 t.test("DeLong's paired test matches pROC", async (t) => {
-  const fixture = JSON.parse(readFileSync(new URL('../reference/fixtures/compare-proc.json', import.meta.url), 'utf8'));
+  const fixture = JSON.parse(readFileSync(join(root, 'test/reference/fixtures/compare-proc.json'), 'utf8'));
   for (const side of ['a', 'b'] as const)
     t.equal(
       sha256(readFileSync(join(dir, side, 'predictions.csv'))),
@@ -79,19 +75,19 @@ t.test("DeLong's paired test matches pROC", async (t) => {
 });
 
 t.test('the text report: tables, notes and a verdict that does not over-claim', async (t) => {
-  const r = cli(['compare', 'a', 'b'], dir);
+  const r = await cli(['compare', 'a', 'b'], dir);
   t.equal(r.code, 0, r.stderr);
   t.match(r.stdout, /^A: a \(bc-gaussian-nb\)\nB: b \(bc-logistic\)\npaired: the same data/);
   t.match(r.stdout, /McNemar's exact test/);
   t.match(r.stdout, /DeLong's paired test/);
   t.match(r.stdout, /\naccuracy: A \(bc-gaussian-nb\) scored better than B \(bc-logistic\) on these data and folds, by 0\.0340/);
-  const brier = cli(['compare', 'a', 'b', '--metric', 'brier'], dir);
+  const brier = await cli(['compare', 'a', 'b', '--metric', 'brier'], dir);
   t.match(
     brier.stdout,
     /\nbrier: no evidence of a difference between A and B at the 5 % level .*this does not show that they perform the same\n$/,
   );
   // A protocol is run in memory and compares exactly as its results folder does.
-  const fromProtocol = cli(['compare', 'a.yaml', 'b/manifest.json', '--format', 'json', '--allow-outside'], dir);
+  const fromProtocol = await cli(['compare', 'a.yaml', 'b/manifest.json', '--format', 'json', '--allow-outside'], dir);
   t.equal(fromProtocol.code, 0, fromProtocol.stderr);
   const p = JSON.parse(fromProtocol.stdout).comparison;
   t.same({ ...p, a: undefined, b: undefined }, { ...c, a: undefined, b: undefined });
@@ -100,7 +96,7 @@ t.test('the text report: tables, notes and a verdict that does not over-claim', 
 t.test('refuses what is not paired, and bad options', async (t) => {
   const other = pair.b.replace('seed: 31', 'seed: 32').replace('name: bc-logistic', 'name: bc-logistic-other-folds');
   writeFileSync(join(dir, 'c.yaml'), other);
-  const folds = cli(['compare', 'a', 'c.yaml', '--allow-outside'], dir);
+  const folds = await cli(['compare', 'a', 'c.yaml', '--allow-outside'], dir);
   t.equal(folds.code, 1);
   t.match(folds.stderr, /error: A and B tested the rows in different folds/);
   t.match(folds.stderr, /hint: a paired comparison needs both protocols to name the same data file and the same split/);
@@ -111,24 +107,24 @@ t.test('refuses what is not paired, and bad options', async (t) => {
       `foldseal: 1\nname: other-data\ndata: {file: d.csv, sha256: "${sha256(csv)}", id: id, label: diagnosis, positive: malignant}\n` +
       'split: {rule: stratified-kfold, folds: 5, repeats: 3, seed: 31}\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy]\n',
   });
-  const data = cli(['compare', join(dir, 'a'), 'd.yaml', '--format', 'json'], d);
+  const data = await cli(['compare', join(dir, 'a'), 'd.yaml', '--format', 'json'], d);
   t.equal(data.code, 1);
   t.same(
     JSON.parse(data.stdout).problems.map((q: { code: string }) => q.code),
     ['compare-different-data'],
   );
-  const same = cli(['compare', 'a', 'a'], dir);
+  const same = await cli(['compare', 'a', 'a'], dir);
   t.equal(same.code, 0);
   t.match(same.stderr, /warning: A and B are the same protocol/);
   t.match(same.stdout, /every one of 15 folds; with no spread across folds the t-test says nothing/);
-  t.match(cli(['compare', 'a', 'b', '--metric', 'mcc'], dir).stderr, /--metric mcc is not reported by both A and B/);
-  const level = cli(['compare', 'a', 'b', '--level', '95'], dir);
+  t.match((await cli(['compare', 'a', 'b', '--metric', 'mcc'], dir)).stderr, /--metric mcc is not reported by both A and B/);
+  const level = await cli(['compare', 'a', 'b', '--level', '95'], dir);
   t.equal(level.code, 2);
   t.match(level.stderr, /--level must be a number between 0 and 1/);
   writeFileSync(join(dir, 'b', 'predictions.csv'), readFileSync(join(dir, 'b', 'predictions.csv'), 'utf8').replace('malignant', 'benign'));
-  const tampered = cli(['compare', 'a', 'b'], dir);
+  const tampered = await cli(['compare', 'a', 'b'], dir);
   t.equal(tampered.code, 1);
   t.match(tampered.stderr, /predictions.csv does not match the SHA-256 recorded in results.json/);
-  const missing = cli(['compare', 'a', 'nowhere.yaml'], dir);
+  const missing = await cli(['compare', 'a', 'nowhere.yaml'], dir);
   t.equal(missing.code, 2);
 });

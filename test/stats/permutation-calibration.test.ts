@@ -11,23 +11,20 @@
 import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
 import t from 'tap';
 import { validateProtocol } from '../../src/io/validate.js';
 import type { Protocol } from '../../src/protocol/types.js';
 import { crossValidate } from '../../src/run/cross-validate.js';
 import { permutationResult, permutedScores } from '../../src/run/permutation.js';
-import { sha256, tempDir } from '../helpers.js';
+import { root, sha256, tempDir } from '../helpers.js';
 
 const DATASETS = 150;
 const PERMUTATIONS = 39;
 
 t.test('null datasets: permutation p-values are uniform (KS at α = 0.01)', async (t) => {
   // The first 200 rows of the table are enough (and keep the 4,000 cross-validations quick).
-  const csv =
-    readFileSync(new URL('../reference/data/breast-cancer.csv', import.meta.url), 'utf8')
-      .split('\n')
-      .slice(0, 201)
-      .join('\n') + '\n';
+  const csv = readFileSync(join(root, 'test/reference/data/breast-cancer.csv'), 'utf8').split('\n').slice(0, 201).join('\n') + '\n';
   const dir = tempDir({
     'bc.csv': csv,
     'p.yaml':

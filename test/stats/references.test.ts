@@ -9,13 +9,14 @@ import { spawnSync } from 'node:child_process';
 import { readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { root } from '../helpers.js';
 import t from 'tap';
 import { delongInterval, delongPaired, placements } from '../../src/stats/delong.js';
 import { BootstrapDrawer, permutedLabels } from '../../src/stats/resample.js';
 import { binomialCdf, normalCdf, normalQuantile, normalUpper, tCdf, tQuantile } from '../../src/stats/special.js';
 import { idOrder } from '../../src/split/key.js';
 
-const ref = (name: string) => JSON.parse(readFileSync(new URL(`../reference/fixtures/${name}`, import.meta.url), 'utf8'));
+const ref = (name: string) => JSON.parse(readFileSync(join(root, `test/reference/fixtures/${name}`), 'utf8'));
 const close = (a: number, b: number, rel: number) => Math.abs(a - b) <= rel * Math.max(1, Math.abs(b));
 
 t.test('t, normal and binomial distributions match scipy.stats', async (t) => {
@@ -40,9 +41,7 @@ t.test('t, normal and binomial distributions match scipy.stats', async (t) => {
 });
 
 function breastCancer(): { columns: Map<string, Float64Array>; malignant: Uint8Array } {
-  const lines = readFileSync(new URL('../reference/data/breast-cancer.csv', import.meta.url), 'utf8')
-    .trim()
-    .split('\n');
+  const lines = readFileSync(join(root, 'test/reference/data/breast-cancer.csv'), 'utf8').trim().split('\n');
   const header = lines[0].split(',');
   const rows = lines.slice(1).map((l) => l.split(','));
   const columns = new Map(header.slice(1, -1).map((h, j) => [h, Float64Array.from(rows, (r) => Number(r[j + 1]))]));
@@ -87,7 +86,7 @@ t.test("DeLong's interval and paired test match pROC on the breast-cancer table"
 });
 
 const specVectors = () => {
-  const text = readFileSync(new URL('../../docs/resample-spec.md', import.meta.url), 'utf8');
+  const text = readFileSync(join(root, 'docs/resample-spec.md'), 'utf8');
   return [...text.matchAll(/^\{.*\}$/gm)].map((m) => JSON.parse(m[0]));
 };
 
@@ -123,7 +122,7 @@ t.test('the independent Python reading of the spec agrees with the vectors', asy
       .map((v) => JSON.stringify(v))
       .join('\n') + '\n',
   );
-  const r = spawnSync(python, [new URL('../reference/resample_v1.py', import.meta.url).pathname, 'check', file], { encoding: 'utf8' });
+  const r = spawnSync(python, [join(root, 'test/reference/resample_v1.py'), 'check', file], { encoding: 'utf8' });
   // CI installs Debian's python3; a machine without it cannot run this cross-check.
   t.equal(r.error, undefined, `${python} runs`);
   t.equal(r.status, 0, r.stdout + r.stderr);

@@ -3,11 +3,11 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import t from 'tap';
-import { cli, sha256, tempDir } from '../helpers.js';
+import { cli, root, sha256, tempDir } from '../helpers.js';
 
-const table = (name: string) => readFileSync(new URL(`../reference/data/${name}`, import.meta.url), 'utf8');
+const table = (name: string) => readFileSync(join(root, `test/reference/data/${name}`), 'utf8');
 
-function run(csv: string, label: string, statistics: string, extra = '') {
+async function run(csv: string, label: string, statistics: string, extra = '') {
   const protocol = [
     'foldseal: 1',
     'name: stats',
@@ -19,13 +19,13 @@ function run(csv: string, label: string, statistics: string, extra = '') {
     extra,
   ].join('\n');
   const dir = tempDir({ 'data.csv': csv, 'p.yaml': protocol });
-  const r = cli(['run', 'p.yaml', '--out', 'out'], dir);
+  const r = await cli(['run', 'p.yaml', '--out', 'out'], dir);
   const results = r.code === 0 ? JSON.parse(readFileSync(join(dir, 'out', 'results.json'), 'utf8')) : undefined;
   return { r, results };
 }
 
 t.test('strong signal: every interval holds its estimate, the corrected t is wider than the naive, p = 1/(N+1)', async (t) => {
-  const { r, results } = run(
+  const { r, results } = await run(
     table('breast-cancer.csv'),
     'diagnosis',
     '{level: 0.9, bootstrap: {replicates: 200, seed: 5}, permutation: {count: 99, seed: 5, metric: roc-auc}}',
@@ -55,7 +55,7 @@ t.test('labels unrelated to the features: the permutation p-value is not small',
   const labels = lines.slice(1).map((l) => l.slice(l.lastIndexOf(',') + 1));
   const n = labels.length;
   const shuffled = lines.slice(1).map((l, i) => `${l.slice(0, l.lastIndexOf(','))},${labels[(i * 211) % n]}`);
-  const { r, results } = run(
+  const { r, results } = await run(
     [lines[0], ...shuffled].join('\n') + '\n',
     'diagnosis',
     '{permutation: {count: 99, seed: 9, metric: accuracy}}',
@@ -66,11 +66,11 @@ t.test('labels unrelated to the features: the permutation p-value is not small',
 });
 
 t.test('three classes: no DeLong interval, said so; permutations within groups need data.group', async (t) => {
-  const { r, results } = run(table('iris.csv'), 'species', '{bootstrap: {replicates: 100, seed: 1}}');
+  const { r, results } = await run(table('iris.csv'), 'species', '{bootstrap: {replicates: 100, seed: 1}}');
   t.equal(r.code, 0, r.stderr);
   t.equal(results.statistics.intervals['roc-auc'].pooled.delong, null);
   t.match(results.statistics.notes.join('\n'), /defined for two classes/);
-  const bad = run(table('iris.csv'), 'species', '{permutation: {count: 10, seed: 1, metric: brier, within: group}}');
+  const bad = await run(table('iris.csv'), 'species', '{permutation: {count: 10, seed: 1, metric: brier, within: group}}');
   t.equal(bad.r.code, 1);
   t.match(bad.r.stderr, /permutation test's metric brier is not among the protocol's metrics/);
   t.match(bad.r.stderr, /within: group needs data.group/);

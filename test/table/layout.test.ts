@@ -9,10 +9,10 @@ import { join } from 'node:path';
 import { gzipSync } from 'node:zlib';
 import t from 'tap';
 import { newRowsLayout } from '../../src/table/detect.js';
-import { cli, referenceTable, sha256, tempDir } from '../helpers.js';
+import { cli, referenceTable, root, sha256, tempDir } from '../helpers.js';
 
 const { header, body } = referenceTable('breast-cancer.csv');
-const ref = JSON.parse(readFileSync(new URL('../reference/fixtures/breast-cancer-ftest-gaussian-nb.json', import.meta.url), 'utf8'));
+const ref = JSON.parse(readFileSync(join(root, 'test/reference/fixtures/breast-cancer-ftest-gaussian-nb.json'), 'utf8'));
 const label = header.indexOf('diagnosis');
 const features = header.map((_, c) => c).filter((c) => c !== 0 && c !== label);
 // Features in rows: first column the feature name, then one column per sample, the header naming the samples.
@@ -40,11 +40,11 @@ function protocol(files: { matrix: string; matrixBytes: Uint8Array; sheet: strin
 t.test('a gzipped features-in-rows matrix with a sample sheet runs end to end and matches scikit-learn', async (t) => {
   const dir = tempDir({ 'expr.tsv.gz': gz, 'samples.csv': sheet });
   writeFileSync(join(dir, 'p.yaml'), protocol({ matrix: 'expr.tsv.gz', matrixBytes: gz, sheet: 'samples.csv', sheetBytes: sheet }));
-  const v = cli(['validate', 'p.yaml'], dir);
+  const v = await cli(['validate', 'p.yaml'], dir);
   t.equal(v.code, 0, v.stderr + v.stdout);
   // The declared hash is of the bytes on disk: `foldseal hash` (like sha256sum) prints it.
-  t.match(cli(['hash', 'expr.tsv.gz'], dir).stdout, sha256(gz));
-  const r = cli(['run', 'p.yaml', '--out', 'res'], dir);
+  t.match((await cli(['hash', 'expr.tsv.gz'], dir)).stdout, sha256(gz));
+  const r = await cli(['run', 'p.yaml', '--out', 'res'], dir);
   t.equal(r.code, 0, r.stderr);
   const results = JSON.parse(readFileSync(join(dir, 'res', 'results.json'), 'utf8'));
   t.equal(results.data.rows, 569);
@@ -75,11 +75,11 @@ t.test('a gzipped features-in-rows matrix with a sample sheet runs end to end an
 t.test('gzip is recognized by its bytes, not its name; a broken one is a located error', async (t) => {
   const dir = tempDir({ 'expr.tsv': gz, 'samples.csv': sheet });
   writeFileSync(join(dir, 'p.yaml'), protocol({ matrix: 'expr.tsv', matrixBytes: gz, sheet: 'samples.csv', sheetBytes: sheet }));
-  t.equal(cli(['validate', 'p.yaml'], dir).code, 0);
+  t.equal((await cli(['validate', 'p.yaml'], dir)).code, 0);
   const broken = Buffer.concat([gz.subarray(0, 200), Buffer.alloc(50)]);
   writeFileSync(join(dir, 'broken.tsv.gz'), broken);
   writeFileSync(join(dir, 'q.yaml'), protocol({ matrix: 'broken.tsv.gz', matrixBytes: broken, sheet: 'samples.csv', sheetBytes: sheet }));
-  const r = cli(['validate', 'q.yaml'], dir);
+  const r = await cli(['validate', 'q.yaml'], dir);
   t.equal(r.code, 1);
   t.match(r.stderr, /q\.yaml:\d+:\d+: error: file broken\.tsv\.gz starts like a gzip file but cannot be decompressed/);
 });
@@ -89,12 +89,12 @@ t.test('samples in only one file: an error naming them, or left out and counted'
   const dir = tempDir({ 'expr.tsv.gz': gz, 'samples.csv': short });
   const files = { matrix: 'expr.tsv.gz', matrixBytes: gz, sheet: 'samples.csv', sheetBytes: short };
   writeFileSync(join(dir, 'p.yaml'), protocol(files));
-  const r = cli(['validate', 'p.yaml'], dir);
+  const r = await cli(['validate', 'p.yaml'], dir);
   t.equal(r.code, 1);
   t.match(r.stderr, /error: 2 samples of expr\.tsv\.gz are not in the sample sheet: "/);
   t.match(r.stderr, /error: 1 sample-sheet row are not in expr\.tsv\.gz: "extra-1"/);
   writeFileSync(join(dir, 'q.yaml'), protocol(files, ', unmatched: drop'));
-  const run = cli(['run', 'q.yaml', '--out', 'res'], dir);
+  const run = await cli(['run', 'q.yaml', '--out', 'res'], dir);
   t.equal(run.code, 0, run.stderr);
   t.match(run.stderr, /warning: 2 samples of expr\.tsv\.gz were left out: not in the sample sheet/);
   const results = JSON.parse(readFileSync(join(dir, 'res', 'results.json'), 'utf8'));
@@ -106,7 +106,7 @@ t.test('problems in the sample sheet point into the sample sheet', async (t) => 
   const bad = sheet.replace(',malignant,', ',,');
   const dir = tempDir({ 'expr.tsv.gz': gz, 'samples.csv': bad });
   writeFileSync(join(dir, 'p.yaml'), protocol({ matrix: 'expr.tsv.gz', matrixBytes: gz, sheet: 'samples.csv', sheetBytes: bad }));
-  const r = cli(['validate', 'p.yaml'], dir);
+  const r = await cli(['validate', 'p.yaml'], dir);
   t.equal(r.code, 1);
   t.match(r.stderr, /samples\.csv:\d+:\d+: error: row \d+ has no label/);
   const noSheet = protocol({ matrix: 'expr.tsv.gz', matrixBytes: gz, sheet: 'samples.csv', sheetBytes: bad }).replace(
@@ -114,7 +114,7 @@ t.test('problems in the sample sheet point into the sample sheet', async (t) => 
     '',
   );
   writeFileSync(join(dir, 'q.yaml'), noSheet);
-  const q = cli(['validate', 'q.yaml'], dir);
+  const q = await cli(['validate', 'q.yaml'], dir);
   t.equal(q.code, 1);
   t.match(q.stderr, /error: a features-in-rows data file holds no labels: name a sample sheet under data\.samples/);
 });
@@ -126,11 +126,11 @@ t.test('a label value in no class, or in two, is an error at its place', async (
     '  positive: M\n  where: {batch: ["1", "2"]}\n  classes: {B: [benign], M: [malign]}\n',
   );
   writeFileSync(join(dir, 'q.yaml'), base);
-  const q = cli(['validate', 'q.yaml'], dir);
+  const q = await cli(['validate', 'q.yaml'], dir);
   t.equal(q.code, 1);
   t.match(q.stderr, /samples\.csv:\d+:\d+: error: label value "malignant" is in no class of data\.classes/);
   writeFileSync(join(dir, 'w.yaml'), base.replace('B: [benign]', 'B: [benign, malign]'));
-  t.match(cli(['validate', 'w.yaml'], dir).stderr, /error: label value "malign" is listed in class "B" and in class "M"/);
+  t.match((await cli(['validate', 'w.yaml'], dir)).stderr, /error: label value "malign" is listed in class "B" and in class "M"/);
 });
 
 t.test('apply: held-back samples with only the features the fold models read, scored on their own labels', async (t) => {
@@ -148,7 +148,7 @@ t.test('apply: held-back samples with only the features the fold models read, sc
     join(dir, 'p.yaml'),
     protocol({ matrix: 'expr.tsv.gz', matrixBytes: runGz, sheet: 'samples.csv', sheetBytes: runSheet }).replace('folds: 10', 'folds: 5'),
   );
-  t.equal(cli(['run', 'p.yaml', '--out', 'res'], dir).code, 0);
+  t.equal((await cli(['run', 'p.yaml', '--out', 'res'], dir)).code, 0);
   const models = JSON.parse(readFileSync(join(dir, 'res', 'models.json'), 'utf8'));
   const used = new Set<number>(models.folds.flatMap((f: { pipeline: { input: number[] } }) => f.pipeline.input));
   t.ok(used.size >= 10 && used.size < 30, `the fold models read ${used.size} of the 30 features`);
@@ -158,7 +158,7 @@ t.test('apply: held-back samples with only the features the fold models read, sc
   const table =
     ['sample,diagnosis,' + keep.join(','), ...heldBack.map((r) => [r[0], r[label], ...cols.map((c) => r[c])].join(','))].join('\n') + '\n';
   writeFileSync(join(dir, 'held-back.csv'), table);
-  const a = cli(['apply', 'res', 'held-back.csv', '--out', 'applied.csv'], dir);
+  const a = await cli(['apply', 'res', 'held-back.csv', '--out', 'applied.csv'], dir);
   t.equal(a.code, 0, a.stderr);
   t.match(a.stderr, new RegExp(`scored on the new rows' own labels \\(column "diagnosis"\\): ${heldBack.length} rows`));
   t.match(a.stderr, /\n {2}roc-auc\s+0\.9\d{3}\n/);
@@ -173,7 +173,7 @@ t.test('apply: held-back samples with only the features the fold models read, sc
     '\n';
   writeFileSync(join(dir, 'held-back.tsv.gz'), gzipSync(Buffer.from(fir)));
   // The layout is detected (no --layout): the header names samples, the first column features.
-  const b = cli(['apply', 'res', 'held-back.tsv.gz', '--out', 'applied-2.csv'], dir);
+  const b = await cli(['apply', 'res', 'held-back.tsv.gz', '--out', 'applied-2.csv'], dir);
   t.equal(b.code, 0, b.stderr);
   const strip = (lines: string[]) =>
     lines.map((l) =>
@@ -191,14 +191,14 @@ t.test('apply: held-back samples with only the features the fold models read, sc
       .map((l) => l.split(',').slice(0, -1).join(','))
       .join('\n'),
   );
-  const c = cli(['apply', 'res', 'short.csv'], dir);
+  const c = await cli(['apply', 'res', 'short.csv'], dir);
   t.equal(c.code, 1);
   t.match(c.stderr, new RegExp(`error: feature "${keep[keep.length - 1]}" is not in the new-rows file's header`));
 });
 
 t.test('end to end with no hand step: init → validate → run → verify --rerun → apply on held-back samples', async (t) => {
   const dir = tempDir({ 'expr.tsv.gz': gz, 'samples.csv': sheet });
-  const init = cli(
+  const init = await cli(
     [
       'init',
       'expr.tsv.gz',
@@ -225,14 +225,14 @@ t.test('end to end with no hand step: init → validate → run → verify --rer
   t.match(init.stderr, 'wrote p.yaml (features in rows, 380 rows, 2 classes, 30 features; 380 of 569 rows kept by --where)');
   const text = readFileSync(join(dir, 'p.yaml'), 'utf8');
   t.match(text, 'layout: features-in-rows');
-  t.equal(cli(['validate', 'p.yaml'], dir).code, 0);
-  const r = cli(['run', 'p.yaml', '--out', 'res'], dir);
+  t.equal((await cli(['validate', 'p.yaml'], dir)).code, 0);
+  const r = await cli(['run', 'p.yaml', '--out', 'res'], dir);
   t.equal(r.code, 0, r.stderr);
-  t.equal(cli(['folds', 'p.yaml', '--out', 'folds.csv'], dir).code, 0);
+  t.equal((await cli(['folds', 'p.yaml', '--out', 'folds.csv'], dir)).code, 0);
   const ref = spawnSync(
     '/usr/bin/python3',
     [
-      new URL('../reference/layout_reference.py', import.meta.url).pathname,
+      join(root, 'test/reference/layout_reference.py'),
       join(dir, 'expr.tsv.gz'),
       join(dir, 'samples.csv'),
       join(dir, 'folds.csv'),
@@ -263,7 +263,7 @@ t.test('end to end with no hand step: init → validate → run → verify --rer
   t.same(results.data.where, { columns: { batch: ['1', '2'] }, 'rows-before': 569, 'rows-after': 380 });
   t.same(results.data['class-map'], { B: ['benign'], M: ['malignant'] });
   t.notOk(results.data.features.includes('batch'), 'the filtered column is not a feature');
-  const v = cli(['verify', 'res/manifest.json', '--rerun', '--allow-unsigned', '--allow-unpinned'], dir);
+  const v = await cli(['verify', 'res/manifest.json', '--rerun', '--allow-unsigned', '--allow-unpinned'], dir);
   t.equal(v.code, 0, v.stdout + v.stderr);
   // The held-back samples (batch 3), as the lab would send them: the sheet's label and every measurement.
   const held = ['sample,diagnosis,' + features.map((c) => header[c]).join(',')];
@@ -271,7 +271,7 @@ t.test('end to end with no hand step: init → validate → run → verify --rer
     if (i % 3 === 2) held.push([row[0], row[label], ...features.map((c) => row[c])].join(','));
   });
   writeFileSync(join(dir, 'batch3.csv'), held.join('\n') + '\n');
-  const a = cli(['apply', 'res', 'batch3.csv', '--out', 'batch3-applied.csv'], dir);
+  const a = await cli(['apply', 'res', 'batch3.csv', '--out', 'batch3-applied.csv'], dir);
   t.equal(a.code, 0, a.stderr);
   t.match(a.stderr, `scored on the new rows' own labels (column "diagnosis"): ${held.length - 1} rows`);
 });

@@ -67,14 +67,14 @@ t.test('Parquet (snappy, gzip, Brotli, uncompressed; dictionary or plain pages) 
   // End to end through the binary, under a name that does not say Parquet: the CSV run's predictions.
   const bytes = parquet(pq.Compression.SNAPPY);
   const dir = tempDir({ 'bc.csv': csv, 'csv.yaml': protocol('bc.csv', csv), 'bc.data': bytes, 'pq.yaml': protocol('bc.data', bytes) });
-  for (const name of ['csv', 'pq']) t.equal(cli(['run', `${name}.yaml`, '--out', name], dir).code, 0);
+  for (const name of ['csv', 'pq']) t.equal((await cli(['run', `${name}.yaml`, '--out', name], dir)).code, 0);
   t.equal(readFileSync(join(dir, 'pq', 'predictions.csv'), 'utf8'), readFileSync(join(dir, 'csv', 'predictions.csv'), 'utf8'));
   // apply reads a Parquet table of rows as it reads the CSV.
-  t.equal(cli(['apply', 'pq', 'bc.data', '--out', 'from-pq.csv'], dir).code, 0);
-  t.equal(cli(['apply', 'pq', 'bc.csv', '--out', 'from-csv.csv'], dir).code, 0);
+  t.equal((await cli(['apply', 'pq', 'bc.data', '--out', 'from-pq.csv'], dir)).code, 0);
+  t.equal((await cli(['apply', 'pq', 'bc.csv', '--out', 'from-csv.csv'], dir)).code, 0);
   t.equal(readFileSync(join(dir, 'from-pq.csv'), 'utf8'), readFileSync(join(dir, 'from-csv.csv'), 'utf8'));
   // init writes a protocol for a Parquet file that validates as is.
-  const init = cli(['init', 'bc.data', '--id', 'id', '--label', 'diagnosis', '--out', 'init.yaml'], dir);
+  const init = await cli(['init', 'bc.data', '--id', 'id', '--label', 'diagnosis', '--out', 'init.yaml'], dir);
   t.equal(init.code, 0, init.stderr);
   t.match(init.stderr, 'wrote init.yaml (569 rows, 2 classes, 30 features)');
 });
@@ -82,7 +82,7 @@ t.test('Parquet (snappy, gzip, Brotli, uncompressed; dictionary or plain pages) 
 t.test('null cells are missing values: an impute step is needed, as for empty CSV cells', async (t) => {
   const bytes = parquet(pq.Compression.SNAPPY, { nulls: true });
   const dir = tempDir({ 'bc.parquet': bytes, 'p.yaml': protocol('bc.parquet', bytes) });
-  const r = cli(['validate', 'p.yaml'], dir);
+  const r = await cli(['validate', 'p.yaml'], dir);
   t.equal(r.code, 1);
   t.match(r.stderr, /missing/);
   // The same nulls as empty CSV cells, imputed: the same predictions.
@@ -92,8 +92,8 @@ t.test('null cells are missing values: an impute step is needed, as for empty CS
   const impute = (p: string) => p.replace('preprocess: [', 'preprocess: [{impute: {by: median}}, ');
   writeFileSync(join(dir, 'q.yaml'), impute(protocol('bc.parquet', bytes)));
   writeFileSync(join(dir, 'c.yaml'), impute(protocol('holes.csv', holes)));
-  t.equal(cli(['run', 'q.yaml', '--out', 'q'], dir).code, 0);
-  t.equal(cli(['run', 'c.yaml', '--out', 'c'], dir).code, 0);
+  t.equal((await cli(['run', 'q.yaml', '--out', 'q'], dir)).code, 0);
+  t.equal((await cli(['run', 'c.yaml', '--out', 'c'], dir)).code, 0);
   t.equal(readFileSync(join(dir, 'q', 'predictions.csv'), 'utf8'), readFileSync(join(dir, 'c', 'predictions.csv'), 'utf8'));
 });
 
@@ -107,11 +107,11 @@ t.test('an unsupported codec or a broken file is a located error', async (t) => 
     'z.yaml': protocol('z.parquet', zstd),
     'b.yaml': protocol('b.parquet', broken),
   });
-  const z = cli(['validate', 'z.yaml'], dir);
+  const z = await cli(['validate', 'z.yaml'], dir);
   t.equal(z.code, 1);
   t.match(z.stderr, /z\.yaml:3:\d+: error: file z\.parquet is a Parquet file foldseal cannot read: .*/);
   t.match(z.stderr, /hint: write it with snappy, gzip, Brotli or no compression/);
-  const b = cli(['validate', 'b.yaml'], dir);
+  const b = await cli(['validate', 'b.yaml'], dir);
   t.equal(b.code, 1);
   t.match(b.stderr, /error: file b\.parquet is a Parquet file foldseal cannot read/);
   t.notMatch(b.stderr + z.stderr, /\n\s+at /, 'no stack trace');
