@@ -151,6 +151,23 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     );
 
   program
+    .command('audit')
+    .description('look for the ways a cross-validated score can be too good: copies, split subjects, label proxies, confounding')
+    .argument('<protocol>', 'protocol YAML file')
+    .option('--no-selection-bias', 'skip the selection-bias demonstration (two extra cross-validations)')
+    .addOption(formatOption())
+    .addOption(outsideOption())
+    .addHelpText(
+      'after',
+      '\nExamples:\n  foldseal audit protocols/demo.yaml\n  foldseal audit protocols/demo-expression.yaml --format json\n\n' +
+        'Findings are warnings (a likely leak for this design) or notes (seen, not a leak here); thresholds in docs/audit.md.\n' +
+        'Exit: 0 no warning, 1 possible leaks or an invalid protocol, 2 usage error or unreadable file.',
+    )
+    .action(async (protocol: string, o: { format: 'text' | 'json'; allowOutside?: boolean; selectionBias?: boolean }) =>
+      done(await (await import('./commands/audit.js')).auditCommand({ protocol, ...o }, io)),
+    );
+
+  program
     .command('keygen')
     .description('make an Ed25519 key pair for signing manifests; prints the key fingerprint')
     .requiredOption('--out <prefix>', 'writes PREFIX.key (private, mode 0600) and PREFIX.pub (public)')

@@ -7,11 +7,14 @@ import { permutedScoresInWorkers, type PermutationProgress } from './permutation
 import { validateProtocol, type ValidationReport } from './validate.js';
 import type { PathPolicy } from './path-policy.js';
 import { lockedRepoProblems } from './repo-guard.js';
+import { auditReport } from './audit-protocol.js';
+import type { AuditResult } from '../audit/audit.js';
 
 export interface Produced {
   report: ValidationReport;
   input?: RunInput;
   out?: RunOutput;
+  audit?: AuditResult;
 }
 
 export interface ProduceOptions {
@@ -25,10 +28,12 @@ export interface ProduceOptions {
   withoutStatistics?: boolean;
   /** Apply a locked repository's rules (protocols the gate cannot see, sealed rows). */
   repoRules?: boolean;
+  /** Also run the leakage audit (without its selection-bias demonstration): `run` prints its one-line summary. */
+  audit?: boolean;
 }
 
 export async function produceRun(protocolPath: string, options: ProduceOptions = {}): Promise<Produced> {
-  const report = await validateProtocol(protocolPath, { access: options.access });
+  const report = await validateProtocol(protocolPath, { access: options.access, describe: options.audit });
   if (options.repoRules && report.protocol && !report.unreadable) report.problems.push(...(await lockedRepoProblems(protocolPath, report)));
   if (report.unreadable || hasErrors(report.problems) || !report.protocol || !report.table || !report.assignment) return { report };
   const input: RunInput = {
@@ -52,5 +57,6 @@ export async function produceRun(protocolPath: string, options: ProduceOptions =
       throw asUserError(e, input.protocolFile);
     },
   );
-  return { report, input, out: runProtocol(input, options.hooks, cv, permuted) };
+  const out = runProtocol(input, options.hooks, cv, permuted);
+  return { report, input, out, audit: options.audit ? auditReport(report, { quick: true }) : undefined };
 }

@@ -64,6 +64,8 @@ export interface ValidateOptions {
   dataOverride?: string;
   /** Where the files the protocol names may lie (default: protocolPolicy of the protocol's path). */
   access?: PathPolicy;
+  /** Also describe the columns that are not features (covariates, cell positions): for the leakage audit. */
+  describe?: boolean;
 }
 
 export async function validateProtocol(path: string, options: ValidateOptions = {}): Promise<ValidationReport> {
@@ -106,7 +108,7 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
   );
   const rowThread = rowThreadsAvailable(size) ? startRowThread() : undefined;
   try {
-    return await validateWithData({ ...parsed, protocol: p, source }, paths, at, rowThread);
+    return await validateWithData({ ...parsed, protocol: p, source }, paths, at, rowThread, Boolean(options.describe));
   } finally {
     await rowThread?.close();
   }
@@ -117,6 +119,7 @@ async function validateWithData(
   paths: { data: string; samples?: string; pinned?: string; newRows?: string },
   at: (docPath: (string | number)[]) => Partial<Problem>,
   rowThread: RowThread | undefined,
+  describe: boolean,
 ): Promise<ValidationReport> {
   const p = parsed.protocol;
   const source = parsed.source;
@@ -195,8 +198,8 @@ async function validateWithData(
   if (helper && hashesIds(p.split) && p.data.id !== undefined)
     helper.expectKeys({ idColumn: p.data.id, seed: p.split.seed ?? 0, repeats: p.split.repeats });
   const built: ReturnType<typeof tableFromLayout> = simple
-    ? tableFromBytes(data.bytes!, shown(paths.data), dataRoles(p), p.data.format, roleLocate, helper)
-    : tableFromLayout(text.content, shown(paths.data), dataRoles(p), p.data.format, p.data.layout, sheet, roleLocate, (column) =>
+    ? tableFromBytes(data.bytes!, shown(paths.data), { ...dataRoles(p), keepOtherColumns: describe }, p.data.format, roleLocate, helper)
+    : tableFromLayout(text.content, shown(paths.data), { ...dataRoles(p), keepOtherColumns: describe }, p.data.format, p.data.layout, sheet, roleLocate, (column) =>
         at(['data', 'where', column]),
       );
   // A file that is not the recorded one is reported as that alone: its structural problems would
@@ -258,6 +261,7 @@ async function validateWithData(
     dataSha256: data.sha256,
     joined: built.joined,
     filtered: built.filtered,
+    described: built.described,
     newRows,
     assignment: hasErrors(problems) ? undefined : semantic.assignment,
   };

@@ -9,6 +9,13 @@ export interface CodeInfo {
 }
 
 export const PROBLEM_CODES = {
+  'audit-confounded': {},
+  'audit-duplicates': {},
+  'audit-id-label': {},
+  'audit-label-proxy': {},
+  'audit-near-duplicates': {},
+  'audit-split-groups': {},
+  'policy-leak': {},
   'bad-format': {},
   'bad-option': {},
   'bad-key': {},

@@ -11,26 +11,27 @@ export function formatProblemsText(problems: readonly Problem[]): string {
   return problems.map(formatProblemText).join('\n');
 }
 
+/** Problems as plain JSON values: every field present, null where absent. */
+export function problemsAsJson(problems: readonly Problem[]) {
+  return problems.map((p) => ({
+    code: p.code,
+    severity: p.severity,
+    message: p.message,
+    file: p.file ?? null,
+    line: p.position?.line ?? null,
+    col: p.position?.col ?? null,
+    path: p.path ?? null,
+    hint: p.hint ?? null,
+  }));
+}
+
 export function formatProblemsJson(problems: readonly Problem[]): string {
-  return JSON.stringify(
-    problems.map((p) => ({
-      code: p.code,
-      severity: p.severity,
-      message: p.message,
-      file: p.file ?? null,
-      line: p.position?.line ?? null,
-      col: p.position?.col ?? null,
-      path: p.path ?? null,
-      hint: p.hint ?? null,
-    })),
-    null,
-    2,
-  );
+  return JSON.stringify(problemsAsJson(problems), null, 2);
 }
 
 export function countSummary(problems: readonly Problem[]): string {
-  const errors = problems.filter((p) => p.severity === 'error').length;
-  const warnings = problems.length - errors;
+  const count = (s: Problem['severity']) => problems.filter((p) => p.severity === s).length;
   const plural = (n: number, w: string) => `${n} ${w}${n === 1 ? '' : 's'}`;
-  return `${plural(errors, 'error')}, ${plural(warnings, 'warning')}`;
+  const notes = count('note');
+  return `${plural(count('error'), 'error')}, ${plural(count('warning'), 'warning')}${notes ? `, ${plural(notes, 'note')}` : ''}`;
 }

@@ -5,7 +5,8 @@
 import { PROBLEM_CODES, type ProblemCode } from './codes.js';
 
 export type { ProblemCode } from './codes.js';
-export type Severity = 'error' | 'warning';
+/** error: the input cannot be used; warning: it can, but look at this; note: seen and reported, not a fault here. */
+export type Severity = 'error' | 'warning' | 'note';
 
 export interface Position {
   line: number; // 1-based
@@ -51,6 +52,10 @@ export class FitError extends Error {
     super(message);
     this.name = 'FitError';
   }
+}
+
+export function note(code: ProblemCode, message: string, extra: Partial<Problem> = {}): Problem {
+  return { code, severity: 'note', message, ...withDefaultHint(code, extra) };
 }
 
 export function hasErrors(problems: readonly Problem[]): boolean {

@@ -2,6 +2,7 @@
 import type { Assignment } from '../split/assignment.js';
 import type { NewRows } from '../table/new-rows.js';
 import type { Table } from '../table/table.js';
+import type { Described } from '../table/covariates.js';
 import type { ParsedProtocol } from './parse.js';
 
 export interface ValidationReport extends ParsedProtocol {
@@ -15,6 +16,8 @@ export interface ValidationReport extends ParsedProtocol {
   filtered?: { before: number; after: number };
   assignment?: Assignment;
   newRows?: NewRows;
+  /** The non-feature columns and cell positions (ValidateOptions.describe). */
+  described?: Described;
   /** Absolute paths of the files the protocol names. */
   paths?: { data: string; samples?: string; pinned?: string; newRows?: string };
 }

@@ -8,6 +8,7 @@ import { hasErrors } from '../problems/problem.js';
 import { filteredGrid, joinedGrid, relabeledGrid, transposedGrid } from './layout.js';
 import type { Grid } from './grid.js';
 import { columnsGrid, type ColumnTable } from './columns.js';
+import { describe, type Described } from './covariates.js';
 
 export function delimiterFor(file: string, format?: 'csv' | 'tsv'): number {
   const f = format ?? (/\.(tsv|tab)(\.gz)?$/i.test(file) ? 'tsv' : 'csv');
@@ -21,7 +22,7 @@ export function tableFromBytes(
   format: 'csv' | 'tsv' | undefined,
   locate: (role: keyof RolePaths, index?: number) => Problem['position'],
   helper?: RowHelper,
-): TableResult {
+): TableResult & { described?: Described } {
   const delimiter = delimiterFor(file, format);
   const content = contentProblems(bytes, file);
   if (content.length) return { problems: content };
@@ -29,12 +30,18 @@ export function tableFromBytes(
   // reader handles everything else and reports malformed files where they go wrong.
   const plain = readPlain(bytes, delimiter);
   if (plain) {
-    const built = buildTable(plainGrid(plain, helper), roles, file, locate);
-    if (!built.ragged) return built;
+    const grid = plainGrid(plain, helper);
+    const built = buildTable(grid, roles, file, locate);
+    if (!built.ragged) return withDescription(built, grid, roles);
   }
   const read = readDelimited(bytes, delimiter, file);
   if (!read.table) return { problems: read.problems };
-  return buildTable(delimitedGrid(read.table), roles, file, locate);
+  const grid = delimitedGrid(read.table);
+  return withDescription(buildTable(grid, roles, file, locate), grid, roles);
+}
+
+function withDescription(built: TableResult, grid: Grid, roles: DataRoles): TableResult & { described?: Described } {
+  return roles.keepOtherColumns && built.table ? { ...built, described: describe(grid, built.table, roles) } : built;
 }
 
 export interface SheetInput {
@@ -81,13 +88,14 @@ export function tableFromLayout(
   sheet: SheetInput | undefined,
   locate: (role: keyof RolePaths, index?: number) => Problem['position'],
   whereAt: (column: string) => Partial<Problem> = () => ({}),
-): TableResult & { joined?: JoinCounts; filtered?: FilterCounts } {
+): TableResult & { joined?: JoinCounts; filtered?: FilterCounts; described?: Described } {
   const matrix = gridOf(bytes, file, format);
   if (!matrix.grid) return { problems: matrix.problems };
   let grid = layout === 'features-in-rows' ? transposedGrid(matrix.grid, roles.id ?? 'id') : matrix.grid;
   const problems = [...matrix.problems];
   const whereCols = Object.keys(roles.where ?? {});
   let joined: JoinCounts | undefined;
+  let sheetOnly: string[] | undefined;
   if (sheet) {
     const s = gridOf(sheet.bytes, sheet.file, sheet.format);
     problems.push(...s.problems);
@@ -96,6 +104,7 @@ export function tableFromLayout(
     const fromSheet = (name: string) => s.grid!.header.includes(name) && !grid.header.includes(name);
     const carry = [
       ...new Set([
+        ...(roles.keepOtherColumns ? s.grid.header.filter((n) => n !== roles.id && fromSheet(n)) : []),
         roles.label,
         ...(roles.group ? [roles.group] : []),
         ...whereCols.filter(fromSheet),
@@ -112,6 +121,7 @@ export function tableFromLayout(
     });
     problems.push(...j.problems);
     if (!j.grid || hasErrors(j.problems)) return { problems };
+    sheetOnly = carry.filter((n) => n !== roles.label && n !== roles.group && !(Array.isArray(roles.features) && roles.features.includes(n)));
     grid = j.grid;
     joined = { 'data-only': j.matrixOnly.length, 'sheet-only': j.sheetOnly.length };
   }
@@ -131,11 +141,12 @@ export function tableFromLayout(
       grid = r.grid;
     }
   }
-  // The columns a filter reads describe the rows; they are not features unless listed.
+  // The columns a filter reads describe the rows, as do the sample sheet's: they are not features unless listed.
+  const describing = [...whereCols, ...(sheetOnly ?? [])];
   const featureRoles: DataRoles =
-    whereCols.length && !Array.isArray(roles.features)
-      ? { ...roles, features: { exclude: [...new Set([...(roles.features?.exclude ?? []), ...whereCols])] } }
+    describing.length && !Array.isArray(roles.features)
+      ? { ...roles, features: { exclude: [...new Set([...(roles.features?.exclude ?? []), ...describing])] } }
       : roles;
   const built = buildTable(grid, featureRoles, file, locate);
-  return { ...built, problems: [...problems, ...built.problems], joined, filtered };
+  return { ...withDescription(built, grid, roles), problems: [...problems, ...built.problems], joined, filtered };
 }

@@ -20,6 +20,8 @@ export interface DataRoles {
   where?: Record<string, string[]>;
   /** Classes as lists of label values (data.classes). */
   classes?: Record<string, string[]>;
+  /** Carry every sample-sheet column and describe the non-feature columns (the leakage audit asks; a run does not). */
+  keepOtherColumns?: boolean;
 }
 
 export interface Table {

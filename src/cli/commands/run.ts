@@ -3,6 +3,7 @@ import { readSigningKey } from '../../io/keys.js';
 import { encodeSshsig, MANIFEST_NAMESPACE, sshsigSignedData } from '../../manifest/ssh.js';
 import { writeOutputDir } from '../../io/output-dir.js';
 import { produceRun } from '../../io/produce-run.js';
+import { auditLine } from '../audit-text.js';
 import { MANIFEST_SCHEMA, schemaValidator } from '../../io/schemas.js';
 import { protocolPolicy } from '../../io/path-policy.js';
 import { shown } from '../../io/validate.js';
@@ -34,7 +35,8 @@ export async function runCommand(args: RunArgs, io: CommandIo): Promise<ExitCode
       lastShown = now;
     }
   };
-  const { report, input, out } = await produceRun(args.protocol, {
+  const { report, input, out, audit } = await produceRun(args.protocol, {
+    audit: true,
     refit: args.refit,
     hooks: { onFold: progress('fitting fold') },
     onPermutation: progress('permutation'),
@@ -72,6 +74,7 @@ export async function runCommand(args: RunArgs, io: CommandIo): Promise<ExitCode
   io.out(cvTables(out.cv) + statisticsLines(out.statistics));
   if (out.applied) io.out(`\nnew rows (reconcile: ${input.protocol.reconcile.rule}):\n` + disagreementReport(out.applied, out.cv.classes));
   if (out.newRowScores) io.out(newRowScoreLines(out.newRowScores, input.protocol.data.label));
+  if (audit) io.out(auditLine(args.protocol, audit) + '\n');
   io.out(
     `wrote ${Object.keys(written).sort().join(', ')} to ` +
       `${shown(dir)}${key?.kind === 'ssh' ? ` (manifest signed with SSH key ${key.describe})` : key ? ' (manifest signed)' : ''}\n`,

@@ -1,0 +1,37 @@
+/**
+ * The columns that describe rows without being features: a sample sheet's covariates (batch,
+ * site, patient, …), and the data file's text or excluded columns. Kept only when asked
+ * (DataRoles.keepOtherColumns, for the leakage audit): a run does not pay for them. Pure.
+ */
+import type { Grid } from './grid.js';
+import type { Table } from './table.js';
+
+export interface Covariate {
+  name: string;
+  /** Every row's cell as text, in the table's row order. */
+  values: string[];
+  /** Where the column's first data cell is (its file when that is not the data file). */
+  at: { line: number; col: number; file?: string };
+}
+
+/** What the audit needs from a read table besides the Table itself. */
+export interface Described {
+  covariates: Covariate[];
+  /** Position of a feature's cell (row in table order, feature index) for located findings. */
+  featureCell(row: number, feature: number): { line: number; col: number; file?: string };
+}
+
+export function describe(grid: Grid, table: Table, roles: { id?: string; label: string; group?: string }): Described {
+  const taken = new Set([roles.id, roles.label, roles.group, ...table.featureNames].filter((n): n is string => n !== undefined));
+  const covariates: Covariate[] = [];
+  grid.header.forEach((name, c) => {
+    if (taken.has(name) || grid.header.indexOf(name) !== c) return;
+    covariates.push({
+      name,
+      values: Array.from({ length: grid.rows }, (_, r) => grid.text(r, c)),
+      at: grid.position(0, c),
+    });
+  });
+  const featureCol = table.featureNames.map((n) => grid.header.indexOf(n));
+  return { covariates, featureCell: (row, feature) => grid.position(row, featureCol[feature]) };
+}
