@@ -28,3 +28,7 @@ export { checkManifest } from './manifest/check.js';
 export { compareRuns, verdict } from './manifest/compare.js';
 export { gate } from './check/gate.js';
 export { lockEntry } from './check/entry.js';
+export { audit, type AuditResult } from './audit/audit.js';
+export { AUDIT_KINDS, type AuditKind } from './audit/kinds.js';
+export { AUDIT_THRESHOLDS } from './audit/thresholds.js';
+export { auditProtocol } from './io/audit-protocol.js';

@@ -4,7 +4,7 @@
  * score is then the batch effect's, and will not hold in a new batch. Pure.
  */
 import { warning, type Problem } from '../problems/problem.js';
-import { gammaP } from '../stats/special.js';
+import { gammaQ } from '../stats/special.js';
 import { AUDIT_CODE } from './kinds.js';
 import type { AuditInput } from './input.js';
 import { pairwiseSeparation } from './separation.js';
@@ -32,10 +32,11 @@ export function association(a: Int32Array, levels: number, y: Int32Array, classe
   }
   const rowSum = new Float64Array(levels);
   const colSum = new Float64Array(classes);
-  for (let l = 0; l < levels; l++) for (let c = 0; c < classes; c++) {
-    rowSum[l] += table[l * classes + c];
-    colSum[c] += table[l * classes + c];
-  }
+  for (let l = 0; l < levels; l++)
+    for (let c = 0; c < classes; c++) {
+      rowSum[l] += table[l * classes + c];
+      colSum[c] += table[l * classes + c];
+    }
   const usedRows = rowSum.filter((v) => v > 0).length;
   const usedCols = colSum.filter((v) => v > 0).length;
   if (usedRows < 2 || usedCols < 2) return null;
@@ -50,7 +51,7 @@ export function association(a: Int32Array, levels: number, y: Int32Array, classe
     }
   }
   const df = (usedRows - 1) * (usedCols - 1);
-  const p = 1 - gammaP(df / 2, chi / 2);
+  const p = gammaQ(df / 2, chi / 2);
   const cramerV = Math.sqrt(chi / (n * (Math.min(usedRows, usedCols) - 1)));
   return { chiSquare: chi, df, p: Math.max(0, p), cramerV: Math.min(1, cramerV), n };
 }

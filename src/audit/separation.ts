@@ -64,7 +64,7 @@ export function proxyFindings(input: AuditInput): Problem[] {
   return out;
 }
 
-const escape = (s: string) => s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
+const escapeRegExp = (s: string) => s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
 
 export function idFindings(input: AuditInput): Problem[] {
   const { table } = input;
@@ -74,7 +74,9 @@ export function idFindings(input: AuditInput): Problem[] {
   const out: Problem[] = [];
   const idAt = input.protocolAt(['data', input.protocol.data.id !== undefined ? 'id' : 'file']);
   // Ids that spell their row's class as a word.
-  const words = table.classes.map((c) => (c.length >= 2 ? new RegExp(`(^|[^\\p{L}\\p{N}])${escape(c)}($|[^\\p{L}])`, 'iu') : undefined));
+  const words = table.classes.map((c) =>
+    c.length >= 2 ? new RegExp(`(^|[^\\p{L}\\p{N}])${escapeRegExp(c)}($|[^\\p{L}])`, 'iu') : undefined,
+  );
   let named = 0;
   for (let r = 0; r < n; r++) if (words[table.y[r]]?.test(table.ids[r])) named++;
   if (input.protocol.data.id !== undefined && named / n >= t.idNamesClass)

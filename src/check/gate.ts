@@ -8,6 +8,7 @@ import { isPinned } from '../protocol/types.js';
 import type { ValidationReport } from '../protocol/report.js';
 import { rawFingerprint, type ManifestCheck } from '../manifest/check.js';
 import { parseKeyLines } from '../manifest/ssh.js';
+import { AUDIT_KINDS, kindOfCode } from '../audit/kinds.js';
 import { lockPosition, type LockEntry, type ParsedLock } from './lock.js';
 import { rowDigests } from '../table/row-digest.js';
 import { splitRules } from '../split/registry.js';
@@ -18,6 +19,8 @@ export interface ProtocolState {
   report: ValidationReport;
   /** The entry as it would be locked now (valid protocols only). */
   entry?: LockEntry;
+  /** The protocol's audit findings, when the lock's policy forbids some leaks (valid protocols only). */
+  audit?: Problem[];
 }
 
 export interface GateInput {
@@ -241,7 +244,27 @@ function policyFindings(g: GateInput, inScope: (p: string) => boolean): Problem[
           at(s, ['verify', 'tolerance']),
         ),
       );
+    const forbidden = new Set(policy['forbid-leaks'] ?? []);
+    for (const f of s.audit ?? []) {
+      const kind = kindOfCode(f.code);
+      if (f.severity === 'warning' && kind && forbidden.has(kind))
+        out.push(
+          error('policy-leak', `${p.name}: ${f.message} (the lock's policy forbids ${kind})`, {
+            file: f.file,
+            position: f.position,
+            hint: f.hint,
+          }),
+        );
+    }
   }
+  for (const kind of policy['forbid-leaks'] ?? [])
+    if (!(AUDIT_KINDS as readonly string[]).includes(kind))
+      out.push(
+        error('policy-leak', `the lock's policy.forbid-leaks names "${kind}", which is not a kind of audit finding`, {
+          file: g.lockFile,
+          hint: `known kinds: ${AUDIT_KINDS.join(', ')}`,
+        }),
+      );
   if (policy.signers) {
     for (const m of g.manifests) {
       const by = m.check.signedBy;

@@ -21,6 +21,8 @@ export interface Policy {
   signers?: string[];
   /** No protocol may set verify.tolerance above 0. */
   'forbid-tolerance'?: boolean;
+  /** Audit finding kinds (duplicates, split-groups, …) that fail the gate when a protocol's audit warns of them. */
+  'forbid-leaks'?: string[];
   /** Folders (relative to the lock) the gate does not look into, besides dot-folders and node_modules. */
   skip?: string[];
   /** Folders the gate looks into although they would be skipped (a dot-folder, say). */

@@ -35,6 +35,9 @@ export function auditLine(protocol: string, result: AuditResult): string {
     ...(noted.length ? [`notes: ${noted.join(', ')}`] : []),
   ];
   const more = result.skipped.length ? `; left out for this size: ${result.skipped.join(', ')}` : '';
-  const see = findings.length || result.skipped.length ? ` — foldseal audit ${protocol} shows ${findings.length ? 'where' : 'all'}` : '';
+  const see =
+    findings.length || result.skipped.length
+      ? ` — foldseal audit ${protocol} ${findings.length ? 'shows where' : 'runs the full audit'}`
+      : '';
   return `\naudit: ${parts.join('; ')}${more}${see}`;
 }

@@ -13,6 +13,7 @@ import { readRegular, readRegularText } from './files.js';
 import { outsideProblem, trustedFolders } from './path-policy.js';
 import { sha256Bytes } from './hash.js';
 import { shown, validateProtocol } from './validate.js';
+import { auditReport } from './audit-protocol.js';
 
 export interface Repo {
   input: GateInput;
@@ -47,13 +48,15 @@ export async function readRepo(root: string, allowOutside = false): Promise<Repo
   const policy = lock?.lock?.policy;
   const discovered = await discoverProtocols(root, { skip: policy?.skip, include: policy?.include });
   const access = { roots: [root, ...trustedFolders()], allowOutside };
+  // A policy that forbids leaks needs each protocol's audit (its non-feature columns described).
+  const audits = Boolean(policy?.['forbid-leaks']?.length);
   for (const path of discovered.found) {
-    const report = await validateProtocol(join(root, path), { access });
+    const report = await validateProtocol(join(root, path), { access, describe: audits });
     const entry =
       report.protocol && report.assignment && report.dataSha256
         ? lockEntry(report.protocol, report.raw, report.dataSha256, report.assignment)
         : undefined;
-    protocols.push({ path, report, entry });
+    protocols.push({ path, report, entry, audit: audits ? auditReport(report)?.findings : undefined });
   }
   let sealed: GateInput['sealed'];
   const s = lock?.lock?.sealed;

@@ -199,8 +199,15 @@ async function validateWithData(
     helper.expectKeys({ idColumn: p.data.id, seed: p.split.seed ?? 0, repeats: p.split.repeats });
   const built: ReturnType<typeof tableFromLayout> = simple
     ? tableFromBytes(data.bytes!, shown(paths.data), { ...dataRoles(p), keepOtherColumns: describe }, p.data.format, roleLocate, helper)
-    : tableFromLayout(text.content, shown(paths.data), { ...dataRoles(p), keepOtherColumns: describe }, p.data.format, p.data.layout, sheet, roleLocate, (column) =>
-        at(['data', 'where', column]),
+    : tableFromLayout(
+        text.content,
+        shown(paths.data),
+        { ...dataRoles(p), keepOtherColumns: describe },
+        p.data.format,
+        p.data.layout,
+        sheet,
+        roleLocate,
+        (column) => at(['data', 'where', column]),
       );
   // A file that is not the recorded one is reported as that alone: its structural problems would
   // only distract. (The hash is taken while the file is parsed, on the second thread for large files.)

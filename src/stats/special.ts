@@ -41,6 +41,12 @@ export function gammaP(a: number, x: number): number {
   return 1 - gammaQContinued(a, x);
 }
 
+/** Regularized upper incomplete gamma Q(a, x) = 1 − P(a, x), accurate in the far tail (tiny p-values). */
+export function gammaQ(a: number, x: number): number {
+  if (x <= 0) return 1;
+  return x < a + 1 ? 1 - gammaP(a, x) : gammaQContinued(a, x);
+}
+
 /** Q(a, x) = 1 − P(a, x) by Lentz's continued fraction (x ≥ a + 1). */
 function gammaQContinued(a: number, x: number): number {
   let b = x + 1 - a;

@@ -10,18 +10,23 @@ export interface Covariate {
   name: string;
   /** Every row's cell as text, in the table's row order. */
   values: string[];
-  /** Where the column's first data cell is (its file when that is not the data file). */
-  at: { line: number; col: number; file?: string };
+  /** Where the column's first data cell is. */
+  at: { line: number; col: number; file: string };
 }
 
 /** What the audit needs from a read table besides the Table itself. */
 export interface Described {
   covariates: Covariate[];
   /** Position of a feature's cell (row in table order, feature index) for located findings. */
-  featureCell(row: number, feature: number): { line: number; col: number; file?: string };
+  featureCell(row: number, feature: number): { line: number; col: number; file: string };
 }
 
-export function describe(grid: Grid, table: Table, roles: { id?: string; label: string; group?: string }): Described {
+/** `file`: the data file as shown, for cells the grid does not place in another file. */
+function placed(p: { line: number; col: number; file?: string }, file: string) {
+  return { line: p.line, col: p.col, file: p.file ?? file };
+}
+
+export function describe(grid: Grid, table: Table, roles: { id?: string; label: string; group?: string }, file: string): Described {
   const taken = new Set([roles.id, roles.label, roles.group, ...table.featureNames].filter((n): n is string => n !== undefined));
   const covariates: Covariate[] = [];
   grid.header.forEach((name, c) => {
@@ -29,9 +34,9 @@ export function describe(grid: Grid, table: Table, roles: { id?: string; label: 
     covariates.push({
       name,
       values: Array.from({ length: grid.rows }, (_, r) => grid.text(r, c)),
-      at: grid.position(0, c),
+      at: placed(grid.position(0, c), file),
     });
   });
   const featureCol = table.featureNames.map((n) => grid.header.indexOf(n));
-  return { covariates, featureCell: (row, feature) => grid.position(row, featureCol[feature]) };
+  return { covariates, featureCell: (row, feature) => placed(grid.position(row, featureCol[feature]), file) };
 }

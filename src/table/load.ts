@@ -32,16 +32,16 @@ export function tableFromBytes(
   if (plain) {
     const grid = plainGrid(plain, helper);
     const built = buildTable(grid, roles, file, locate);
-    if (!built.ragged) return withDescription(built, grid, roles);
+    if (!built.ragged) return withDescription(built, grid, roles, file);
   }
   const read = readDelimited(bytes, delimiter, file);
   if (!read.table) return { problems: read.problems };
   const grid = delimitedGrid(read.table);
-  return withDescription(buildTable(grid, roles, file, locate), grid, roles);
+  return withDescription(buildTable(grid, roles, file, locate), grid, roles, file);
 }
 
-function withDescription(built: TableResult, grid: Grid, roles: DataRoles): TableResult & { described?: Described } {
-  return roles.keepOtherColumns && built.table ? { ...built, described: describe(grid, built.table, roles) } : built;
+function withDescription(built: TableResult, grid: Grid, roles: DataRoles, file: string): TableResult & { described?: Described } {
+  return roles.keepOtherColumns && built.table ? { ...built, described: describe(grid, built.table, roles, file) } : built;
 }
 
 export interface SheetInput {
@@ -121,7 +121,9 @@ export function tableFromLayout(
     });
     problems.push(...j.problems);
     if (!j.grid || hasErrors(j.problems)) return { problems };
-    sheetOnly = carry.filter((n) => n !== roles.label && n !== roles.group && !(Array.isArray(roles.features) && roles.features.includes(n)));
+    sheetOnly = carry.filter(
+      (n) => n !== roles.label && n !== roles.group && !(Array.isArray(roles.features) && roles.features.includes(n)),
+    );
     grid = j.grid;
     joined = { 'data-only': j.matrixOnly.length, 'sheet-only': j.sheetOnly.length };
   }
@@ -148,5 +150,5 @@ export function tableFromLayout(
       ? { ...roles, features: { exclude: [...new Set([...(roles.features?.exclude ?? []), ...describing])] } }
       : roles;
   const built = buildTable(grid, featureRoles, file, locate);
-  return { ...withDescription(built, grid, roles), problems: [...problems, ...built.problems], joined, filtered };
+  return { ...withDescription(built, grid, roles, file), problems: [...problems, ...built.problems], joined, filtered };
 }

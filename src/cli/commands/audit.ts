@@ -28,7 +28,13 @@ export async function auditCommand(args: AuditArgs, io: CommandIo): Promise<Exit
   if (args.format === 'json') {
     io.out(
       JSON.stringify(
-        { protocol: report.file, findings: problemsAsJson(findings), skipped: result.skipped, selectionBias: result.selectionBias ?? null, thresholds: AUDIT_THRESHOLDS },
+        {
+          protocol: report.file,
+          findings: problemsAsJson(findings),
+          skipped: result.skipped,
+          selectionBias: result.selectionBias ?? null,
+          thresholds: AUDIT_THRESHOLDS,
+        },
         null,
         2,
       ) + '\n',
