@@ -94,6 +94,7 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .option('--force', 'replace an existing results folder that foldseal wrote (never any other folder)')
     .option('--refit', 'also fit one model on every labeled row and save it in models.json')
     .option('--key <file>', 'sign manifest.json with this Ed25519 private key (from foldseal keygen)')
+    .option('--report', 'also write report.html (see foldseal report) into the results folder')
     .addOption(outsideOption())
     .addHelpText(
       'after',
@@ -101,8 +102,30 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
         'renamed at the end, so it is never half-written.\n--force replaces only a folder foldseal wrote (its manifest and the ' +
         'files it lists); any other non-empty folder is refused.',
     )
-    .action(async (protocol: string, o: { out?: string; force?: boolean; refit?: boolean; key?: string; allowOutside?: boolean }) =>
-      done(await (await import('./commands/run.js')).runCommand({ protocol, ...o }, io)),
+    .action(
+      async (
+        protocol: string,
+        o: { out?: string; force?: boolean; refit?: boolean; key?: string; allowOutside?: boolean; report?: boolean },
+      ) => done(await (await import('./commands/run.js')).runCommand({ protocol, ...o }, io)),
+    );
+
+  program
+    .command('report')
+    .description('write a self-contained HTML report of a results folder: methods paragraph, tables, curves, features, audit, signature')
+    .argument('<results-dir>', 'folder written by foldseal run')
+    .option('--out <file>', 'where to write the report (default: RESULTS_DIR/report.html)')
+    .option('--force', 'replace an existing report file')
+    .option('--methods', 'print only the methods paragraph, for pasting into a manuscript')
+    .option('--protocol <file>', 'the protocol the results came from: its data are audited for the report (reads the data)')
+    .addOption(outsideOption())
+    .addHelpText(
+      'after',
+      '\nExamples:\n  foldseal report results/demo\n  foldseal report results/demo --methods\n  foldseal report results/demo ' +
+        '--protocol protocols/demo.yaml --out demo-report.html\n\nThe page makes no network request: plots are inline SVG, ' +
+        'no scripts or fonts are loaded.\nExit: 0 written, 1 a result file does not match its recorded hash, 2 usage or unreadable input.',
+    )
+    .action(async (results: string, o: { out?: string; force?: boolean; methods?: boolean; protocol?: string; allowOutside?: boolean }) =>
+      done(await (await import('./commands/report.js')).reportCommand({ results, ...o }, io)),
     );
 
   program

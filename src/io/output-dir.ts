@@ -112,7 +112,8 @@ async function folderState(dir: string): Promise<FolderState> {
     const manifest = JSON.parse(await readFile(join(dir, 'manifest.json'), 'utf8'));
     if (!manifest || typeof manifest['foldseal-manifest'] !== 'number' || typeof manifest.files !== 'object' || manifest.files === null)
       throw new Error('not ours');
-    listed = new Set(['manifest.json', 'manifest.json.sig', ...Object.keys(manifest.files)]);
+    // report.html: the report `run --report` and `foldseal report` write next to the results.
+    listed = new Set(['manifest.json', 'manifest.json.sig', 'report.html', ...Object.keys(manifest.files)]);
   } catch {
     return {
       kind: 'foreign',

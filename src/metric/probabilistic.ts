@@ -9,20 +9,26 @@ import { metric } from './types.js';
 
 const EPS = 2 ** -52;
 
-export const logLoss = metric('lower', 'mean −ln p(true class), probabilities clipped to [2⁻⁵², 1 − 2⁻⁵²] and renormalized.', (s) => {
-  const k = s.classCount;
-  const rows = s.truth.length;
-  let total = 0;
-  for (let r = 0; r < rows; r++) {
-    let sum = 0;
-    for (let c = 0; c < k; c++) sum += Math.min(Math.max(s.proba[r * k + c], EPS), 1 - EPS);
-    const p = Math.min(Math.max(s.proba[r * k + s.truth[r]], EPS), 1 - EPS) / sum;
-    total -= Math.log(p);
-  }
-  return total / rows;
-});
+export const logLoss = metric(
+  'log-loss',
+  'lower',
+  'mean −ln p(true class), probabilities clipped to [2⁻⁵², 1 − 2⁻⁵²] and renormalized.',
+  (s) => {
+    const k = s.classCount;
+    const rows = s.truth.length;
+    let total = 0;
+    for (let r = 0; r < rows; r++) {
+      let sum = 0;
+      for (let c = 0; c < k; c++) sum += Math.min(Math.max(s.proba[r * k + c], EPS), 1 - EPS);
+      const p = Math.min(Math.max(s.proba[r * k + s.truth[r]], EPS), 1 - EPS) / sum;
+      total -= Math.log(p);
+    }
+    return total / rows;
+  },
+);
 
 export const brier = metric(
+  'Brier score',
   'lower',
   'mean squared difference between the probabilities and the 0/1 truth (of the positive class with two classes).',
   (s) => {

@@ -100,11 +100,13 @@ function oneVsRest(s: Scored, f: (score: Float64Array, positive: Uint8Array) => 
 }
 
 export const rocAuc = metric(
+  'ROC AUC',
   'higher',
   'area under the ROC curve of the positive class probability (Mann–Whitney U / n₁n₀, ties one half); macro one-vs-rest with more classes.',
   (s) => oneVsRest(s, aucOf),
 );
 export const averagePrecision = metric(
+  'average precision',
   'higher',
   'area under the precision–recall steps, Σ (Rₜ − Rₜ₋₁)·Pₜ over distinct thresholds; macro one-vs-rest with more classes.',
   (s) => oneVsRest(s, averagePrecisionOf),

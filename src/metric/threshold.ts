@@ -40,12 +40,14 @@ function perClass(s: Scored, f: (tp: number, fp: number, fn: number) => number):
 }
 
 export const accuracy = metric(
+  'accuracy',
   'higher',
   'share of rows whose most probable class is the true one.',
   (s) => margins(s).diag / s.truth.length,
 );
 
 export const balancedAccuracy = metric(
+  'balanced accuracy',
   'higher',
   'mean over the classes present of the share of that class predicted correctly (recall per class).',
   (s) => {
@@ -61,35 +63,45 @@ export const balancedAccuracy = metric(
   },
 );
 
-export const precision = metric('higher', 'TP / (TP + FP) of the positive class with two classes, the macro average with more.', (s) =>
-  perClass(s, (tp, fp) => ratio(tp, tp + fp)),
+export const precision = metric(
+  'precision',
+  'higher',
+  'TP / (TP + FP) of the positive class with two classes, the macro average with more.',
+  (s) => perClass(s, (tp, fp) => ratio(tp, tp + fp)),
 );
 export const recall = metric(
+  'recall',
   'higher',
   'TP / (TP + FN) of the positive class with two classes (sensitivity), the macro average with more.',
   (s) => perClass(s, (tp, _fp, fn) => ratio(tp, tp + fn)),
 );
 export const f1 = metric(
+  'F1 score',
   'higher',
   'harmonic mean of precision and recall, 2TP / (2TP + FP + FN); macro average with more than two classes.',
   (s) => perClass(s, (tp, fp, fn) => ratio(2 * tp, 2 * tp + fp + fn)),
 );
 
-export const mcc = metric('higher', "Matthews correlation coefficient (Gorodkin's multiclass form); 0 when a margin is constant.", (s) => {
-  const { k, truth, pred, diag, n } = margins(s);
-  let tp = 0;
-  let tt = 0;
-  let pp = 0;
-  for (let c = 0; c < k; c++) {
-    tp += truth[c] * pred[c];
-    tt += truth[c] * truth[c];
-    pp += pred[c] * pred[c];
-  }
-  const denominator = Math.sqrt((n * n - pp) * (n * n - tt));
-  return denominator === 0 ? 0 : (diag * n - tp) / denominator;
-});
+export const mcc = metric(
+  'Matthews correlation coefficient',
+  'higher',
+  "Matthews correlation coefficient (Gorodkin's multiclass form); 0 when a margin is constant.",
+  (s) => {
+    const { k, truth, pred, diag, n } = margins(s);
+    let tp = 0;
+    let tt = 0;
+    let pp = 0;
+    for (let c = 0; c < k; c++) {
+      tp += truth[c] * pred[c];
+      tt += truth[c] * truth[c];
+      pp += pred[c] * pred[c];
+    }
+    const denominator = Math.sqrt((n * n - pp) * (n * n - tt));
+    return denominator === 0 ? 0 : (diag * n - tp) / denominator;
+  },
+);
 
-export const kappa = metric('higher', "Cohen's kappa: agreement of predicted and true classes beyond chance.", (s) => {
+export const kappa = metric("Cohen's kappa", 'higher', "Cohen's kappa: agreement of predicted and true classes beyond chance.", (s) => {
   const { k, truth, pred, diag, n } = margins(s);
   let expected = 0;
   for (let c = 0; c < k; c++) expected += (truth[c] / n) * (pred[c] / n);

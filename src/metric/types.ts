@@ -14,13 +14,15 @@ export type MetricValue = (s: Scored) => number | null;
 
 /** A metric's entry: what it measures (schema and docs are generated from it), which way is better, and its value. */
 export interface Metric {
+  /** The name a methods section and a report use ("ROC AUC"). */
+  readonly title: string;
   readonly description: string;
   readonly better: 'higher' | 'lower';
   readonly value: MetricValue;
 }
 
-export function metric(better: Metric['better'], description: string, value: MetricValue): Metric {
-  return { description, better, value };
+export function metric(title: string, better: Metric['better'], description: string, value: MetricValue): Metric {
+  return { title, description, better, value };
 }
 
 export function predictedClasses(proba: Float64Array, k: number): Int32Array {

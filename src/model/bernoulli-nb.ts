@@ -10,6 +10,7 @@ export interface BernoulliNbParams {
 
 export const bernoulliNb: ModelImpl<BernoulliNbParams> = {
   description: 'Bernoulli naive Bayes on presence (value above a threshold) and absence.',
+  methods: (o) => `a Bernoulli naive Bayes classifier (presence above ${o.threshold}, smoothing ${o.smoothing})`,
   options: {
     smoothing: {
       description: 'Additive smoothing of the per-class presence counts.',

@@ -38,6 +38,7 @@ const fromMoments: NonNullable<ModelCapabilities<GaussianNbParams>['fromMoments'
 
 export const gaussianNb: ModelImpl<GaussianNbParams> = {
   description: 'Gaussian naive Bayes: per-class means and variances, posteriors in log space.',
+  methods: () => 'a Gaussian naive Bayes classifier',
   options: {
     priors: {
       description: 'Class prior probabilities by class label; must cover every class and sum to 1. Default: training class shares.',

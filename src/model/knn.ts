@@ -16,6 +16,7 @@ export interface KnnParams {
 
 export const knn: ModelImpl<KnnParams> = {
   description: "k nearest neighbours by Euclidean distance; ties broken by the split spec's id order.",
+  methods: (o) => `a k-nearest-neighbour classifier (k = ${o.k}, Euclidean distance)`,
   options: {
     k: {
       description: 'Number of neighbours; at most the size of the smallest training part.',

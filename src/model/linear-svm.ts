@@ -31,6 +31,7 @@ export const linearSvm: ModelImpl<LinearSvmParams> = {
   description:
     'Linear support vector machine (squared hinge, L2, intercept penalized) with Platt-scaled probabilities; one machine per ' +
     'class against the rest.',
+  methods: (o) => `a linear support vector machine (squared hinge loss, L2 penalty λ = ${o.l2}) with Platt-scaled probabilities`,
   options: {
     l2: {
       description: 'L2 penalty λ on the weights and the intercept; the objective is the summed squared hinge loss plus λ/2·‖(w, b)‖².',

@@ -36,6 +36,7 @@ const CG_FROM = 64;
 
 export const logistic: ModelImpl<LogisticParams> = {
   description: "L2-regularized logistic regression (softmax for more than two classes), fitted by Newton's method.",
+  methods: (o) => `an L2-penalized logistic regression (λ = ${o.l2})`,
   options: {
     l2: {
       description: 'L2 penalty strength λ on the weights (not the intercept); the objective is the summed log-loss plus λ/2·‖w‖².',

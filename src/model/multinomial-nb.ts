@@ -8,6 +8,7 @@ export interface MultinomialNbParams {
 
 export const multinomialNb: ModelImpl<MultinomialNbParams> = {
   description: 'Multinomial naive Bayes for non-negative counts, with additive smoothing.',
+  methods: (o) => `a multinomial naive Bayes classifier (additive smoothing ${o.smoothing})`,
   options: {
     smoothing: {
       description: 'Additive (Lidstone) smoothing added to every feature count.',

@@ -50,6 +50,7 @@ const fromMoments: NonNullable<ModelCapabilities<ShrunkenCentroidParams>['fromMo
 
 export const shrunkenCentroid: ModelImpl<ShrunkenCentroidParams> = {
   description: 'Nearest shrunken centroids (Tibshirani et al. 2002, PNAS 99:6567).',
+  methods: (o) => `a nearest shrunken centroid classifier (shrinkage ${o.shrink})`,
   options: {
     shrink: {
       description: 'Soft-threshold Δ applied to the standardized centroid differences; 0 gives plain nearest centroids.',

@@ -43,6 +43,8 @@ export interface ModelProblem {
 export interface ModelImpl<P = unknown> {
   /** One sentence for the schema and docs/protocol.md. */
   readonly description: string;
+  /** The model as a methods section names it, with its options filled in (defaults included). */
+  methods(options: Readonly<Record<string, unknown>>): string;
   /** The options `model.options` may set; the protocol schema's branch for this kind is generated from them. */
   readonly options: Readonly<Record<string, OptionSpec>>;
   /**

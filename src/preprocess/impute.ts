@@ -23,6 +23,7 @@ function fillValue(present: number[], step: ImputeStep, column: number): number 
 
 export const impute: TransformImpl<ImputeParams, ImputeStep> = {
   description: 'replace missing cells by a statistic of the column in the training part.',
+  methods: (s) => `missing values were filled with the training part's ${s.by} of the feature`,
   settings: { by: { description: 'Statistic of the training part used to fill missing cells.', enum: ['mean', 'median'] } },
   fillsMissing: true,
   check: keepsWidth,

@@ -4,6 +4,7 @@ import { keepsWidth, type TransformImpl } from './types.js';
 
 export const log2p: TransformImpl<Record<string, never>, Record<string, never>> = {
   description: 'log2(x + 1), for counts and intensities; a negative value is an error, not NaN.',
+  methods: () => 'values were transformed as log2(x + 1)',
   settings: {},
   fillsMissing: false,
   check: keepsWidth,

@@ -48,6 +48,8 @@ const fromScores = (scores: Float64Array, step: SelectStep): SelectParams => ({
 
 export const select: TransformImpl<SelectParams, SelectStep> = {
   description: 'keep the `top` features by a score computed on the training part.',
+  methods: (s) =>
+    `the ${s.top} features with the highest ${s.by === 'variance' ? 'variance' : `${s.by === 't-test' ? 'absolute Welch t' : 'ANOVA F'} statistic`} in the training part were kept`,
   settings: {
     top: { description: 'Number of features kept.', type: 'integer', minimum: 1 },
     by: {

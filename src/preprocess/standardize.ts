@@ -9,6 +9,7 @@ export interface StandardizeParams {
 
 export const standardize: TransformImpl<StandardizeParams, Record<string, never>> = {
   description: 'subtract the training mean, divide by the training standard deviation (n divisor); constant columns are only centred.',
+  methods: () => 'each feature was centred and scaled by the mean and standard deviation of the training part',
   settings: {},
   fillsMissing: false,
   check: keepsWidth,

@@ -31,6 +31,8 @@ export interface StepProblem {
 export interface TransformImpl<P = unknown, S extends object = object> {
   /** One sentence for the schema and docs/protocol.md. */
   readonly description: string;
+  /** What the step does to the training part, as a methods section says it (a clause without a subject). */
+  methods(settings: S): string;
   /**
    * The step's settings, each required. A step without settings is written as its bare name
    * (`- standardize`); one with settings as `- {name: {setting: value}}`.

@@ -65,6 +65,8 @@ export interface RuleProblem {
 export interface SplitRuleImpl {
   /** One sentence for the schema and docs/protocol.md. */
   readonly description: string;
+  /** The design as a methods section names it, e.g. "5-fold stratified cross-validation, repeated 2 times". */
+  methods(split: { folds: number; repeats: number; testFraction?: number; group?: string }): string;
   readonly uses: Readonly<RuleUses>;
   /** 'every-fold': each fold is tested once with the others training; 'fold-1': fold 1 is the test part, fold 2 trains. */
   readonly tests: 'every-fold' | 'fold-1';

@@ -1,4 +1,5 @@
-import { dirname, relative, resolve } from 'node:path';
+import { dirname, join, relative, resolve } from 'node:path';
+import { writeOutputFile } from '../../io/output-file.js';
 import { readSigningKey } from '../../io/keys.js';
 import { encodeSshsig, MANIFEST_NAMESPACE, sshsigSignedData } from '../../manifest/ssh.js';
 import { writeOutputDir } from '../../io/output-dir.js';
@@ -21,6 +22,8 @@ export interface RunArgs {
   refit?: boolean;
   key?: string;
   allowOutside?: boolean;
+  /** Also write report.html into the results folder (with the audit this run made). */
+  report?: boolean;
 }
 
 export async function runCommand(args: RunArgs, io: CommandIo): Promise<ExitCode> {
@@ -75,6 +78,12 @@ export async function runCommand(args: RunArgs, io: CommandIo): Promise<ExitCode
   if (out.applied) io.out(`\nnew rows (reconcile: ${input.protocol.reconcile.rule}):\n` + disagreementReport(out.applied, out.cv.classes));
   if (out.newRowScores) io.out(newRowScoreLines(out.newRowScores, input.protocol.data.label));
   if (audit) io.out(auditLine(args.protocol, audit) + '\n');
+  if (args.report) {
+    const { buildReport } = await import('../../io/report.js');
+    const built = await buildReport(dir, { audit, toolVersion: toolInfo().version });
+    await writeOutputFile(join(dir, 'report.html'), built.html, shown(join(dir, 'report.html')), true);
+    written['report.html'] = built.html;
+  }
   io.out(
     `wrote ${Object.keys(written).sort().join(', ')} to ` +
       `${shown(dir)}${key?.kind === 'ssh' ? ` (manifest signed with SSH key ${key.describe})` : key ? ' (manifest signed)' : ''}\n`,

@@ -12,6 +12,8 @@ export const groupedKfold: SplitRuleImpl = {
   description:
     'k folds of whole groups (data.group): all rows of a group share a fold; balanced puts the largest groups first, each into ' +
     'the fold with the fewest rows.',
+  methods: (s) =>
+    `${s.folds}-fold grouped cross-validation (all samples of one ${s.group ?? 'group'} in the same fold)${s.repeats > 1 ? `, repeated ${s.repeats} times with different fold assignments` : ''}`,
   uses: { seed: true, folds: true, repeats: true, assign: true, testFraction: false, groups: true },
   tests: 'every-fold',
   keysIds: false,

@@ -13,6 +13,8 @@ export function testCount(m: number, micros: number): number {
 
 export const holdout: SplitRuleImpl = {
   description: 'one test part (fold 1) of test-fraction of the rows, per class in key order; the rest (fold 2) trains.',
+  methods: (s) =>
+    `a stratified hold-out split (${Math.round((s.testFraction ?? 0) * 100)} % of the samples for testing)${s.repeats > 1 ? `, repeated ${s.repeats} times` : ''}`,
   uses: { seed: true, folds: false, repeats: true, assign: true, testFraction: true, groups: false },
   tests: 'fold-1',
   keysIds: true,

@@ -4,6 +4,7 @@ import { allRows, foldsWithinRows, idKeysOf, type SplitRuleImpl } from '../rule.
 
 export const kfold: SplitRuleImpl = {
   description: 'rows dealt into k folds in the order of their SHA-256 keys, ignoring the label.',
+  methods: (s) => `${s.folds}-fold cross-validation${s.repeats > 1 ? `, repeated ${s.repeats} times with different fold assignments` : ''}`,
   uses: { seed: true, folds: true, repeats: true, assign: true, testFraction: false, groups: false },
   tests: 'every-fold',
   keysIds: true,

@@ -6,6 +6,7 @@ import { groupIndex } from './strata.js';
 
 export const leaveOneOut: SplitRuleImpl = {
   description: 'every row is its own fold (fold number = rank of the id in UTF-8 byte order); no seed.',
+  methods: () => 'leave-one-out cross-validation',
   uses: { seed: false, folds: false, repeats: false, assign: false, testFraction: false, groups: false },
   tests: 'every-fold',
   keysIds: false,
@@ -20,6 +21,7 @@ export const leaveOneOut: SplitRuleImpl = {
 
 export const leaveGroupOut: SplitRuleImpl = {
   description: 'every group (data.group) is its own fold, numbered by the rank of the group value in UTF-8 byte order; no seed.',
+  methods: (s) => `leave-one-group-out cross-validation (each ${s.group ?? 'group'} held out in turn)`,
   uses: { seed: false, folds: false, repeats: false, assign: false, testFraction: false, groups: true },
   tests: 'every-fold',
   keysIds: false,

@@ -9,6 +9,8 @@ import { rowsByClass } from './strata.js';
 
 export const stratifiedKfold: SplitRuleImpl = {
   description: 'k folds whose class counts differ by at most one (each class dealt in key order, one running counter).',
+  methods: (s) =>
+    `${s.folds}-fold stratified cross-validation${s.repeats > 1 ? `, repeated ${s.repeats} times with different fold assignments` : ''}`,
   uses: { seed: true, folds: true, repeats: true, assign: true, testFraction: false, groups: false },
   tests: 'every-fold',
   keysIds: true,
