@@ -95,6 +95,10 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .option('--refit', 'also fit one model on every labeled row and save it in models.json')
     .option('--key <file>', 'sign manifest.json with this Ed25519 private key (from foldseal keygen)')
     .option('--report', 'also write report.html (see foldseal report) into the results folder')
+    .option(
+      '--shard <i/n>',
+      'compute only shard I of N of the work (fold fits, permutations) and write its part to --out FILE; see foldseal merge',
+    )
     .addOption(outsideOption())
     .addHelpText(
       'after',
@@ -105,8 +109,34 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .action(
       async (
         protocol: string,
-        o: { out?: string; force?: boolean; refit?: boolean; key?: string; allowOutside?: boolean; report?: boolean },
+        o: { out?: string; force?: boolean; refit?: boolean; key?: string; allowOutside?: boolean; report?: boolean; shard?: string },
       ) => done(await (await import('./commands/run.js')).runCommand({ protocol, ...o }, io)),
+    );
+
+  program
+    .command('merge')
+    .description('put the parts of a sharded run (run --shard I/N) together into the results folder one run writes')
+    .argument('<protocol>', 'the protocol the parts were run from')
+    .argument('<parts...>', 'the part files, one per shard, in any order')
+    .option('--out <dir>', 'results folder (default: results/<protocol name>)')
+    .option('--force', 'replace an existing results folder that foldseal wrote (never any other folder)')
+    .option('--refit', 'also fit one model on every labeled row and save it in models.json')
+    .option('--key <file>', 'sign manifest.json with this Ed25519 private key (from foldseal keygen)')
+    .option('--report', 'also write report.html into the results folder')
+    .addOption(outsideOption())
+    .addHelpText(
+      'after',
+      '\nExample:\n  for i in 1 2 3 4; do foldseal run p.yaml --shard $i/4 --out parts/$i.json; done\n  foldseal merge p.yaml parts/*.json ' +
+        "--out results/p\n\nThe merged folder equals what foldseal run writes, byte for byte, apart from the manifest's creation time " +
+        'and signature.\nA part of another protocol, data or assignment, a missing shard or a shard given twice is refused by name.\n' +
+        'Exit: 0 merged, 1 refused or invalid, 2 usage error or unreadable file.',
+    )
+    .action(
+      async (
+        protocol: string,
+        parts: string[],
+        o: { out?: string; force?: boolean; refit?: boolean; key?: string; allowOutside?: boolean; report?: boolean },
+      ) => done(await (await import('./commands/merge.js')).mergeCommand({ protocol, parts, ...o }, io)),
     );
 
   program

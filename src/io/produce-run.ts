@@ -1,6 +1,7 @@
 /** Validate a protocol file and run it: the shared shell of `run` and `verify --rerun`. */
 import { hasErrors } from '../problems/problem.js';
-import type { CvHooks } from '../run/cross-validate.js';
+import { assembleResult, planFolds, type CvHooks } from '../run/cross-validate.js';
+import type { FoldFit } from '../run/fit-fold.js';
 import { asUserError, runProtocol, type RunInput, type RunOutput } from '../run/run.js';
 import { crossValidateInWorkers } from './fold-workers.js';
 import { permutedScoresInWorkers, type PermutationProgress } from './permutation-workers.js';
@@ -28,12 +29,15 @@ export interface ProduceOptions {
   withoutStatistics?: boolean;
   /** Apply a locked repository's rules (protocols the gate cannot see, sealed rows). */
   repoRules?: boolean;
+  /** The fold fits and permuted scores of merged shard parts, in plan order: used instead of fitting. */
+  merged?: { fits: FoldFit[]; permuted?: Float64Array; report: ValidationReport };
   /** Also run the leakage audit (without its selection-bias demonstration): `run` prints its one-line summary. */
   audit?: boolean;
 }
 
 export async function produceRun(protocolPath: string, options: ProduceOptions = {}): Promise<Produced> {
-  const report = await validateProtocol(protocolPath, { access: options.access, describe: options.audit });
+  // Merged parts come with the protocol already validated (and its data read once).
+  const report = options.merged?.report ?? (await validateProtocol(protocolPath, { access: options.access, describe: options.audit }));
   if (options.repoRules && report.protocol && !report.unreadable) report.problems.push(...(await lockedRepoProblems(protocolPath, report)));
   if (report.unreadable || hasErrors(report.problems) || !report.protocol || !report.table || !report.assignment) return { report };
   const input: RunInput = {
@@ -49,14 +53,17 @@ export async function produceRun(protocolPath: string, options: ProduceOptions =
     refit: options.refit,
     warnings: report.problems.filter((q) => q.severity === 'warning'),
   };
-  const cv = await crossValidateInWorkers(input.protocol, input.table, input.assignment, options.hooks).catch((e: unknown) => {
-    throw asUserError(e, input.protocolFile);
-  });
-  const permuted = await permutedScoresInWorkers(input.protocol, input.table, input.assignment, options.onPermutation).catch(
-    (e: unknown) => {
-      throw asUserError(e, input.protocolFile);
-    },
-  );
+  const merged = options.merged;
+  const cv = merged
+    ? assembleResult(input.protocol, input.table, input.assignment, planFolds(input.protocol, input.table, input.assignment), merged.fits)
+    : await crossValidateInWorkers(input.protocol, input.table, input.assignment, options.hooks).catch((e: unknown) => {
+        throw asUserError(e, input.protocolFile);
+      });
+  const permuted = merged
+    ? merged.permuted
+    : await permutedScoresInWorkers(input.protocol, input.table, input.assignment, options.onPermutation).catch((e: unknown) => {
+        throw asUserError(e, input.protocolFile);
+      });
   const out = runProtocol(input, options.hooks, cv, permuted);
   return { report, input, out, audit: options.audit ? auditReport(report, { quick: true }) : undefined };
 }

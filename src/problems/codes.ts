@@ -10,6 +10,9 @@ export interface CodeInfo {
 
 export const PROBLEM_CODES = {
   'audit-confounded': {},
+  'shard-duplicate': {},
+  'shard-foreign': {},
+  'shard-missing': {},
   'audit-duplicates': {},
   'audit-id-label': {},
   'audit-label-proxy': {},

@@ -3,7 +3,8 @@ import { writeOutputFile } from '../../io/output-file.js';
 import { readSigningKey } from '../../io/keys.js';
 import { encodeSshsig, MANIFEST_NAMESPACE, sshsigSignedData } from '../../manifest/ssh.js';
 import { writeOutputDir } from '../../io/output-dir.js';
-import { produceRun } from '../../io/produce-run.js';
+import { produceRun, type ProduceOptions } from '../../io/produce-run.js';
+import { shardCommand } from './shard.js';
 import { auditLine } from '../audit-text.js';
 import { MANIFEST_SCHEMA, schemaValidator } from '../../io/schemas.js';
 import { protocolPolicy } from '../../io/path-policy.js';
@@ -24,9 +25,12 @@ export interface RunArgs {
   allowOutside?: boolean;
   /** Also write report.html into the results folder (with the audit this run made). */
   report?: boolean;
+  /** "I/N": compute only shard I of N and write its part (see foldseal merge). */
+  shard?: string;
 }
 
-export async function runCommand(args: RunArgs, io: CommandIo): Promise<ExitCode> {
+export async function runCommand(args: RunArgs, io: CommandIo, merged?: ProduceOptions['merged']): Promise<ExitCode> {
+  if (args.shard !== undefined) return shardCommand(args, io);
   const key = args.key ? await readSigningKey(args.key) : undefined;
   const started = Date.now();
   let lastShown = 0;
@@ -39,6 +43,7 @@ export async function runCommand(args: RunArgs, io: CommandIo): Promise<ExitCode
     }
   };
   const { report, input, out, audit } = await produceRun(args.protocol, {
+    merged,
     audit: true,
     refit: args.refit,
     hooks: { onFold: progress('fitting fold') },
