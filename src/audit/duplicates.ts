@@ -26,11 +26,15 @@ export function exactDuplicateSets(X: Matrix): Int32Array[] {
   const hash = new Uint32Array(rows);
   for (let r = 0; r < rows; r++) {
     let h = 0x811c9dc5;
-    for (let k = r * cols * 2, end = k + cols * 2; k < end; k += 2) {
+    for (let idx = r * cols, end = idx + cols; idx < end; idx++) {
       // 0 and −0 are one value; every NaN is one value.
-      const v = data[k >> 1];
-      const lo = v === 0 ? 0 : v !== v ? 0x7ff80000 : bits[k];
-      const hi = v === 0 ? 0 : v !== v ? 0x7ff80000 : bits[k + 1];
+      const v = data[idx];
+      let lo = bits[2 * idx];
+      let hi = bits[2 * idx + 1];
+      if (v === 0 || v !== v) {
+        lo = 0;
+        hi = v === 0 ? 0 : 0x7ff80000;
+      }
       h = Math.imul(h ^ lo, 0x01000193);
       h = Math.imul(h ^ hi, 0x01000193);
     }
