@@ -19,15 +19,16 @@ export interface AuditResult {
 export interface AuditOptions {
   /** Also run the selection-bias demonstration (two cross-validations). */
   selectionBias?: boolean;
-  /** `run`'s audit: leave out the per-feature separation check on tables above AUDIT_THRESHOLDS.quickMaxCells. */
+  /** `run`'s audit: leave out the per-feature separation check above AUDIT_THRESHOLDS.quickMaxCells, near duplicates above quickNearWork. */
   quick?: boolean;
 }
 
 export function audit(input: AuditInput, options: AuditOptions = {}): AuditResult {
   const { rows, cols } = input.table.X;
   const skipProxy = Boolean(options.quick) && rows * cols > AUDIT_THRESHOLDS.quickMaxCells;
+  const nearBudget = options.quick ? AUDIT_THRESHOLDS.quickNearWork : AUDIT_THRESHOLDS.nearMaxWork;
   const findings = [
-    ...duplicateFindings(input),
+    ...duplicateFindings(input, nearBudget),
     ...groupFindings(input),
     ...(skipProxy ? [] : proxyFindings(input)),
     ...idFindings(input),
@@ -36,7 +37,7 @@ export function audit(input: AuditInput, options: AuditOptions = {}): AuditResul
   return {
     findings,
     skipped: [
-      ...(cols >= AUDIT_THRESHOLDS.nearMinFeatures && !nearSearched(rows, cols) ? ['near-duplicates'] : []),
+      ...(cols >= AUDIT_THRESHOLDS.nearMinFeatures && !nearSearched(rows, cols, nearBudget) ? ['near-duplicates'] : []),
       ...(skipProxy ? ['label-proxy'] : []),
     ],
     selectionBias: options.selectionBias ? selectionBias(input) : undefined,

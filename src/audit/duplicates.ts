@@ -144,7 +144,7 @@ function idsOf(input: AuditInput, rows: ArrayLike<number>): string[] {
   return Array.from(rows, (r) => `"${input.table.ids[r]}"`);
 }
 
-export function duplicateFindings(input: AuditInput): Problem[] {
+export function duplicateFindings(input: AuditInput, nearBudget: number = AUDIT_THRESHOLDS.nearMaxWork): Problem[] {
   const { table, assignment } = input;
   const out: Problem[] = [];
   const sets = exactDuplicateSets(table.X);
@@ -175,21 +175,21 @@ export function duplicateFindings(input: AuditInput): Problem[] {
         }),
       );
   });
-  out.push(...nearFindings(input, inSet));
+  out.push(...nearFindings(input, inSet, nearBudget));
   return out;
 }
 
 /** Whether near duplicates are searched for a table of this size (enough features, within the work budget). */
-export function nearSearched(rows: number, cols: number): boolean {
+export function nearSearched(rows: number, cols: number, budget: number = AUDIT_THRESHOLDS.nearMaxWork): boolean {
   const t = AUDIT_THRESHOLDS;
-  return cols >= t.nearMinFeatures && rows >= 2 && (rows * rows * cols) / 2 <= t.nearMaxWork;
+  return cols >= t.nearMinFeatures && rows >= 2 && (rows * rows * cols) / 2 <= budget;
 }
 
-function nearFindings(input: AuditInput, inSet: Int32Array): Problem[] {
+function nearFindings(input: AuditInput, inSet: Int32Array, budget: number): Problem[] {
   const { table, assignment } = input;
   const { rows, cols } = table.X;
   const t = AUDIT_THRESHOLDS;
-  if (!nearSearched(rows, cols)) return [];
+  if (!nearSearched(rows, cols, budget)) return [];
   const out: Problem[] = [];
   for (const { i, j, r } of nearDuplicatePairs(table.X, t.nearCorrelation)) {
     if (inSet[i] >= 0 && inSet[i] === inSet[j]) continue;

@@ -23,6 +23,8 @@ export const AUDIT_THRESHOLDS = {
   chiSquareP: 0.001,
   /** A covariate with more distinct values than this (or than half the rows) is compared by ROC AUC, not as categories. */
   maxCategories: 50,
+  /** `run`'s quick audit searches near duplicates only up to this much work (about 50 ms here); `audit` up to nearMaxWork. */
+  quickNearWork: 5e7,
   /** `run`'s quick audit leaves out the per-feature separation check above this many cells (rows × features); `audit` runs it always. */
   quickMaxCells: 2e6,
   /** A numeric covariate associated with the label: ROC AUC (or 1 − AUC) for every pair of classes at or above this. */

@@ -28,15 +28,20 @@ function placed(p: { line: number; col: number; file?: string }, file: string) {
 
 export function describe(grid: Grid, table: Table, roles: { id?: string; label: string; group?: string }, file: string): Described {
   const taken = new Set([roles.id, roles.label, roles.group, ...table.featureNames].filter((n): n is string => n !== undefined));
+  // The first column of each name (a wide matrix has tens of thousands: no indexOf per column).
+  const firstOf = new Map<string, number>();
+  grid.header.forEach((name, c) => {
+    if (!firstOf.has(name)) firstOf.set(name, c);
+  });
   const covariates: Covariate[] = [];
   grid.header.forEach((name, c) => {
-    if (taken.has(name) || grid.header.indexOf(name) !== c) return;
+    if (taken.has(name) || firstOf.get(name) !== c) return;
     covariates.push({
       name,
       values: Array.from({ length: grid.rows }, (_, r) => grid.text(r, c)),
       at: placed(grid.position(0, c), file),
     });
   });
-  const featureCol = table.featureNames.map((n) => grid.header.indexOf(n));
+  const featureCol = table.featureNames.map((n) => firstOf.get(n)!);
   return { covariates, featureCell: (row, feature) => placed(grid.position(row, featureCol[feature]), file) };
 }
