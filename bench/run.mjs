@@ -13,14 +13,16 @@ if (!existsSync(join(out, 'b.yaml'))) execFileSync(process.execPath, [join(here,
 const bin = join(here, '..', 'dist', 'src', 'cli', 'main.js');
 const python = '/usr/bin/python3';
 
+/** Best wall time of 3 whole-process runs, and the peak resident set of the best run (GNU time's %M). */
 function time(cmd, args) {
-  let best = Infinity;
+  let best = { s: Infinity, mb: 0 };
   for (let i = 0; i < 3; i++) {
     const start = process.hrtime.bigint();
-    const r = spawnSync(cmd, args, { encoding: 'utf8' });
+    const r = spawnSync('/usr/bin/time', ['-f', 'peak-kb %M', cmd, ...args], { encoding: 'utf8' });
     const seconds = Number(process.hrtime.bigint() - start) / 1e9;
     if (r.status !== 0) throw new Error(`${cmd} ${args.join(' ')} failed:\n${r.stderr}`);
-    best = Math.min(best, seconds);
+    const kb = Number(/peak-kb (\d+)/.exec(r.stderr)?.[1] ?? Number.NaN);
+    if (seconds < best.s) best = { s: seconds, mb: kb / 1024 };
   }
   return best;
 }
@@ -33,7 +35,10 @@ for (const [name, file, label] of [
 ]) {
   const ours = time(process.execPath, [bin, 'run', join(out, `${name}.yaml`), '--out', join(scratch, name), '--force']);
   const theirs = time(python, [join(here, 'reference.py'), name, join(out, file), join(scratch, `${name}-ref.csv`)]);
-  rows.push({ name, label, ours, theirs, ratio: ours / theirs });
+  rows.push({ name, label, ours, theirs, ratio: ours.s / theirs.s });
 }
 for (const r of rows)
-  console.log(`(${r.name}) ${r.label}: foldseal ${r.ours.toFixed(2)} s, reference ${r.theirs.toFixed(2)} s, ratio ${r.ratio.toFixed(2)}`);
+  console.log(
+    `(${r.name}) ${r.label}: foldseal ${r.ours.s.toFixed(2)} s (peak RSS ${r.ours.mb.toFixed(0)} MB), ` +
+      `reference ${r.theirs.s.toFixed(2)} s (${r.theirs.mb.toFixed(0)} MB), ratio ${r.ratio.toFixed(2)}`,
+  );

@@ -72,6 +72,20 @@ function curveSpec(
   };
 }
 
+/** The dashed diagonal y = x: chance on a ROC plot, perfect calibration on a reliability plot. */
+function diagonalLayer(): Record<string, unknown> {
+  return {
+    data: {
+      values: [
+        { x: 0, y: 0 },
+        { x: 1, y: 1 },
+      ],
+    },
+    mark: { type: 'line', strokeDash: [3, 3], color: PALETTE.chance, strokeWidth: 1 },
+    encoding: { x: { field: 'x', type: 'quantitative' }, y: { field: 'y', type: 'quantitative' } },
+  };
+}
+
 function points(list: CurvePoint[], series: string): Record<string, unknown>[] {
   return list.map((p, i) => ({ x: p.x, y: p.y, series, i }));
 }
@@ -106,16 +120,7 @@ export function curvePlots(o: OutOfFold, positive: number): Plot[] {
     }
   }
   const about = twoClasses ? `class ${o.classes[positive]}` : 'each class against the rest';
-  const diagonal = {
-    data: {
-      values: [
-        { x: 0, y: 0 },
-        { x: 1, y: 1 },
-      ],
-    },
-    mark: { type: 'line', strokeDash: [3, 3], color: PALETTE.chance, strokeWidth: 1 },
-    encoding: { x: { field: 'x', type: 'quantitative' }, y: { field: 'y', type: 'quantitative' } },
-  };
+  const diagonal = diagonalLayer();
   const base = {
     data: { values: [{ y: prevalence }] },
     mark: { type: 'rule', strokeDash: [3, 3], color: PALETTE.chance, strokeWidth: 1 },
@@ -174,16 +179,7 @@ export function reliabilityPlot(o: OutOfFold, positive: number): Plot {
       height: 300,
       config: CONFIG,
       layer: [
-        {
-          data: {
-            values: [
-              { x: 0, y: 0 },
-              { x: 1, y: 1 },
-            ],
-          },
-          mark: { type: 'line', strokeDash: [3, 3], color: PALETTE.chance, strokeWidth: 1 },
-          encoding: { x: { field: 'x', type: 'quantitative' }, y: { field: 'y', type: 'quantitative' } },
-        },
+        diagonalLayer(),
         {
           data: { values: bins },
           mark: { type: 'line', color: PALETTE.teal, strokeWidth: 2, point: { filled: true, color: PALETTE.teal } },
