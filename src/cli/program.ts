@@ -147,6 +147,8 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .option('--force', 'replace an existing report file')
     .option('--methods', 'print only the methods paragraph, for pasting into a manuscript')
     .option('--protocol <file>', 'the protocol the results came from: its data are audited for the report (reads the data)')
+    .option('--pdf <file>', 'also print the report to this PDF with a headless Chromium (needs playwright-core)')
+    .option('--browser <path>', 'the Chromium binary for --pdf', '/usr/bin/chromium')
     .addOption(outsideOption())
     .addHelpText(
       'after',
@@ -154,8 +156,11 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
         '--protocol protocols/demo.yaml --out demo-report.html\n\nThe page makes no network request: plots are inline SVG, ' +
         'no scripts or fonts are loaded.\nExit: 0 written, 1 a result file does not match its recorded hash, 2 usage or unreadable input.',
     )
-    .action(async (results: string, o: { out?: string; force?: boolean; methods?: boolean; protocol?: string; allowOutside?: boolean }) =>
-      done(await (await import('./commands/report.js')).reportCommand({ results, ...o }, io)),
+    .action(
+      async (
+        results: string,
+        o: { out?: string; force?: boolean; methods?: boolean; protocol?: string; allowOutside?: boolean; pdf?: string; browser?: string },
+      ) => done(await (await import('./commands/report.js')).reportCommand({ results, ...o }, io)),
     );
 
   program

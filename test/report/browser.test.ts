@@ -58,6 +58,16 @@ t.test('the demo report in Chromium', { skip, timeout: 120_000 }, async (t) => {
   t.match(methods, results.data.sha256);
   const printed = await page.pdf({ format: 'A4' });
   t.ok(printed.length > 10_000 && printed.subarray(0, 5).toString() === '%PDF-', 'prints to PDF through the print style');
+  const pdf = await cli(['report', out, '--pdf', join(out, 'report.pdf'), '--out', join(out, 'again.html')], root);
+  t.equal(pdf.code, 0, pdf.stderr);
+  t.equal(readFileSync(join(out, 'report.pdf')).subarray(0, 5).toString(), '%PDF-', 'report --pdf prints through Chromium');
+  const nobrowser = await cli(
+    ['report', out, '--pdf', join(out, 'x.pdf'), '--out', join(out, 'x.html'), '--browser', '/nonexistent/chromium'],
+    root,
+  );
+  t.equal(nobrowser.code, 2);
+  t.match(nobrowser.stderr, '--pdf needs a Chromium binary; /nonexistent/chromium does not exist');
+  t.notOk(existsSync(join(out, 'x.html')), 'nothing written when the PDF cannot be made');
   mkdirSync(join(root, 'results'), { recursive: true });
   await page.screenshot({ path: join(root, 'results', 'report-screenshot.png'), fullPage: true });
   t.ok(existsSync(join(root, 'results', 'report-screenshot.png')), 'screenshot saved under results/');

@@ -10,6 +10,7 @@ import { error, FoldsealError, hasErrors } from '../../problems/index.js';
 import type { CommandIo, ExitCode } from '../io.js';
 import { reportProblems } from '../report-problems.js';
 import { toolInfo } from '../tool-info.js';
+import { checkBrowser, printPdf } from '../../io/pdf.js';
 import type { AuditResult } from '../../audit/audit.js';
 
 export interface ReportArgs {
@@ -21,6 +22,10 @@ export interface ReportArgs {
   /** The protocol the results came from: its data are audited for the report (its hash must match the results'). */
   protocol?: string;
   allowOutside?: boolean;
+  /** Also print the page to this PDF through a headless Chromium. */
+  pdf?: string;
+  /** The Chromium (or Chrome) binary for --pdf. */
+  browser?: string;
 }
 
 /** The audit of the protocol that produced `results` (refused when it is another protocol). */
@@ -45,6 +50,7 @@ async function auditFor(args: ReportArgs, io: CommandIo): Promise<AuditResult | 
 }
 
 export async function reportCommand(args: ReportArgs, io: CommandIo, given?: { audit?: AuditResult }): Promise<ExitCode> {
+  if (args.pdf) checkBrowser(args.browser ?? '/usr/bin/chromium');
   const audit = given?.audit ?? (await auditFor(args, io));
   const built = await buildReport(args.results, { audit, toolVersion: toolInfo().version });
   if (args.methods) {
@@ -54,5 +60,10 @@ export async function reportCommand(args: ReportArgs, io: CommandIo, given?: { a
   const out = resolve(args.out ?? join(args.results, 'report.html'));
   await writeOutputFile(out, built.html, shown(out), Boolean(args.force));
   io.out(`wrote ${shown(out)}\n`);
+  if (args.pdf) {
+    const pdf = resolve(args.pdf);
+    await writeOutputFile(pdf, await printPdf(out, args.browser ?? '/usr/bin/chromium'), shown(pdf), Boolean(args.force));
+    io.out(`wrote ${shown(pdf)}\n`);
+  }
   return 0;
 }
