@@ -3,14 +3,17 @@ import { spawnSync } from 'node:child_process';
 import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import t from 'tap';
-import { bin, root, sha256, tempDir } from '../helpers.js';
+import { bin, cli, root, sha256, tempDir } from '../helpers.js';
 
-const run = (threads: string, args: string[], cwd: string) =>
-  spawnSync(process.execPath, [bin, ...args], {
-    cwd,
-    encoding: 'utf8',
-    env: { ...process.env, FOLDSEAL_THREADS: threads, NO_COLOR: '1', FOLDSEAL_TRUSTED: join(root, 'protocols', 'data') },
-  });
+const threadEnv = (threads: string) => ({ FOLDSEAL_THREADS: threads, FOLDSEAL_TRUSTED: join(root, 'protocols', 'data') });
+/** The built binary in a child process: the first test runs the whole thing as a user would. */
+const spawned = (threads: string, args: string[], cwd: string) =>
+  spawnSync(process.execPath, [bin, ...args], { cwd, encoding: 'utf8', env: { ...process.env, NO_COLOR: '1', ...threadEnv(threads) } });
+/** In this process (the worker threads are real: the tests run compiled JavaScript), which is much quicker under tap. */
+const run = async (threads: string, args: string[], cwd: string) => {
+  const r = await cli(args, cwd, threadEnv(threads));
+  return { status: r.code, stdout: r.stdout, stderr: r.stderr };
+};
 const demoData = join(root, 'protocols', 'data');
 const demo = readFileSync(join(root, 'protocols', 'demo.yaml'), 'utf8').replaceAll('file: data/', `file: ${demoData}/`);
 // An impute step has no class-moment form, so these folds are fitted row by row, on the workers.
@@ -19,7 +22,7 @@ const onWorkers = demo.replace('preprocess: [standardize,', 'preprocess: [{imput
 t.test('FOLDSEAL_THREADS=3 and =1 write identical files', async (t) => {
   const dir = tempDir({ 'p.yaml': onWorkers });
   for (const threads of ['1', '3']) {
-    const r = run(threads, ['run', 'p.yaml', '--out', `res-${threads}`], dir);
+    const r = spawned(threads, ['run', 'p.yaml', '--out', `res-${threads}`], dir);
     t.equal(r.status, 0, r.stderr);
   }
   for (const f of ['predictions.csv', 'results.json', 'models.json', 'applied.csv']) {
@@ -29,14 +32,14 @@ t.test('FOLDSEAL_THREADS=3 and =1 write identical files', async (t) => {
 
 t.test('a fit error inside a worker is the same user error', async (t) => {
   const dir = tempDir({ 'p.yaml': onWorkers.replace('model: {kind: gaussian-nb}', 'model: {kind: multinomial-nb}') });
-  const r = run('2', ['run', 'p.yaml', '--out', 'res'], dir);
+  const r = await run('2', ['run', 'p.yaml', '--out', 'res'], dir);
   t.equal(r.status, 1, r.stderr);
   t.match(r.stderr, 'error: multinomial-nb needs non-negative counts');
 });
 
 t.test('a table parsed on two threads reads the same as on one', async (t) => {
   const dir = tempDir({ 'p.yaml': demo });
-  for (const threads of ['1', '2']) t.equal(run(threads, ['run', 'p.yaml', '--out', `res-${threads}`], dir).status, 0);
+  for (const threads of ['1', '2']) t.equal((await run(threads, ['run', 'p.yaml', '--out', `res-${threads}`], dir)).status, 0);
   for (const f of ['predictions.csv', 'results.json', 'models.json'])
     t.equal(readFileSync(join(dir, 'res-2', f), 'utf8'), readFileSync(join(dir, 'res-1', f), 'utf8'), f);
   // Problems found in the half the second thread reads are reported exactly as on one thread.
@@ -50,8 +53,8 @@ t.test('a table parsed on two threads reads the same as on one', async (t) => {
       'd.csv': broken,
       'p.yaml': demo.replace(`${demoData}/seedlings.csv`, 'd.csv').replace(/sha256: "914f[0-9a-f]+"/, `sha256: "${sha256(broken)}"`),
     });
-    const one = run('1', ['validate', 'p.yaml'], d);
-    const two = run('2', ['validate', 'p.yaml'], d);
+    const one = await run('1', ['validate', 'p.yaml'], d);
+    const two = await run('2', ['validate', 'p.yaml'], d);
     t.equal(one.status, 1, `${what}: invalid`);
     t.equal(two.stderr + two.stdout, one.stderr + one.stdout, `${what}: same report`);
   }
@@ -72,7 +75,7 @@ t.test('split keys of many ids derived on two threads equal those from one', asy
   writeFileSync(join(dir, 'q.yaml'), readFileSync(join(dir, 'p.yaml'), 'utf8').replace(', id: id', ''));
   for (const protocol of ['p', 'q']) {
     for (const threads of ['1', '2'])
-      t.equal(run(threads, ['folds', `${protocol}.yaml`, '--out', `${protocol}-${threads}.csv`], dir).status, 0);
+      t.equal((await run(threads, ['folds', `${protocol}.yaml`, '--out', `${protocol}-${threads}.csv`], dir)).status, 0);
     t.equal(
       readFileSync(join(dir, `${protocol}-2.csv`), 'utf8'),
       readFileSync(join(dir, `${protocol}-1.csv`), 'utf8'),
@@ -83,8 +86,8 @@ t.test('split keys of many ids derived on two threads equal those from one', asy
 
 t.test('a data hash computed on the second thread is checked like one computed here', async (t) => {
   const dir = tempDir({ 'p.yaml': demo.replace(/sha256: "914f[0-9a-f]+"/, `sha256: "${'0'.repeat(64)}"`) });
-  const one = run('1', ['validate', 'p.yaml'], dir);
-  const two = run('2', ['validate', 'p.yaml'], dir);
+  const one = await run('1', ['validate', 'p.yaml'], dir);
+  const two = await run('2', ['validate', 'p.yaml'], dir);
   t.equal(one.status, 1);
   t.match(one.stdout + one.stderr, '914fdee0');
   t.equal(two.stdout + two.stderr, one.stdout + one.stderr, 'same report');
@@ -95,7 +98,7 @@ t.test('a permutation test on three threads scores every permutation as one thre
   const withTest = onWorkers.replace('verify:', 'statistics: {permutation: {count: 12, seed: 9, metric: roc-auc}}\nverify:');
   const dir = tempDir({ 'p.yaml': withTest });
   for (const threads of ['1', '3']) {
-    const r = run(threads, ['run', 'p.yaml', '--out', `res-${threads}`], dir);
+    const r = await run(threads, ['run', 'p.yaml', '--out', `res-${threads}`], dir);
     t.equal(r.status, 0, r.stderr);
     t.match(r.stdout, /permutation test \(roc-auc/);
   }
