@@ -3,7 +3,7 @@
  * subject again and scores too well. Looks at columns named like a subject and at the declared
  * data.group when the split does not keep groups together. Pure.
  */
-import { warning, type Problem } from '../problems/problem.js';
+import { note, warning, type Problem } from '../problems/problem.js';
 import { isPinned } from '../protocol/types.js';
 import { splitRules } from '../split/registry.js';
 import { AUDIT_CODE } from './kinds.js';
@@ -24,11 +24,24 @@ export function spanningGroups(values: readonly string[], input: Pick<AuditInput
   return { groups: rowsOf.size, repeated: repeated.length, spanning };
 }
 
+/**
+ * A text column whose values look like subject ids: not numbers, at least a tenth of the rows
+ * distinct, and each value on 1.5 to 10 rows on average (a patient's repeated samples, not a
+ * category such as sex or site). Reported as a note: only its name or a declaration says for sure.
+ */
+export function looksLikeGroups(values: readonly string[], missing: ReadonlySet<string>): boolean {
+  const present = values.filter((v) => !missing.has(v));
+  if (present.length < 10 || present.every((v) => /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(v))) return false;
+  const distinct = new Set(present).size;
+  const perValue = present.length / distinct;
+  return distinct >= present.length / 10 && perValue >= 1.5 && perValue <= 10;
+}
+
 export function groupFindings(input: AuditInput): Problem[] {
   const p = input.protocol;
   const grouped = !isPinned(p.split) && splitRules[p.split.rule].uses.groups;
   const missing = new Set(['', ...p.data.missing]);
-  const candidates: { name: string; values: readonly string[]; at: Partial<Problem>; why: string }[] = [];
+  const candidates: { name: string; values: readonly string[]; at: Partial<Problem>; why: string; note?: boolean }[] = [];
   if (p.data.group !== undefined && !grouped && input.table.groups)
     candidates.push({
       name: p.data.group,
@@ -37,16 +50,19 @@ export function groupFindings(input: AuditInput): Problem[] {
       why: 'declared as data.group',
     });
   for (const c of input.described.covariates) {
-    if (c.name === p.data.group || !namesSubject(c.name)) continue;
+    if (c.name === p.data.group) continue;
     const { line, col, file } = c.at;
-    candidates.push({ name: c.name, values: c.values, at: { file, position: { line, col } }, why: 'named like a subject' });
+    const at = { file, position: { line, col } };
+    if (namesSubject(c.name)) candidates.push({ name: c.name, values: c.values, at, why: 'named like a subject' });
+    else if (looksLikeGroups(c.values, missing))
+      candidates.push({ name: c.name, values: c.values, at, why: 'its values repeat like ids of subjects', note: true });
   }
   const out: Problem[] = [];
   for (const c of candidates) {
     const { groups, repeated, spanning } = spanningGroups(c.values, input, missing);
     if (!spanning.length) continue;
     out.push(
-      warning(
+      (c.note ? note : warning)(
         AUDIT_CODE['split-groups'],
         `column "${c.name}" (${c.why}) has ${plural(repeated, 'value')} shared by several rows, of ${groups}; ` +
           `${spanning.length} of them have rows in both training and test (${listed(spanning.map((v) => `"${v}"`))}), ` +

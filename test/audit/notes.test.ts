@@ -94,3 +94,13 @@ t.test('copies a grouped split keeps together are a note, not a warning', async 
     'the split keeps the declared groups',
   );
 });
+
+t.test('a column whose values repeat like subject ids is a note; a category is not', async (t) => {
+  const lines = iris.csv.trimEnd().split('\n');
+  const csv =
+    [`${lines[0]},visit,site`, ...lines.slice(1).map((l, i) => `${l},V${(i * 7) % 50},${['north', 'south'][i % 2]}`)].join('\n') + '\n';
+  const { findings } = await audited(csv, ['  features: [sepal_length, sepal_width, petal_length, petal_width]']);
+  const groups = findings.filter((f) => f.code === 'audit-split-groups');
+  t.equal(groups.length, 1, 'visit only: site has two values, a category');
+  t.match(groups[0], { severity: 'note', message: /column "visit" \(its values repeat like ids of subjects\)/ });
+});
