@@ -1,11 +1,13 @@
 // Compiles the tests to dist/test/ (tap then runs plain JavaScript: no TypeScript loader in each
 // test process) and lets the compiled tests import the shared .mjs helpers of test/ where they are.
 import { spawnSync } from 'node:child_process';
-import { mkdirSync, readdirSync, writeFileSync } from 'node:fs';
+import { mkdirSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { dirname, join, relative } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
+// A test renamed or removed must not linger as compiled JavaScript that tap would still run.
+rmSync(join(root, 'dist', 'test'), { recursive: true, force: true });
 const tsc = spawnSync(process.execPath, [join(root, 'node_modules', 'typescript', 'bin', 'tsc'), '-p', join(root, 'tsconfig.test.json')], {
   stdio: 'inherit',
 });

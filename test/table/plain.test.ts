@@ -1,7 +1,7 @@
 // The one-pass reader for quote-free files must read exactly what the full RFC 4180 reader
 // reads — same table, same problems at the same positions — and hand over to it whenever the
 // file is not simple. Reference: the full reader (itself checked against RFC 4180 in
-// read.test.ts) and ECMAScript's correctly rounded Number() for every numeric cell.
+// read.part.ts) and ECMAScript's correctly rounded Number() for every numeric cell.
 import fc from 'fast-check';
 import t from 'tap';
 import { delimitedGrid, readDelimited } from '../../src/table/delimited.js';

@@ -1,0 +1,22 @@
+/**
+ * The quick test files, run in one process. Each test file costs tap about 1.5 s of start-up
+ * (a process, the runner, coverage), more than these take together; the slow ones (CLI, threads,
+ * reference libraries, the browser) stay files of their own and run side by side.
+ */
+import './architecture.part.js';
+import './protocol/structure.part.js';
+import './reconcile/hand-made.part.js';
+import './manifest/compare.part.js';
+import './check/lock.part.js';
+import './run/four-fold.part.js';
+import './metric/identities.part.js';
+import './stats/references.part.js';
+import './split/properties.part.js';
+import './table/read.part.js';
+import './reconcile/reference.part.js';
+import './split/sha256.part.js';
+import './run/invariance.part.js';
+import './model/select.part.js';
+import './manifest/standards.part.js';
+import './run/fast-paths.part.js';
+import './model/models.part.js';
