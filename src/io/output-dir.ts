@@ -10,6 +10,7 @@
 import { mkdir, mkdtemp, open, readdir, readFile, rename, rm, rmdir, lstat, unlink, writeFile } from 'node:fs/promises';
 import { basename, dirname, join } from 'node:path';
 import { error, FoldsealError } from '../problems/problem.js';
+import { REPORT_MARK } from '../report/page.js';
 import { writeProblem } from './output-file.js';
 
 const NEW = '.foldseal-new-';
@@ -96,6 +97,14 @@ async function writeDurably(path: string, content: string | Uint8Array): Promise
   }
 }
 
+async function isOurReport(path: string): Promise<boolean> {
+  const head = await readFile(path, 'utf8').then(
+    (text) => text.slice(0, 512),
+    () => '',
+  );
+  return head.includes(REPORT_MARK);
+}
+
 /** What is at `dir` now: nothing, an empty folder, a results folder of ours, or something else. */
 async function folderState(dir: string): Promise<FolderState> {
   let st: Awaited<ReturnType<typeof lstat>>;
@@ -112,8 +121,9 @@ async function folderState(dir: string): Promise<FolderState> {
     const manifest = JSON.parse(await readFile(join(dir, 'manifest.json'), 'utf8'));
     if (!manifest || typeof manifest['foldseal-manifest'] !== 'number' || typeof manifest.files !== 'object' || manifest.files === null)
       throw new Error('not ours');
-    // report.html: the report `run --report` and `foldseal report` write next to the results.
-    listed = new Set(['manifest.json', 'manifest.json.sig', 'report.html', ...Object.keys(manifest.files)]);
+    listed = new Set(['manifest.json', 'manifest.json.sig', ...Object.keys(manifest.files)]);
+    // report.html: the page `run --report` and `foldseal report` write next to the results, when it carries their mark.
+    if (entries.includes('report.html') && (await isOurReport(join(dir, 'report.html')))) listed.add('report.html');
   } catch {
     return {
       kind: 'foreign',

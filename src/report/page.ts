@@ -30,6 +30,9 @@ export interface ReportInput {
   toolVersion: string;
 }
 
+/** In every report's head: a results folder's report.html without it is the user's, and `run --force` leaves the folder alone. */
+export const REPORT_MARK = '<meta name="generator" content="foldseal report">';
+
 export function escapeHtml(s: string): string {
   return s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&#39;');
 }
@@ -209,7 +212,7 @@ export function reportHtml(input: ReportInput): string {
   const doc = input.manifest.protocol.document;
   const title = `${r.protocol.name} — cross-validation report`;
   return `<!doctype html>
-<html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">
+<html lang="en"><head><meta charset="utf-8">${REPORT_MARK}<meta name="viewport" content="width=device-width, initial-scale=1">
 <meta http-equiv="Content-Security-Policy" content="default-src 'none'; style-src 'unsafe-inline'; img-src data:">
 <title>${e(title)}</title><style>${STYLE}</style></head>
 <body><main>

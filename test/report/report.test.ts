@@ -4,7 +4,7 @@
  * says what the run did; `report` and `run --report` write one self-contained page.
  */
 import { spawnSync } from 'node:child_process';
-import { readFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import t from 'tap';
 import { aucOf } from '../../src/metric/ranking.js';
@@ -119,13 +119,18 @@ t.test('report writes one page with no external reference; refuses to overwrite;
   t.match(wrong.stderr, 'is not the protocol these results were run from');
   // The results folder with its report is still one foldseal may replace with --force.
   t.equal((await cli(['run', 'p.yaml', '--out', 'res', '--force', '--report'], dir)).code, 0);
+  // A report.html foldseal did not write is the user's: --force refuses the folder and deletes nothing.
+  writeFileSync(join(dir, 'res', 'report.html'), '<html>my own notes</html>');
+  const mine = await cli(['run', 'p.yaml', '--out', 'res', '--force'], dir);
+  t.equal(mine.code, 2, mine.stderr);
+  t.match(mine.stderr, 'report.html');
+  t.equal(readFileSync(join(dir, 'res', 'report.html'), 'utf8'), '<html>my own notes</html>', 'the user file is kept');
 });
 
 t.test('a result file changed after the run is refused', async (t) => {
   const d = tempDir({ 'data.csv': bc.csv, 'p.yaml': protocol() });
   t.equal((await cli(['run', 'p.yaml', '--out', 'res'], d)).code, 0);
   const path = join(d, 'res', 'predictions.csv');
-  const { writeFileSync } = await import('node:fs');
   writeFileSync(path, readFileSync(path, 'utf8').replace(',1,', ',2,'));
   const r = await cli(['report', 'res'], d);
   t.equal(r.code, 1);
