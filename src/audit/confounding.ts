@@ -5,6 +5,7 @@
  */
 import { warning, type Problem } from '../problems/problem.js';
 import { gammaQ } from '../stats/special.js';
+import { isNumberText } from '../table/number.js';
 import { AUDIT_CODE } from './kinds.js';
 import type { AuditInput } from './input.js';
 import { pairwiseSeparation } from './separation.js';
@@ -56,8 +57,6 @@ export function association(a: Int32Array, levels: number, y: Int32Array, classe
   return { chiSquare: chi, df, p: Math.max(0, p), cramerV: Math.min(1, cramerV), n };
 }
 
-const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
-
 export function confoundingFindings(input: AuditInput): Problem[] {
   const { table, protocol: p } = input;
   const missing = new Set(['', ...p.data.missing]);
@@ -85,7 +84,7 @@ export function confoundingFindings(input: AuditInput): Problem[] {
           },
         ),
       );
-    } else if (present.every((v) => NUMBER.test(v))) {
+    } else if (present.every(isNumberText)) {
       const values = Float64Array.from(c.values, (v) => (missing.has(v) ? Number.NaN : Number(v)));
       const sep = pairwiseSeparation(values, table.y, table.classes.length);
       if (sep === null || sep < t.covariateAuc) continue;

@@ -6,6 +6,7 @@
 import { note, warning, type Problem } from '../problems/problem.js';
 import { isPinned } from '../protocol/types.js';
 import { splitRules } from '../split/registry.js';
+import { isNumberText } from '../table/number.js';
 import { AUDIT_CODE } from './kinds.js';
 import { type AuditInput, listed, plural, repeatsSpanned } from './input.js';
 import { namesSubject } from './thresholds.js';
@@ -31,7 +32,7 @@ export function spanningGroups(values: readonly string[], input: Pick<AuditInput
  */
 export function looksLikeGroups(values: readonly string[], missing: ReadonlySet<string>): boolean {
   const present = values.filter((v) => !missing.has(v));
-  if (present.length < 10 || present.every((v) => /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(v))) return false;
+  if (present.length < 10 || present.every(isNumberText)) return false;
   const distinct = new Set(present).size;
   const perValue = present.length / distinct;
   return distinct >= present.length / 10 && perValue >= 1.5 && perValue <= 10;

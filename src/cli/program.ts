@@ -28,6 +28,15 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
       'let the protocol name files outside its folder, the working folder and FOLDSEAL_TRUSTED (only for files you trust)',
     );
 
+  /** What `run` and `merge` share: where the results folder goes and what is written into it. */
+  const resultsFolderOptions = (command: Command) =>
+    command
+      .option('--out <dir>', 'results folder (default: results/<protocol name>)')
+      .option('--force', 'replace an existing results folder that foldseal wrote (never any other folder)')
+      .option('--refit', 'also fit one model on every labeled row and save it in models.json')
+      .option('--key <file>', 'sign manifest.json with this Ed25519 private key (from foldseal keygen)')
+      .option('--report', 'also write report.html (see foldseal report) into the results folder');
+
   program
     .command('validate')
     .description('check protocols against the schema and their data; report every problem at file:line:col')
@@ -86,15 +95,12 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
       done(await (await import('./commands/folds.js')).foldsCommand({ protocol, ...o }, io)),
     );
 
-  program
-    .command('run')
-    .description('cross-validate: fit preprocessing and model inside every fold, score, write predictions and results')
-    .argument('<protocol>', 'protocol YAML file')
-    .option('--out <dir>', 'results folder (default: results/<protocol name>)')
-    .option('--force', 'replace an existing results folder that foldseal wrote (never any other folder)')
-    .option('--refit', 'also fit one model on every labeled row and save it in models.json')
-    .option('--key <file>', 'sign manifest.json with this Ed25519 private key (from foldseal keygen)')
-    .option('--report', 'also write report.html (see foldseal report) into the results folder')
+  resultsFolderOptions(
+    program
+      .command('run')
+      .description('cross-validate: fit preprocessing and model inside every fold, score, write predictions and results')
+      .argument('<protocol>', 'protocol YAML file'),
+  )
     .option(
       '--shard <i/n>',
       'compute only shard I of N of the work (fold fits, permutations) and write its part to --out FILE; see foldseal merge',
@@ -113,16 +119,13 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
       ) => done(await (await import('./commands/run.js')).runCommand({ protocol, ...o }, io)),
     );
 
-  program
-    .command('merge')
-    .description('put the parts of a sharded run (run --shard I/N) together into the results folder one run writes')
-    .argument('<protocol>', 'the protocol the parts were run from')
-    .argument('<parts...>', 'the part files, one per shard, in any order')
-    .option('--out <dir>', 'results folder (default: results/<protocol name>)')
-    .option('--force', 'replace an existing results folder that foldseal wrote (never any other folder)')
-    .option('--refit', 'also fit one model on every labeled row and save it in models.json')
-    .option('--key <file>', 'sign manifest.json with this Ed25519 private key (from foldseal keygen)')
-    .option('--report', 'also write report.html into the results folder')
+  resultsFolderOptions(
+    program
+      .command('merge')
+      .description('put the parts of a sharded run (run --shard I/N) together into the results folder one run writes')
+      .argument('<protocol>', 'the protocol the parts were run from')
+      .argument('<parts...>', 'the part files, one per shard, in any order'),
+  )
     .addOption(outsideOption())
     .addHelpText(
       'after',

@@ -155,11 +155,12 @@ export function mergeParts(
         { file, hint: 'give each shard I/N once' },
       ),
     );
-  const missing = units.map(unitName).filter((n) => !fitOf.has(n) && !scoreOf.has(n));
+  // Positions of the units no part covers (a unit's position gives its shard: round-robin).
+  const uncovered = units.flatMap((u, i) => (fitOf.has(unitName(u)) || scoreOf.has(unitName(u)) ? [] : [i]));
+  const missing = uncovered.map((i) => unitName(units[i]));
   if (missing.length) {
-    const shards = [...new Set(units.flatMap((u, i) => (missing.includes(unitName(u)) ? [i] : [])))];
     const count = own[0]?.part.shard.count;
-    const which = count ? [...new Set(shards.map((i) => `${(i % count) + 1}/${count}`))].join(', ') : '';
+    const which = count ? [...new Set(uncovered.map((i) => `${(i % count) + 1}/${count}`))].join(', ') : '';
     problems.push(
       error(
         'shard-missing',

@@ -4,6 +4,7 @@
  * A columnar file has no lines: a cell's position is its 1-based data row and column number. Pure.
  */
 import type { Grid } from './grid.js';
+import { isNumberText } from './number.js';
 
 export interface ColumnTable {
   names: string[];
@@ -11,9 +12,6 @@ export interface ColumnTable {
   /** Per column: numbers, or texts ('' where null). */
   columns: (Float64Array | string[])[];
 }
-
-/** The strict number grammar of number.ts, for numbers stored as text. */
-const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 
 export function columnsGrid(t: ColumnTable): Grid {
   const text = (r: number, c: number) => {
@@ -24,7 +22,7 @@ export function columnsGrid(t: ColumnTable): Grid {
   const number = (r: number, c: number) => {
     const col = t.columns[c];
     if (col instanceof Float64Array) return col[r];
-    return NUMBER.test(col[r]) ? Number(col[r]) : Number.NaN;
+    return isNumberText(col[r]) ? Number(col[r]) : Number.NaN;
   };
   return {
     header: t.names,

@@ -8,6 +8,13 @@ const POW10 = [
 ];
 const latin1 = new TextDecoder('latin1');
 
+const NUMBER_TEXT = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
+
+/** Whether text (a cell already decoded) is a number by the grammar above. */
+export function isNumberText(text: string): boolean {
+  return NUMBER_TEXT.test(text);
+}
+
 /** Returns the value, or NaN when the bytes are not a number by the grammar above. */
 export function parseNumberBytes(b: Uint8Array, start: number, end: number): number {
   let i = start;
