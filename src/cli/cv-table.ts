@@ -12,13 +12,15 @@ const POOLED_PREFERRED = ['mcc', 'roc-auc', 'kappa', 'average-precision'];
 
 export function cvTables(cv: CvResult): string {
   const names = cv.metricNames;
-  const header = ['repeat', 'fold', 'test', ...names, 'baseline'];
-  const rows = cv.folds.map((f) => [
+  const tuned = cv.tuning?.settings ?? [];
+  const header = ['repeat', 'fold', 'test', ...names, 'baseline', ...tuned];
+  const rows = cv.folds.map((f, i) => [
     String(f.repeat),
     String(f.fold),
     String(f.testRows),
     ...names.map((m) => fmt(f.metrics[m])),
     fmt(f.baselineAccuracy),
+    ...tuned.map((name) => String(cv.models[i].chosen![name])),
   ]);
   const summary = textTable(
     ['metric', 'mean', 'sd', 'pooled'],
@@ -39,12 +41,32 @@ export function cvTables(cv: CvResult): string {
         `undefined there, so report their pooled values\n`
       : '';
   const folds = cv.folds.length <= 60 ? textTable(header, rows) + '\n' : `${cv.folds.length} folds (table omitted; see results.json)\n\n`;
+  const nested = cv.tuning
+    ? `the scores above are the nested estimate: ${tuned.join(' and ')} chosen inside each outer fold, on its training rows only\n`
+    : '';
   return (
     folds +
     summary +
+    nested +
     tiny +
     `baseline = always predicting the training part's most common class; largest class share ${fmt(cv.baseline.largestClassShare)}\n`
   );
+}
+
+/** How often each candidate value won an outer fold, and what the refit model uses, for the terminal. */
+export function tuningLines(counts: Record<string, Record<string, number>>, metric: string, refit?: Record<string, number | string>): string {
+  const lines = Object.entries(counts).map(
+    ([name, byValue]) =>
+      `  ${name}: ${Object.entries(byValue)
+        .map(([v, n]) => `${v} ×${n}`)
+        .join(', ')}`,
+  );
+  const after = refit
+    ? `the refit model uses ${Object.entries(refit)
+        .map(([k, v]) => `${k} = ${v}`)
+        .join(', ')} (chosen by the same search on every row)\n`
+    : '';
+  return `\nchosen per outer fold (by mean inner ${metric}):\n${lines.join('\n')}\n${after}`;
 }
 
 const range = (i: [number, number] | null) => (i === null ? '—' : `${fmt(i[0])}–${fmt(i[1])}`);

@@ -1,7 +1,6 @@
 /** Worker thread entry: fits the folds it is sent on the shared table (see fold-workers.ts). */
 import { parentPort, workerData } from 'node:worker_threads';
-import type { FoldData } from '../run/fit-fold.js';
-import { runJob, type FoldJob } from '../run/executor.js';
+import { runJob, type ExecData, type FoldJob } from '../run/executor.js';
 import { toWorkerError } from './worker-errors.js';
 
 const w = workerData as {
@@ -13,13 +12,18 @@ const w = workerData as {
   y: SharedArrayBuffer;
   classes: string[];
   featureNames: string[];
+  /** Ids and groups: only a tuned protocol's inner splits read them (empty otherwise). */
+  ids: string[];
+  groups?: string[];
 };
-const table: FoldData = {
+const table: ExecData = {
   X: { rows: w.rows, cols: w.cols, data: new Float64Array(w.data) },
   y: new Int32Array(w.y),
   classes: w.classes,
   featureNames: w.featureNames,
   columns: w.columns && new Float64Array(w.columns),
+  ids: w.ids,
+  groups: w.groups,
 };
 
 parentPort!.on('message', (job: FoldJob) => {

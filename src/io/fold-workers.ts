@@ -14,22 +14,25 @@ import { assembleResult, atFold, crossValidate, planFolds, type CvHooks, type Cv
 import type { FoldFit } from '../run/fit-fold.js';
 import { jobsFor, strategyFor, wantsColumns } from '../run/executor.js';
 import { columnMajor } from '../preprocess/by-columns.js';
+import { candidates } from '../protocol/grid.js';
+import { innerFits } from '../run/nested.js';
 
 /** Cells × folds below which thread start-up costs more than it saves. */
 const MIN_WORK = 2_000_000;
 
-export function threadCount(table: Table, folds: number): number {
+/** `weight`: fits per fold (a tuned fold fits every candidate on every inner fold first). */
+export function threadCount(table: Table, folds: number, weight = 1): number {
   const forced = forcedThreads();
   if (forced !== undefined) return forced;
   // Workers load compiled JavaScript; from TypeScript sources (tests) the serial loop runs.
   if (!import.meta.url.endsWith('.js')) return 1;
-  if (table.X.rows * table.X.cols * folds < MIN_WORK) return 1;
+  if (table.X.rows * table.X.cols * folds * weight < MIN_WORK) return 1;
   return Math.max(1, Math.min(availableParallelism(), folds, 8));
 }
 
 export async function crossValidateInWorkers(p: Protocol, table: Table, a: Assignment, hooks: CvHooks = {}): Promise<CvResult> {
   const plans = planFolds(p, table, a);
-  const threads = threadCount(table, plans.length);
+  const threads = threadCount(table, plans.length, p.tune ? candidates(p.grid).length * innerFits(p.tune.split) : 1);
   // Fits from class moments cost little per fold: no thread pays for its start-up there. Every
   // other strategy comes as jobs from the executor, which the workers run as they are.
   if (threads < 2 || !import.meta.url.endsWith('.js') || strategyFor(p) === 'moments') return crossValidate(p, table, a, hooks);
@@ -44,7 +47,7 @@ export async function crossValidateInWorkers(p: Protocol, table: Table, a: Assig
     columnMajor(table.X, new Float64Array(columns));
   }
   const workerData = {
-    protocol: { preprocess: p.preprocess, model: p.model },
+    protocol: { preprocess: p.preprocess, model: p.model, grid: p.grid, tune: p.tune, data: p.data },
     rows: table.X.rows,
     cols: table.X.cols,
     data,
@@ -52,6 +55,8 @@ export async function crossValidateInWorkers(p: Protocol, table: Table, a: Assig
     y,
     classes: table.classes,
     featureNames: table.featureNames,
+    ids: p.tune ? table.ids : [],
+    groups: p.tune ? table.groups : undefined,
   };
   const fits: FoldFit[] = new Array(plans.length);
   const workers = Array.from({ length: threads }, () => new Worker(new URL('./fold-worker.js', import.meta.url), { workerData }));

@@ -7,7 +7,7 @@ import { linearSvm } from './linear-svm.js';
 import { logistic } from './logistic.js';
 import { multinomialNb } from './multinomial-nb.js';
 import { shrunkenCentroid } from './shrunken-centroid.js';
-import type { ModelImpl } from './types.js';
+import { tunable, type ModelImpl } from './types.js';
 
 const entries = {
   'gaussian-nb': gaussianNb,
@@ -64,7 +64,15 @@ export function modelSchema(): Record<string, unknown> {
     allOf: Object.entries(models).map(([kind, m]) => ({
       if: { properties: { kind: { const: kind } } },
       // biome-ignore lint/suspicious/noThenProperty: JSON Schema's if/then keyword, a plain object never awaited
-      then: { properties: { options: { type: 'object', additionalProperties: false, properties: m.options } } },
+      then: {
+        properties: {
+          options: {
+            type: 'object',
+            additionalProperties: false,
+            properties: Object.fromEntries(Object.entries(m.options).map(([name, spec]) => [name, tunable({ ...spec })])),
+          },
+        },
+      },
     })),
   };
 }

@@ -140,3 +140,17 @@ export function naiveBayesPosteriors(
   }
   return softmaxRows(scores, rows, k);
 }
+
+/**
+ * An option's or step setting's schema with the tuning form added: a scalar as before, or a list
+ * of at least two distinct candidate values, each valid on its own (a `tune` section then picks one per fold).
+ */
+export function tunable(spec: Record<string, unknown>): Record<string, unknown> {
+  if (spec.type === 'object') return spec;
+  const { description, default: fallback, ...value } = spec;
+  return {
+    description: `${description} A list of candidate values is tuned inside the folds (see tune).`,
+    ...(fallback !== undefined ? { default: fallback } : {}),
+    oneOf: [value, { type: 'array', minItems: 2, uniqueItems: true, items: value }],
+  };
+}

@@ -4,6 +4,7 @@ import { log2p } from './log2p.js';
 import { select } from './select.js';
 import { standardize } from './standardize.js';
 import type { TransformImpl } from './types.js';
+import { tunable } from '../model/types.js';
 
 const entries = { standardize, log2p, impute, select };
 
@@ -45,7 +46,7 @@ export function stepItemSchema(): Record<string, unknown> {
             additionalProperties: false,
             required: Object.keys(t.settings),
             description: `Settings of ${name}.`,
-            properties: t.settings,
+            properties: Object.fromEntries(Object.entries(t.settings).map(([name, spec]) => [name, tunable({ ...spec })])),
           },
         },
       })),

@@ -1,5 +1,6 @@
 /** Schema-valid plain data → typed Protocol with defaults. Runs only after the schema passed. */
 import { readStep } from '../preprocess/registry.js';
+import { liftGrid } from './grid.js';
 import { DEFAULT_METRICS, DEFAULT_MISSING, type PreprocessStep, type Protocol } from './types.js';
 
 /* eslint-disable @typescript-eslint/no-explicit-any */
@@ -16,7 +17,10 @@ export function normalizeProtocol(raw: any): Protocol {
         assign: s.assign ?? 'balanced',
         testFraction: s['test-fraction'],
       };
-  const preprocess: PreprocessStep[] = (raw.preprocess ?? []).map(readStep);
+  const lifted = liftGrid((raw.preprocess ?? []).map(readStep), raw.model.options ?? {});
+  const preprocess: PreprocessStep[] = lifted.preprocess;
+  const t = raw.tune;
+  const inner = t?.split;
   const r = raw.reconcile ?? {};
   const nr = r['new-rows'];
   return {
@@ -43,13 +47,32 @@ export function normalizeProtocol(raw: any): Protocol {
     },
     split,
     preprocess,
-    model: { kind: raw.model.kind, options: raw.model.options ?? {} },
+    model: { kind: raw.model.kind, options: lifted.options },
     reconcile: {
       rule: r.rule ?? 'mean-probability',
       tie: r.tie,
       newRows: nr ? { file: nr.file, sha256: nr.sha256, id: nr.id, layout: nr.layout ?? 'samples-in-rows' } : undefined,
     },
     metrics: raw.metrics ?? DEFAULT_METRICS,
+    grid: lifted.grid,
+    tune: t
+      ? {
+          split: {
+            rule: inner.rule,
+            folds: inner.folds ?? 5,
+            repeats: inner.repeats ?? 1,
+            // The inner seed defaults to the outer split's (docs/protocol.md); a pinned outer split has none to lend.
+            seed: inner.seed ?? (s.pinned ? undefined : s.seed),
+            assign: inner.assign ?? 'balanced',
+            testFraction: inner['test-fraction'],
+          },
+          metric: t.metric,
+          prefer: t.prefer.map((entry: Record<string, string>) => {
+            const [name, order] = Object.entries(entry)[0];
+            return { name, order };
+          }),
+        }
+      : undefined,
     statistics: raw.statistics
       ? {
           level: raw.statistics.level ?? 0.95,

@@ -57,7 +57,10 @@ function describeBranch(b: Schema): string {
   const key = b.required[0] as string;
   const inner = b.properties[key] as Schema;
   const fields = Object.entries(inner.properties as Record<string, Schema>).map(
-    ([k, v]) => `\`${k}\`${v.enum ? ` (${v.enum.join(' | ')})` : ''}: ${v.description}`,
+    ([k, v]) => {
+      const values = v.enum ?? v.oneOf?.[0]?.enum;
+      return `\`${k}\`${values ? ` (${values.join(' | ')})` : ''}: ${v.description}`;
+    },
   );
   return `\`{${key}: {…}}\` — ${b.description} ${fields.join('; ')}`;
 }

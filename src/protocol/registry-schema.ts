@@ -18,6 +18,11 @@ export function registryParts(): { path: string[]; value: Json }[] {
     { path: ['properties', 'split', 'properties', 'rule'], value: splitRuleSchema() },
     { path: ['properties', 'preprocess', 'items'], value: stepItemSchema() },
     { path: ['properties', 'metrics', 'items'], value: metricItemSchema() },
+    { path: ['properties', 'tune', 'properties', 'split', 'properties', 'rule'], value: splitRuleSchema() },
+    {
+      path: ['properties', 'tune', 'properties', 'metric'],
+      value: { ...metricItemSchema(), description: "The metric whose mean over the inner folds picks each outer fold's candidate." },
+    },
     {
       path: ['properties', 'statistics', 'properties', 'permutation', 'properties', 'metric'],
       value: { ...metricItemSchema(), description: "The metric whose mean over folds is tested; one of the protocol's metrics." },

@@ -46,6 +46,7 @@ function collapse(errors: readonly Err[]): Err[] {
 function branchFits(branch: Record<string, unknown>, value: unknown): boolean {
   if (typeof value === 'string') return Array.isArray(branch.enum) || branch.type === 'string';
   if (Array.isArray(value)) return branch.type === 'array';
+  if (typeof value === 'number') return branch.type === 'number' || branch.type === 'integer';
   if (value !== null && typeof value === 'object') {
     if (branch.type !== 'object') return false;
     const required = (branch.required as string[] | undefined) ?? [];

@@ -3,7 +3,8 @@
  * the caller has read and hashed the files; this only compares and counts.
  */
 import { models, withDefaults } from '../model/registry.js';
-import { error, warning, type Problem } from '../problems/problem.js';
+import { error, hasErrors, warning, type Problem } from '../problems/problem.js';
+import { gridProblems, innerSplitProblems, overCandidates } from './tune-checks.js';
 import { assignFolds } from '../split/assign.js';
 import { emptyFolds, type Assignment } from '../split/assignment.js';
 import { parsePinned } from '../split/pinned.js';
@@ -11,7 +12,7 @@ import { splitRules } from '../split/registry.js';
 import { transforms } from '../preprocess/registry.js';
 import type { Table } from '../table/table.js';
 import { locate, type SourceDocument } from './document.js';
-import { isPinned, testsFoldOneOnly, type Protocol } from './types.js';
+import { isPinned, testsFoldOneOnly, type Protocol, type RuleSplit } from './types.js';
 
 export interface DataEvidence {
   table: Table;
@@ -60,7 +61,8 @@ export function checkAgainstData(p: Protocol, source: SourceDocument, ev: DataEv
     );
   }
   problems.push(...missingValueProblems(p, table, at));
-  problems.push(...preprocessProblems(p, table, at));
+  problems.push(...gridProblems(p, at));
+  problems.push(...overCandidates(p, at, (q, atValue) => preprocessProblems(q, table, atValue)));
 
   let assignment: Assignment | undefined;
   if (isPinned(p.split)) {
@@ -124,8 +126,12 @@ export function checkAgainstData(p: Protocol, source: SourceDocument, ev: DataEv
     }
   }
   // The model's checks see the smallest training part when the split could be drawn, else all rows.
-  problems.push(...modelProblems(p, table, assignment ? smallestTraining(p, table.ids.length, assignment) : table.ids.length, at));
+  const outerSmallest = assignment ? smallestTraining(p, table.ids.length, assignment) : table.ids.length;
+  // A tuned model is also fitted on the inner training parts, which are smaller still.
+  const smallest = p.tune && p.grid.length ? innerTrainingBound(p.tune.split, outerSmallest) : outerSmallest;
+  problems.push(...overCandidates(p, at, (q, atValue) => modelProblems(q, table, smallest, atValue)));
   if (assignment) problems.push(...assignmentProblems(p, table, assignment, at));
+  if (assignment && !hasErrors(problems)) problems.push(...innerSplitProblems(p, table, assignment, at));
   return { problems, assignment };
 }
 
@@ -177,6 +183,12 @@ function modelProblems(p: Protocol, table: Table, smallestTrain: number, at: At)
     const where = at(['model', 'options', ...q.path], q.key);
     return error(q.code, q.message, q.hint === undefined ? where : { ...where, hint: q.hint });
   });
+}
+
+/** A lower bound on the inner training part of an outer training part of n rows (balanced dealing: a fold holds at most ⌈n/k⌉). */
+function innerTrainingBound(s: RuleSplit, n: number): number {
+  if (splitRules[s.rule].tests === 'fold-1') return n - Math.ceil(n * (s.testFraction ?? 0));
+  return splitRules[s.rule].uses.folds ? n - Math.ceil(n / s.folds) : n - 1;
 }
 
 /** Rows of the smallest training part over every tested fold of every repeat. */

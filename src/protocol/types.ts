@@ -47,9 +47,35 @@ export interface Protocol {
   model: { kind: ModelKind; options: Record<string, unknown> };
   reconcile: { rule: ReconcileRule; tie?: TieRule; newRows?: HashedFile & { id?: string; layout: DataLayout } };
   metrics: MetricName[];
+  /**
+   * Settings given as lists of candidate values (model options and step settings). The
+   * protocol's preprocess and model carry each one's first value; a fit of a tuned protocol
+   * substitutes a candidate's values (protocol/grid.ts). Empty when nothing is tuned.
+   */
+  grid: TunedSetting[];
+  /** Nested cross-validation: the inner split and how the winning candidate is picked (absent: no tuning). */
+  tune?: TuneSettings;
   /** Intervals and the permutation test (docs/resample-spec.md); absent when the protocol has no statistics section. */
   statistics?: StatisticsSettings;
   verify: { tolerance: number };
+}
+
+/** One tuned setting: its name in the protocol (`model.k`, `select.top`), where it sits, and its candidate values as listed. */
+export interface TunedSetting {
+  name: string;
+  target: { step: number; setting: string } | { option: string };
+  values: (number | string)[];
+}
+
+/** Ties on the inner score go to the candidate whose value of `name` comes first in this order. */
+export type PreferOrder = 'smallest' | 'largest' | 'first-listed';
+
+export interface TuneSettings {
+  /** The inner split, applied to each outer training part (docs/split-spec.md §9); the seed defaults to the outer one. */
+  split: RuleSplit;
+  metric: MetricName;
+  /** The tie order: every tuned setting once. */
+  prefer: { name: string; order: PreferOrder }[];
 }
 
 export type DataLayout = 'samples-in-rows' | 'features-in-rows';
@@ -85,4 +111,9 @@ export function ruleNeedsSeed(rule: SplitRule): boolean {
  */
 export function testsFoldOneOnly(p: Pick<Protocol, 'split' | 'final'>): boolean {
   return isPinned(p.split) ? p.final : splitRules[p.split.rule].tests === 'fold-1';
+}
+
+/** The positive class's code: data.positive, else the last class in byte order. */
+export function positiveClass(p: Pick<Protocol, 'data'>, classes: readonly string[]): number {
+  return p.data.positive !== undefined ? classes.indexOf(p.data.positive) : classes.length - 1;
 }

@@ -12,6 +12,8 @@ export interface SavedModel {
   fold: number;
   pipeline: FittedPipeline;
   model: unknown;
+  /** A tuned protocol's chosen value of each tuned setting (the fitted pipeline and model already carry them). */
+  chosen?: Record<string, number | string>;
 }
 
 export interface ModelsFile {

@@ -13,7 +13,8 @@ import { runAll } from './executor.js';
 import { warning, type Problem } from '../problems/problem.js';
 import { models } from '../model/registry.js';
 import { FitError } from '../model/types.js';
-import { testsFoldOneOnly, type MetricName, type Protocol } from '../protocol/types.js';
+import { positiveClass, testsFoldOneOnly, type MetricName, type Protocol } from '../protocol/types.js';
+import { candidates, valuesOf } from '../protocol/grid.js';
 import { foldRows, type Assignment } from '../split/assignment.js';
 import { idOrder } from '../split/key.js';
 import { takeInt } from '../table/matrix.js';
@@ -25,6 +26,17 @@ export interface FoldModel {
   fold: number;
   pipeline: FittedPipeline;
   model: unknown;
+  /** A tuned protocol's chosen value of each tuned setting for this fold. */
+  chosen?: Record<string, number | string>;
+}
+
+/** The grid searches of a tuned protocol: per outer fold, every candidate's mean inner score and the winner. */
+export interface TuningResult {
+  /** Tuned settings' names, in grid order. */
+  settings: string[];
+  /** Every candidate's values, in grid order (the first setting varies slowest). */
+  candidates: Record<string, number | string>[];
+  folds: { repeat: number; fold: number; scores: (number | null)[]; chosen: number }[];
 }
 
 export interface FoldResult {
@@ -51,6 +63,7 @@ export interface CvResult {
   /** Fold each row was tested in, per repeat (0 = not tested, e.g. holdout training rows). */
   testedIn: Int32Array[];
   models: FoldModel[];
+  tuning?: TuningResult;
   warnings: Problem[];
 }
 
@@ -90,7 +103,8 @@ export function crossValidate(p: Protocol, table: Table, a: Assignment, hooks: C
 export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: readonly FoldPlan[], fits: readonly FoldFit[]): CvResult {
   const k = table.classes.length;
   const n = table.ids.length;
-  const positive = p.data.positive !== undefined ? table.classes.indexOf(p.data.positive) : k - 1;
+  const positive = positiveClass(p, table.classes);
+  const grid = candidates(p.grid);
   const order = idOrder(table.ids);
   const folds: FoldResult[] = [];
   const fitted: FoldModel[] = [];
@@ -149,7 +163,8 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
       baselineAccuracy: testClassCounts[majority] / test.length,
       confusion: confusionRows(s),
     });
-    fitted.push({ repeat: r, fold: f, pipeline, model: params });
+    const search = fits[index].search;
+    fitted.push({ repeat: r, fold: f, pipeline, model: params, ...(search ? { chosen: valuesOf(p.grid, grid[search.chosen]) } : {}) });
   });
   const summary: Record<string, MetricSummary> = {};
   const pooledByRepeat = pooled(p.metrics, table, oof, testedIn, order, positive);
@@ -192,6 +207,13 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
     oof,
     testedIn,
     models: fitted,
+    tuning: p.tune
+      ? {
+          settings: p.grid.map((g) => g.name),
+          candidates: grid.map((pick) => valuesOf(p.grid, pick)),
+          folds: plans.map((plan, i) => ({ repeat: plan.repeat, fold: plan.fold, ...fits[i].search! })),
+        }
+      : undefined,
     warnings: dedupe(warnings),
   };
 }

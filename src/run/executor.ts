@@ -10,9 +10,15 @@ import { canFitByMoments, fitByMoments, modelFromMoments, momentPipelines } from
 import { atFold, fitFold, fitModelAfterPipeline, type FoldData, type FoldFit } from './fit-fold.js';
 import type { FittedPipeline } from '../preprocess/pipeline.js';
 import { columnMajor, fitsByColumns } from '../preprocess/by-columns.js';
-import type { Protocol } from '../protocol/types.js';
+import { positiveClass, type Protocol } from '../protocol/types.js';
 import type { Assignment } from '../split/assignment.js';
-import type { Table } from '../table/table.js';
+import { nestedFold, type SearchData, type TunedParts } from './nested.js';
+
+/** What the executor reads of a protocol: the pipeline and model, and the grid and inner split when it tunes. */
+export type ExecParts = Pick<Protocol, 'preprocess' | 'model'> & Partial<Pick<Protocol, 'grid' | 'tune' | 'data'>>;
+
+/** The table as the executor sees it: fold data with ids (split keys) and, for the grouped rules, groups. */
+export type ExecData = FoldData & { ids: readonly string[]; groups?: readonly string[] };
 
 export interface FoldPlanLike {
   repeat: number;
@@ -27,9 +33,12 @@ export type Strategy =
   /** Pipelines from class moments, then a model that needs rows fitted per fold (parallel jobs). */
   | 'moment-pipelines'
   /** Everything on the training rows of each fold (parallel jobs); `columns` when the pipeline fits column by column. */
-  | 'rows';
+  | 'rows'
+  /** A grid search on each fold's training rows, then the winner fitted (parallel jobs, one per outer fold; see nested.ts). */
+  | 'tuned';
 
-export function strategyFor(p: Pick<Protocol, 'preprocess' | 'model'>): Strategy {
+export function strategyFor(p: ExecParts): Strategy {
+  if (p.tune) return 'tuned';
   if (!canFitByMoments(p)) return 'rows';
   return modelFromMoments(p) ? 'moments' : 'moment-pipelines';
 }
@@ -42,42 +51,68 @@ export function wantsColumns(p: Pick<Protocol, 'preprocess'>): boolean {
 /** One fold's work as plain data a worker thread can receive: the rows, and a pipeline fitted beforehand when there is one. */
 export interface FoldJob {
   index: number;
+  repeat: number;
+  fold: number;
   train: Int32Array;
   test: Int32Array;
   pipeline?: FittedPipeline;
 }
 
 /** The jobs of a strategy that fits per fold (everything but 'moments'). */
-export function jobsFor(p: Pick<Protocol, 'preprocess' | 'model'>, table: Table, a: Assignment, plans: readonly FoldPlanLike[]): FoldJob[] {
+export function jobsFor(p: ExecParts, table: ExecData, a: Assignment, plans: readonly FoldPlanLike[]): FoldJob[] {
   const pipelines = strategyFor(p) === 'moment-pipelines' ? momentPipelines(p, table, a, plans as never).map((f) => f.pipeline) : undefined;
-  return plans.map((plan, index) => ({ index, train: plan.train, test: plan.test, pipeline: pipelines?.[index] }));
+  return plans.map((plan, index) => ({
+    index,
+    repeat: plan.repeat,
+    fold: plan.fold,
+    train: plan.train,
+    test: plan.test,
+    pipeline: pipelines?.[index],
+  }));
 }
 
 /** Runs one job (on any thread): the same arithmetic, so the same bits, wherever it runs. */
-export function runJob(p: Pick<Protocol, 'preprocess' | 'model'>, data: FoldData, job: FoldJob): FoldFit {
+export function runJob(p: ExecParts, data: ExecData, job: FoldJob): FoldFit {
+  if (p.tune) return nestedFold(p as TunedParts, { ...data, positive: positiveClass(p as Protocol, data.classes) } as SearchData, job, fitPlans);
   return job.pipeline ? fitModelAfterPipeline(p, data, job.pipeline, job.train, job.test) : fitFold(p, data, job.train, job.test);
 }
 
-/** Every plan fitted on this thread, in plan order; `onFold` after each. */
+/** Every plan fitted on this thread, in plan order; `onFold` after each; a failure names its repeat and fold. */
 export function runAll(
-  p: Protocol,
-  table: Table,
+  p: ExecParts,
+  table: ExecData,
   a: Assignment,
   plans: readonly FoldPlanLike[],
   onFold?: (done: number, total: number) => void,
+): FoldFit[] {
+  return fitPlans(p, table, a, plans, onFold, true);
+}
+
+/** The inner cross-validation of a grid search: plans fitted as runAll does, failures left to the search to locate. */
+export function runInner(parts: ExecParts, table: ExecData, a: Assignment, plans: readonly FoldPlanLike[]): FoldFit[] {
+  return fitPlans(parts, table, a, plans);
+}
+
+function fitPlans(
+  p: ExecParts,
+  table: ExecData,
+  a: Assignment,
+  plans: readonly FoldPlanLike[],
+  onFold?: (done: number, total: number) => void,
+  locate = false,
 ): FoldFit[] {
   if (strategyFor(p) === 'moments') {
     const fits = fitByMoments(p, table, a, plans as never);
     onFold?.(plans.length, plans.length);
     return fits;
   }
-  const data: FoldData = { ...table, columns: wantsColumns(p) ? columnMajor(table.X) : undefined };
+  const data: ExecData = { ...table, columns: wantsColumns(p) ? columnMajor(table.X) : undefined };
   return jobsFor(p, table, a, plans).map((job, i) => {
     let fit: FoldFit;
     try {
       fit = runJob(p, data, job);
     } catch (e) {
-      throw atFold(e, plans[i].repeat, plans[i].fold);
+      throw locate ? atFold(e, plans[i].repeat, plans[i].fold) : e;
     }
     onFold?.(i + 1, plans.length);
     return fit;

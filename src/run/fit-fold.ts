@@ -4,6 +4,7 @@ import { FitError } from '../model/types.js';
 import { fitPipelineOnRows } from '../preprocess/by-columns.js';
 import { applyPipeline, prunePipeline, type FittedPipeline } from '../preprocess/pipeline.js';
 import type { Protocol } from '../protocol/types.js';
+import type { FoldSearch } from './nested.js';
 import { takeInt, type Matrix } from '../table/matrix.js';
 
 export interface FoldData {
@@ -20,6 +21,8 @@ export interface FoldFit {
   model: unknown;
   /** Test rows × classes, in the order of `test`. */
   proba: Float64Array;
+  /** The grid search that chose this fold's settings (tuned protocols only). */
+  search?: FoldSearch;
 }
 
 export function fitFold(p: Pick<Protocol, 'preprocess' | 'model'>, d: FoldData, train: Int32Array, test: Int32Array): FoldFit {

@@ -7,6 +7,46 @@ import { splitRules } from '../split/registry.js';
 import type { CvResult } from './cross-validate.js';
 import { statisticsJson, type RunStatistics } from './statistics.js';
 import type { NewRowScores } from '../reconcile/new-row-scores.js';
+import type { FoldSearch } from './nested.js';
+import { asWritten } from '../protocol/grid.js';
+import type { TuningResult } from './cross-validate.js';
+
+
+/** How often each value of each tuned setting won an outer fold (selection stability), values in listed order. */
+export function chosenCounts(p: Pick<Protocol, 'grid'>, t: TuningResult): Record<string, Record<string, number>> {
+  return Object.fromEntries(
+    p.grid.map((g) => {
+      const counts = new Map<string, number>(g.values.map((v) => [String(v), 0]));
+      for (const f of t.folds) {
+        const v = String(t.candidates[f.chosen][g.name]);
+        counts.set(v, counts.get(v)! + 1);
+      }
+      return [g.name, Object.fromEntries(counts)];
+    }),
+  );
+}
+
+function tuningJson(p: Protocol, t: TuningResult, refit: FoldSearch | undefined): Record<string, unknown> {
+  const tune = p.tune!;
+  const split = tune.split;
+  return {
+    estimate: 'nested',
+    'inner-split': {
+      rule: split.rule,
+      folds: split.folds,
+      repeats: split.repeats,
+      seed: split.seed ?? null,
+      assign: split.assign,
+      ...(splitRules[split.rule].uses.testFraction ? { 'test-fraction': split.testFraction } : {}),
+    },
+    metric: tune.metric,
+    prefer: tune.prefer.map((q) => ({ [q.name]: q.order })),
+    candidates: t.candidates,
+    folds: t.folds.map((f) => ({ repeat: f.repeat, fold: f.fold, chosen: t.candidates[f.chosen], 'inner-scores': f.scores })),
+    'chosen-counts': chosenCounts(p, t),
+    refit: refit ? { chosen: t.candidates[refit.chosen], 'inner-scores': refit.scores } : null,
+  };
+}
 
 export const RESULTS_VERSION = 1;
 
@@ -26,6 +66,8 @@ export interface ResultsInput {
   statistics?: RunStatistics;
   /** Scores of labeled new rows (a held-back test set). */
   newRowScores?: NewRowScores;
+  /** The search on every row behind a tuned protocol's refit model. */
+  refitSearch?: FoldSearch;
 }
 
 export function buildResults(r: ResultsInput): Record<string, unknown> {
@@ -60,7 +102,7 @@ export function buildResults(r: ResultsInput): Record<string, unknown> {
       'class-counts': counts,
     },
     split: { ...split, folds: r.assignment.folds, repeats: r.assignment.repeats, 'assignment-sha256': r.assignmentSha256 },
-    model: { kind: p.model.kind, options: p.model.options },
+    model: { kind: p.model.kind, options: asWritten(p).options },
     preprocess: p.preprocess.map((s) => s.step),
     classes: cv.classes,
     positive: cv.classes[cv.positive],
@@ -83,6 +125,7 @@ export function buildResults(r: ResultsInput): Record<string, unknown> {
       'accuracy-pooled': cv.baseline.pooled,
       'largest-class-share': cv.baseline.largestClassShare,
     },
+    ...(cv.tuning ? { tuning: tuningJson(p, cv.tuning, r.refitSearch) } : {}),
     ...(r.statistics ? { statistics: statisticsJson(r.statistics) } : {}),
     ...(r.newRowScores ? { 'new-rows': r.newRowScores } : {}),
     files: r.files,

@@ -3,14 +3,16 @@ import { canonicalSha256 } from '../manifest/canonical.js';
 import { FitError } from '../model/types.js';
 import { error, FoldsealError, hasErrors, type Problem } from '../problems/problem.js';
 import { scoreNewRows, type NewRowScores } from '../reconcile/new-row-scores.js';
-import { testsFoldOneOnly, type Protocol } from '../protocol/types.js';
+import { positiveClass, testsFoldOneOnly, type Protocol } from '../protocol/types.js';
+import { asWritten, candidates, partsFor, valuesOf } from '../protocol/grid.js';
+import { searchGrid, type FoldSearch } from './nested.js';
+import { runInner, wantsColumns } from './executor.js';
 import type { Assignment } from '../split/assignment.js';
 import { assignmentCsv } from '../split/csv.js';
 import type { Table } from '../table/table.js';
 import { sha256Bytes } from '../util/sha256.js';
 import { fitOptions, models } from '../model/registry.js';
 import { columnMajor, fitPipelineOnRows } from '../preprocess/by-columns.js';
-import { wantsColumns } from './executor.js';
 import { prunePipeline } from '../preprocess/pipeline.js';
 import { appliedCsv, applyRows, type AppliedRow } from '../reconcile/applied.js';
 import { heldOutFromOof } from '../reconcile/held-out.js';
@@ -67,12 +69,14 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
   const predictions = predictionsCsv(cv, input.table);
   const p = input.protocol;
   const protocolSha256 = canonicalSha256(input.raw);
-  const refit = input.refit || p.reconcile.rule === 'refit' ? fitOnAll(input) : null;
+  const refitted = input.refit || p.reconcile.rule === 'refit' ? fitOnAll(input) : null;
+  const refit = refitted?.model ?? null;
   const saved: ModelsFile = {
     'foldseal-models': MODELS_VERSION,
     'protocol-sha256': protocolSha256,
     kind: p.model.kind,
-    preprocess: p.preprocess,
+    // A tuned setting shows its candidate list here; each fold's pipeline and `chosen` hold what it used.
+    preprocess: asWritten(p).preprocess,
     classes: cv.classes,
     features: input.table.featureNames,
     missing: p.data.missing,
@@ -131,6 +135,7 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
     assignmentSha256,
     cv,
     files: { ...digests },
+    refitSearch: refitted?.search,
     warnings: [...input.warnings, ...cv.warnings],
   });
   files['results.json'] = JSON.stringify(results, null, 2) + '\n';
@@ -151,13 +156,27 @@ export function asUserError(e: unknown, protocolFile: string): unknown {
   return e instanceof FitError ? new FoldsealError(error(e.code, e.message, { file: protocolFile, hint: e.hint }), 1) : e;
 }
 
-/** One pipeline and model fitted on every labeled row, visited in id order. */
-function fitOnAll(input: RunInput): SavedModel {
-  const { protocol: p, table } = input;
+/**
+ * One pipeline and model fitted on every labeled row, visited in id order. A tuned protocol
+ * first searches its grid on those rows (as outer repeat 0, fold 0) and fits the winner.
+ */
+function fitOnAll(input: RunInput): { model: SavedModel; search?: FoldSearch } {
+  const { table } = input;
   // A final protocol tests fold 1 (the sealed rows): its refit model is fitted on the other rows only.
   const all = idOrder(table.ids);
-  const order = testsFoldOneOnly(p) ? all.filter((row) => input.assignment.fold[row] !== 1) : all;
+  const order = testsFoldOneOnly(input.protocol) ? all.filter((row) => input.assignment.fold[row] !== 1) : all;
   return guardFit(input.protocolFile, () => {
+    const tune = input.protocol.tune;
+    let p: Pick<Protocol, 'preprocess' | 'model'> = input.protocol;
+    let search: FoldSearch | undefined;
+    let chosen: Record<string, number | string> | undefined;
+    if (tune) {
+      const tuned = { ...input.protocol, tune };
+      search = searchGrid(tuned, { ...table, positive: positiveClass(tuned, table.classes) }, order, { repeat: 0, fold: 0 }, runInner);
+      const pick = candidates(tuned.grid)[search.chosen];
+      p = partsFor(tuned, pick);
+      chosen = valuesOf(tuned.grid, pick);
+    }
     const y = takeInt(table.y, order);
     const { pipeline, X } = fitPipelineOnRows(
       p.preprocess,
@@ -171,6 +190,6 @@ function fitOnAll(input: RunInput): SavedModel {
     const model = models[p.model.kind].fit(X, y, fitOptions(p.model.kind, p.model.options, table.classes), {
       classCount: table.classes.length,
     });
-    return { repeat: 0, fold: 0, pipeline: prunePipeline(pipeline, table.X.cols), model };
+    return { model: { repeat: 0, fold: 0, pipeline: prunePipeline(pipeline, table.X.cols), model, ...(chosen ? { chosen } : {}) }, search };
   });
 }

@@ -4,7 +4,11 @@ import { SPLIT_VERSION, type Assignment } from './assignment.js';
 import { splitRules } from './registry.js';
 import type { SplitInput } from './rule.js';
 
-export function assignFolds(input: SplitInput, split: RuleSplit): Assignment {
+/**
+ * `within` makes it an inner split (spec §9): the rows are outer repeat R, fold F's training part,
+ * and every key's repeat field reads `R.F.r`.
+ */
+export function assignFolds(input: SplitInput, split: RuleSplit, within?: { repeat: number; fold: number }): Assignment {
   const n = input.ids.length;
   const fold = new Int32Array(n * split.repeats);
   let folds = split.folds;
@@ -12,7 +16,7 @@ export function assignFolds(input: SplitInput, split: RuleSplit): Assignment {
     const out = splitRules[split.rule].fold(input, {
       folds: split.folds,
       seed: split.seed ?? 0,
-      repeat: r,
+      repeat: within ? `${within.repeat}.${within.fold}.${r}` : r,
       assign: split.assign,
       testMicros: Math.round((split.testFraction ?? 0) * 1e6),
     });

@@ -9,12 +9,12 @@ import { compareUtf8 } from '../util/bytes.js';
 const DOMAIN = 'foldseal/split-v1';
 const utf8 = new TextEncoder();
 
-export function keyMessage(seed: number, repeat: number, id: string): Buffer {
+export function keyMessage(seed: number, repeat: number | string, id: string): Buffer {
   return Buffer.concat([Buffer.from(`${DOMAIN}\0${seed}\0${repeat}\0`, 'utf8'), Buffer.from(id, 'utf8')]);
 }
 
 /** 32-byte keys for every id, laid end to end. */
-export function deriveKeys(ids: readonly string[], seed: number, repeat: number): Uint8Array {
+export function deriveKeys(ids: readonly string[], seed: number, repeat: number | string): Uint8Array {
   return keysAfterPrefix(utf8.encode(`${DOMAIN}\0${seed}\0${repeat}\0`), ids);
 }
 

@@ -15,15 +15,16 @@ export interface SplitInput {
   idKeys?: (seed: number, repeat: number) => Uint8Array | undefined;
 }
 
-/** split-v1 keys of the input's ids for one repeat (spec §2). */
-export function idKeysOf(input: SplitInput, seed: number, repeat: number): Uint8Array {
-  return input.idKeys?.(seed, repeat) ?? deriveKeys(input.ids, seed, repeat);
+/** split-v1 keys of the input's ids for one repeat (spec §2), or for an inner split's `R.F.r` repeat field (spec §9). */
+export function idKeysOf(input: SplitInput, seed: number, repeat: number | string): Uint8Array {
+  return (typeof repeat === 'number' ? input.idKeys?.(seed, repeat) : undefined) ?? deriveKeys(input.ids, seed, repeat);
 }
 
 export interface SplitParams {
   folds: number;
   seed: number;
-  repeat: number;
+  /** The repeat field of every key: the repeat number, or `R.F.r` for inner repeat r inside outer repeat R, fold F (spec §9). */
+  repeat: number | string;
   assign: AssignMode;
   /** Holdout test share in millionths (an exact integer, spec §5). */
   testMicros: number;

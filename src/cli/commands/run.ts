@@ -11,10 +11,12 @@ import { protocolPolicy } from '../../io/path-policy.js';
 import { shown } from '../../io/validate.js';
 import { manifestForRun } from '../../run/manifest-of-run.js';
 import { disagreementReport } from '../../reconcile/applied.js';
-import { cvTables, newRowScoreLines, statisticsLines } from '../cv-table.js';
+import { cvTables, newRowScoreLines, statisticsLines, tuningLines } from '../cv-table.js';
 import type { CommandIo, ExitCode } from '../io.js';
 import { reportProblems } from '../report-problems.js';
 import { toolInfo } from '../tool-info.js';
+import type { Protocol } from '../../protocol/types.js';
+import type { RunOutput } from '../../run/run.js';
 
 export interface RunArgs {
   protocol: string;
@@ -79,7 +81,7 @@ export async function runCommand(args: RunArgs, io: CommandIo, merged?: ProduceO
     );
   }
   await writeOutputDir(dir, written, Boolean(args.force), shown(dir));
-  io.out(cvTables(out.cv) + statisticsLines(out.statistics));
+  io.out(cvTables(out.cv) + tunedLines(input.protocol, out) + statisticsLines(out.statistics));
   if (out.applied) io.out(`\nnew rows (reconcile: ${input.protocol.reconcile.rule}):\n` + disagreementReport(out.applied, out.cv.classes));
   if (out.newRowScores) io.out(newRowScoreLines(out.newRowScores, input.protocol.data.label));
   if (audit) io.out(auditLine(args.protocol, audit) + '\n');
@@ -94,4 +96,10 @@ export async function runCommand(args: RunArgs, io: CommandIo, merged?: ProduceO
       `${shown(dir)}${key?.kind === 'ssh' ? ` (manifest signed with SSH key ${key.describe})` : key ? ' (manifest signed)' : ''}\n`,
   );
   return 0;
+}
+
+function tunedLines(p: Protocol, out: RunOutput): string {
+  if (!out.cv.tuning) return '';
+  const t = out.results.tuning as { 'chosen-counts': Record<string, Record<string, number>>; refit: { chosen: Record<string, number | string> } | null };
+  return tuningLines(t['chosen-counts'], p.tune!.metric, t.refit?.chosen);
 }
