@@ -11,6 +11,7 @@ export interface CodeInfo {
 export const PROBLEM_CODES = {
   'audit-confounded': {},
   'tuning-metric-undefined': {},
+  'no-tune': {},
   'grid-without-tune': { hint: 'add a tune section (inner split, metric, prefer), or give one value' },
   'tune-without-grid': { hint: 'write a list of candidate values for a model option or step setting, e.g. `top: [20, 50, 100]`' },
   'tune-prefer': {},

@@ -15,6 +15,7 @@ import { assignFolds } from '../split/assign.js';
 import { foldRows, type Assignment } from '../split/assignment.js';
 import { splitRules } from '../split/registry.js';
 import { takeInt, takeRows } from '../table/matrix.js';
+import { csvCells } from '../table/csv-write.js';
 import { fitFold, type FoldData, type FoldFit } from './fit-fold.js';
 
 /** What a tuned fit needs of the protocol. */
@@ -44,11 +45,10 @@ export type InnerRunner = (
  */
 export function searchGrid(p: TunedParts, d: SearchData, train: Int32Array, within: { repeat: number; fold: number }, run: InnerRunner): FoldSearch {
   const k = d.classes.length;
-  const ids = Array.from(train, (r) => d.ids[r]);
-  const y = takeInt(d.y, train);
+  const input = innerInput(d, train);
+  const { ids, y } = input;
   const sub = { X: takeRows(d.X, train), y, classes: d.classes, featureNames: d.featureNames, ids };
-  const groups = d.groups && Array.from(train, (r) => d.groups![r]);
-  const inner = assignFolds({ ids, y, classCount: k, groups }, p.tune.split, within);
+  const inner = assignFolds(input, p.tune.split, within);
   // The rows are already in id order, so the inner plans visit them in that order too.
   const order = new Int32Array(ids.length);
   for (let i = 0; i < order.length; i++) order[i] = i;
@@ -141,4 +141,35 @@ function inCandidate(e: unknown, grid: readonly TunedSetting[], pick: Int32Array
     .map(([name, v]) => `${name} = ${v}`)
     .join(', ');
   return new FitError(e.code, `${e.message} (tuning candidate ${values})`, e.hint);
+}
+
+/** Rows, ids and labels the inner split of an outer fold sees (spec §9), the rows in id order. */
+function innerInput(d: Pick<SearchData, 'ids' | 'y' | 'classes' | 'groups'>, train: Int32Array) {
+  return {
+    ids: Array.from(train, (r) => d.ids[r]),
+    y: takeInt(d.y, train),
+    classCount: d.classes.length,
+    groups: d.groups && Array.from(train, (r) => d.groups![r]),
+  };
+}
+
+/**
+ * Every outer fold's inner assignment as CSV: `outer-repeat,outer-fold,id,repeat,fold`, by outer
+ * repeat, outer fold, inner repeat, then id byte order — what an outside tool needs to rerun the search.
+ */
+export function innerAssignmentsCsv(
+  split: TuneSettings['split'],
+  d: Pick<SearchData, 'ids' | 'y' | 'classes' | 'groups'>,
+  plans: readonly { repeat: number; fold: number; train: Int32Array }[],
+): string {
+  const lines = ['outer-repeat,outer-fold,id,repeat,fold'];
+  for (const plan of plans) {
+    const input = innerInput(d, plan.train);
+    const inner = assignFolds(input, split, { repeat: plan.repeat, fold: plan.fold });
+    const quoted = csvCells(input.ids);
+    const n = input.ids.length;
+    for (let r = 1; r <= inner.repeats; r++)
+      for (let i = 0; i < n; i++) lines.push(`${plan.repeat},${plan.fold},${quoted[i]},${r},${inner.fold[(r - 1) * n + i]}`);
+  }
+  return lines.join('\n') + '\n';
 }

@@ -49,7 +49,7 @@ export interface ShardCover {
 
 export interface ShardPart extends ShardCover {
   'foldseal-shard': typeof SHARD_VERSION;
-  fits: { unit: string; pipeline: unknown; model: unknown; proba: unknown }[];
+  fits: { unit: string; pipeline: unknown; model: unknown; proba: unknown; search?: unknown }[];
   permutations: { unit: string; score: number | null }[];
 }
 
@@ -144,7 +144,15 @@ export function mergeParts(
     };
     for (const f of part.fits)
       if (!seen(f.unit))
-        fitOf.set(f.unit, { file, fit: { pipeline: f.pipeline as FoldFit['pipeline'], model: f.model, proba: f.proba as Float64Array } });
+        fitOf.set(f.unit, {
+          file,
+          fit: {
+            pipeline: f.pipeline as FoldFit['pipeline'],
+            model: f.model,
+            proba: f.proba as Float64Array,
+            ...(f.search ? { search: f.search as FoldFit['search'] } : {}),
+          },
+        });
     for (const s of part.permutations) if (!seen(s.unit)) scoreOf.set(s.unit, { file, score: s.score ?? Number.NaN });
   }
   for (const { first, file, units: twice } of repeated.values())

@@ -76,7 +76,9 @@ def assign(v):
     seed = v.get("seed", 0)
     mode = v.get("assign", "balanced")
     out = []
-    for rep in range(1, v.get("repeats", 1) + 1):
+    for shown_rep in range(1, v.get("repeats", 1) + 1):
+        # §9: an inner split's keys carry "R.F.r" in the repeat field.
+        rep = f"{v['outer'][0]}.{v['outer'][1]}.{shown_rep}" if "outer" in v else shown_rep
         fold = {}
         if rule in ("kfold", "stratified-kfold") and mode == "stable":
             for i in ids:
@@ -127,7 +129,7 @@ def assign(v):
             for i in ids:
                 fold[i] = gs.index(group[i]) + 1
         for i in sorted(ids, key=utf8):
-            out.append(f"{csv_cell(i)},{rep},{fold[i]}")
+            out.append(f"{csv_cell(i)},{shown_rep},{fold[i]}")
     return out
 
 

@@ -6,7 +6,7 @@ import { assignmentCsv } from '../../src/split/csv.js';
 import { deriveKeys, keyMessage } from '../../src/split/key.js';
 import { compareUtf8 } from '../../src/util/bytes.js';
 import { cli, root, sha256, tempDir } from '../helpers.js';
-import { specKeyVectors, specVectors, type SpecVector } from './vectors.js';
+import { specInnerKeyVectors, specKeyVectors, specVectors, type SpecVector } from './vectors.js';
 
 export function runVector(v: SpecVector): string[] {
   const ids = v.rows.map((r) => r[0]);
@@ -23,6 +23,7 @@ export function runVector(v: SpecVector): string[] {
       assign: v.assign ?? 'balanced',
       testFraction: v['test-fraction'],
     },
+    v.outer && { repeat: v.outer[0], fold: v.outer[1] },
   );
   return assignmentCsv(a).trimEnd().split('\n').slice(1);
 }
@@ -77,6 +78,18 @@ t.test('spec §8 rejection vectors are refused with their problem code', async (
 // `printf 'foldseal/split-v1\x000\x001\x00a' | sha256sum` when the spec was written.
 t.test('key derivation vectors of spec §2', async (t) => {
   for (const k of specKeyVectors()) {
+    t.equal(keyMessage(k.seed, k.repeat, k.id).toString('hex'), k.message);
+    t.equal(Buffer.from(deriveKeys([k.id], k.seed, k.repeat)).toString('hex'), k.key);
+  }
+});
+
+// Reference: spec §9's inner key vectors; the first was also confirmed with coreutils
+// `printf 'foldseal/split-v1\x007\x001.3.2\x00a' | sha256sum` when §9 was written.
+t.test('inner key derivation vectors of spec §9', async (t) => {
+  const inner = specInnerKeyVectors();
+  t.ok(inner.length >= 2);
+  t.ok(vectors.filter((v) => v.outer).length >= 4, 'inner split vectors');
+  for (const k of inner) {
     t.equal(keyMessage(k.seed, k.repeat, k.id).toString('hex'), k.message);
     t.equal(Buffer.from(deriveKeys([k.id], k.seed, k.repeat)).toString('hex'), k.key);
   }

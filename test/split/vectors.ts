@@ -12,6 +12,8 @@ export interface SpecVector {
   assign?: 'balanced' | 'stable';
   'test-fraction'?: number;
   rows: string[][];
+  /** An inner split's outer repeat and fold (spec §9); the rows are that outer training part. */
+  outer?: [number, number];
   /** The assignment lines, or (for a rejected input) `reject`: the problem code. */
   expected?: string[];
   reject?: string;
@@ -27,5 +29,10 @@ export function specVectors(): SpecVector[] {
 
 export function specKeyVectors(): { seed: number; repeat: number; id: string; message: string; key: string }[] {
   const block = /Key derivation vectors \(hex\):\n\n```json\n([\s\S]*?)\n```/.exec(specText())!;
+  return block[1].split('\n').map((l) => JSON.parse(l));
+}
+
+export function specInnerKeyVectors(): { seed: number; repeat: string; id: string; message: string; key: string }[] {
+  const block = /```json inner-keys\n([\s\S]*?)\n```/.exec(specText())!;
   return block[1].split('\n').map((l) => JSON.parse(l));
 }
