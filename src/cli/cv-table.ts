@@ -54,7 +54,11 @@ export function cvTables(cv: CvResult): string {
 }
 
 /** How often each candidate value won an outer fold, and what the refit model uses, for the terminal. */
-export function tuningLines(counts: Record<string, Record<string, number>>, metric: string, refit?: Record<string, number | string>): string {
+export function tuningLines(
+  counts: Record<string, Record<string, number>>,
+  metric: string,
+  refit?: Record<string, number | string>,
+): string {
   const lines = Object.entries(counts).map(
     ([name, byValue]) =>
       `  ${name}: ${Object.entries(byValue)

@@ -91,7 +91,10 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .option('--out <file>', 'write the CSV here instead of stdout')
     .option('--inner', "write the tune section's inner splits instead: outer-repeat,outer-fold,id,repeat,fold")
     .addOption(outsideOption())
-    .addHelpText('after', '\nExamples:\n  foldseal folds protocols/demo.yaml --out demo.folds.csv\n  foldseal folds protocols/demo-tuned.yaml --inner --out demo.inner.csv')
+    .addHelpText(
+      'after',
+      '\nExamples:\n  foldseal folds protocols/demo.yaml --out demo.folds.csv\n  foldseal folds protocols/demo-tuned.yaml --inner --out demo.inner.csv',
+    )
     .action(async (protocol: string, o: { out?: string; allowOutside?: boolean; inner?: boolean }) =>
       done(await (await import('./commands/folds.js')).foldsCommand({ protocol, ...o }, io)),
     );

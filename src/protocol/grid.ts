@@ -48,7 +48,10 @@ export function candidates(grid: readonly TunedSetting[]): Int32Array[] {
 }
 
 /** The preprocessing and model of one candidate: the protocol's, with each tuned setting's chosen value. */
-export function partsFor(p: Pick<Protocol, 'preprocess' | 'model' | 'grid'>, pick: ArrayLike<number>): Pick<Protocol, 'preprocess' | 'model'> {
+export function partsFor(
+  p: Pick<Protocol, 'preprocess' | 'model' | 'grid'>,
+  pick: ArrayLike<number>,
+): Pick<Protocol, 'preprocess' | 'model'> {
   const preprocess = p.preprocess.map((s) => ({ ...s }));
   const options = { ...p.model.options };
   p.grid.forEach((g, i) => {
@@ -65,7 +68,10 @@ export function valuesOf(grid: readonly TunedSetting[], pick: ArrayLike<number>)
 }
 
 /** The preprocessing and model options as the protocol wrote them: each tuned setting's list in place of its first value. */
-export function asWritten(p: Pick<Protocol, 'preprocess' | 'model' | 'grid'>): { preprocess: PreprocessStep[]; options: Record<string, unknown> } {
+export function asWritten(p: Pick<Protocol, 'preprocess' | 'model' | 'grid'>): {
+  preprocess: PreprocessStep[];
+  options: Record<string, unknown>;
+} {
   const preprocess = p.preprocess.map((s) => ({ ...s }));
   const options: Record<string, unknown> = { ...p.model.options };
   for (const g of p.grid) {

@@ -56,12 +56,10 @@ function describeBranch(b: Schema): string {
   if (b.enum) return `${b.enum.map((v: string) => `\`${v}\``).join(' or ')} — ${b.description}`;
   const key = b.required[0] as string;
   const inner = b.properties[key] as Schema;
-  const fields = Object.entries(inner.properties as Record<string, Schema>).map(
-    ([k, v]) => {
-      const values = v.enum ?? v.oneOf?.[0]?.enum;
-      return `\`${k}\`${values ? ` (${values.join(' | ')})` : ''}: ${v.description}`;
-    },
-  );
+  const fields = Object.entries(inner.properties as Record<string, Schema>).map(([k, v]) => {
+    const values = v.enum ?? v.oneOf?.[0]?.enum;
+    return `\`${k}\`${values ? ` (${values.join(' | ')})` : ''}: ${v.description}`;
+  });
   return `\`{${key}: {…}}\` — ${b.description} ${fields.join('; ')}`;
 }
 

@@ -27,12 +27,22 @@ export function gridProblems(p: Protocol, at: At): Problem[] {
   if (p.grid.length && !p.tune) {
     const g = p.grid[0];
     out.push(
-      error('grid-without-tune', `${g.name} lists ${g.values.length} candidate values, but the protocol has no tune section to choose among them`, at(gridPath(p, g))),
+      error(
+        'grid-without-tune',
+        `${g.name} lists ${g.values.length} candidate values, but the protocol has no tune section to choose among them`,
+        at(gridPath(p, g)),
+      ),
     );
   }
   if (!p.tune) return out;
   if (!p.grid.length) {
-    out.push(error('tune-without-grid', 'the tune section has nothing to tune: no model option or step setting lists candidate values', at(['tune'], true)));
+    out.push(
+      error(
+        'tune-without-grid',
+        'the tune section has nothing to tune: no model option or step setting lists candidate values',
+        at(['tune'], true),
+      ),
+    );
     return out;
   }
   const names = p.grid.map((g) => g.name);

@@ -73,7 +73,8 @@ export function jobsFor(p: ExecParts, table: ExecData, a: Assignment, plans: rea
 
 /** Runs one job (on any thread): the same arithmetic, so the same bits, wherever it runs. */
 export function runJob(p: ExecParts, data: ExecData, job: FoldJob): FoldFit {
-  if (p.tune) return nestedFold(p as TunedParts, { ...data, positive: positiveClass(p as Protocol, data.classes) } as SearchData, job, fitPlans);
+  if (p.tune)
+    return nestedFold(p as TunedParts, { ...data, positive: positiveClass(p as Protocol, data.classes) } as SearchData, job, fitPlans);
   return job.pipeline ? fitModelAfterPipeline(p, data, job.pipeline, job.train, job.test) : fitFold(p, data, job.train, job.test);
 }
 

@@ -43,7 +43,13 @@ export type InnerRunner = (
  * Searches the grid on rows `train` (in id order) as outer repeat `within.repeat`, fold
  * `within.fold` (0, 0 for the search on every row before a refit).
  */
-export function searchGrid(p: TunedParts, d: SearchData, train: Int32Array, within: { repeat: number; fold: number }, run: InnerRunner): FoldSearch {
+export function searchGrid(
+  p: TunedParts,
+  d: SearchData,
+  train: Int32Array,
+  within: { repeat: number; fold: number },
+  run: InnerRunner,
+): FoldSearch {
   const k = d.classes.length;
   const input = innerInput(d, train);
   const { ids, y } = input;

@@ -11,7 +11,6 @@ import type { FoldSearch } from './nested.js';
 import { asWritten } from '../protocol/grid.js';
 import type { TuningResult } from './cross-validate.js';
 
-
 /** How often each value of each tuned setting won an outer fold (selection stability), values in listed order. */
 export function chosenCounts(p: Pick<Protocol, 'grid'>, t: TuningResult): Record<string, Record<string, number>> {
   return Object.fromEntries(

@@ -72,5 +72,5 @@ t.test("the schema's registry parts are the registries' own", async (t) => {
   const { registryParts, withRegistryParts } = await import('../../src/protocol/registry-schema.js');
   const schema = readSchema('protocol.schema.json');
   t.same(schema, withRegistryParts(schema), 'run npm run docs after changing a registry entry');
-  t.equal(registryParts().length, 5, 'model, split rule, steps, metrics, the permutation metric');
+  t.equal(registryParts().length, 7, 'model, split rule, steps, metrics, the permutation metric, the inner split rule and tuning metric');
 });

@@ -100,6 +100,9 @@ export async function runCommand(args: RunArgs, io: CommandIo, merged?: ProduceO
 
 function tunedLines(p: Protocol, out: RunOutput): string {
   if (!out.cv.tuning) return '';
-  const t = out.results.tuning as { 'chosen-counts': Record<string, Record<string, number>>; refit: { chosen: Record<string, number | string> } | null };
+  const t = out.results.tuning as {
+    'chosen-counts': Record<string, Record<string, number>>;
+    refit: { chosen: Record<string, number | string> } | null;
+  };
   return tuningLines(t['chosen-counts'], p.tune!.metric, t.refit?.chosen);
 }
