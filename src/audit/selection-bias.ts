@@ -10,6 +10,7 @@ import { transforms } from '../preprocess/registry.js';
 import type { MetricName } from '../metric/registry.js';
 import { crossValidate } from '../run/cross-validate.js';
 import type { AuditInput } from './input.js';
+import { valuesOf } from '../protocol/grid.js';
 
 export interface ScoreOf {
   /** Mean over folds (and repeats), as a run reports it. */
@@ -26,6 +27,8 @@ export interface SelectionBias {
   careless: ScoreOf;
   /** Features the selection kept when fitted on all rows. */
   selectedOnAll: number;
+  /** A tuned protocol's settings for the demonstration: each at its first listed value, untuned on both sides. */
+  fixedAt?: Record<string, number | string>;
 }
 
 /** The metric the demonstration compares: ROC AUC when the protocol reports it, else its first metric. */
@@ -35,7 +38,9 @@ export function comparedMetric(metrics: readonly MetricName[]): MetricName {
 
 /** Undefined when the protocol's pipeline selects no features (there is no selection to move outside). */
 export function selectionBias(input: Pick<AuditInput, 'protocol' | 'table' | 'assignment'>): SelectionBias | undefined {
-  const { protocol: p, table, assignment } = input;
+  const { protocol: tuned, table, assignment } = input;
+  // Tuning would add its own layer; the demonstration isolates selection, so tuned settings stay at their first value.
+  const p = { ...tuned, grid: [], tune: undefined };
   if (!p.preprocess.some((s) => selectionOf(transforms[s.step]))) return undefined;
   const metric = comparedMetric(p.metrics);
   const scored = { ...p, metrics: [metric] };
@@ -48,5 +53,6 @@ export function selectionBias(input: Pick<AuditInput, 'protocol' | 'table' | 'as
     honest: { mean: honest.mean, pooled: honest.pooled },
     careless: { mean: careless.mean, pooled: careless.pooled },
     selectedOnAll: onAll.pipeline.columns.length,
+    ...(tuned.grid.length ? { fixedAt: valuesOf(tuned.grid, new Int32Array(tuned.grid.length)) } : {}),
   };
 }

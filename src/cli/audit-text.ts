@@ -13,6 +13,13 @@ export function selectionBiasText(s: SelectionBias): string {
     `  selected inside each fold (what foldseal reports)  ${value(s.honest.mean)}  [${value(s.honest.pooled)}]`,
     `  selected once on all rows, then cross-validated    ${value(s.careless.mean)}  [${value(s.careless.pooled)}]${optimism}`,
     `  (${s.selectedOnAll} features kept when selecting on all rows; the second line is what a careless analysis would report)`,
+    ...(s.fixedAt
+      ? [
+          `  (untuned on both lines: ${Object.entries(s.fixedAt)
+            .map(([k, v]) => `${k} = ${v}`)
+            .join(', ')}, each tuned setting's first listed value)`,
+        ]
+      : []),
   ].join('\n');
 }
 

@@ -7,6 +7,7 @@ import { metrics as metricEntries, type MetricName } from '../metric/registry.js
 import { fitOptions, models } from '../model/registry.js';
 import { transforms } from '../preprocess/registry.js';
 import { isPinned, type Protocol } from '../protocol/types.js';
+import { partsFor } from '../protocol/grid.js';
 import { splitRules } from '../split/registry.js';
 
 export interface MethodsInput {
@@ -47,21 +48,54 @@ function design(p: Protocol, r: any): string {
   return `Performance was estimated on ${samples} by ${how}.${seeded}`;
 }
 
+function listOr(items: readonly (number | string)[]): string {
+  return items.length <= 1 ? items.join('') : `${items.slice(0, -1).join(', ')} or ${items[items.length - 1]}`;
+}
+
 function pipeline(p: Protocol, r: any): string {
-  const steps = p.preprocess.map((s) => transforms[s.step].methods(s));
-  const model = models[p.model.kind].methods(fitOptions(p.model.kind, p.model.options, r.classes));
+  // A tuned setting reads as its candidates ("the 5, 10 or 20 features …", "k = 5, 9 or 15").
+  const shown = { ...p, grid: p.grid.map((g) => ({ ...g, values: [listOr(g.values)] })) };
+  const parts = partsFor(shown, new Int32Array(p.grid.length));
+  const steps = parts.preprocess.map((s) => transforms[s.step].methods(s));
+  const model = models[p.model.kind].methods(fitOptions(p.model.kind, parts.model.options, r.classes));
   const before = steps.length
     ? `Within each training part, ${listJoin(steps)}; then ${model} was fitted`
     : `In each training part, ${model} was fitted`;
-  return `${before}. Every preprocessing, selection and fitting step used the training part only; the test part was used only to score. No hyperparameters were tuned.`;
+  return `${before}. Every preprocessing, selection and fitting step used the training part only; the test part was used only to score. ${tuning(p, r)}`;
+}
+
+function tuning(p: Protocol, r: any): string {
+  const t = p.tune;
+  if (!t || !r.tuning) return 'No hyperparameters were tuned.';
+  const rule = splitRules[t.split.rule];
+  const inner = rule.methods({ folds: t.split.folds, repeats: t.split.repeats, testFraction: t.split.testFraction, group: p.data.group });
+  const order = t.prefer.map((q) => `${q.order === 'first-listed' ? 'the first listed' : `the ${q.order}`} ${q.name}`);
+  const counts = Object.entries(r.tuning['chosen-counts'] as Record<string, Record<string, number>>).map(
+    ([name, byValue]) =>
+      `${name} ${listJoin(
+        Object.entries(byValue)
+          .filter(([, n]) => n > 0)
+          .map(([v, n]) => `${v} (${count(n, 'fold')})`),
+      )}`,
+  );
+  return (
+    `The tuned settings (${listJoin(p.grid.map((g) => g.name))}; ${count(r.tuning.candidates.length, 'combination')}) were chosen by nested ` +
+    `cross-validation: within each outer training part only, every combination was scored by its mean ${metricEntries[t.metric].title} ` +
+    `over ${inner} of that part (${r.split.version} §9 keys, seed ${t.split.seed ?? 'none'}), ties going to ${listJoin(order)}, and the ` +
+    `winner was refitted on the whole training part. The values chosen were ${listJoin(counts)}. The reported metrics are therefore ` +
+    'nested estimates: no test part influenced the choice of settings used to predict it.'
+  );
 }
 
 function reconciliation(p: Protocol): string {
   const rule = p.reconcile.rule;
-  if (rule === 'refit') return 'For new samples, one model was refitted on all labelled samples with the same pipeline.';
+  if (rule === 'refit')
+    return p.tune
+      ? 'For new samples, the same search was run on all labelled samples and one model with the winning settings was refitted on them.'
+      : 'For new samples, one model was refitted on all labelled samples with the same pipeline.';
   return rule === 'majority-vote'
     ? `For new samples, the fold models' predicted classes were combined by majority vote${p.reconcile.tie ? ` (ties: ${p.reconcile.tie})` : ''}.`
-    : "For new samples, the fold models' class probabilities were averaged.";
+    : `For new samples, the fold models' class probabilities were averaged${p.tune ? ', each fold model with its own chosen settings' : ''}.`;
 }
 
 function metricsText(r: any): string {

@@ -110,8 +110,18 @@ function splitSection(r: any): string {
 
 function foldSection(r: any): string {
   const names: MetricName[] = r.metrics;
-  const rows = r.folds.map((f: any) => [f.repeat, f.fold, ...names.map((m) => num(f.metrics[m]))]);
-  return `<h2 id="folds">Per fold</h2>${table(['repeat', 'fold', ...names.map((m) => metricEntries[m].title)], rows)}`;
+  // A tuned run shows each outer fold's chosen values beside its scores.
+  const tuned: string[] = r.tuning ? Object.keys(r.tuning.candidates[0]) : [];
+  const rows = r.folds.map((f: any, i: number) => [
+    f.repeat,
+    f.fold,
+    ...names.map((m) => num(f.metrics[m])),
+    ...tuned.map((name) => String(r.tuning.folds[i].chosen[name])),
+  ]);
+  const nested = r.tuning
+    ? `<p class="note">Nested estimate: ${e(tuned.join(' and '))} were chosen inside each outer fold by mean inner ${e(metricEntries[r.tuning.metric as MetricName].title)}, on its training rows only; results.json lists every candidate's inner score.</p>`
+    : '';
+  return `<h2 id="folds">Per fold</h2>${table(['repeat', 'fold', ...names.map((m) => metricEntries[m].title), ...tuned.map((n) => `chosen ${n}`)], rows)}${nested}`;
 }
 
 function figuresSection(input: ReportInput): string {
