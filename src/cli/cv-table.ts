@@ -3,6 +3,7 @@ import type { CvResult } from '../run/cross-validate.js';
 import type { RunStatistics } from '../run/statistics.js';
 import type { NewRowScores } from '../reconcile/new-row-scores.js';
 import { textTable } from './text-table.js';
+import type { ChosenCount } from '../run/results.js';
 
 const fmt = (v: number | null) => (v === null ? '—' : v.toFixed(4));
 
@@ -55,16 +56,11 @@ export function cvTables(cv: CvResult): string {
 
 /** How often each candidate value won an outer fold, and what the refit model uses, for the terminal. */
 export function tuningLines(
-  counts: Record<string, Record<string, number>>,
+  counts: Record<string, ChosenCount[]>,
   metric: string,
   refit?: Record<string, number | string>,
 ): string {
-  const lines = Object.entries(counts).map(
-    ([name, byValue]) =>
-      `  ${name}: ${Object.entries(byValue)
-        .map(([v, n]) => `${v} ×${n}`)
-        .join(', ')}`,
-  );
+  const lines = Object.entries(counts).map(([name, byValue]) => `  ${name}: ${byValue.map((c) => `${c.value} ×${c.folds}`).join(', ')}`);
   const after = refit
     ? `the refit model uses ${Object.entries(refit)
         .map(([k, v]) => `${k} = ${v}`)

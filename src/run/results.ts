@@ -11,17 +11,19 @@ import type { FoldSearch } from './nested.js';
 import { asWritten } from '../protocol/grid.js';
 import type { TuningResult } from './cross-validate.js';
 
+/** One value of a tuned setting and the number of outer folds that chose it. */
+export interface ChosenCount {
+  value: number | string;
+  folds: number;
+}
+
 /** How often each value of each tuned setting won an outer fold (selection stability), values in listed order. */
-export function chosenCounts(p: Pick<Protocol, 'grid'>, t: TuningResult): Record<string, Record<string, number>> {
+export function chosenCounts(p: Pick<Protocol, 'grid'>, t: TuningResult): Record<string, ChosenCount[]> {
   return Object.fromEntries(
-    p.grid.map((g) => {
-      const counts = new Map<string, number>(g.values.map((v) => [String(v), 0]));
-      for (const f of t.folds) {
-        const v = String(t.candidates[f.chosen][g.name]);
-        counts.set(v, counts.get(v)! + 1);
-      }
-      return [g.name, Object.fromEntries(counts)];
-    }),
+    p.grid.map((g) => [
+      g.name,
+      g.values.map((value) => ({ value, folds: t.folds.filter((f) => t.candidates[f.chosen][g.name] === value).length })),
+    ]),
   );
 }
 

@@ -79,7 +79,11 @@ t.test('the chosen candidates, inner scores and outer probabilities equal scikit
   t.ok(ties >= 1, 'at least one outer fold is decided by the tie rule');
   t.ok(worst <= 1e-9, `largest probability difference ${worst} ≤ 1e-9`);
   t.equal(results.tuning.estimate, 'nested');
-  t.same(results.tuning['chosen-counts']['model.k'], { 5: 1, 9: 3, 15: 1 });
+  t.same(results.tuning['chosen-counts']['model.k'], [
+    { value: 5, folds: 1 },
+    { value: 9, folds: 3 },
+    { value: 15, folds: 1 },
+  ]);
   t.match(r.stdout, 'the scores above are the nested estimate');
   t.match(r.stdout, /select\.top: 3 ×0, 5 ×0, 10 ×0, 20 ×5/);
   const models = JSON.parse(readFileSync(join(dir, 'res', 'models.json'), 'utf8'));

@@ -17,6 +17,7 @@ import { reportProblems } from '../report-problems.js';
 import { toolInfo } from '../tool-info.js';
 import type { Protocol } from '../../protocol/types.js';
 import type { RunOutput } from '../../run/run.js';
+import type { ChosenCount } from '../../run/results.js';
 
 export interface RunArgs {
   protocol: string;
@@ -101,7 +102,7 @@ export async function runCommand(args: RunArgs, io: CommandIo, merged?: ProduceO
 function tunedLines(p: Protocol, out: RunOutput): string {
   if (!out.cv.tuning) return '';
   const t = out.results.tuning as {
-    'chosen-counts': Record<string, Record<string, number>>;
+    'chosen-counts': Record<string, ChosenCount[]>;
     refit: { chosen: Record<string, number | string> } | null;
   };
   return tuningLines(t['chosen-counts'], p.tune!.metric, t.refit?.chosen);
