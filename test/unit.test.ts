@@ -20,3 +20,4 @@ import './model/select.part.js';
 import './manifest/standards.part.js';
 import './run/fast-paths.part.js';
 import './model/models.part.js';
+import './protocol/tune.part.js';

@@ -55,11 +55,7 @@ export function cvTables(cv: CvResult): string {
 }
 
 /** How often each candidate value won an outer fold, and what the refit model uses, for the terminal. */
-export function tuningLines(
-  counts: Record<string, ChosenCount[]>,
-  metric: string,
-  refit?: Record<string, number | string>,
-): string {
+export function tuningLines(counts: Record<string, ChosenCount[]>, metric: string, refit?: Record<string, number | string>): string {
   const lines = Object.entries(counts).map(([name, byValue]) => `  ${name}: ${byValue.map((c) => `${c.value} ×${c.folds}`).join(', ')}`);
   const after = refit
     ? `the refit model uses ${Object.entries(refit)

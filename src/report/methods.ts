@@ -71,8 +71,7 @@ function tuning(p: Protocol, r: any): string {
   const inner = rule.methods({ folds: t.split.folds, repeats: t.split.repeats, testFraction: t.split.testFraction, group: p.data.group });
   const order = t.prefer.map((q) => `${q.order === 'first-listed' ? 'the first listed' : `the ${q.order}`} ${q.name}`);
   const counts = Object.entries(r.tuning['chosen-counts'] as Record<string, { value: number | string; folds: number }[]>).map(
-    ([name, byValue]) =>
-      `${name} ${listJoin(byValue.filter((c) => c.folds > 0).map((c) => `${c.value} (${count(c.folds, 'fold')})`))}`,
+    ([name, byValue]) => `${name} ${listJoin(byValue.filter((c) => c.folds > 0).map((c) => `${c.value} (${count(c.folds, 'fold')})`))}`,
   );
   return (
     `The tuned settings (${listJoin(p.grid.map((g) => g.name))}; ${count(r.tuning.candidates.length, 'combination')}) were chosen by nested ` +
