@@ -6,7 +6,7 @@
  * (io/fold-workers.ts), which only decides how many threads and hands each job to `runJob`.
  * Whatever runs them, a job's result is the same bits. Pure.
  */
-import { canFitByMoments, fitByMoments, modelFromMoments, momentPipelines } from './fit-by-moments.js';
+import { canFitByMoments, fitByMoments, modelFromMoments, momentPipelines, type MomentMemo } from './fit-by-moments.js';
 import { atFold, fitFold, fitModelAfterPipeline, type FoldData, type FoldFit } from './fit-fold.js';
 import type { FittedPipeline } from '../preprocess/pipeline.js';
 import { columnMajor, fitsByColumns } from '../preprocess/by-columns.js';
@@ -59,8 +59,9 @@ export interface FoldJob {
 }
 
 /** The jobs of a strategy that fits per fold (everything but 'moments'). */
-export function jobsFor(p: ExecParts, table: ExecData, a: Assignment, plans: readonly FoldPlanLike[]): FoldJob[] {
-  const pipelines = strategyFor(p) === 'moment-pipelines' ? momentPipelines(p, table, a, plans as never).map((f) => f.pipeline) : undefined;
+export function jobsFor(p: ExecParts, table: ExecData, a: Assignment, plans: readonly FoldPlanLike[], memo?: MomentMemo): FoldJob[] {
+  const pipelines =
+    strategyFor(p) === 'moment-pipelines' ? momentPipelines(p, table, a, plans as never, memo).map((f) => f.pipeline) : undefined;
   return plans.map((plan, index) => ({
     index,
     repeat: plan.repeat,
@@ -74,7 +75,7 @@ export function jobsFor(p: ExecParts, table: ExecData, a: Assignment, plans: rea
 /** Runs one job (on any thread): the same arithmetic, so the same bits, wherever it runs. */
 export function runJob(p: ExecParts, data: ExecData, job: FoldJob): FoldFit {
   if (p.tune)
-    return nestedFold(p as TunedParts, { ...data, positive: positiveClass(p as Protocol, data.classes) } as SearchData, job, fitPlans);
+    return nestedFold(p as TunedParts, { ...data, positive: positiveClass(p as Protocol, data.classes) } as SearchData, job, runInner);
   return job.pipeline ? fitModelAfterPipeline(p, data, job.pipeline, job.train, job.test) : fitFold(p, data, job.train, job.test);
 }
 
@@ -89,9 +90,12 @@ export function runAll(
   return fitPlans(p, table, a, plans, onFold, true);
 }
 
-/** The inner cross-validation of a grid search: plans fitted as runAll does, failures left to the search to locate. */
-export function runInner(parts: ExecParts, table: ExecData, a: Assignment, plans: readonly FoldPlanLike[]): FoldFit[] {
-  return fitPlans(parts, table, a, plans);
+/**
+ * The inner cross-validation of a grid search: plans fitted as runAll does, failures left to the
+ * search to locate; `memo` carries the moments the candidates of one search share.
+ */
+export function runInner(parts: ExecParts, table: ExecData, a: Assignment, plans: readonly FoldPlanLike[], memo?: MomentMemo): FoldFit[] {
+  return fitPlans(parts, table, a, plans, undefined, false, memo);
 }
 
 function fitPlans(
@@ -101,14 +105,15 @@ function fitPlans(
   plans: readonly FoldPlanLike[],
   onFold?: (done: number, total: number) => void,
   locate = false,
+  memo?: MomentMemo,
 ): FoldFit[] {
   if (strategyFor(p) === 'moments') {
-    const fits = fitByMoments(p, table, a, plans as never);
+    const fits = fitByMoments(p, table, a, plans as never, memo);
     onFold?.(plans.length, plans.length);
     return fits;
   }
   const data: ExecData = { ...table, columns: wantsColumns(p) ? columnMajor(table.X) : undefined };
-  return jobsFor(p, table, a, plans).map((job, i) => {
+  return jobsFor(p, table, a, plans, memo).map((job, i) => {
     let fit: FoldFit;
     try {
       fit = runJob(p, data, job);

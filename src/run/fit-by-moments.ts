@@ -28,18 +28,33 @@ export function canFitByMoments(p: Parts): boolean {
   return steps && (p.preprocess.length > 0 || models[p.model.kind].capabilities?.fromMoments !== undefined);
 }
 
+/**
+ * Work a grid search shares between candidates fitted on the same table, assignment and plans:
+ * each repeat's part moments, and each plan's pipeline up to a step (keyed by the steps' settings).
+ * Only the caller that made it may pass it back, for the same data; the results are the same bits.
+ */
+export interface MomentMemo {
+  blocks: Map<number, ClassMoments[]>;
+  prefix: Map<string, { m: ClassMoments; columns: string[]; steps: FittedStep[] }>;
+}
+
+export function newMomentMemo(): MomentMemo {
+  return { blocks: new Map(), prefix: new Map() };
+}
+
 /** The pipelines of every plan, fitted from merged class moments; `modelFromMoments` also fits a moment model from the same moments. */
 export function momentPipelines(
   p: Parts,
   d: FoldData & { ids: readonly string[] },
   a: Assignment,
   plans: readonly FoldPlan[],
+  memo: MomentMemo = newMomentMemo(),
 ): { pipeline: FittedPipeline; model?: unknown }[] {
   const impl = models[p.model.kind];
   const k = d.classes.length;
   const options = fitOptions(p.model.kind, p.model.options, d.classes);
   const order = idOrder(d.ids);
-  const perRepeat = new Map<number, ClassMoments[]>();
+  const perRepeat = memo.blocks;
   const n = d.ids.length;
   const blocksOf = (repeat: number) => {
     let blocks = perRepeat.get(repeat);
@@ -50,28 +65,41 @@ export function momentPipelines(
     }
     return blocks;
   };
-  return plans.map((plan) => {
+  return plans.map((plan, index) => {
     try {
-      return momentPipeline(plan);
+      return momentPipeline(plan, index);
     } catch (e) {
       throw atFold(e, plan.repeat, plan.fold);
     }
   });
-  function momentPipeline(plan: FoldPlan): { pipeline: FittedPipeline; model?: unknown } {
-    let moments: ClassMoments | undefined;
-    blocksOf(plan.repeat).forEach((b, g) => {
-      if (g + 1 !== plan.fold) moments = moments ? mergeMoments(moments, b) : b;
-    });
-    let m = moments!;
-    let columns = [...d.featureNames];
-    const steps: FittedStep[] = [];
-    for (const step of p.preprocess) {
+  function momentPipeline(plan: FoldPlan, index: number): { pipeline: FittedPipeline; model?: unknown } {
+    const keys = p.preprocess.map((_, i) => `${index}|${JSON.stringify(p.preprocess.slice(0, i + 1))}`);
+    let done = keys.length;
+    while (done > 0 && !memo.prefix.has(keys[done - 1])) done--;
+    let m: ClassMoments;
+    let columns: string[];
+    let steps: FittedStep[];
+    if (done > 0) {
+      ({ m, columns, steps } = memo.prefix.get(keys[done - 1])!);
+      steps = [...steps];
+    } else {
+      let moments: ClassMoments | undefined;
+      blocksOf(plan.repeat).forEach((b, g) => {
+        if (g + 1 !== plan.fold) moments = moments ? mergeMoments(moments, b) : b;
+      });
+      m = moments!;
+      columns = [...d.featureNames];
+      steps = [];
+    }
+    for (let i = done; i < p.preprocess.length; i++) {
+      const step = p.preprocess[i];
       const t = transforms[step.step];
       const moments = momentsOf(t)!;
       const params = moments.fit(m, step);
       m = moments.after(params, m);
       columns = outputColumns(t, params, columns);
       steps.push({ step, params });
+      memo.prefix.set(keys[i], { m, columns, steps: [...steps] });
     }
     const pipeline = prunePipeline({ steps, columns }, d.X.cols);
     return impl.capabilities?.fromMoments
@@ -80,9 +108,15 @@ export function momentPipelines(
   }
 }
 
-export function fitByMoments(p: Parts, d: FoldData & { ids: readonly string[] }, a: Assignment, plans: readonly FoldPlan[]): FoldFit[] {
+export function fitByMoments(
+  p: Parts,
+  d: FoldData & { ids: readonly string[] },
+  a: Assignment,
+  plans: readonly FoldPlan[],
+  memo?: MomentMemo,
+): FoldFit[] {
   const impl = models[p.model.kind];
-  const pipelines = momentPipelines(p, d, a, plans);
+  const pipelines = momentPipelines(p, d, a, plans, memo);
   // A model that needs rows gets the training rows through the fitted pipeline.
   if (!impl.capabilities?.fromMoments) {
     return pipelines.map((f, i) => {

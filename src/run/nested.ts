@@ -17,6 +17,7 @@ import { splitRules } from '../split/registry.js';
 import { takeInt, takeRows } from '../table/matrix.js';
 import { csvCells } from '../table/csv-write.js';
 import { fitFold, type FoldData, type FoldFit } from './fit-fold.js';
+import { newMomentMemo, type MomentMemo } from './fit-by-moments.js';
 
 /** What a tuned fit needs of the protocol. */
 export type TunedParts = Pick<Protocol, 'preprocess' | 'model' | 'grid'> & { tune: TuneSettings };
@@ -37,6 +38,7 @@ export type InnerRunner = (
   data: FoldData & { ids: readonly string[] },
   a: Assignment,
   plans: { repeat: number; fold: number; train: Int32Array; test: Int32Array }[],
+  memo: MomentMemo,
 ) => FoldFit[];
 
 /**
@@ -63,10 +65,11 @@ export function searchGrid(
   for (let r = 1; r <= inner.repeats; r++) for (const f of folds) plans.push({ repeat: r, fold: f, ...foldRows(inner, r, f, order) });
   const metric = metricFns[p.tune.metric];
   const all = candidates(p.grid);
+  const memo = newMomentMemo();
   const scores = all.map((pick) => {
     let fits: FoldFit[];
     try {
-      fits = run(partsFor(p, pick), sub, inner, plans);
+      fits = run(partsFor(p, pick), sub, inner, plans, memo);
     } catch (e) {
       throw inCandidate(e, p.grid, pick);
     }
