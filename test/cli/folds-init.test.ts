@@ -1,7 +1,8 @@
 import { mkdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import t from 'tap';
-import { cli, protocolText, sha256, smallCsv, tempDir } from '../helpers.js';
+import { spawnSync } from 'node:child_process';
+import { bin, cli, protocolText, sha256, smallCsv, tempDir } from '../helpers.js';
 
 const csv = smallCsv();
 
@@ -118,4 +119,19 @@ t.test('help, version and usage errors', async (t) => {
   t.match((await cli(['--version'])).stdout, /^\d+\.\d+\.\d+/);
   t.equal((await cli(['valdate', 'x'])).code, 2);
   t.equal((await cli(['validate'])).code, 2);
+});
+
+t.test('a reader that stops early (| head) is not an error: no stack trace, the summary still written', async (t) => {
+  const rows = smallCsv(3000);
+  const dir = tempDir({
+    'data.csv': rows,
+    'p.yaml': protocolText(rows, { split: 'split: {rule: kfold, folds: 5, repeats: 20, seed: 3}' }),
+  });
+  const r = spawnSync('sh', ['-c', `"${process.execPath}" "${bin}" folds p.yaml | head -1`], {
+    cwd: dir,
+    encoding: 'utf8',
+  });
+  t.equal(r.stdout, 'id,repeat,fold\n');
+  t.notMatch(r.stderr, /EPIPE|at .*\.js/);
+  t.match(r.stderr, 'split-v1: 3000 ids, 20 repeats, 5 folds');
 });

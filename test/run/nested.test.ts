@@ -169,3 +169,16 @@ t.test('verify --rerun of a tuned run is identical; threads and the serial loop 
   t.equal(refit.chosen['select.top'], 20);
   t.same(Object.keys(refit.chosen), ['select.top', 'model.k']);
 });
+
+t.test('a tuned run split into shards merges into the same searches and predictions', async (t) => {
+  await run;
+  for (const shard of ['1/2', '2/2']) {
+    const r = await cli(['run', 'p.yaml', '--shard', shard, '--out', `part-${shard[0]}.json`], dir);
+    t.equal(r.code, 0, r.stderr);
+  }
+  const merged = await cli(['merge', 'p.yaml', 'part-1.json', 'part-2.json', '--out', 'merged'], dir);
+  t.equal(merged.code, 0, merged.stderr);
+  t.equal(readFileSync(join(dir, 'merged', 'predictions.csv'), 'utf8'), readFileSync(join(dir, 'res', 'predictions.csv'), 'utf8'));
+  const tuning = (d: string) => JSON.parse(readFileSync(join(dir, d, 'results.json'), 'utf8')).tuning.folds;
+  t.same(tuning('merged'), tuning('res'));
+});
