@@ -143,22 +143,6 @@ t.test(
   },
 );
 
-t.test('the other tie order changes the choice where the inner scores tie, and nothing else', async (t) => {
-  await run;
-  const d2 = tempDir({ 'data.csv': data, 'p.yaml': protocol('[{select.top: smallest}, {model.k: smallest}]') });
-  const r = await cli(['run', 'p.yaml', '--out', 'res'], d2);
-  t.equal(r.code, 0, r.stderr);
-  const a = JSON.parse(readFileSync(join(dir, 'res', 'results.json'), 'utf8')).tuning.folds;
-  const b = JSON.parse(readFileSync(join(d2, 'res', 'results.json'), 'utf8')).tuning.folds;
-  a.forEach((f: { chosen: Record<string, number>; 'inner-scores': number[] }, i: number) => {
-    t.same(b[i]['inner-scores'], f['inner-scores']);
-    const best = Math.max(...f['inner-scores']);
-    const tied = f['inner-scores'].filter((s) => s === best).length > 1;
-    if (tied) t.ok(b[i].chosen['model.k'] < f.chosen['model.k'], `fold ${i + 1}: smallest k wins the tie`);
-    else t.same(b[i].chosen, f.chosen);
-  });
-});
-
 t.test('verify --rerun of a tuned run is identical; threads and the serial loop give the same bytes', async (t) => {
   const signed = await run;
   t.match(signed.stdout, /the refit model uses select\.top = 20, model\.k = \d+ \(chosen by the same search on every row\)/);
