@@ -22,6 +22,9 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .exitOverride();
 
   const formatOption = () => new Option('--format <format>', 'output format').choices(['text', 'json']).default('text');
+  const commandsOption = () =>
+    new Option('--allow-commands', "run the program a protocol's command model names (read it first: it runs as you, with your files)");
+
   const outsideOption = () =>
     new Option(
       '--allow-outside',
@@ -109,6 +112,8 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
       '--shard <i/n>',
       'compute only shard I of N of the work (fold fits, permutations) and write its part to --out FILE; see foldseal merge',
     )
+    .addOption(commandsOption())
+    .option('--jobs <n>', "a command model's programs run at once (default: the number of cores)", (v) => Number.parseInt(v, 10))
     .addOption(outsideOption())
     .addHelpText(
       'after',
@@ -119,7 +124,17 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .action(
       async (
         protocol: string,
-        o: { out?: string; force?: boolean; refit?: boolean; key?: string; allowOutside?: boolean; report?: boolean; shard?: string },
+        o: {
+          out?: string;
+          force?: boolean;
+          refit?: boolean;
+          key?: string;
+          allowOutside?: boolean;
+          report?: boolean;
+          shard?: string;
+          allowCommands?: boolean;
+          jobs?: number;
+        },
       ) => done(await (await import('./commands/run.js')).runCommand({ protocol, ...o }, io)),
     );
 
@@ -186,13 +201,19 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
         'samples-in-rows or features-in-rows (one row per feature, one column per sample); default: detected from the header',
       ).choices(['samples-in-rows', 'features-in-rows']),
     )
+    .addOption(commandsOption())
     .addHelpText(
       'after',
       '\nExamples:\n  foldseal apply results/demo protocols/data/seedlings-new.csv --out applied.csv\n  foldseal apply ' +
         'results/demo new.csv --rule majority-vote --tie abstain --out voted.csv\n\nmodels.json and predictions.csv are checked ' +
         'against the hashes in results.json first.',
     )
-    .action(async (results: string, table: string, o: { out?: string; rule?: ReconcileRule; tie?: TieRule; layout?: DataLayout }) =>
+    .action(
+      async (
+        results: string,
+        table: string,
+        o: { out?: string; rule?: ReconcileRule; tie?: TieRule; layout?: DataLayout; allowCommands?: boolean },
+      ) =>
       done(await (await import('./commands/apply.js')).applyCommand({ results, table, ...o }, io)),
     );
 
@@ -255,6 +276,7 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .option('--allow-unsigned', 're-run a manifest that is not signed by a pinned key (a re-run reads the files it names)')
     .option('--allow-outside', 'let the re-run read files outside the review folder (see README, Security model)')
     .option('--strict', 'a result file missing next to the manifest is an error')
+    .addOption(commandsOption())
     .addOption(formatOption())
     .addHelpText(
       'after',
@@ -273,6 +295,7 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
           data?: string;
           protocol?: string;
           strict?: boolean;
+          allowCommands?: boolean;
           format: 'text' | 'json';
         },
       ) => done(await (await import('./commands/verify.js')).verifyCommand({ manifest, ...o }, io)),

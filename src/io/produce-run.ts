@@ -10,6 +10,14 @@ import type { PathPolicy } from './path-policy.js';
 import { lockedRepoProblems } from './repo-guard.js';
 import { auditReport } from './audit-protocol.js';
 import type { AuditResult } from '../audit/audit.js';
+import { dirname, resolve } from 'node:path';
+import { error, FoldsealError } from '../problems/problem.js';
+import { locate } from '../protocol/document.js';
+import { testsFoldOneOnly } from '../protocol/types.js';
+import type { GivenProbabilities } from '../reconcile/reconcile.js';
+import type { SavedModel } from '../reconcile/models-file.js';
+import { idOrder } from '../split/key.js';
+import { commandFileProblems, commandFold, commandFolds, commandLine, predictSaved, type CommandContext } from './command-model.js';
 
 export interface Produced {
   report: ValidationReport;
@@ -33,6 +41,12 @@ export interface ProduceOptions {
   merged?: { fits: FoldFit[]; permuted?: Float64Array; report: ValidationReport };
   /** Also run the leakage audit (without its selection-bias demonstration): `run` prints its one-line summary. */
   audit?: boolean;
+  /** The user's consent to run a command model's program (--allow-commands). */
+  allowCommands?: boolean;
+  /** Programs run at once for a command model (--jobs). */
+  jobs?: number;
+  /** Where a command model's program runs and its files lie (default: the protocol's folder). */
+  commandFolder?: string;
 }
 
 export async function produceRun(protocolPath: string, options: ProduceOptions = {}): Promise<Produced> {
@@ -53,6 +67,12 @@ export async function produceRun(protocolPath: string, options: ProduceOptions =
     refit: options.refit,
     warnings: report.problems.filter((q) => q.severity === 'warning'),
   };
+  if (input.protocol.model.kind === 'command') {
+    const external = await runCommandModel(protocolPath, report, input, options);
+    input.external = external.external;
+    const out = runProtocol(input, options.hooks, external.cv, undefined);
+    return { report, input, out, audit: options.audit ? auditReport(report, { quick: true }) : undefined };
+  }
   const merged = options.merged;
   const cv = merged
     ? assembleResult(input.protocol, input.table, input.assignment, planFolds(input.protocol, input.table, input.assignment), merged.fits)
@@ -66,4 +86,46 @@ export async function produceRun(protocolPath: string, options: ProduceOptions =
       });
   const out = runProtocol(input, options.hooks, cv, permuted);
   return { report, input, out, audit: options.audit ? auditReport(report, { quick: true }) : undefined };
+}
+
+/** A command model's folds, refit and new-row probabilities, by running its program (only with the user's consent). */
+async function runCommandModel(protocolPath: string, report: ValidationReport, input: RunInput, options: ProduceOptions) {
+  const p = input.protocol;
+  const spec = p.model.command!;
+  const at = (path: (string | number)[]) => ({ file: report.file, path, position: report.source && locate(report.source, path) });
+  const cwd = options.commandFolder ?? dirname(resolve(protocolPath));
+  if (!options.allowCommands)
+    throw new FoldsealError(
+      error(
+        'command-not-allowed',
+        `this protocol runs a program of its own: \`${commandLine(spec, 'fit')}\` and \`${commandLine(spec, 'predict')}\` in ${cwd}, ` +
+          'once per fold; foldseal runs a program named in a file only when asked',
+        { ...at(['model', 'command', 'run']), hint: 'read the program, then pass --allow-commands to run it' },
+      ),
+      2,
+    );
+  const ctx: CommandContext = { spec, cwd, classes: input.table.classes, options: p.model.options, at: at(['model', 'command', 'run']) };
+  const plans = planFolds(p, input.table, input.assignment);
+  const fits = await commandFolds(p, ctx, input.table, plans, options.jobs, options.hooks?.onFold);
+  const cv = assembleResult(p, input.table, input.assignment, plans, fits);
+  let refit: SavedModel | undefined;
+  if (input.refit || p.reconcile.rule === 'refit') {
+    const all = idOrder(input.table.ids);
+    // A final protocol's sealed rows (fold 1) never train the refit model, as for built-in models.
+    const train = testsFoldOneOnly(p) ? all.filter((row) => input.assignment.fold[row] !== 1) : all;
+    const fit = await commandFold(p, ctx, input.table, { repeat: 0, fold: 0, train, test: new Int32Array(0) });
+    refit = { repeat: 0, fold: 0, pipeline: fit.pipeline, model: fit.model };
+  }
+  let newRows: GivenProbabilities | undefined;
+  const nr = input.newRows;
+  if (nr) {
+    // Every fold model answers (their agreement is reported under every rule); the refit model too under rule refit.
+    newRows = {
+      folds: await Promise.all(cv.models.map((m) => predictSaved(ctx, m, nr.ids, nr.X))),
+      refit: refit && p.reconcile.rule === 'refit' ? await predictSaved(ctx, refit, nr.ids, nr.X) : undefined,
+    };
+  }
+  const changed = await commandFileProblems(spec, cwd, at, true);
+  if (changed.length) throw new FoldsealError(changed, 1);
+  return { cv, external: { refit, newRows } };
 }

@@ -1,6 +1,7 @@
 /** model.kind → implementation. Adding a model: one file here and one line below (plus its options in the schema). */
 
 import { bernoulliNb } from './bernoulli-nb.js';
+import { commandModel } from './command.js';
 import { gaussianNb } from './gaussian-nb.js';
 import { knn } from './knn.js';
 import { linearSvm } from './linear-svm.js';
@@ -17,6 +18,7 @@ const entries = {
   knn,
   'shrunken-centroid': shrunkenCentroid,
   'linear-svm': linearSvm,
+  command: commandModel,
 };
 
 /** The model kinds: the registry's keys. */
@@ -60,19 +62,60 @@ export function modelSchema(): Record<string, unknown> {
         enum: Object.keys(models),
       },
       options: { description: 'Options of the chosen kind (see docs/protocol.md).', type: 'object', default: {} },
+      command: {
+        description:
+          'kind: command only. The program and what it depends on; it is run only when the user passes --allow-commands (docs/command-models.md).',
+        type: 'object',
+        additionalProperties: false,
+        required: ['run', 'files'],
+        properties: {
+          run: {
+            description:
+              'The argument list, no shell: a program and its arguments. foldseal appends `fit FOLDER` or `predict FOLDER`. Relative paths are resolved against the protocol\'s folder, where the program runs.',
+            type: 'array',
+            minItems: 1,
+            items: { type: 'string', minLength: 1 },
+          },
+          files: {
+            description:
+              'Every file the program depends on (its scripts, an environment lock such as requirements.txt or renv.lock), each with its SHA-256; checked before any run like the data, and again after.',
+            type: 'array',
+            minItems: 1,
+            items: {
+              type: 'object',
+              additionalProperties: false,
+              required: ['file', 'sha256'],
+              properties: {
+                file: { description: "A file, relative to the protocol's folder.", type: 'string', minLength: 1 },
+                sha256: { description: 'Its SHA-256 (`foldseal hash FILE`).', type: 'string', pattern: '^[0-9a-f]{64}$' },
+              },
+            },
+          },
+          'time-limit': {
+            description: 'Seconds one fit or one prediction may take before the program is stopped and the run fails.',
+            type: 'number',
+            exclusiveMinimum: 0,
+            default: 3600,
+          },
+        },
+      },
     },
     allOf: Object.entries(models).map(([kind, m]) => ({
       if: { properties: { kind: { const: kind } } },
       // biome-ignore lint/suspicious/noThenProperty: JSON Schema's if/then keyword, a plain object never awaited
-      then: {
-        properties: {
-          options: {
-            type: 'object',
-            additionalProperties: false,
-            properties: Object.fromEntries(Object.entries(m.options).map(([name, spec]) => [name, tunable({ ...spec })])),
-          },
-        },
-      },
+      then:
+        kind === 'command'
+          ? // The program's own settings, passed to it as written.
+            { required: ['command'], properties: { options: { type: 'object' } } }
+          : {
+              properties: {
+                options: {
+                  type: 'object',
+                  additionalProperties: false,
+                  properties: Object.fromEntries(Object.entries(m.options).map(([name, spec]) => [name, tunable({ ...spec })])),
+                },
+              },
+            },
     })),
   };
 }

@@ -17,7 +17,10 @@ export function normalizeProtocol(raw: any): Protocol {
         assign: s.assign ?? 'balanced',
         testFraction: s['test-fraction'],
       };
-  const lifted = liftGrid((raw.preprocess ?? []).map(readStep), raw.model.options ?? {});
+  // A command model's options go to its program as written: a list there is a value, not candidates.
+  const command = raw.model.kind === 'command';
+  const lifted = liftGrid((raw.preprocess ?? []).map(readStep), command ? {} : (raw.model.options ?? {}));
+  const c = raw.model.command;
   const preprocess: PreprocessStep[] = lifted.preprocess;
   const t = raw.tune;
   const inner = t?.split;
@@ -47,7 +50,11 @@ export function normalizeProtocol(raw: any): Protocol {
     },
     split,
     preprocess,
-    model: { kind: raw.model.kind, options: lifted.options },
+    model: {
+      kind: raw.model.kind,
+      options: command ? (raw.model.options ?? {}) : lifted.options,
+      ...(c ? { command: { run: c.run, files: c.files, timeLimit: c['time-limit'] ?? 3600 } } : {}),
+    },
     reconcile: {
       rule: r.rule ?? 'mean-probability',
       tie: r.tie,

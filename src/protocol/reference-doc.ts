@@ -20,8 +20,12 @@ export function protocolReference(schema: Schema): string {
   lines.push('', '## Model options by kind', '');
   for (const branch of schema.properties.model.allOf as Schema[]) {
     const kind = branch.if.properties.kind.const as string;
-    const opts = branch.then.properties.options.properties as Record<string, Schema>;
+    const opts = branch.then.properties.options.properties as Record<string, Schema> | undefined;
     lines.push(`### \`${kind}\``, '');
+    if (!opts) {
+      lines.push("`model.command` names the program (above); `model.options` go to it as written (docs/command-models.md).", '');
+      continue;
+    }
     for (const [name, s] of Object.entries(opts))
       lines.push(
         `- \`model.options.${name}\` (${typeOf(s)}${'default' in s ? `, default \`${JSON.stringify(s.default)}\`` : ''}): ${s.description}`,

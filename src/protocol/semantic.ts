@@ -62,6 +62,7 @@ export function checkAgainstData(p: Protocol, source: SourceDocument, ev: DataEv
   }
   problems.push(...missingValueProblems(p, table, at));
   problems.push(...gridProblems(p, at));
+  problems.push(...commandProblems(p, at));
   problems.push(...overCandidates(p, at, (q, atValue) => preprocessProblems(q, table, atValue)));
 
   let assignment: Assignment | undefined;
@@ -133,6 +134,29 @@ export function checkAgainstData(p: Protocol, source: SourceDocument, ev: DataEv
   if (assignment) problems.push(...assignmentProblems(p, table, assignment, at));
   if (assignment && !hasErrors(problems)) problems.push(...innerSplitProblems(p, table, assignment, at));
   return { problems, assignment };
+}
+
+/** A command model runs in the shell, fold by fold: what it cannot be combined with yet, and `command` without its kind. */
+function commandProblems(p: Protocol, at: At): Problem[] {
+  const out: Problem[] = [];
+  if (p.model.command && p.model.kind !== 'command')
+    out.push(error('command-without-kind', `model.command is set but model.kind is ${p.model.kind}`, { ...at(['model', 'command'], true), hint: 'use kind: command, or remove model.command' }));
+  if (p.model.kind !== 'command') return out;
+  if (p.statistics?.permutation)
+    out.push(
+      error('command-unsupported', 'a permutation test with a command model is not supported yet (it would run the program once per fold for every permutation)', {
+        ...at(['statistics', 'permutation'], true),
+        hint: 'remove statistics.permutation; bootstrap intervals work',
+      }),
+    );
+  if (p.tune)
+    out.push(
+      error('command-unsupported', 'tuning inside the folds is not supported with a command model yet', {
+        ...at(['tune'], true),
+        hint: "tune inside your program (on the training table it is given), or use a built-in model",
+      }),
+    );
+  return out;
 }
 
 const STABLE_EMPTY = "; assign: stable draws each row's fold on its own, so small data can leave a fold empty";

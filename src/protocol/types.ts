@@ -17,6 +17,16 @@ export interface HashedFile {
   sha256: string;
 }
 
+/** A command model's program (docs/command-models.md): run only with the user's explicit consent. */
+export interface CommandSpec {
+  /** The argument list, no shell; `fit FOLDER` or `predict FOLDER` is appended. */
+  run: string[];
+  /** Files the program depends on, hashed like the data. */
+  files: HashedFile[];
+  /** Seconds per fit or prediction. */
+  timeLimit: number;
+}
+
 export interface PinnedSplit {
   pinned: HashedFile;
 }
@@ -44,7 +54,7 @@ export interface Protocol {
   };
   split: RuleSplit | PinnedSplit;
   preprocess: PreprocessStep[];
-  model: { kind: ModelKind; options: Record<string, unknown> };
+  model: { kind: ModelKind; options: Record<string, unknown>; command?: CommandSpec };
   reconcile: { rule: ReconcileRule; tie?: TieRule; newRows?: HashedFile & { id?: string; layout: DataLayout } };
   metrics: MetricName[];
   /**

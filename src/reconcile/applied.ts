@@ -6,7 +6,7 @@ import { csvCell, csvLine } from '../table/csv-write.js';
 import type { NewRows } from '../table/new-rows.js';
 import type { HeldOut } from './held-out.js';
 import type { SavedModel } from './models-file.js';
-import { reconcile } from './reconcile.js';
+import { reconcile, type GivenProbabilities } from './reconcile.js';
 
 export type Source = 'held-out' | 'folds' | 'refit';
 
@@ -31,11 +31,13 @@ export interface ApplyInput {
   tie: TieRule | null;
   rows: NewRows;
   heldOut: Map<string, HeldOut>;
+  /** The models' probabilities of the rows when they were computed outside (a command model). */
+  given?: GivenProbabilities;
 }
 
 export function applyRows(a: ApplyInput): AppliedRow[] {
   const k = a.classes.length;
-  const r = reconcile(a.kind, a.folds, a.refit, a.rows.X, k, a.rule, a.tie);
+  const r = reconcile(a.kind, a.folds, a.refit, a.rows.X, k, a.rule, a.tie, a.given);
   const out: AppliedRow[] = a.rows.ids.map((id, i) => {
     const known = a.heldOut.get(id);
     if (known) {

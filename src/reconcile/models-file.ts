@@ -33,6 +33,8 @@ export interface ModelsFile {
   id: string | null;
   reconcile: { rule: ReconcileRule; tie: TieRule | null };
   folds: SavedModel[];
+  /** A command model's program (docs/command-models.md): `apply` runs it on the saved model folders, with consent. */
+  command?: { run: string[]; files: { file: string; sha256: string }[]; 'time-limit': number };
   /** A model fitted on every labeled row (rule refit, or run --refit); null otherwise. */
   refit: SavedModel | null;
   /**

@@ -25,6 +25,12 @@ export interface Reconciled {
   tied: Uint8Array;
 }
 
+/** Probabilities computed elsewhere (a command model's program, run by the shell): per fold model, and the refit model's. */
+export interface GivenProbabilities {
+  folds: Float64Array[];
+  refit?: Float64Array;
+}
+
 export function foldProbabilities(kind: ModelKind, saved: readonly SavedModel[], X: Matrix): Float64Array[] {
   return saved.map((s) => models[kind].predict(s.model, applyPipeline(s.pipeline, X)));
 }
@@ -37,10 +43,11 @@ export function reconcile(
   classCount: number,
   rule: ReconcileRule,
   tie: TieRule | null,
+  given?: GivenProbabilities,
 ): Reconciled {
   const rows = X.rows;
   const k = classCount;
-  const perModel = foldProbabilities(kind, folds, X);
+  const perModel = given?.folds ?? foldProbabilities(kind, folds, X);
   const top = perModel.map((p) => predictedClasses(p, k));
   const mean = new Float64Array(rows * k);
   for (const p of perModel) for (let i = 0; i < mean.length; i++) mean[i] += p[i];
@@ -49,7 +56,7 @@ export function reconcile(
   const tied = new Uint8Array(rows);
   let values: Float64Array = mean;
   if (rule === 'refit') {
-    values = foldProbabilities(kind, [refit!], X)[0];
+    values = given?.refit ?? foldProbabilities(kind, [refit!], X)[0];
     predicted.set(predictedClasses(values, k));
   } else if (rule === 'mean-probability') {
     predicted.set(predictedClasses(mean, k));

@@ -15,6 +15,7 @@ import { fitOptions, models } from '../model/registry.js';
 import { columnMajor, fitPipelineOnRows } from '../preprocess/by-columns.js';
 import { prunePipeline } from '../preprocess/pipeline.js';
 import { appliedCsv, applyRows, type AppliedRow } from '../reconcile/applied.js';
+import type { GivenProbabilities } from '../reconcile/reconcile.js';
 import { heldOutFromOof } from '../reconcile/held-out.js';
 import { knownRows } from '../reconcile/known-ids.js';
 import { MODELS_VERSION, modelsJson, type ModelsFile, type SavedModel } from '../reconcile/models-file.js';
@@ -43,6 +44,8 @@ export interface RunInput {
   filtered?: { before: number; after: number };
   assignment: Assignment;
   warnings: Problem[];
+  /** What the shell computed for a command model: its refit model and the models' probabilities of the new rows. */
+  external?: { refit?: SavedModel; newRows?: GivenProbabilities };
 }
 
 export interface RunOutput {
@@ -69,7 +72,8 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
   const predictions = predictionsCsv(cv, input.table);
   const p = input.protocol;
   const protocolSha256 = canonicalSha256(input.raw);
-  const refitted = input.refit || p.reconcile.rule === 'refit' ? fitOnAll(input) : null;
+  const refitted =
+    input.refit || p.reconcile.rule === 'refit' ? (input.external?.refit ? { model: input.external.refit } : fitOnAll(input)) : null;
   const refit = refitted?.model ?? null;
   const saved: ModelsFile = {
     'foldseal-models': MODELS_VERSION,
@@ -84,6 +88,9 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
     ...(p.data.classes ? { 'class-map': p.data.classes } : {}),
     id: p.reconcile.newRows?.id ?? p.data.id ?? null,
     reconcile: { rule: p.reconcile.rule, tie: p.reconcile.tie ?? null },
+    ...(p.model.command
+      ? { command: { run: p.model.command.run, files: p.model.command.files, 'time-limit': p.model.command.timeLimit } }
+      : {}),
     folds: cv.models,
     refit,
     'known-rows': knownRows(input.table.ids, input.table.X, input.table.featureNames),
@@ -102,6 +109,7 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
         tie: p.reconcile.tie ?? null,
         rows: input.newRows!,
         heldOut: heldOutFromOof(input.table.ids, cv.oof, cv.testedIn, cv.classes.length),
+        given: input.external?.newRows,
       }),
     );
     const labels = input.newRows.labels && new Map(input.newRows.ids.map((id, i) => [id, input.newRows!.labels![i]]));

@@ -30,6 +30,10 @@ export interface RunArgs {
   report?: boolean;
   /** "I/N": compute only shard I of N and write its part (see foldseal merge). */
   shard?: string;
+  /** Consent to run a command model's program. */
+  allowCommands?: boolean;
+  /** Programs run at once for a command model. */
+  jobs?: number;
 }
 
 export async function runCommand(args: RunArgs, io: CommandIo, merged?: ProduceOptions['merged']): Promise<ExitCode> {
@@ -53,6 +57,8 @@ export async function runCommand(args: RunArgs, io: CommandIo, merged?: ProduceO
     onPermutation: progress('permutation'),
     access: protocolPolicy(args.protocol, Boolean(args.allowOutside)),
     repoRules: true,
+    allowCommands: args.allowCommands,
+    jobs: args.jobs,
   });
   if (lastShown) io.err('\r\x1b[K');
   reportProblems(io, report.problems, 'text');

@@ -33,6 +33,8 @@ export interface VerifyArgs {
   /** Let the re-run read files outside the review folders. */
   allowOutside?: boolean;
   strict?: boolean;
+  /** Consent to run a command model's program for the re-run. */
+  allowCommands?: boolean;
 }
 
 export async function verifyCommand(args: VerifyArgs, io: CommandIo): Promise<ExitCode> {
@@ -183,6 +185,7 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
   if (doc.split?.pinned) named.push([resolve(base, doc.split.pinned.file), doc.split.pinned.file, 'pinned assignment file']);
   if (doc.reconcile?.['new-rows'])
     named.push([resolve(base, doc.reconcile['new-rows'].file), doc.reconcile['new-rows'].file, 'new-rows file']);
+  for (const f of doc.model?.command?.files ?? []) named.push([resolve(base, f.file), f.file, "model's file"]);
   const outside = named
     .map(([path, as, what]) => outsideProblem(path, access, as, what, { file: shown(resolve(args.manifest)) }))
     .filter((q): q is Problem => q !== undefined);
@@ -199,6 +202,7 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
   if (doc.data.samples) doc.data.samples.file = resolve(base, doc.data.samples.file);
   if (doc.split?.pinned) doc.split.pinned.file = resolve(base, doc.split.pinned.file);
   if (doc.reconcile?.['new-rows']) doc.reconcile['new-rows'].file = resolve(base, doc.reconcile['new-rows'].file);
+  for (const f of doc.model?.command?.files ?? []) f.file = resolve(base, f.file);
   let localSha: string;
   try {
     localSha = await sha256File(doc.data.file);
@@ -217,6 +221,8 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
     await writeFile(path, JSON.stringify(doc, null, 2));
     const { report, input, out } = await produceRun(path, {
       refit: await recordedRefit(join(manifestDir, 'models.json')),
+      allowCommands: args.allowCommands,
+      commandFolder: base,
       access: { ...access, roots: [...access.roots, ...(args.data ? [dirname(resolve(args.data))] : [])] },
     });
     if (!input || !out) {
