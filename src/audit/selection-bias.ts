@@ -41,7 +41,8 @@ export function selectionBias(input: Pick<AuditInput, 'protocol' | 'table' | 'as
   const { protocol: tuned, table, assignment } = input;
   // Tuning would add its own layer; the demonstration isolates selection, so tuned settings stay at their first value.
   const p = { ...tuned, grid: [], tune: undefined };
-  if (!p.preprocess.some((s) => selectionOf(transforms[s.step]))) return undefined;
+  // A command model's program runs only in the shell, with consent: the audit never runs it.
+  if (p.model.kind === 'command' || !p.preprocess.some((s) => selectionOf(transforms[s.step]))) return undefined;
   const metric = comparedMetric(p.metrics);
   const scored = { ...p, metrics: [metric] };
   const honest = crossValidate(scored, table, assignment).summary[metric];

@@ -213,8 +213,7 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
         results: string,
         table: string,
         o: { out?: string; rule?: ReconcileRule; tie?: TieRule; layout?: DataLayout; allowCommands?: boolean },
-      ) =>
-      done(await (await import('./commands/apply.js')).applyCommand({ results, table, ...o }, io)),
+      ) => done(await (await import('./commands/apply.js')).applyCommand({ results, table, ...o }, io)),
     );
 
   program

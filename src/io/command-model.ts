@@ -73,18 +73,26 @@ async function runProgram(ctx: CommandContext, mode: 'fit' | 'predict', folder: 
   const last = tail ? `; the last lines of its stderr:\n    ${tail}` : ' and wrote nothing to stderr';
   if (result.spawnError)
     throw new FoldsealError(
-      error('command-failed', `${where}: \`${shownCommand}\` could not be started (${result.spawnError.code}: ${result.spawnError.message})`, {
-        ...ctx.at,
-        hint: `is ${program} installed, and is the path right? It is looked up from ${ctx.cwd}`,
-      }),
+      error(
+        'command-failed',
+        `${where}: \`${shownCommand}\` could not be started (${result.spawnError.code}: ${result.spawnError.message})`,
+        {
+          ...ctx.at,
+          hint: `is ${program} installed, and is the path right? It is looked up from ${ctx.cwd}`,
+        },
+      ),
       1,
     );
   if (timedOut)
     throw new FoldsealError(
-      error('command-timeout', `${where}: \`${shownCommand}\` ran longer than the time limit of ${ctx.spec.timeLimit} s and was stopped${last}`, {
-        ...ctx.at,
-        hint: 'raise model.command.time-limit if the program needs longer',
-      }),
+      error(
+        'command-timeout',
+        `${where}: \`${shownCommand}\` ran longer than the time limit of ${ctx.spec.timeLimit} s and was stopped${last}`,
+        {
+          ...ctx.at,
+          hint: 'raise model.command.time-limit if the program needs longer',
+        },
+      ),
       1,
     );
   if (result.code !== 0)
@@ -124,11 +132,15 @@ async function readFolder(dir: string, where: string, ctx: CommandContext): Prom
 async function writeFolder(dir: string, folder: FolderModel['folder']): Promise<void> {
   for (const [name, file] of Object.entries(folder)) {
     const target = resolve(dir, name);
-    if (!target.startsWith(resolve(dir) + sep)) throw new FoldsealError(error('command-output', `a saved model folder names ${name}, outside itself`), 1);
+    if (!target.startsWith(resolve(dir) + sep))
+      throw new FoldsealError(error('command-output', `a saved model folder names ${name}, outside itself`), 1);
     await mkdir(resolve(target, '..'), { recursive: true });
     const bytes = Buffer.from(file.base64, 'base64');
     if (sha256Bytes(bytes) !== file.sha256)
-      throw new FoldsealError(error('command-output', `the saved model file ${name} does not match its SHA-256`, { hint: 're-run the protocol' }), 1);
+      throw new FoldsealError(
+        error('command-output', `the saved model file ${name} does not match its SHA-256`, { hint: 're-run the protocol' }),
+        1,
+      );
     await writeFile(target, bytes);
   }
 }
@@ -143,16 +155,35 @@ async function inTempFolder<T>(work: (dir: string) => Promise<T>): Promise<T> {
   }
 }
 
-async function predictIn(ctx: CommandContext, dir: string, ids: readonly string[], names: readonly string[], X: Matrix, where: string): Promise<Float64Array> {
+async function predictIn(
+  ctx: CommandContext,
+  dir: string,
+  ids: readonly string[],
+  names: readonly string[],
+  X: Matrix,
+  where: string,
+): Promise<Float64Array> {
   await writeFile(join(dir, 'rows.csv'), contractCsv(ids, names, X));
   await writeFile(
     join(dir, 'request.json'),
-    requestJson({ contract: CONTRACT_VERSION, mode: 'predict', classes: [...ctx.classes], options: ctx.options, repeat: 0, fold: 0, rows: X.rows, features: X.cols }),
+    requestJson({
+      contract: CONTRACT_VERSION,
+      mode: 'predict',
+      classes: [...ctx.classes],
+      options: ctx.options,
+      repeat: 0,
+      fold: 0,
+      rows: X.rows,
+      features: X.cols,
+    }),
   );
   await runProgram(ctx, 'predict', dir, where);
   const text = await readFile(join(dir, 'proba.csv'), 'utf8').catch(() => undefined);
   if (text === undefined)
-    throw new FoldsealError(error('command-output', `${where}: \`${commandLine(ctx.spec, 'predict')}\` exited 0 but wrote no proba.csv`, ctx.at), 1);
+    throw new FoldsealError(
+      error('command-output', `${where}: \`${commandLine(ctx.spec, 'predict')}\` exited 0 but wrote no proba.csv`, ctx.at),
+      1,
+    );
   const read = readProba(text, ids, ctx.classes);
   if (read.problem) throw new FoldsealError(error('command-output', `${where}: ${read.problem}`, ctx.at), 1);
   return read.proba!;
@@ -179,7 +210,15 @@ export async function commandFold(
   let pipeline: FittedPipeline;
   let trainX: Matrix;
   try {
-    const fitted = fitPipelineOnRows(p.preprocess, table.X, plan.train, yTrain, k, table.featureNames, wantsColumns(p) ? columnMajor(table.X) : undefined);
+    const fitted = fitPipelineOnRows(
+      p.preprocess,
+      table.X,
+      plan.train,
+      yTrain,
+      k,
+      table.featureNames,
+      wantsColumns(p) ? columnMajor(table.X) : undefined,
+    );
     pipeline = prunePipeline(fitted.pipeline, table.X.cols);
     trainX = fitted.X;
   } catch (e) {
@@ -188,20 +227,48 @@ export async function commandFold(
   }
   return inTempFolder(async (dir) => {
     const ids = Array.from(plan.train, (r) => table.ids[r]);
-    await writeFile(join(dir, 'train.csv'), contractCsv(ids, pipeline.columns, trainX, Array.from(yTrain, (c) => table.classes[c])));
+    await writeFile(
+      join(dir, 'train.csv'),
+      contractCsv(
+        ids,
+        pipeline.columns,
+        trainX,
+        Array.from(yTrain, (c) => table.classes[c]),
+      ),
+    );
     const seed = foldSeed(isPinned(p.split) ? undefined : p.split.seed, plan.repeat, plan.fold);
     await writeFile(
       join(dir, 'request.json'),
-      requestJson({ contract: CONTRACT_VERSION, mode: 'fit', classes: [...table.classes], options: ctx.options, repeat: plan.repeat, fold: plan.fold, seed, rows: trainX.rows, features: trainX.cols }),
+      requestJson({
+        contract: CONTRACT_VERSION,
+        mode: 'fit',
+        classes: [...table.classes],
+        options: ctx.options,
+        repeat: plan.repeat,
+        fold: plan.fold,
+        seed,
+        rows: trainX.rows,
+        features: trainX.cols,
+      }),
     );
     await mkdir(join(dir, 'model'));
     await runProgram(ctx, 'fit', dir, where);
     const folder = await readFolder(join(dir, 'model'), where, ctx);
     if (Object.keys(folder).length === 0)
-      throw new FoldsealError(error('command-output', `${where}: \`${commandLine(ctx.spec, 'fit')}\` exited 0 but left FOLDER/model empty`, ctx.at), 1);
+      throw new FoldsealError(
+        error('command-output', `${where}: \`${commandLine(ctx.spec, 'fit')}\` exited 0 but left FOLDER/model empty`, ctx.at),
+        1,
+      );
     const versions = folder['versions.json'] ? parseVersions(folder['versions.json'].base64) : null;
     const proba = plan.test.length
-      ? await predictIn(ctx, dir, Array.from(plan.test, (r) => table.ids[r]), pipeline.columns, applyPipeline(pipeline, table.X, plan.test), where)
+      ? await predictIn(
+          ctx,
+          dir,
+          Array.from(plan.test, (r) => table.ids[r]),
+          pipeline.columns,
+          applyPipeline(pipeline, table.X, plan.test),
+          where,
+        )
       : new Float64Array(0);
     const model: FolderModel = { folder, versions };
     return { pipeline, model, proba };
@@ -261,7 +328,12 @@ export async function predictSaved(
 }
 
 /** Each dependency file against its recorded SHA-256 (before a run, and after it: a program must not change them). */
-export async function commandFileProblems(spec: CommandSpec, cwd: string, at: (path: (string | number)[]) => Partial<Problem>, after = false): Promise<Problem[]> {
+export async function commandFileProblems(
+  spec: CommandSpec,
+  cwd: string,
+  at: (path: (string | number)[]) => Partial<Problem>,
+  after = false,
+): Promise<Problem[]> {
   const out: Problem[] = [];
   for (const [i, f] of spec.files.entries()) {
     let bytes: Buffer;
@@ -269,15 +341,29 @@ export async function commandFileProblems(spec: CommandSpec, cwd: string, at: (p
       bytes = await readFile(resolve(cwd, f.file));
     } catch (e) {
       const why = (e as NodeJS.ErrnoException).code;
-      out.push(error('command-failed', `the model's file ${f.file} cannot be read (${why})${after ? ' after the run' : ''}`, at(['model', 'command', 'files', i, 'file'])));
+      out.push(
+        error(
+          'command-failed',
+          `the model's file ${f.file} cannot be read (${why})${after ? ' after the run' : ''}`,
+          at(['model', 'command', 'files', i, 'file']),
+        ),
+      );
       continue;
     }
     const sha = sha256Bytes(bytes);
     if (sha !== f.sha256)
       out.push(
         after
-          ? error('command-files-changed', `the model's file ${f.file} changed during the run (SHA-256 now ${sha}); nothing was written`, at(['model', 'command', 'files', i, 'sha256']))
-          : error('command-file-hash-mismatch', `the model's file ${f.file} has SHA-256 ${sha}, not the ${f.sha256} this protocol records`, at(['model', 'command', 'files', i, 'sha256'])),
+          ? error(
+              'command-files-changed',
+              `the model's file ${f.file} changed during the run (SHA-256 now ${sha}); nothing was written`,
+              at(['model', 'command', 'files', i, 'sha256']),
+            )
+          : error(
+              'command-file-hash-mismatch',
+              `the model's file ${f.file} has SHA-256 ${sha}, not the ${f.sha256} this protocol records`,
+              at(['model', 'command', 'files', i, 'sha256']),
+            ),
       );
   }
   return out;

@@ -3,7 +3,7 @@ import { readRegularText } from './files.js';
 import { packageVersion } from './package-root.js';
 import { validateProtocol } from './validate.js';
 import type { PathPolicy } from './path-policy.js';
-import { hasErrors } from '../problems/problem.js';
+import { error, FoldsealError, hasErrors } from '../problems/problem.js';
 import { canonicalSha256 } from '../manifest/canonical.js';
 import { planFolds } from '../run/cross-validate.js';
 import { runAll } from '../run/executor.js';
@@ -38,6 +38,17 @@ export async function produceShard(
   const report = await validateProtocol(path, { access });
   if (report.unreadable || hasErrors(report.problems) || !report.protocol || !report.table || !report.assignment) return { report };
   const p = report.protocol;
+  if (p.model.kind === 'command')
+    throw new FoldsealError(
+      error(
+        'command-unsupported',
+        'run --shard does not run command models yet: run the protocol whole (--jobs sets how many folds run at once)',
+        {
+          file: report.file,
+        },
+      ),
+      2,
+    );
   const { plans, units } = unitsOf(report);
   const mine = unitsOfShard(units, shard.index, shard.count);
   try {

@@ -10,15 +10,23 @@ import { noChecks, type ModelImpl } from './types.js';
 
 export const commandModel: ModelImpl<never> = {
   description:
-    "a program of yours (model.command: its argument list, the files it depends on with their SHA-256, a time limit), fitted and " +
+    'a program of yours (model.command: its argument list, the files it depends on with their SHA-256, a time limit), fitted and ' +
     'asked for probabilities per fold through the contract of docs/command-models.md; it runs only with --allow-commands.',
   methods: () => 'a user-supplied program',
   options: {},
   check: noChecks,
   fit() {
-    throw new FitError('command-model', 'a command model is fitted by running its program, which only the command line does', 'run it with `foldseal run --allow-commands`');
+    throw new FitError(
+      'command-model',
+      'a command model is fitted by running its program, which only the command line does',
+      'run it with `foldseal run --allow-commands`',
+    );
   },
   predict() {
-    throw new FitError('command-model', 'a command model predicts by running its program, which only the command line does', 'use `foldseal apply --allow-commands`');
+    throw new FitError(
+      'command-model',
+      'a command model predicts by running its program, which only the command line does',
+      'use `foldseal apply --allow-commands`',
+    );
   },
 };

@@ -71,7 +71,7 @@ export function modelSchema(): Record<string, unknown> {
         properties: {
           run: {
             description:
-              'The argument list, no shell: a program and its arguments. foldseal appends `fit FOLDER` or `predict FOLDER`. Relative paths are resolved against the protocol\'s folder, where the program runs.',
+              "The argument list, no shell: a program and its arguments. foldseal appends `fit FOLDER` or `predict FOLDER`. Relative paths are resolved against the protocol's folder, where the program runs.",
             type: 'array',
             minItems: 1,
             items: { type: 'string', minLength: 1 },

@@ -23,7 +23,7 @@ export function protocolReference(schema: Schema): string {
     const opts = branch.then.properties.options.properties as Record<string, Schema> | undefined;
     lines.push(`### \`${kind}\``, '');
     if (!opts) {
-      lines.push("`model.command` names the program (above); `model.options` go to it as written (docs/command-models.md).", '');
+      lines.push('`model.command` names the program (above); `model.options` go to it as written (docs/command-models.md).', '');
       continue;
     }
     for (const [name, s] of Object.entries(opts))

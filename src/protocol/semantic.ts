@@ -140,20 +140,29 @@ export function checkAgainstData(p: Protocol, source: SourceDocument, ev: DataEv
 function commandProblems(p: Protocol, at: At): Problem[] {
   const out: Problem[] = [];
   if (p.model.command && p.model.kind !== 'command')
-    out.push(error('command-without-kind', `model.command is set but model.kind is ${p.model.kind}`, { ...at(['model', 'command'], true), hint: 'use kind: command, or remove model.command' }));
+    out.push(
+      error('command-without-kind', `model.command is set but model.kind is ${p.model.kind}`, {
+        ...at(['model', 'command'], true),
+        hint: 'use kind: command, or remove model.command',
+      }),
+    );
   if (p.model.kind !== 'command') return out;
   if (p.statistics?.permutation)
     out.push(
-      error('command-unsupported', 'a permutation test with a command model is not supported yet (it would run the program once per fold for every permutation)', {
-        ...at(['statistics', 'permutation'], true),
-        hint: 'remove statistics.permutation; bootstrap intervals work',
-      }),
+      error(
+        'command-unsupported',
+        'a permutation test with a command model is not supported yet (it would run the program once per fold for every permutation)',
+        {
+          ...at(['statistics', 'permutation'], true),
+          hint: 'remove statistics.permutation; bootstrap intervals work',
+        },
+      ),
     );
   if (p.tune)
     out.push(
       error('command-unsupported', 'tuning inside the folds is not supported with a command model yet', {
         ...at(['tune'], true),
-        hint: "tune inside your program (on the training table it is given), or use a built-in model",
+        hint: 'tune inside your program (on the training table it is given), or use a built-in model',
       }),
     );
   return out;

@@ -34,7 +34,7 @@ export interface ModelsFile {
   reconcile: { rule: ReconcileRule; tie: TieRule | null };
   folds: SavedModel[];
   /** A command model's program (docs/command-models.md): `apply` runs it on the saved model folders, with consent. */
-  command?: { run: string[]; files: { file: string; sha256: string }[]; 'time-limit': number };
+  command?: { run: string[]; files: { file: string; sha256: string }[]; 'time-limit': number; options: Record<string, unknown> };
   /** A model fitted on every labeled row (rule refit, or run --refit); null otherwise. */
   refit: SavedModel | null;
   /**

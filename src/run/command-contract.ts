@@ -79,7 +79,8 @@ export function readProba(text: string, asked: readonly string[], classes: reado
     let sum = 0;
     for (let c = 0; c < k; c++) {
       const v = cells[c + 1].trim() === '' ? Number.NaN : Number(cells[c + 1]);
-      if (!Number.isFinite(v) || v < 0 || v > 1) return { problem: `${where}: p_${classes[c]} is "${cells[c + 1]}", not a probability in [0, 1]` };
+      if (!Number.isFinite(v) || v < 0 || v > 1)
+        return { problem: `${where}: p_${classes[c]} is "${cells[c + 1]}", not a probability in [0, 1]` };
       proba[i * k + c] = v;
       sum += v;
     }

@@ -89,7 +89,14 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
     id: p.reconcile.newRows?.id ?? p.data.id ?? null,
     reconcile: { rule: p.reconcile.rule, tie: p.reconcile.tie ?? null },
     ...(p.model.command
-      ? { command: { run: p.model.command.run, files: p.model.command.files, 'time-limit': p.model.command.timeLimit } }
+      ? {
+          command: {
+            run: p.model.command.run,
+            files: p.model.command.files,
+            'time-limit': p.model.command.timeLimit,
+            options: p.model.options,
+          },
+        }
       : {}),
     folds: cv.models,
     refit,

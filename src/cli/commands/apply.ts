@@ -17,7 +17,9 @@ import { newRowsLayout } from '../../table/detect.js';
 import { delimiterFor } from '../../table/load.js';
 import { scoreNewRows, type NewRowScores } from '../../reconcile/new-row-scores.js';
 import { newRowScoreLines } from '../cv-table.js';
-import { newRowsFromBytes } from '../../table/new-rows.js';
+import { newRowsFromBytes, type NewRows } from '../../table/new-rows.js';
+import { commandFileProblems, commandLine, predictSaved } from '../../io/command-model.js';
+import type { GivenProbabilities } from '../../reconcile/reconcile.js';
 import { asUserError } from '../../run/run.js';
 import type { CommandIo, ExitCode } from '../io.js';
 import { reportProblems } from '../report-problems.js';
@@ -25,6 +27,8 @@ import { reportProblems } from '../report-problems.js';
 export interface ApplyArgs {
   results: string;
   table: string;
+  /** Consent to run a command model's program. */
+  allowCommands?: boolean;
   out?: string;
   rule?: ReconcileRule;
   tie?: TieRule;
@@ -89,9 +93,11 @@ export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<Exit
     );
   reportProblems(io, nr.problems, 'text');
   if (hasErrors(nr.problems) || !nr.rows) return 1;
+  const given = saved.kind === 'command' ? await commandProbabilities(args, saved, rule, nr.rows) : undefined;
   let rows: ReturnType<typeof applyRows>;
   try {
     rows = applyRows({
+      given,
       kind: saved.kind,
       folds: saved.folds,
       refit: saved.refit,
@@ -166,4 +172,35 @@ function detectLayout(
     first = content.columns[0] instanceof Float64Array ? [] : content.columns[0];
   }
   return newRowsLayout(header, first, features, id);
+}
+
+/**
+ * A command model's saved folders asked about the new rows by running its program, only with
+ * --allow-commands; the program's folder is the protocol's as the manifest records it, and its
+ * files must still have the hashes the run recorded.
+ */
+async function commandProbabilities(args: ApplyArgs, saved: ModelsFile, rule: ReconcileRule, rows: NewRows): Promise<GivenProbabilities> {
+  const c = saved.command!;
+  const spec = { run: c.run, files: c.files, timeLimit: c['time-limit'] };
+  const manifestPath = join(args.results, 'manifest.json');
+  const manifest = parseJson(await readInput(manifestPath), manifestPath) as { protocol?: { location?: string } };
+  const cwd = resolve(args.results, manifest.protocol?.location ?? '.');
+  const at = { file: shown(join(args.results, 'models.json')) };
+  if (!args.allowCommands)
+    throw new FoldsealError(
+      error(
+        'command-not-allowed',
+        `these fold models answer through a program: \`${commandLine(spec, 'predict')}\` in ${cwd}, once per fold model; ` +
+          'foldseal runs a program named in a file only when asked',
+        { ...at, hint: 'read the program, then pass --allow-commands to run it' },
+      ),
+      2,
+    );
+  const files = await commandFileProblems(spec, cwd, () => at);
+  if (files.length) throw new FoldsealError(files, 1);
+  const ctx = { spec, cwd, classes: saved.classes, options: c.options, at };
+  return {
+    folds: await Promise.all(saved.folds.map((m) => predictSaved(ctx, m, rows.ids, rows.X))),
+    refit: rule === 'refit' && saved.refit ? await predictSaved(ctx, saved.refit, rows.ids, rows.X) : undefined,
+  };
 }
