@@ -17,11 +17,11 @@ t.test('the workflow runs the shards and merges them into the single run’s fil
   const dir = tempDir();
   cpSync(join(root, 'protocols'), join(dir, 'protocols'), { recursive: true });
   cpSync(join(root, 'workflows'), join(dir, 'workflows'), { recursive: true });
-  // The statistics demo with 99 permutations instead of 1,000 (the suite's time budget): 109 work units.
+  // The statistics demo with 39 permutations instead of 1,000 (the suite's time budget): 49 work units.
   const protocol = 'protocols/demo-logistic-short.yaml';
   const text = readFileSync(join(root, 'protocols', 'demo-logistic.yaml'), 'utf8');
   t.match(text, 'count: 1000');
-  writeFileSync(join(dir, protocol), text.replace('count: 1000', 'count: 99'));
+  writeFileSync(join(dir, protocol), text.replace('count: 1000', 'count: 39'));
   const single = await cli(['run', protocol, '--out', 'results/single'], dir);
   t.equal(single.code, 0, single.stderr);
 

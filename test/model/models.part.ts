@@ -35,6 +35,12 @@ t.test('every model returns rows of probabilities summing to 1, deterministicall
     'bernoulli-nb': { threshold: 3 },
   };
   for (const [kind, impl] of Object.entries(models)) {
+    // A command model runs its program in the shell only (test/cli/command-model.test.ts); here it refuses.
+    if (kind === 'command') {
+      t.throws(() => impl.fit(m(X), y, {}, { classCount: 3 }), /only the command line does/);
+      t.throws(() => impl.predict(undefined as never, m(X)), /only the command line does/);
+      continue;
+    }
     const data = kind === 'multinomial-nb' ? counts : X;
     const a = impl.fit(m(data), y, withDefaults(kind as ModelKind, options[kind] ?? {}), { classCount: 3 });
     const p = impl.predict(a, m(data));
