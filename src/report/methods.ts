@@ -57,15 +57,31 @@ function pipeline(p: Protocol, r: any): string {
   const shown = { ...p, grid: p.grid.map((g) => ({ ...g, values: [listOr(g.values)] })) };
   const parts = partsFor(shown, new Int32Array(p.grid.length));
   const steps = parts.preprocess.map((s) => transforms[s.step].methods(s));
-  const model = models[p.model.kind].methods(fitOptions(p.model.kind, parts.model.options, r.classes));
+  const c = p.model.command;
+  const model = c
+    ? `the user-supplied program \`${c.run.join(' ')}\` (run by foldseal once per fold through its command-model contract, with a seed derived from the split seed; its files ${listJoin(c.files.map((f) => `${f.file} (SHA-256 ${f.sha256.slice(0, 12)}…)`))}${versionsText(r)})`
+    : models[p.model.kind].methods(fitOptions(p.model.kind, parts.model.options, r.classes));
   const before = steps.length
     ? `Within each training part, ${listJoin(steps)}; then ${model} was fitted`
     : `In each training part, ${model} was fitted`;
   return `${before}. Every preprocessing, selection and fitting step used the training part only; the test part was used only to score. ${tuning(p, r)}`;
 }
 
+function versionsText(r: any): string {
+  const reports = (r.model?.command?.versions ?? []).filter((v: unknown) => v !== null) as Record<string, unknown>[];
+  if (!reports.length) return '';
+  return `; it reported ${reports
+    .map((v) =>
+      Object.entries(v)
+        .map(([k, x]) => `${k} ${x}`)
+        .join(', '),
+    )
+    .join(' / ')}`;
+}
+
 function tuning(p: Protocol, r: any): string {
   const t = p.tune;
+  if (p.model.command && !t) return 'foldseal tuned no setting; any tuning inside the program saw only the training part it was given.';
   if (!t || !r.tuning) return 'No hyperparameters were tuned.';
   const rule = splitRules[t.split.rule];
   const inner = rule.methods({ folds: t.split.folds, repeats: t.split.repeats, testFraction: t.split.testFraction, group: p.data.group });

@@ -27,6 +27,18 @@ export function chosenCounts(p: Pick<Protocol, 'grid'>, t: TuningResult): Record
   );
 }
 
+/** A command model's program, the hashes of its files and what it reported as its runtime versions (each distinct report once). */
+function commandFacts(p: Protocol, cv: CvResult): Record<string, unknown> {
+  const c = p.model.command;
+  if (!c) return {};
+  const reports = new Map<string, unknown>();
+  for (const m of cv.models) {
+    const v = (m.model as { versions?: unknown }).versions ?? null;
+    reports.set(JSON.stringify(v), v);
+  }
+  return { command: { run: c.run, files: c.files, 'time-limit': c.timeLimit, versions: [...reports.values()] } };
+}
+
 function tuningJson(p: Protocol, t: TuningResult, refit: FoldSearch | undefined): Record<string, unknown> {
   const tune = p.tune!;
   const split = tune.split;
@@ -103,7 +115,7 @@ export function buildResults(r: ResultsInput): Record<string, unknown> {
       'class-counts': counts,
     },
     split: { ...split, folds: r.assignment.folds, repeats: r.assignment.repeats, 'assignment-sha256': r.assignmentSha256 },
-    model: { kind: p.model.kind, options: asWritten(p).options },
+    model: { kind: p.model.kind, options: asWritten(p).options, ...commandFacts(p, cv) },
     preprocess: p.preprocess.map((s) => s.step),
     classes: cv.classes,
     positive: cv.classes[cv.positive],

@@ -5,7 +5,8 @@ for every fold of `foldseal folds`, the training table, the request and the rows
 the contract says, and the out-of-fold probabilities are printed as JSON {id: [p...]}. The
 per-fold seed is computed here from its definition, independently of foldseal.
 
-Usage: python3 command_by_hand.py DATA.csv FOLDS.csv LABEL SPLIT_SEED OPTIONS_JSON PROGRAM...
+Usage: python3 command_by_hand.py DATA.csv FOLDS.csv LABEL SPLIT_SEED OPTIONS_JSON TESTED PROGRAM...
+TESTED: `all` (every fold is a test part) or `1` (holdout: fold 1 is tested, fold 2 trains)
 (no preprocessing: the protocol this checks has none, so the tables hold the data's own values)
 """
 import csv
@@ -22,7 +23,7 @@ def fold_seed(split_seed, repeat, fold):
     return int.from_bytes(digest[:4], "big") >> 1
 
 
-def main(data, folds_path, label, split_seed, options, program):
+def main(data, folds_path, label, split_seed, options, tested, program):
     with open(data, newline="", encoding="utf-8") as f:
         rows = list(csv.reader(f))
     header, body = rows[0], rows[1:]
@@ -34,7 +35,7 @@ def main(data, folds_path, label, split_seed, options, program):
     out = {}
     for repeat in sorted({int(r["repeat"]) for r in folds}):
         fold_of = {r["id"]: int(r["fold"]) for r in folds if int(r["repeat"]) == repeat}
-        for k in sorted(set(fold_of.values())):
+        for k in sorted(set(fold_of.values())) if tested == "all" else [int(tested)]:
             # Rows in id byte order, as foldseal's spec visits them.
             train = sorted((r for r in body if fold_of[r[0]] != k), key=lambda r: r[0].encode("utf-8"))
             test = sorted((r for r in body if fold_of[r[0]] == k), key=lambda r: r[0].encode("utf-8"))
@@ -69,4 +70,4 @@ def main(data, folds_path, label, split_seed, options, program):
 
 
 if __name__ == "__main__":
-    main(sys.argv[1], sys.argv[2], sys.argv[3], sys.argv[4], json.loads(sys.argv[5]), sys.argv[6:])
+    main(sys.argv[1], sys.argv[2], sys.argv[3], sys.argv[4], json.loads(sys.argv[5]), sys.argv[6], sys.argv[7:])
