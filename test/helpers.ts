@@ -112,3 +112,16 @@ export function referenceTable(name: string): { csv: string; header: string[]; b
     .map((l) => l.split(','));
   return { csv, header: lines[0], body: lines.slice(1) };
 }
+
+/**
+ * Whether Debian's python3 has these packages (the live reference checks need them). Looked up on
+ * disk: starting python3 and importing scikit-learn to find out costs a second or more per test file.
+ */
+export function debianPython(...modules: string[]): boolean {
+  return existsSync('/usr/bin/python3') && modules.every((m) => existsSync(`/usr/lib/python3/dist-packages/${m}`));
+}
+
+/** Whether Debian's R has this package (r-cran-<name>), looked up on disk. */
+export function debianR(pkg: string): boolean {
+  return existsSync('/usr/bin/Rscript') && existsSync(`/usr/lib/R/site-library/${pkg}`);
+}

@@ -12,7 +12,7 @@ import { association } from '../../src/audit/confounding.js';
 import { exactDuplicateSets, nearDuplicatePairs } from '../../src/audit/duplicates.js';
 import { pairwiseSeparation } from '../../src/audit/separation.js';
 import { tableFromBytes } from '../../src/table/load.js';
-import { root } from '../helpers.js';
+import { debianPython, root } from '../helpers.js';
 
 const fixture = JSON.parse(readFileSync(join(root, 'test/reference/fixtures/audit.json'), 'utf8'));
 const read = (name: string, label: string) =>
@@ -66,7 +66,7 @@ t.test('chi-square and Cramér’s V equal scipy on iris species × binned sepal
   t.equal(association(new Int32Array(iris.X.rows), 1, iris.y, 3), null, 'one level: no test');
 });
 
-const live = spawnSync('/usr/bin/python3', ['-c', 'import sklearn, scipy, pandas'], { encoding: 'utf8' }).status === 0;
+const live = debianPython('sklearn', 'scipy', 'pandas');
 t.test(
   'the fixture is what the reference libraries compute today',
   { skip: live ? false : 'Debian python3 with sklearn, scipy, pandas not installed' },

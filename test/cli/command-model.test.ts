@@ -8,7 +8,7 @@ import { spawnSync } from 'node:child_process';
 import { mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import t from 'tap';
-import { cli, referenceTable, root, sha256, tempDir } from '../helpers.js';
+import { cli, debianPython, debianR, referenceTable, root, sha256, tempDir } from '../helpers.js';
 import { CENTROID_MODEL } from './command-model.fixture.js';
 
 const iris = referenceTable('iris.csv');
@@ -160,8 +160,8 @@ t.test('what a command model cannot be combined with yet is refused at validatio
 });
 
 // The tested examples, each against a by-hand run of the same script on the exported folds.
-const python = spawnSync('/usr/bin/python3', ['-c', 'import sklearn'], { encoding: 'utf8' }).status === 0;
-const rGlmnet = spawnSync('Rscript', ['-e', 'library(glmnet)'], { encoding: 'utf8' }).status === 0;
+const python = debianPython('sklearn');
+const rGlmnet = debianR('glmnet');
 const examples = [
   {
     name: 'the Python example (scikit-learn random forest)',

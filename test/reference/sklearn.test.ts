@@ -6,7 +6,7 @@
 import { spawnSync } from 'node:child_process';
 import { join } from 'node:path';
 import t, { type Test } from 'tap';
-import { tempDir } from '../helpers.js';
+import { debianPython, tempDir } from '../helpers.js';
 import { metrics } from '../../src/metric/registry.js';
 import { scored } from '../../src/metric/types.js';
 import type { MetricName } from '../../src/protocol/types.js';
@@ -89,7 +89,7 @@ for (const c of referenceCases()) {
   t.test(`${c.name} agrees with the committed scikit-learn fixture`, async (t) => compareCase(t, c.name, fixture(c.name)));
 }
 
-const live = spawnSync('/usr/bin/python3', ['-c', 'import sklearn, scipy, pandas'], { encoding: 'utf8' }).status === 0;
+const live = debianPython('sklearn', 'scipy', 'pandas');
 t.test(
   'live: scikit-learn recomputed now agrees with foldseal',
   { skip: live ? false : 'Debian python3 with scikit-learn not installed (apt-get install python3-sklearn python3-pandas)' },

@@ -9,7 +9,7 @@ import { spawnSync } from 'node:child_process';
 import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import t from 'tap';
-import { cli, referenceTable, root, sha256, tempDir } from '../helpers.js';
+import { cli, debianPython, referenceTable, root, sha256, tempDir } from '../helpers.js';
 
 interface RefFold {
   repeat: number;
@@ -94,7 +94,7 @@ t.test('the chosen candidates, inner scores and outer probabilities equal scikit
   t.same(models.preprocess[1].top, [3, 5, 10, 20], 'models.json shows the candidates the protocol lists');
 });
 
-const python = spawnSync('/usr/bin/python3', ['-c', 'import sklearn, pandas'], { encoding: 'utf8' }).status === 0;
+const python = debianPython('sklearn', 'pandas');
 t.test(
   'the committed reference is what scikit-learn computes now',
   { skip: python ? false : 'Debian python3-sklearn not installed' },
