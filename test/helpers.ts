@@ -1,7 +1,8 @@
 /** Test fixtures: temporary folders with data and protocols, and a runner for the built binary. */
 import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
-import { existsSync, mkdtempSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import type { Test } from 'tap';
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -124,4 +125,17 @@ export function debianPython(...modules: string[]): boolean {
 /** Whether Debian's R has this package (r-cran-<name>), looked up on disk. */
 export function debianR(pkg: string): boolean {
   return existsSync('/usr/bin/Rscript') && existsSync(`/usr/lib/R/site-library/${pkg}`);
+}
+
+/** `validate p.yaml` in a fresh folder of these files: the exit code, every expected stderr line, and nothing written. */
+export function expectValidation(t: Test, name: string, files: Record<string, string>, expected: string[], code = 1): void {
+  t.test(name, async (t) => {
+    const dir = tempDir(files);
+    const before = readdirSync(dir).sort();
+    const r = await cli(['validate', 'p.yaml'], dir);
+    t.equal(r.code, code, r.stderr);
+    const lines = r.stderr.trimEnd().split('\n');
+    for (const e of expected) t.ok(lines.includes(e), `has line: ${e}\n--- got:\n${r.stderr}`);
+    t.same(readdirSync(dir).sort(), before, 'nothing is written');
+  });
 }

@@ -178,7 +178,7 @@ async function predictIn(
     }),
   );
   await runProgram(ctx, 'predict', dir, where);
-  const text = await readFile(join(dir, 'proba.csv'), 'utf8').catch(() => undefined);
+  const text = await readFile(join(dir, 'proba.csv')).catch(() => undefined);
   if (text === undefined)
     throw new FoldsealError(
       error('command-output', `${where}: \`${commandLine(ctx.spec, 'predict')}\` exited 0 but wrote no proba.csv`, ctx.at),

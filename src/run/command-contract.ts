@@ -4,6 +4,7 @@
  * the probabilities it returns. Running the program is the shell's (src/io/command-model.ts).
  */
 import { csvCells } from '../table/csv-write.js';
+import { readDelimited, textColumn } from '../table/delimited.js';
 import type { Matrix } from '../table/matrix.js';
 import { sha256Bytes } from '../util/sha256.js';
 
@@ -54,37 +55,45 @@ export function requestJson(r: Request): string {
 }
 
 /**
- * The program's `proba.csv` against what was asked: header `id,p_<class>…` in class order, every
- * asked id exactly once, finite probabilities in [0, 1] summing to 1 within 1e-9. The rows come
- * back in the order asked; a message says what is wrong otherwise.
+ * The program's `proba.csv` (its bytes) against what was asked: header `id,p_<class>…` in class
+ * order, every asked id exactly once, finite probabilities in [0, 1] summing to 1 within 1e-9.
+ * The rows come back in the order asked; a message says what is wrong otherwise.
  */
-export function readProba(text: string, asked: readonly string[], classes: readonly string[]): { proba?: Float64Array; problem?: string } {
-  const lines = text.replace(/\r\n/g, '\n').replace(/\n$/, '').split('\n');
+export function readProba(
+  bytes: Uint8Array,
+  asked: readonly string[],
+  classes: readonly string[],
+): { proba?: Float64Array; problem?: string } {
+  const read = readDelimited(bytes, 0x2c, 'proba.csv');
   const expected = ['id', ...classes.map((c) => `p_${c}`)];
-  const header = splitLine(lines[0] ?? '');
-  if (header.join('\u0000') !== expected.join('\u0000'))
-    return { problem: `proba.csv starts with "${lines[0] ?? ''}", not the header "${csvCells(expected).join(',')}"` };
+  if (!read.table || read.problems.some((q) => q.severity === 'error')) {
+    const q = read.problems[0];
+    return { problem: `proba.csv is not a valid table: ${q?.message ?? 'it is empty'}${q?.position ? ` (line ${q.position.line})` : ''}` };
+  }
+  const t = read.table;
+  if (t.header.join('\u0000') !== expected.join('\u0000'))
+    return { problem: `proba.csv starts with "${csvCells(t.header).join(',')}", not the header "${csvCells(expected).join(',')}"` };
   const k = classes.length;
   const at = new Map(asked.map((id, i) => [id, i]));
   const proba = new Float64Array(asked.length * k);
   const seen = new Uint8Array(asked.length);
-  for (let l = 1; l < lines.length; l++) {
-    const cells = splitLine(lines[l]);
-    const where = `proba.csv line ${l + 1}`;
-    if (cells.length !== k + 1) return { problem: `${where} has ${cells.length} cells, not ${k + 1}` };
-    const i = at.get(cells[0]);
-    if (i === undefined) return { problem: `${where} is for id "${cells[0]}", which was not asked for` };
-    if (seen[i]) return { problem: `${where} repeats id "${cells[0]}"` };
+  const ids = textColumn(t, 0);
+  const cells = classes.map((_, c) => textColumn(t, c + 1));
+  for (let r = 0; r < t.rows; r++) {
+    const where = `proba.csv line ${t.rowLine[r]}`;
+    const i = at.get(ids[r]);
+    if (i === undefined) return { problem: `${where} is for id "${ids[r]}", which was not asked for` };
+    if (seen[i]) return { problem: `${where} repeats id "${ids[r]}"` };
     seen[i] = 1;
     let sum = 0;
     for (let c = 0; c < k; c++) {
-      const v = cells[c + 1].trim() === '' ? Number.NaN : Number(cells[c + 1]);
-      if (!Number.isFinite(v) || v < 0 || v > 1)
-        return { problem: `${where}: p_${classes[c]} is "${cells[c + 1]}", not a probability in [0, 1]` };
+      const text = cells[c][r];
+      const v = text.trim() === '' ? Number.NaN : Number(text);
+      if (!Number.isFinite(v) || v < 0 || v > 1) return { problem: `${where}: p_${classes[c]} is "${text}", not a probability in [0, 1]` };
       proba[i * k + c] = v;
       sum += v;
     }
-    if (Math.abs(sum - 1) > 1e-9) return { problem: `${where}: the probabilities of "${cells[0]}" sum to ${sum}, not 1 (within 1e-9)` };
+    if (Math.abs(sum - 1) > 1e-9) return { problem: `${where}: the probabilities of "${ids[r]}" sum to ${sum}, not 1 (within 1e-9)` };
   }
   const missing = asked.filter((_, i) => !seen[i]);
   if (missing.length)
@@ -92,27 +101,4 @@ export function readProba(text: string, asked: readonly string[], classes: reado
       problem: `proba.csv has no row for ${missing.length} of the ${asked.length} ids asked for (${missing.slice(0, 3).join(', ')}${missing.length > 3 ? ', …' : ''})`,
     };
   return { proba };
-}
-
-/** One CSV line's cells (RFC 4180 quoting). */
-function splitLine(line: string): string[] {
-  const out: string[] = [];
-  let cell = '';
-  let quoted = false;
-  for (let i = 0; i < line.length; i++) {
-    const ch = line[i];
-    if (quoted) {
-      if (ch === '"' && line[i + 1] === '"') {
-        cell += '"';
-        i++;
-      } else if (ch === '"') quoted = false;
-      else cell += ch;
-    } else if (ch === '"') quoted = true;
-    else if (ch === ',') {
-      out.push(cell);
-      cell = '';
-    } else cell += ch;
-  }
-  out.push(cell);
-  return out;
 }

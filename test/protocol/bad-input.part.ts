@@ -2,23 +2,14 @@
  * Every bad input of the foundation issue, through the built binary: the exact located
  * message, exit 1, and nothing written. Expected texts are foldseal's own contract.
  */
-import { readdirSync } from 'node:fs';
 import t, { type Test } from 'tap';
-import { cli, protocolText, sha256, smallCsv, tempDir } from '../helpers.js';
+import { cli, expectValidation, protocolText, sha256, smallCsv, tempDir } from '../helpers.js';
 
 const csv = smallCsv();
 const h = sha256(csv);
 
 function check(t: Test, name: string, files: Record<string, string>, expected: string[], code = 1) {
-  t.test(name, async (t) => {
-    const dir = tempDir({ 'data.csv': csv, ...files });
-    const before = readdirSync(dir).sort();
-    const r = await cli(['validate', 'p.yaml'], dir);
-    t.equal(r.code, code, r.stderr);
-    const lines = r.stderr.trimEnd().split('\n');
-    for (const e of expected) t.ok(lines.includes(e), `has line: ${e}\n--- got:\n${r.stderr}`);
-    t.same(readdirSync(dir).sort(), before, 'nothing is written');
-  });
+  expectValidation(t, name, { 'data.csv': csv, ...files }, expected, code);
 }
 
 check(t, 'malformed YAML', { 'p.yaml': 'foldseal: 1\nname: [t\n' }, [

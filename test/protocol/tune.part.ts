@@ -3,13 +3,12 @@
  * are foldseal's own contract (docs/protocol.md `tune`, docs/split-spec.md §9); the scores
  * behind a choice are checked against scikit-learn in test/run/nested.test.ts.
  */
-import { readdirSync } from 'node:fs';
 import t from 'tap';
 import { FitError } from '../../src/problems/problem.js';
 import { asWritten, candidates, liftGrid, partsFor, valuesOf } from '../../src/protocol/grid.js';
 import type { PreprocessStep, TunedSetting } from '../../src/protocol/types.js';
 import { choose, innerFits } from '../../src/run/nested.js';
-import { cli, sha256, smallCsv, tempDir } from '../helpers.js';
+import { expectValidation, sha256, smallCsv } from '../helpers.js';
 
 const steps = [{ step: 'standardize' }, { step: 'select', top: [5, 20, 50], by: 'f-test' }] as unknown as PreprocessStep[];
 const lifted = liftGrid(steps, { k: [3, 9], l2: 1 });
@@ -99,16 +98,8 @@ const base = `foldseal: 1\nname: t\ndata:\n  file: data.csv\n  sha256: "${sha256
 const split = 'split: {rule: stratified-kfold, folds: 2, seed: 7}\n';
 const tune = (inner: string, prefer = '[{model.k: smallest}]') => `tune: {split: ${inner}, metric: accuracy, prefer: ${prefer}}\n`;
 
-function validates(name: string, body: string, expected: string[], code = 1, extra: Record<string, string> = {}) {
-  t.test(name, async (t) => {
-    const dir = tempDir({ 'data.csv': csv, 'p.yaml': base + body, ...extra });
-    const before = readdirSync(dir).sort();
-    const r = await cli(['validate', 'p.yaml'], dir);
-    t.equal(r.code, code, r.stderr);
-    const lines = r.stderr.trimEnd().split('\n');
-    for (const e of expected) t.ok(lines.includes(e), `has line: ${e}\n--- got:\n${r.stderr}`);
-    t.same(readdirSync(dir).sort(), before, 'nothing is written');
-  });
+function validates(name: string, body: string, expected: string[], code = 1) {
+  expectValidation(t, name, { 'data.csv': csv, 'p.yaml': base + body }, expected, code);
 }
 
 validates('a list without a tune section is located at the list', `${split}model: {kind: knn, options: {k: [1, 3]}}\n`, [
