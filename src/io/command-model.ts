@@ -302,7 +302,8 @@ export async function commandFolds(
       const i = next++;
       try {
         out[i] = await commandFold(p, ctx, table, plans[i]);
-        onFold?.(++done, plans.length);
+        done++;
+        onFold?.(done, plans.length);
       } catch (e) {
         failed ??= e;
       }

@@ -76,7 +76,9 @@ export async function crossValidateInWorkers(p: Protocol, table: Table, a: Assig
             return;
           }
           fits[m.index] = m.fit!;
-          hooks.onFold?.(++done, plans.length);
+          // Counted outside the optional call: `f?.(++done)` skips the increment when there is no f.
+          done++;
+          hooks.onFold?.(done, plans.length);
           if (done === plans.length) resolve();
           else feed(w);
         });
