@@ -223,6 +223,7 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
     .argument('<b>', 'results folder (or its manifest.json), or a protocol to run in memory')
     .option('--level <level>', 'confidence level of the intervals; the tests are read at 1 − level', '0.95')
     .option('--metric <metric>', 'the metric the one-line verdict is about (default: the first metric both report)')
+    .addOption(commandsOption())
     .addOption(formatOption())
     .addOption(outsideOption())
     .addHelpText(
@@ -231,8 +232,12 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
         'protocols/demo-knn.yaml --metric roc-auc --format json\n\nBoth must use the same data (by hash) and the same fold ' +
         'assignment, or the comparison is refused.\nExit: 0 compared (whatever the verdict), 1 refused or invalid, 2 usage error.',
     )
-    .action(async (a: string, b: string, o: { level: string; metric?: string; format: 'text' | 'json'; allowOutside?: boolean }) =>
-      done(await (await import('./commands/compare.js')).compareCommand({ a, b, ...o }, io)),
+    .action(
+      async (
+        a: string,
+        b: string,
+        o: { level: string; metric?: string; format: 'text' | 'json'; allowOutside?: boolean; allowCommands?: boolean },
+      ) => done(await (await import('./commands/compare.js')).compareCommand({ a, b, ...o }, io)),
     );
 
   program

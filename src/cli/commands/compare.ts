@@ -18,6 +18,8 @@ export interface CompareArgs {
   metric?: string;
   format: OutputFormat;
   allowOutside?: boolean;
+  /** Consent to run a command model's program when a side is a protocol. */
+  allowCommands?: boolean;
 }
 
 /** A results folder (or its manifest.json) is read; anything else is a protocol, validated and run in memory. */
@@ -31,6 +33,7 @@ async function loadSide(path: string, args: CompareArgs, problems: Problem[]): P
   const { report, out } = await produceRun(path, {
     access: protocolPolicy(path, Boolean(args.allowOutside)),
     withoutStatistics: true,
+    allowCommands: args.allowCommands,
   });
   problems.push(...report.problems);
   if (report.unreadable) throw new FoldsealError(report.problems, 2);
