@@ -85,6 +85,11 @@ t.test('with consent: every fold fitted by the program, its folders saved, verif
 
   const refused = await cli(['verify', 'res/manifest.json', '--rerun', '--allow-unsigned'], dir, env(dir));
   t.equal(refused.code, 2);
+  t.match(
+    refused.stderr,
+    /^res\/manifest\.json: error: this protocol runs a program of its own/m,
+    'named at the manifest, not a temporary copy',
+  );
   t.match(refused.stderr, 'pass --allow-commands');
   const v = await cli(['verify', 'res/manifest.json', '--rerun', '--allow-unsigned', '--allow-commands'], dir, env(dir));
   t.match(v.stdout, 'the re-run itself was identical', v.stdout + v.stderr);

@@ -224,6 +224,14 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
       allowCommands: args.allowCommands,
       commandFolder: base,
       access: { ...access, roots: [...access.roots, ...(args.data ? [dirname(resolve(args.data))] : [])] },
+    }).catch((e: unknown) => {
+      // The re-run's protocol is a temporary copy: a failure names the manifest instead.
+      if (e instanceof FoldsealError)
+        throw new FoldsealError(
+          e.problems.map((q) => ({ ...q, file: shown(resolve(args.manifest)), position: undefined })),
+          e.exitCode,
+        );
+      throw e;
     });
     if (!input || !out) {
       problems.push(
