@@ -47,7 +47,9 @@ export function commandLine(spec: CommandSpec, mode: string, folder = 'FOLDER'):
 /** Runs the program once in `mode` on `folder`; resolves when it exited 0 in time, else throws a located FoldsealError. */
 async function runProgram(ctx: CommandContext, mode: 'fit' | 'predict', folder: string, where: string): Promise<void> {
   const [program, ...args] = ctx.spec.run;
-  const child = spawn(program, [...args, mode, folder], { cwd: ctx.cwd, stdio: ['ignore', 'ignore', 'pipe'], detached: true });
+  // In foldseal's own process group: a Ctrl-C at the terminal stops the program with foldseal, never
+  // leaving it running on its own.
+  const child = spawn(program, [...args, mode, folder], { cwd: ctx.cwd, stdio: ['ignore', 'ignore', 'pipe'] });
   let stderr = '';
   child.stderr.setEncoding('utf8');
   child.stderr.on('data', (s: string) => {
@@ -56,12 +58,7 @@ async function runProgram(ctx: CommandContext, mode: 'fit' | 'predict', folder: 
   let timedOut = false;
   const timer = setTimeout(() => {
     timedOut = true;
-    // The whole process group: a program's own children go too.
-    try {
-      process.kill(-child.pid!, 'SIGKILL');
-    } catch {
-      child.kill('SIGKILL');
-    }
+    child.kill('SIGKILL');
   }, ctx.spec.timeLimit * 1000);
   const result = await new Promise<{ code: number | null; signal: NodeJS.Signals | null; spawnError?: NodeJS.ErrnoException }>((done) => {
     child.on('error', (e: NodeJS.ErrnoException) => done({ code: null, signal: null, spawnError: e }));

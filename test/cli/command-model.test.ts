@@ -94,6 +94,9 @@ t.test('with consent: every fold fitted by the program, its folders saved, verif
   const v = await cli(['verify', 'res/manifest.json', '--rerun', '--allow-unsigned', '--allow-commands'], dir, env(dir));
   t.match(v.stdout, 'the re-run itself was identical', v.stdout + v.stderr);
 
+  const comparedUnasked = await cli(['compare', 'p.yaml', 'res'], dir, env(dir));
+  t.equal(comparedUnasked.code, 2, 'compare runs a protocol side only with consent');
+  t.match(comparedUnasked.stderr, 'pass --allow-commands');
   const noConsent = await cli(['apply', 'res', 'new.csv'], dir, env(dir));
   t.equal(noConsent.code, 2);
   t.match(noConsent.stderr, `these fold models answer through a program: \`${process.execPath} model.js predict FOLDER\``);
