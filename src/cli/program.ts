@@ -6,6 +6,7 @@ import { showAllProblems } from './report-problems.js';
 // Commands load when chosen: a quick `validate` does not pay for the runner and the signer.
 import type { DataLayout, ReconcileRule, TieRule } from '../protocol/types.js';
 import type { InitArgs } from './commands/init.js';
+import type { RunArgs } from './commands/run.js';
 
 export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Command {
   const program = new Command('foldseal')
@@ -121,21 +122,8 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
         'renamed at the end, so it is never half-written.\n--force replaces only a folder foldseal wrote (its manifest and the ' +
         'files it lists); any other non-empty folder is refused.',
     )
-    .action(
-      async (
-        protocol: string,
-        o: {
-          out?: string;
-          force?: boolean;
-          refit?: boolean;
-          key?: string;
-          allowOutside?: boolean;
-          report?: boolean;
-          shard?: string;
-          allowCommands?: boolean;
-          jobs?: number;
-        },
-      ) => done(await (await import('./commands/run.js')).runCommand({ protocol, ...o }, io)),
+    .action(async (protocol: string, o: Omit<RunArgs, 'protocol'>) =>
+      done(await (await import('./commands/run.js')).runCommand({ protocol, ...o }, io)),
     );
 
   resultsFolderOptions(

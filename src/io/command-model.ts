@@ -18,7 +18,8 @@ import type { FoldFit } from '../run/fit-fold.js';
 import { contractCsv, CONTRACT_VERSION, foldSeed, readProba, requestJson } from '../run/command-contract.js';
 import { takeInt, type Matrix } from '../table/matrix.js';
 import { sha256Bytes } from '../util/sha256.js';
-import { isPinned } from '../protocol/types.js';
+import { isPinned, type ReconcileRule } from '../protocol/types.js';
+import type { GivenProbabilities } from '../reconcile/reconcile.js';
 
 /** A fold model of a command model as models.json keeps it: the model folder's files, and what the program reported of itself. */
 export interface FolderModel {
@@ -281,8 +282,36 @@ function parseVersions(base64: string): Record<string, unknown> | null {
   }
 }
 
+/** `work` on every item, at most `jobs` at a time; results in item order. The first failure stops new starts and is thrown once the running ones end. */
+async function pooled<T, R>(
+  items: readonly T[],
+  jobs: number,
+  work: (item: T) => Promise<R>,
+  onDone?: (done: number, total: number) => void,
+): Promise<R[]> {
+  const out: R[] = new Array(items.length);
+  let next = 0;
+  let done = 0;
+  let failed: unknown;
+  const worker = async () => {
+    while (next < items.length && failed === undefined) {
+      const i = next++;
+      try {
+        out[i] = await work(items[i]);
+        done++;
+        onDone?.(done, items.length);
+      } catch (e) {
+        failed ??= e;
+      }
+    }
+  };
+  await Promise.all(Array.from({ length: Math.max(1, Math.min(jobs, items.length)) }, worker));
+  if (failed !== undefined) throw failed;
+  return out;
+}
+
 /** Every plan's fold, up to `jobs` programs at a time; results in plan order whatever order they finish in. */
-export async function commandFolds(
+export function commandFolds(
   p: Protocol,
   ctx: CommandContext,
   table: Parameters<typeof commandFold>[2],
@@ -290,34 +319,29 @@ export async function commandFolds(
   jobs = availableParallelism(),
   onFold?: (done: number, total: number) => void,
 ): Promise<FoldFit[]> {
-  const out: FoldFit[] = new Array(plans.length);
-  let next = 0;
-  let done = 0;
-  let failed: unknown;
-  const worker = async () => {
-    while (next < plans.length && failed === undefined) {
-      const i = next++;
-      try {
-        out[i] = await commandFold(p, ctx, table, plans[i]);
-        done++;
-        onFold?.(done, plans.length);
-      } catch (e) {
-        failed ??= e;
-      }
-    }
-  };
-  await Promise.all(Array.from({ length: Math.max(1, Math.min(jobs, plans.length)) }, worker));
-  if (failed !== undefined) throw failed;
-  return out;
+  return pooled(plans, jobs, (plan) => commandFold(p, ctx, table, plan), onFold);
+}
+
+type SavedFolder = { pipeline: FittedPipeline; model: unknown; repeat: number; fold: number };
+
+/**
+ * What the saved models say about new rows, up to `jobs` programs at a time: every fold model
+ * (their agreement is reported under every rule), and the refit model under rule refit.
+ */
+export async function newRowProbabilities(
+  ctx: CommandContext,
+  models: { folds: readonly SavedFolder[]; refit?: SavedFolder | null; rule: ReconcileRule },
+  ids: readonly string[],
+  X: Matrix,
+  jobs = availableParallelism(),
+): Promise<GivenProbabilities> {
+  const folds = await pooled(models.folds, jobs, (m) => predictSaved(ctx, m, ids, X));
+  const refit = models.rule === 'refit' && models.refit ? await predictSaved(ctx, models.refit, ids, X) : undefined;
+  return { folds, refit };
 }
 
 /** A saved fold model's probabilities for new rows (already in the saved feature order), through its pipeline and the program. */
-export async function predictSaved(
-  ctx: CommandContext,
-  saved: { pipeline: FittedPipeline; model: unknown; repeat: number; fold: number },
-  ids: readonly string[],
-  X: Matrix,
-): Promise<Float64Array> {
+async function predictSaved(ctx: CommandContext, saved: SavedFolder, ids: readonly string[], X: Matrix): Promise<Float64Array> {
   const where = saved.fold === 0 ? 'the refit model' : `the model of repeat ${saved.repeat}, fold ${saved.fold}`;
   return inTempFolder(async (dir) => {
     await writeFolder(join(dir, 'model'), (saved.model as FolderModel).folder);

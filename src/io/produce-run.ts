@@ -2,7 +2,7 @@
 import { hasErrors } from '../problems/problem.js';
 import { assembleResult, planFolds, type CvHooks } from '../run/cross-validate.js';
 import type { FoldFit } from '../run/fit-fold.js';
-import { asUserError, runProtocol, type RunInput, type RunOutput } from '../run/run.js';
+import { asUserError, refitRows, runProtocol, type RunInput, type RunOutput } from '../run/run.js';
 import { crossValidateInWorkers } from './fold-workers.js';
 import { permutedScoresInWorkers, type PermutationProgress } from './permutation-workers.js';
 import { validateProtocol, type ValidationReport } from './validate.js';
@@ -13,11 +13,9 @@ import type { AuditResult } from '../audit/audit.js';
 import { dirname, resolve } from 'node:path';
 import { error, FoldsealError } from '../problems/problem.js';
 import { locate } from '../protocol/document.js';
-import { testsFoldOneOnly } from '../protocol/types.js';
 import type { GivenProbabilities } from '../reconcile/reconcile.js';
 import type { SavedModel } from '../reconcile/models-file.js';
-import { idOrder } from '../split/key.js';
-import { commandFileProblems, commandFold, commandFolds, commandLine, predictSaved, type CommandContext } from './command-model.js';
+import { commandFileProblems, commandFold, commandFolds, commandLine, newRowProbabilities, type CommandContext } from './command-model.js';
 
 export interface Produced {
   report: ValidationReport;
@@ -110,21 +108,13 @@ async function runCommandModel(protocolPath: string, report: ValidationReport, i
   const cv = assembleResult(p, input.table, input.assignment, plans, fits);
   let refit: SavedModel | undefined;
   if (input.refit || p.reconcile.rule === 'refit') {
-    const all = idOrder(input.table.ids);
-    // A final protocol's sealed rows (fold 1) never train the refit model, as for built-in models.
-    const train = testsFoldOneOnly(p) ? all.filter((row) => input.assignment.fold[row] !== 1) : all;
+    const train = refitRows(p, input.table.ids, input.assignment);
     const fit = await commandFold(p, ctx, input.table, { repeat: 0, fold: 0, train, test: new Int32Array(0) });
     refit = { repeat: 0, fold: 0, pipeline: fit.pipeline, model: fit.model };
   }
   let newRows: GivenProbabilities | undefined;
   const nr = input.newRows;
-  if (nr) {
-    // Every fold model answers (their agreement is reported under every rule); the refit model too under rule refit.
-    newRows = {
-      folds: await Promise.all(cv.models.map((m) => predictSaved(ctx, m, nr.ids, nr.X))),
-      refit: refit && p.reconcile.rule === 'refit' ? await predictSaved(ctx, refit, nr.ids, nr.X) : undefined,
-    };
-  }
+  if (nr) newRows = await newRowProbabilities(ctx, { folds: cv.models, refit, rule: p.reconcile.rule }, nr.ids, nr.X, options.jobs);
   const changed = await commandFileProblems(spec, cwd, at, true);
   if (changed.length) throw new FoldsealError(changed, 1);
   return { cv, external: { refit, newRows } };

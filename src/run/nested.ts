@@ -14,6 +14,7 @@ import type { Protocol, TunedSetting, TuneSettings } from '../protocol/types.js'
 import { assignFolds } from '../split/assign.js';
 import { foldRows, type Assignment } from '../split/assignment.js';
 import { splitRules } from '../split/registry.js';
+import { allRows } from '../split/rule.js';
 import { takeInt, takeRows } from '../table/matrix.js';
 import { csvCells } from '../table/csv-write.js';
 import { fitFold, type FoldData, type FoldFit } from './fit-fold.js';
@@ -58,12 +59,12 @@ export function searchGrid(
   const sub = { X: takeRows(d.X, train), y, classes: d.classes, featureNames: d.featureNames, ids };
   const inner = assignFolds(input, p.tune.split, within);
   // The rows are already in id order, so the inner plans visit them in that order too.
-  const order = new Int32Array(ids.length);
-  for (let i = 0; i < order.length; i++) order[i] = i;
+  const order = allRows(ids.length);
   const folds = splitRules[p.tune.split.rule].tests === 'fold-1' ? [1] : Array.from({ length: inner.folds }, (_, i) => i + 1);
   const plans: { repeat: number; fold: number; train: Int32Array; test: Int32Array }[] = [];
   for (let r = 1; r <= inner.repeats; r++) for (const f of folds) plans.push({ repeat: r, fold: f, ...foldRows(inner, r, f, order) });
   const metric = metricFns[p.tune.metric];
+  const truths = plans.map((plan) => takeInt(y, plan.test));
   const all = candidates(p.grid);
   const memo = newMomentMemo();
   const scores = all.map((pick) => {
@@ -75,8 +76,8 @@ export function searchGrid(
     }
     let sum = 0;
     let defined = 0;
-    plans.forEach((plan, i) => {
-      const v = metric.value(scored(takeInt(y, plan.test), fits[i].proba, k, d.positive));
+    truths.forEach((truth, i) => {
+      const v = metric.value(scored(truth, fits[i].proba, k, d.positive));
       if (v === null) return;
       sum += v;
       defined++;

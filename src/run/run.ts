@@ -171,15 +171,19 @@ export function asUserError(e: unknown, protocolFile: string): unknown {
   return e instanceof FitError ? new FoldsealError(error(e.code, e.message, { file: protocolFile, hint: e.hint }), 1) : e;
 }
 
+/** The rows a refit model is fitted on, in id order: every labeled row, but a final protocol's sealed rows (fold 1). */
+export function refitRows(p: Pick<Protocol, 'split' | 'final'>, ids: readonly string[], a: Assignment): Int32Array {
+  const all = idOrder(ids);
+  return testsFoldOneOnly(p) ? all.filter((row) => a.fold[row] !== 1) : all;
+}
+
 /**
  * One pipeline and model fitted on every labeled row, visited in id order. A tuned protocol
  * first searches its grid on those rows (as outer repeat 0, fold 0) and fits the winner.
  */
 function fitOnAll(input: RunInput): { model: SavedModel; search?: FoldSearch } {
   const { table } = input;
-  // A final protocol tests fold 1 (the sealed rows): its refit model is fitted on the other rows only.
-  const all = idOrder(table.ids);
-  const order = testsFoldOneOnly(input.protocol) ? all.filter((row) => input.assignment.fold[row] !== 1) : all;
+  const order = refitRows(input.protocol, table.ids, input.assignment);
   return guardFit(input.protocolFile, () => {
     const tune = input.protocol.tune;
     let p: Pick<Protocol, 'preprocess' | 'model'> = input.protocol;

@@ -18,7 +18,7 @@ import { delimiterFor } from '../../table/load.js';
 import { scoreNewRows, type NewRowScores } from '../../reconcile/new-row-scores.js';
 import { newRowScoreLines } from '../cv-table.js';
 import { newRowsFromBytes, type NewRows } from '../../table/new-rows.js';
-import { commandFileProblems, commandLine, predictSaved } from '../../io/command-model.js';
+import { commandFileProblems, commandLine, newRowProbabilities } from '../../io/command-model.js';
 import type { GivenProbabilities } from '../../reconcile/reconcile.js';
 import { asUserError } from '../../run/run.js';
 import type { CommandIo, ExitCode } from '../io.js';
@@ -199,8 +199,5 @@ async function commandProbabilities(args: ApplyArgs, saved: ModelsFile, rule: Re
   const files = await commandFileProblems(spec, cwd, () => at);
   if (files.length) throw new FoldsealError(files, 1);
   const ctx = { spec, cwd, classes: saved.classes, options: c.options, at };
-  return {
-    folds: await Promise.all(saved.folds.map((m) => predictSaved(ctx, m, rows.ids, rows.X))),
-    refit: rule === 'refit' && saved.refit ? await predictSaved(ctx, saved.refit, rows.ids, rows.X) : undefined,
-  };
+  return newRowProbabilities(ctx, { folds: saved.folds, refit: saved.refit, rule }, rows.ids, rows.X);
 }
