@@ -1,13 +1,16 @@
 /**
  * Parquet files (the columnar format applied ML teams keep feature tables in), read through
- * hyparquet: numeric columns straight into Float64Arrays, others as text. Recognized by their
+ * hyparquet: numeric columns straight into one row-major Float64Array, others as text. Recognized by their
  * magic bytes ("PAR1" at both ends), whatever their name. gzip and Brotli pages are decompressed
- * with node:zlib; snappy is hyparquet's own; other codecs are reported.
+ * with node:zlib, snappy by snappy.ts; other codecs are reported. Flat numeric and text columns
+ * are decoded by parquet-pages.ts straight into their arrays.
  */
-import { brotliDecompressSync, gunzipSync } from 'node:zlib';
 import type { FileMetaData } from 'hyparquet';
 import { error, type Problem } from '../problems/problem.js';
 import type { ColumnTable } from '../table/columns.js';
+import { compressors, decompress } from './parquet-codecs.js';
+import { forcedThreads } from './threads.js';
+import { decodeColumn, decodeNumberColumns, fastKind, NeedsGeneralReader, Scratch } from './parquet-pages.js';
 
 export function isParquet(bytes: Uint8Array): boolean {
   const n = bytes.length;
@@ -15,31 +18,22 @@ export function isParquet(bytes: Uint8Array): boolean {
   return n >= 12 && par1(0) && par1(n - 4);
 }
 
-const compressors = {
-  GZIP: (input: Uint8Array) => new Uint8Array(gunzipSync(input)),
-  BROTLI: (input: Uint8Array) => new Uint8Array(brotliDecompressSync(input)),
-};
-
 const NUMERIC = new Set(['DOUBLE', 'FLOAT', 'INT32', 'INT64']);
 
 export async function readParquet(
   bytes: Uint8Array,
   shownAs: string,
   where: Partial<Problem> = {},
+  twin?: ParquetTwin,
 ): Promise<{ table: ColumnTable; problem?: undefined } | { problem: Problem }> {
   const fail = (why: string, hint?: string) => ({
     problem: error('data-bad-parquet', `file ${shownAs} is a Parquet file foldseal cannot read: ${why}`, { ...where, hint }),
   });
-  // hyparquet reads an ArrayBuffer (a large file arrives in shared memory for the row thread: copied).
-  const file =
-    bytes.buffer instanceof ArrayBuffer
-      ? bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength)
-      : Uint8Array.from(bytes).buffer;
   // Loaded only for a Parquet file: the library costs every other run ~45 ms of start-up.
-  const { parquetMetadata } = await import('hyparquet');
+  const { parquetMetadata } = await import('hyparquet/src/metadata.js');
   let metadata: FileMetaData;
   try {
-    metadata = parquetMetadata(file);
+    metadata = parquetMetadata(bytes);
   } catch (e) {
     return fail((e as Error).message);
   }
@@ -47,53 +41,124 @@ export async function readParquet(
   const leaves = metadata.schema.slice(1);
   if (leaves.length !== (root.num_children ?? 0) || leaves.some((s) => s.num_children))
     return fail('it has nested columns', 'write a flat table: one column per feature');
-  const rows = Number(metadata.num_rows);
   const names = leaves.map((s) => s.name);
   const numeric = leaves.map((s) => NUMERIC.has(s.type ?? '') && !s.logical_type && !s.converted_type);
-  // Decoding half of the columns on a second thread was tried: on this project's 2-core machine it
-  // gained nothing (the second core adds little here; see the README, Performance).
-  let columns: (Float64Array | string[])[];
   try {
-    columns = await decodeColumns(file, metadata, names, numeric);
+    return { table: await decodeColumns(bytes, metadata, names, numeric, twin) };
   } catch (e) {
     const message = (e as Error).message;
     return fail(message, /compress|codec/i.test(message) ? 'write it with snappy, gzip, Brotli or no compression' : undefined);
   }
-  return { table: { names, rows, columns } };
 }
 
-/** The named columns of a Parquet file: numeric ones as Float64Array (NaN where null), others as text. */
+/**
+ * Another thread that decodes a share of the numeric columns into the shared block, given the
+ * file in shared memory; its answer waits for it: the columns it gave back, or a broken file.
+ */
+export type ParquetTwin = {
+  numbers(length: number): Float64Array;
+  parquet(job: {
+    file: Uint8Array;
+    cols: number[];
+    slots: number[];
+    numbers: Float64Array;
+    width: number;
+    /** Set to 1 once the other thread has touched numbers[touch[0]..touch[1]). */
+    ready: Int32Array;
+    touch: [number, number];
+  }): () => {
+    back: number[];
+    broken?: string;
+  };
+};
+
+/** Below this many compressed bytes of numeric columns a second thread is not worth its message (FOLDSEAL_THREADS=2 forces it). */
+const TWIN_BYTES = 4 * 1024 * 1024;
+
+/**
+ * The columns of a Parquet file: numeric ones into their slot of one row-major block (NaN where
+ * null), others as text. Flat numeric and text columns take the fast path (parquet-pages.ts), the
+ * numeric ones shared with `twin` when the file is large and in shared memory; the rest, and any
+ * column that path gives back, go through hyparquet's general reader.
+ */
 async function decodeColumns(
-  file: ArrayBuffer,
+  file: Uint8Array,
   metadata: FileMetaData,
   names: string[],
   numeric: boolean[],
-): Promise<(Float64Array | string[])[]> {
+  twin: ParquetTwin | undefined,
+): Promise<ColumnTable> {
   const rows = Number(metadata.num_rows);
-  const columns: (Float64Array | string[])[] = names.map((_, c) =>
-    numeric[c] ? new Float64Array(rows).fill(Number.NaN) : new Array<string>(rows).fill(''),
+  let width = 0;
+  const columns = names.map((_, c) => (numeric[c] ? width++ : new Array<string>(rows)));
+  const fast = names.map((_, c) => fastKind(metadata.schema[c + 1]) === (numeric[c] ? 'number' : 'text'));
+  const numberCols = names.flatMap((_, c) => (fast[c] && numeric[c] ? [c] : []));
+  const sizes = numberCols.map((c) =>
+    metadata.row_groups.reduce((sum, g) => sum + Number(g.columns[c].meta_data?.total_compressed_size ?? 0), 0),
   );
-  if (!names.length) return columns;
+  const total = sizes.reduce((a, b) => a + b, 0);
+  const shared = twin !== undefined && file.buffer instanceof SharedArrayBuffer && (total >= TWIN_BYTES || (forcedThreads() ?? 0) >= 2);
+  const numbers = shared ? twin.numbers(rows * width) : new Float64Array(rows * width);
+  const slotOf = (c: number) => columns[c] as number;
+  // The other thread takes the last columns, a little over half of the bytes (it is faster: it does not hold the texts).
+  let mine = numberCols.length;
+  for (let sum = 0; shared && mine > 0 && sum + sizes[mine - 1] <= 0.55 * total; ) sum += sizes[--mine];
+  const theirs = numberCols.slice(mine);
+  // Fresh memory is slow to touch the first time: before either thread writes a cell, this one
+  // touches the first third of the block's rows and decodes the text columns while the other
+  // finishes hashing the file and touches the rest, then signals `ready`.
+  const ready = new Int32Array(new SharedArrayBuffer(4));
+  const third = Math.floor(rows / 3) * width;
+  const answer = theirs.length
+    ? twin?.parquet({ file, cols: theirs, slots: theirs.map(slotOf), numbers, width, ready, touch: [third, rows * width] })
+    : undefined;
+  if (answer) numbers.fill(0, 0, third);
+  const scratch = new Scratch();
+  const back: number[] = [];
+  names.forEach((_, c) => {
+    const column = columns[c];
+    if (typeof column === 'number' || !fast[c]) return;
+    try {
+      decodeColumn(file, metadata, c, { texts: column }, decompress, scratch);
+    } catch (e) {
+      if (!(e instanceof NeedsGeneralReader)) throw e;
+      back.push(c);
+    }
+  });
+  while (answer && Atomics.load(ready, 0) === 0) Atomics.wait(ready, 0, 0, 1000);
+  const mineCols = numberCols.slice(0, mine);
+  back.push(...decodeNumberColumns(file, metadata, mineCols, mineCols.map(slotOf), numbers, width, decompress));
+  const other = answer?.();
+  if (other?.broken) throw new Error(other.broken);
+  back.push(...(other?.back ?? []));
+  const general: string[] = [];
+  names.forEach((name, c) => {
+    const column = columns[c];
+    if (fast[c] && !back.includes(c)) return;
+    // The general reader skips nulls, so its columns start filled.
+    if (typeof column === 'number') for (let r = 0; r < rows; r++) numbers[r * width + column] = Number.NaN;
+    else column.fill('');
+    general.push(name);
+  });
+  const table: ColumnTable = { names, rows, columns, numbers, width };
+  if (!general.length) return table;
   const { parquetRead } = await import('hyparquet');
+  const at = new Map(names.map((name, c) => [name, c]));
   await parquetRead({
-    file,
+    // Slices are copied: the file may sit in shared memory, which the library does not take.
+    file: { byteLength: file.byteLength, slice: (start, end) => file.slice(start, end).buffer },
     metadata,
-    columns: names,
+    columns: general,
     compressors,
     onChunk: ({ columnName, columnData, rowStart }) => {
-      const out = columns[names.indexOf(columnName)];
-      // A required double column arrives as a Float64Array: one copy.
-      if (out instanceof Float64Array && columnData instanceof Float64Array) {
-        out.set(columnData, rowStart);
-        return;
-      }
+      const column = columns[at.get(columnName) as number];
       for (let i = 0; i < columnData.length; i++) {
         const v = columnData[i] as unknown;
         if (v === null || v === undefined) continue;
-        if (out instanceof Float64Array) out[rowStart + i] = typeof v === 'bigint' ? Number(v) : (v as number);
-        else out[rowStart + i] = typeof v === 'string' ? v : String(v);
+        if (typeof column === 'number') numbers[(rowStart + i) * width + column] = typeof v === 'bigint' ? Number(v) : (v as number);
+        else column[rowStart + i] = typeof v === 'string' ? v : String(v);
       }
     },
   });
-  return columns;
+  return table;
 }

@@ -8,11 +8,12 @@ import { MessageChannel, receiveMessageOnPort, Worker } from 'node:worker_thread
 import { forcedThreads } from './threads.js';
 import { deriveKeys } from '../split/key.js';
 import type { RowHelper, RowsPart } from '../table/plain.js';
+import type { ParquetTwin } from './parquet.js';
 
 /** Files below this size read faster on one thread than a worker takes to start. */
 export const SHARED_READ_BYTES = 8 * 1024 * 1024;
 
-export interface RowThread extends RowHelper {
+export interface RowThread extends RowHelper, ParquetTwin {
   /** Starts SHA-256 of bytes on the other thread; the returned function waits for the hex digest. */
   sha256(bytes: Uint8Array): () => string;
   /** deriveKeys(ids, seed, repeat), the second half of the ids on the other thread. */
@@ -22,6 +23,11 @@ export interface RowThread extends RowHelper {
    * other thread then derives the keys of the ids it parses right after parsing them.
    */
   expectKeys(plan: { idColumn: string; seed: number; repeats: number }): void;
+  /**
+   * The table's ids are known before the table is built (a decoded Parquet file): the other
+   * thread derives the keys of the second half of them for every repeat meanwhile.
+   */
+  keysAhead(ids: readonly string[], seed: number, repeats: number): void;
   close(): Promise<void>;
 }
 
@@ -37,9 +43,12 @@ export function rowThreadsAvailable(size: number): boolean {
 }
 
 /** Started early (before the file is read) so the worker is loaded by the time rows are parsed. */
-export function startRowThread(): RowThread {
+export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
   const { port1, port2 } = new MessageChannel();
-  const worker = new Worker(new URL('./row-worker.js', import.meta.url), { workerData: { port: port2 }, transferList: [port2] });
+  const worker = new Worker(new URL('./row-worker.js', import.meta.url), {
+    workerData: { port: port2, parquet: options.parquet === true },
+    transferList: [port2],
+  });
   // Jobs run in order and each answers once, errors included; answers are matched by id.
   let nextId = 0;
   const answers = new Map<number, Record<string, unknown>>();
@@ -62,7 +71,9 @@ export function startRowThread(): RowThread {
   };
   let plan: { idColumn: string; seed: number; repeats: number } | undefined;
   // Keys the other thread derived for the ids of rows [from, to), all repeats, once its rows parsed.
-  let early: { seed: number; from: number; to: number; out: Uint8Array; wait: () => unknown; parsed: boolean } | undefined;
+  let early:
+    | { seed: number; from: number; to: number; out: Uint8Array; wait: () => unknown; parsed: boolean; ids?: readonly string[] }
+    | undefined;
   return {
     numbers: (length) => new Float64Array(new SharedArrayBuffer(length * 8)),
     expectKeys(p) {
@@ -71,6 +82,10 @@ export function startRowThread(): RowThread {
     sha256(bytes) {
       const wait = post({ kind: 'hash', bytes });
       return () => wait().sha256 as string;
+    },
+    parquet(job) {
+      const wait = post({ kind: 'parquet', ...job });
+      return () => wait() as { back: number[]; broken?: string };
     },
     start(t, numberCols, textCols, from, to, numbers) {
       const table = {
@@ -101,9 +116,24 @@ export function startRowThread(): RowThread {
         return part;
       };
     },
+    keysAhead(ids, seed, repeats) {
+      const from = ids.length >> 1;
+      const out = new Uint8Array(new SharedArrayBuffer(repeats * (ids.length - from) * 32));
+      const upper = ids.slice(from);
+      early = {
+        seed,
+        from,
+        to: ids.length,
+        out,
+        wait: post({ kind: 'keys-of-ids', ids: upper, seed, repeats, out }),
+        parsed: true,
+        ids: upper,
+      };
+    },
     keys(ids, seed, repeat) {
       const out = new Uint8Array(new SharedArrayBuffer(ids.length * 32));
-      if (early?.parsed && early.seed === seed && early.to === ids.length) {
+      const same = (e: NonNullable<typeof early>) => e.ids === undefined || e.ids.every((id, i) => id === ids[e.from + i]);
+      if (early?.parsed && early.seed === seed && early.to === ids.length && same(early)) {
         // The ids are the ones both threads just parsed: only the first part is left to derive here.
         const { from, to } = early;
         out.set(deriveKeys(ids.slice(0, from), seed, repeat));

@@ -1,30 +1,65 @@
-/** Worker thread entry: hashes the file, parses the rows, or derives the split keys it is sent (see row-helper.ts). */
+/**
+ * Worker thread entry: hashes the file, parses the rows, decodes a share of a Parquet file's
+ * numeric columns, or derives the split keys it is sent (see row-helper.ts).
+ */
 import { createHash } from 'node:crypto';
 import { workerData, parentPort, type MessagePort } from 'node:worker_threads';
 import { deriveKeys } from '../split/key.js';
 import type { PlainTable } from '../table/plain.js';
 import { decodeSpan } from '../table/grid.js';
 import { extractRows, type RowsPart } from '../table/plain-rows.js';
+import type { ParquetTwin } from './parquet.js';
 
-const port = (workerData as { port: MessagePort }).port;
+const { port, parquet } = workerData as { port: MessagePort; parquet: boolean };
+
+// The modules that decode a Parquet file, loaded while the main thread still reads it.
+const parquetModules = () =>
+  Promise.all([import('hyparquet/src/metadata.js'), import('./parquet-pages.js'), import('./parquet-codecs.js')]);
+const loading = parquet ? parquetModules() : undefined;
 
 type Job = { id: number; done: Int32Array } & (
   | { kind: 'hash'; bytes: Uint8Array }
   | { kind: 'rows'; table: PlainTable; numberCols: number[]; textCols: number[]; from: number; to: number; numbers: Float64Array }
   | { kind: 'keys'; ids: string[]; seed: number; repeat: number; out: Uint8Array }
   | { kind: 'keys-of-rows'; slot: number; textCount: number; seed: number; repeats: number; out: Uint8Array }
+  | { kind: 'keys-of-ids'; ids: string[]; seed: number; repeats: number; out: Uint8Array }
+  | ({ kind: 'parquet' } & Parameters<ParquetTwin['parquet']>[0])
 );
+
+/** The share of a Parquet file's numeric columns this thread was given; a broken file is an answer, not a failure. */
+async function parquetShare(job: Extract<Job, { kind: 'parquet' }>): Promise<{ back: number[]; broken?: string }> {
+  job.numbers.fill(0, job.touch[0], job.touch[1]);
+  Atomics.store(job.ready, 0, 1);
+  Atomics.notify(job.ready, 0);
+  const [{ parquetMetadata }, { decodeNumberColumns }, { decompress }] = await (loading ?? parquetModules());
+  try {
+    const metadata = parquetMetadata(job.file);
+    return { back: decodeNumberColumns(job.file, metadata, job.cols, job.slots, job.numbers, job.width, decompress) };
+  } catch (e) {
+    return { back: [], broken: (e as Error).message };
+  }
+}
 
 // The last rows job's table and result, for the keys of the ids it parsed.
 let last: { table: PlainTable; part: RowsPart | undefined } | undefined;
 
+// Jobs run one at a time, in the order they came (a Parquet share waits for its modules).
+let queue = Promise.resolve();
 parentPort!.on('message', (job: Job) => {
+  queue = queue.then(() => run(job));
+});
+
+async function run(job: Job): Promise<void> {
   try {
-    if (job.kind === 'hash') port.postMessage({ id: job.id, sha256: createHash('sha256').update(job.bytes).digest('hex') });
+    if (job.kind === 'parquet') port.postMessage({ id: job.id, ...(await parquetShare(job)) });
+    else if (job.kind === 'hash') port.postMessage({ id: job.id, sha256: createHash('sha256').update(job.bytes).digest('hex') });
     else if (job.kind === 'rows') {
       const part = extractRows(job.table, job.numberCols, job.textCols, job.from, job.to, job.numbers);
       last = { table: job.table, part };
       port.postMessage({ id: job.id, part });
+    } else if (job.kind === 'keys-of-ids') {
+      for (let r = 0; r < job.repeats; r++) job.out.set(deriveKeys(job.ids, job.seed, r + 1), r * job.ids.length * 32);
+      port.postMessage({ id: job.id });
     } else if (job.kind === 'keys-of-rows') {
       // Ragged rows: nothing was parsed, and the caller does not use these keys.
       if (last?.part) {
@@ -43,4 +78,4 @@ parentPort!.on('message', (job: Job) => {
   }
   Atomics.store(job.done, 0, 1);
   Atomics.notify(job.done, 0);
-});
+}

@@ -2,7 +2,7 @@
  * The imperative shell around validation: reads the protocol, its data, its pinned
  * file and new rows, hashes them, and hands everything to the pure checks.
  */
-import { stat } from 'node:fs/promises';
+import { open, stat } from 'node:fs/promises';
 import { dirname, relative, resolve } from 'node:path';
 import { error, hasErrors, type Problem } from '../problems/problem.js';
 import { locate } from '../protocol/document.js';
@@ -112,11 +112,23 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
     (st) => st.size,
     () => 0,
   );
-  const rowThread = rowThreadsAvailable(size) ? startRowThread() : undefined;
+  const rowThread = rowThreadsAvailable(size) ? startRowThread({ parquet: await startsLikeParquet(paths.data) }) : undefined;
   try {
     return await validateWithData({ ...parsed, protocol: p, source }, paths, at, rowThread, Boolean(options.describe));
   } finally {
     await rowThread?.close();
+  }
+}
+
+/** Does the file begin with Parquet's magic bytes? (The row thread then loads its decoder early.) */
+async function startsLikeParquet(path: string): Promise<boolean> {
+  const handle = await open(path).catch(() => undefined);
+  if (!handle) return false;
+  try {
+    const { buffer, bytesRead } = await handle.read(Buffer.alloc(4), 0, 4, 0);
+    return bytesRead === 4 && buffer.toString('latin1') === 'PAR1';
+  } finally {
+    await handle.close();
   }
 }
 
@@ -165,7 +177,7 @@ async function validateWithData(
     return { ...parsed, problems, paths };
   }
   // The declared hashes are of the bytes on disk; a gzip file is then read as its text.
-  const text = await tableContent(data.bytes!, shown(paths.data), at(['data', 'file']));
+  const text = await tableContent(data.bytes!, shown(paths.data), at(['data', 'file']), rowThread);
   let sheet: SheetInput | undefined;
   if (paths.samples && p.data.samples) {
     const raw = await readBytes(paths.samples, shown(paths.samples), at(['data', 'samples', 'file']));
@@ -203,6 +215,12 @@ async function validateWithData(
   const helper = simple ? rowThread : undefined;
   if (helper && hashesIds(p.split) && p.data.id !== undefined)
     helper.expectKeys({ idColumn: p.data.id, seed: p.split.seed ?? 0, repeats: p.split.repeats });
+  // A decoded columnar file's ids are known already: the other thread derives half of their keys
+  // while this one builds the table.
+  const idColumn = !(text.content instanceof Uint8Array) && p.data.id !== undefined ? text.content.names.indexOf(p.data.id) : -1;
+  const ids = idColumn >= 0 && !(text.content instanceof Uint8Array) ? text.content.columns[idColumn] : undefined;
+  if (rowThread && Array.isArray(ids) && ids.length >= 10_000 && hashesIds(p.split) && p.data.layout === 'samples-in-rows' && !sheet)
+    rowThread.keysAhead(ids, p.split.seed ?? 0, p.split.repeats);
   const built: ReturnType<typeof tableFromLayout> = simple
     ? tableFromBytes(data.bytes!, shown(paths.data), { ...dataRoles(p), keepOtherColumns: describe }, p.data.format, roleLocate, helper)
     : tableFromLayout(
@@ -234,7 +252,7 @@ async function validateWithData(
     table: built.table,
     sha256: data.sha256!,
     pinned,
-    idKeys: helper && splitKeysOnTwoThreads(p, built.table.ids, helper),
+    idKeys: rowThread && splitKeysOnTwoThreads(p, built.table.ids, rowThread),
   });
   problems.push(...semantic.problems);
   let newRows: NewRows | undefined;

@@ -9,45 +9,62 @@ import { isNumberText } from './number.js';
 export interface ColumnTable {
   names: string[];
   rows: number;
-  /** Per column: numbers, or texts ('' where null). */
-  columns: (Float64Array | string[])[];
+  /** Per column: its texts ('' where null), or its slot in `numbers`. */
+  columns: (string[] | number)[];
+  /** The numeric columns, row-major: row r's slot s at numbers[r * width + s]; NaN where null. */
+  numbers: Float64Array;
+  width: number;
 }
 
 export function columnsGrid(t: ColumnTable): Grid {
+  const { numbers, width } = t;
   const text = (r: number, c: number) => {
     const col = t.columns[c];
-    if (col instanceof Float64Array) return Number.isNaN(col[r]) ? '' : String(col[r]);
-    return col[r];
+    if (typeof col !== 'number') return col[r];
+    const v = numbers[r * width + col];
+    return Number.isNaN(v) ? '' : String(v);
   };
   const number = (r: number, c: number) => {
     const col = t.columns[c];
-    if (col instanceof Float64Array) return col[r];
+    if (typeof col === 'number') return numbers[r * width + col];
     return isNumberText(col[r]) ? Number(col[r]) : Number.NaN;
   };
+  // The first extraction of exactly the numeric columns, in order, takes the block as it is.
+  let taken = false;
   return {
     header: t.names,
     rows: t.rows,
-    rowLine: Int32Array.from({ length: t.rows }, (_, r) => r + 1),
+    rowLine: lineNumbers(t.rows),
     text,
     number,
     position: (r, c) => ({ line: r + 1, col: c + 1 }),
     extract(numberCols, textCols) {
-      const width = numberCols.length;
-      const numbers = new Float64Array(t.rows * width);
-      const failed: number[] = [];
-      // Row-major, row by row: each row's cells are written together.
-      const sources = numberCols.map((c) => t.columns[c]);
-      const parsed = sources.map((col, j) =>
-        col instanceof Float64Array ? col : Float64Array.from({ length: t.rows }, (_, r) => number(r, numberCols[j])),
-      );
-      for (let r = 0, k = 0; r < t.rows; r++) {
-        for (let j = 0; j < width; j++, k++) {
-          const v = parsed[j][r];
-          numbers[k] = v;
-          if (v !== v) failed.push(k);
+      const texts = textCols.map((c) => {
+        const col = t.columns[c];
+        return typeof col === 'number' ? Array.from({ length: t.rows }, (_, r) => text(r, c)) : col.slice();
+      });
+      const whole = !taken && numberCols.length === width && numberCols.every((c, j) => t.columns[c] === j);
+      let out = numbers;
+      if (whole) taken = true;
+      else {
+        const w = numberCols.length;
+        out = new Float64Array(t.rows * w);
+        for (let j = 0; j < w; j++) {
+          const c = numberCols[j];
+          const slot = t.columns[c];
+          if (typeof slot === 'number') for (let r = 0; r < t.rows; r++) out[r * w + j] = numbers[r * width + slot];
+          else for (let r = 0; r < t.rows; r++) out[r * w + j] = number(r, c);
         }
       }
-      return { numbers, failed, texts: textCols.map((c) => Array.from({ length: t.rows }, (_, r) => text(r, c))) };
+      const failed: number[] = [];
+      for (let k = 0; k < out.length; k++) if (out[k] !== out[k]) failed.push(k);
+      return { numbers: out, failed, texts };
     },
   };
+}
+
+function lineNumbers(rows: number): Int32Array {
+  const lines = new Int32Array(rows);
+  for (let r = 0; r < rows; r++) lines[r] = r + 1;
+  return lines;
 }

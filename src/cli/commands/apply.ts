@@ -169,7 +169,7 @@ function detectLayout(
     first = textColumn(read.table, 0);
   } else {
     header = content.names;
-    first = content.columns[0] instanceof Float64Array ? [] : content.columns[0];
+    first = typeof content.columns[0] === 'number' ? [] : content.columns[0];
   }
   return newRowsLayout(header, first, features, id);
 }

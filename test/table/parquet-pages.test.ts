@@ -1,0 +1,179 @@
+// foldseal's own Parquet page decoding (src/io/parquet-pages.ts, snappy.ts), checked against an
+// outside reader: hyparquet's general reader (parquetRead), decoding every column of the same
+// files. The files are written by Apache Arrow's Rust Parquet writer (parquet-wasm) in every
+// layout the fast path claims: data pages v1 and v2, dictionary and plain pages, many small
+// pages, many row groups, optional columns with nulls, DOUBLE/FLOAT/INT32/INT64 and UTF-8 text,
+// snappy/gzip/none; and one encoding the fast path gives back (BYTE_STREAM_SPLIT). Data:
+// scikit-learn's bundled breast-cancer table (test/reference/data).
+import { createRequire } from 'node:module';
+import { gunzipSync } from 'node:zlib';
+import t from 'tap';
+import { parquetRead } from 'hyparquet';
+import { referenceTable } from '../helpers.js';
+import { readParquet } from '../../src/io/parquet.js';
+import { startRowThread } from '../../src/io/row-helper.js';
+import { unsnappy } from '../../src/io/snappy.js';
+import type { ColumnTable } from '../../src/table/columns.js';
+
+const require = createRequire(import.meta.url);
+const pq = require('parquet-wasm/node');
+const arrow = require('apache-arrow');
+
+const { body } = referenceTable('breast-cancer.csv');
+const num = (r: string[], c: number) => Number(r[c]);
+
+function table() {
+  return arrow.tableFromArrays({
+    id: body.map((r) => r[0]),
+    // Text with nulls.
+    diagnosis: arrow.vectorFromArray(
+      body.map((r, i) => (i % 37 === 5 ? null : r[1])),
+      new arrow.Utf8(),
+    ),
+    required: Float64Array.from(body, (r) => num(r, 2)),
+    holes: arrow.vectorFromArray(
+      body.map((r, i) => (i % 11 === 3 ? null : num(r, 3))),
+      new arrow.Float64(),
+    ),
+    single: Float32Array.from(body, (r) => num(r, 4)),
+    whole: Int32Array.from(body, (r) => Math.round(num(r, 5) * 1000)),
+    wide: BigInt64Array.from(body, (r) => BigInt(Math.round(num(r, 6) * 1e6)) - 10n ** 12n),
+    split: Float64Array.from(body, (r) => num(r, 7)),
+  });
+}
+
+function write(options: { v2: boolean; dictionary: boolean; small: boolean; codec: number }): Uint8Array {
+  let props = new pq.WriterPropertiesBuilder()
+    .setCompression(options.codec)
+    .setWriterVersion(options.v2 ? pq.WriterVersion.V2 : pq.WriterVersion.V1)
+    .setDictionaryEnabled(options.dictionary)
+    .setColumnDictionaryEnabled('split', false)
+    .setColumnEncoding('split', pq.Encoding.BYTE_STREAM_SPLIT);
+  if (options.small) props = props.setDataPageSizeLimit(512).setWriteBatchSize(64).setMaxRowGroupSize(100);
+  return pq.writeParquet(pq.Table.fromIPCStream(arrow.tableToIPC(table(), 'stream')), props.build());
+}
+
+/** Every cell as hyparquet's general reader decodes it: nulls as NaN or '', integers as numbers. */
+async function reference(bytes: Uint8Array): Promise<Map<string, unknown[]>> {
+  const columns = new Map<string, unknown[]>();
+  await parquetRead({
+    file: bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength) as ArrayBuffer,
+    // hyparquet reads snappy itself; gzip through node:zlib.
+    compressors: { GZIP: (input: Uint8Array) => new Uint8Array(gunzipSync(input)) },
+    onChunk: ({ columnName, columnData, rowStart }) => {
+      const out = columns.get(columnName) ?? [];
+      columns.set(columnName, out);
+      for (let i = 0; i < columnData.length; i++) out[rowStart + i] = columnData[i];
+    },
+  });
+  return columns;
+}
+
+function cells(read: ColumnTable, name: string): unknown[] {
+  const c = read.names.indexOf(name);
+  const column = read.columns[c];
+  if (typeof column !== 'number') return column;
+  return Array.from({ length: read.rows }, (_, r) => read.numbers[r * read.width + column]);
+}
+
+function same(ours: unknown[], theirs: unknown[]): boolean {
+  if (ours.length !== theirs.length) return false;
+  return ours.every((v, i) => {
+    const w = theirs[i];
+    if (w === null || w === undefined) return typeof v === 'number' ? Number.isNaN(v) : v === '';
+    return Object.is(v, typeof w === 'bigint' ? Number(w) : w);
+  });
+}
+
+const layouts = [false, true].flatMap((v2) =>
+  [true, false].flatMap((dictionary) =>
+    [false, true].flatMap((small) =>
+      (
+        [
+          ['snappy', pq.Compression.SNAPPY],
+          ['gzip', pq.Compression.GZIP],
+          ['none', pq.Compression.UNCOMPRESSED],
+        ] as const
+      ).map(([codecName, codec]) => ({ v2, dictionary, small, codec, codecName })),
+    ),
+  ),
+);
+
+t.test('every page layout decodes as the general reader decodes it', async (t) => {
+  for (const layout of layouts) {
+    const name = `${layout.v2 ? 'v2' : 'v1'}, ${layout.dictionary ? 'dictionary' : 'plain'}, ${layout.small ? 'small pages and row groups' : 'one row group'}, ${layout.codecName}`;
+    const bytes = write(layout);
+    const read = await readParquet(bytes, name);
+    if (read.problem) {
+      t.fail(`${name}: ${read.problem.message}`);
+      continue;
+    }
+    const theirs = await reference(bytes);
+    t.equal(read.table.rows, body.length, `${name}: rows`);
+    t.same(read.table.names, [...theirs.keys()], `${name}: columns`);
+    const wrong = read.table.names.filter((column) => !same(cells(read.table, column), theirs.get(column) ?? []));
+    t.same(wrong, [], `${name}: every cell of every column`);
+  }
+});
+
+t.test('the two-thread read (FOLDSEAL_THREADS=2) decodes the same cells', async (t) => {
+  const before = process.env.FOLDSEAL_THREADS;
+  process.env.FOLDSEAL_THREADS = '2';
+  const thread = startRowThread({ parquet: true });
+  t.teardown(async () => {
+    await thread.close();
+    if (before === undefined) delete process.env.FOLDSEAL_THREADS;
+    else process.env.FOLDSEAL_THREADS = before;
+  });
+  for (const small of [false, true]) {
+    const plain = write({ v2: false, dictionary: true, small, codec: pq.Compression.SNAPPY });
+    const shared = new Uint8Array(new SharedArrayBuffer(plain.length));
+    shared.set(plain);
+    const oneRead = await readParquet(plain, 'one');
+    const twoRead = await readParquet(shared, 'two', {}, thread);
+    const one = oneRead.problem ? undefined : oneRead.table;
+    const two = twoRead.problem ? undefined : twoRead.table;
+    t.ok(two && two.numbers.buffer instanceof SharedArrayBuffer, 'decoded into shared memory');
+    const bits = (x: ColumnTable | undefined) => x && Buffer.from(x.numbers.buffer, x.numbers.byteOffset, x.numbers.byteLength);
+    t.ok(one && two && bits(one)?.equals(bits(two) as Buffer), 'the same numbers, bit for bit');
+    t.same(two?.columns, one?.columns, 'the same texts and slots');
+  }
+  // A broken file found by the other thread is the same located problem.
+  const broken = write({ v2: false, dictionary: false, small: false, codec: pq.Compression.SNAPPY });
+  const shared = new Uint8Array(new SharedArrayBuffer(broken.length));
+  shared.set(broken);
+  const meta = await import('hyparquet').then((h) => h.parquetMetadata(broken));
+  const last = meta.row_groups[0].columns[6].meta_data!;
+  const at = Number(last.dictionary_page_offset ?? last.data_page_offset);
+  shared.fill(0xff, at + 40, at + 200);
+  const read = await readParquet(shared, 'b.parquet', { file: 'p.yaml' }, thread);
+  t.match(read.problem?.message, /file b\.parquet is a Parquet file foldseal cannot read/);
+});
+
+t.test('snappy: the format description, by hand, and its errors', async (t) => {
+  const bytes = (...xs: (number | string)[]) =>
+    Uint8Array.from(xs.flatMap((x) => (typeof x === 'string' ? [...Buffer.from(x, 'latin1')] : [x])));
+  const text = (u: Uint8Array) => Buffer.from(u).toString('latin1');
+  // Built by hand from format_description.txt: a varint length; a literal tag (length - 1) << 2;
+  // a copy with a 1-byte offset (tag 01, length - 4 in bits 2-4) that overlaps its own output.
+  t.equal(text(unsnappy(bytes(17, (6 - 1) << 2, 'hello ', 1 | ((11 - 4) << 2), 6), new Uint8Array(17))), 'hello hello hello');
+  // A 2-byte-offset copy (tag 10, length - 1 in bits 2-7), then a 4-byte-offset one (tag 11).
+  t.equal(
+    text(unsnappy(bytes(12, (4 - 1) << 2, 'abcd', 2 | ((4 - 1) << 2), 4, 0, 3 | ((4 - 1) << 2), 8, 0, 0, 0), new Uint8Array(12))),
+    'abcdabcdabcd',
+  );
+  // A literal longer than 60 bytes takes its length from the next byte (tag 60 << 2); copies of
+  // 16 bytes or more that do not overlap move as one block.
+  const long = 'x'.repeat(40) + 'y'.repeat(40);
+  t.equal(text(unsnappy(bytes(100, 60 << 2, 80 - 1, long, 2 | ((20 - 1) << 2), 40, 0), new Uint8Array(100))), long + 'y'.repeat(20));
+  for (const [why, input, size] of [
+    ['declared size', bytes(5, 0, 'a'), 1],
+    ['offset 0', bytes(5, 0, 'a', 1, 0), 5],
+    ['offset before the start', bytes(5, 0, 'a', 1, 2), 5],
+    ['literal past the end', bytes(3, 8, 'ab'), 3],
+    ['short output', bytes(3, 4, 'ab'), 3],
+    ['cut copy', bytes(5, 0, 'a', 2, 1), 5],
+    ['cut length', bytes(0x80), 0],
+  ] as const)
+    t.throws(() => unsnappy(input, new Uint8Array(size)), /snappy/, why);
+});
