@@ -3,8 +3,9 @@
 //   a) 100,000 rows × 50 features, 2 classes  — stratified 10-fold, gaussian-nb
 //   b) 200 rows × 20,000 features, 2 classes  — 10 × repeated stratified 5-fold,
 //      standardize + top-100 f-test + gaussian-nb
+//   c) 1,000,000 rows × 20 features, 2 classes — stratified 5-fold, gaussian-nb
 import { createHash } from 'node:crypto';
-import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { appendFileSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { seededRandom } from '../scripts/seeded-random.mjs';
 
@@ -14,15 +15,19 @@ mkdirSync(out, { recursive: true });
 function table(name, rows, cols, informative, seed) {
   const rand = seededRandom(seed);
   const normal = () => Math.sqrt(-2 * Math.log(1 - rand())) * Math.cos(2 * Math.PI * rand());
-  const lines = ['id,' + Array.from({ length: cols }, (_, j) => `f${j + 1}`).join(',') + ',class'];
-  for (let r = 0; r < rows; r++) {
-    const c = rand() < 0.4 ? 1 : 0;
-    const cells = new Array(cols);
-    for (let j = 0; j < cols; j++) cells[j] = (normal() + (j < informative ? 0.8 * c : 0)).toFixed(4);
-    lines.push(`s${r + 1},${cells.join(',')},${c ? 'case' : 'control'}`);
-  }
   const file = join(out, `${name}.csv`);
-  writeFileSync(file, lines.join('\n') + '\n');
+  writeFileSync(file, 'id,' + Array.from({ length: cols }, (_, j) => `f${j + 1}`).join(',') + ',class\n');
+  // Written in chunks of rows: a million rows as one string would not fit.
+  for (let r0 = 0; r0 < rows; r0 += 50_000) {
+    const lines = [];
+    for (let r = r0; r < Math.min(rows, r0 + 50_000); r++) {
+      const c = rand() < 0.4 ? 1 : 0;
+      const cells = new Array(cols);
+      for (let j = 0; j < cols; j++) cells[j] = (normal() + (j < informative ? 0.8 * c : 0)).toFixed(4);
+      lines.push(`s${r + 1},${cells.join(',')},${c ? 'case' : 'control'}`);
+    }
+    appendFileSync(file, lines.join('\n') + '\n');
+  }
   return createHash('sha256').update(readFileSync(file)).digest('hex');
 }
 
@@ -38,5 +43,11 @@ writeFileSync(
   `foldseal: 1\nname: bench-b\ndata: {file: b-200-x20000.csv, sha256: "${b}", id: id, label: class}\nsplit: {rule: ` +
     `stratified-kfold, folds: 5, repeats: 10, seed: 2}\npreprocess: [standardize, {select: {top: 100, by: f-test}}]\nmodel: ` +
     `{kind: gaussian-nb}\nmetrics: [accuracy, roc-auc, log-loss]\n`,
+);
+const c = table('c-1m-x20', 1_000_000, 20, 5, 3);
+writeFileSync(
+  join(out, 'c.yaml'),
+  `foldseal: 1\nname: bench-c\ndata: {file: c-1m-x20.csv, sha256: "${c}", id: id, label: class}\nsplit: {rule: ` +
+    `stratified-kfold, folds: 5, seed: 3}\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy, roc-auc, log-loss]\n`,
 );
 console.log(`wrote ${out}`);

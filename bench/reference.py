@@ -19,6 +19,8 @@ y = df["class"].to_numpy()
 X = df.drop(columns=["id", "class"]).to_numpy(dtype=float)
 if case == "a":
     splitter, make = StratifiedKFold(n_splits=10, shuffle=True, random_state=1), lambda: GaussianNB()
+elif case == "c":
+    splitter, make = StratifiedKFold(n_splits=5, shuffle=True, random_state=3), lambda: GaussianNB()
 else:
     splitter = RepeatedStratifiedKFold(n_splits=5, n_repeats=10, random_state=2)
     make = lambda: make_pipeline(StandardScaler(), SelectKBest(f_classif, k=100), GaussianNB())

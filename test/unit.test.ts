@@ -29,3 +29,4 @@ import './stats/compare-logic.part.js';
 import './cli/apply.part.js';
 import './cli/sign-verify.part.js';
 import './table/plain.part.js';
+import './reconcile/known-rows.part.js';

@@ -64,3 +64,38 @@ export function knownRows(
   });
   return out;
 }
+
+/**
+ * knownRows for a run's models.json, kept as two lists: a million-key object is slow to build and
+ * to serialize, so modelsJson writes this one's JSON text itself (exactly as JSON.stringify would
+ * write the object).
+ */
+export class KnownRowList {
+  constructor(
+    readonly ids: readonly string[],
+    readonly digests: readonly string[],
+  ) {}
+
+  static of(ids: readonly string[], X: NewRows['X'], features: readonly string[]): KnownRowList {
+    return new KnownRowList(ids, featureDigests(X, features));
+  }
+
+  /**
+   * The object's JSON: keys in a JavaScript object's own order — array indices ("0", "17"; at
+   * most 2³² − 2, no leading zero) ascending, then the other keys as inserted. Ids are unique.
+   */
+  json(): string {
+    const indices: number[] = [];
+    const others: number[] = [];
+    this.ids.forEach((id, k) => (isArrayIndex(id) ? indices : others).push(k));
+    indices.sort((a, b) => Number(this.ids[a]) - Number(this.ids[b]));
+    const parts = new Array<string>(this.ids.length);
+    let n = 0;
+    for (const list of [indices, others]) for (const k of list) parts[n++] = `${JSON.stringify(this.ids[k])}:"${this.digests[k]}"`;
+    return `{${parts.join(',')}}`;
+  }
+}
+
+function isArrayIndex(key: string): boolean {
+  return /^(?:0|[1-9]\d{0,9})$/.test(key) && Number(key) < 2 ** 32 - 1;
+}

@@ -4,6 +4,7 @@
  */
 import type { PreprocessStep, ModelKind, ReconcileRule, TieRule } from '../protocol/types.js';
 import type { FittedPipeline } from '../preprocess/pipeline.js';
+import { KnownRowList } from './known-ids.js';
 
 export const MODELS_VERSION = 1;
 
@@ -41,11 +42,17 @@ export interface ModelsFile {
    * id → feature digest (see table/row-digest.ts) of every row of the cross-validation: a new
    * row under one of these ids must be that row.
    */
-  'known-rows': Record<string, string>;
+  'known-rows': Record<string, string> | KnownRowList;
 }
 
 export function modelsJson(m: ModelsFile): string {
-  return JSON.stringify(m) + '\n';
+  const known = m['known-rows'];
+  const keys = Object.keys(m);
+  if (!(known instanceof KnownRowList)) return JSON.stringify(m) + '\n';
+  // The list's text is spliced in where JSON.stringify would have put the object: last.
+  if (keys[keys.length - 1] !== 'known-rows') return JSON.stringify({ ...m, 'known-rows': JSON.parse(known.json()) }) + '\n';
+  const { 'known-rows': _, ...rest } = m;
+  return `${JSON.stringify(rest).slice(0, -1)},"known-rows":${known.json()}}\n`;
 }
 
 /** 1 for each input feature that some model the rule uses reads (all of them for a model whose pipeline is not pruned). */

@@ -17,7 +17,7 @@ import { prunePipeline } from '../preprocess/pipeline.js';
 import { appliedCsv, applyRows, type AppliedRow } from '../reconcile/applied.js';
 import type { GivenProbabilities } from '../reconcile/reconcile.js';
 import { heldOutFromOof } from '../reconcile/held-out.js';
-import { knownRows } from '../reconcile/known-ids.js';
+import { KnownRowList } from '../reconcile/known-ids.js';
 import { MODELS_VERSION, modelsJson, type ModelsFile, type SavedModel } from '../reconcile/models-file.js';
 import { idOrder } from '../split/key.js';
 import { takeInt } from '../table/matrix.js';
@@ -100,7 +100,7 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
       : {}),
     folds: cv.models,
     refit,
-    'known-rows': knownRows(input.table.ids, input.table.X, input.table.featureNames),
+    'known-rows': KnownRowList.of(input.table.ids, input.table.X, input.table.featureNames),
   };
   const files: Record<string, string> = { 'predictions.csv': predictions, 'models.json': modelsJson(saved) };
   let applied: AppliedRow[] | undefined;

@@ -52,6 +52,7 @@ export function featureDigests(X: Matrix, names: readonly string[], rows?: reado
   const words = new Uint32Array(values.buffer);
   const count = rows ? rows.length : X.rows;
   const out: string[] = new Array(count);
+  const digest = Buffer.alloc(8);
   for (let k = 0; k < count; k++) {
     const r = rows ? rows[k] : k;
     canonicalRow(X, r, order, values);
@@ -65,7 +66,10 @@ export function featureDigests(X: Matrix, names: readonly string[], rows?: reado
     }
     h1 = Math.imul(h1 ^ (h1 >>> 16), 0x85ebca6b);
     h2 = Math.imul(h2 ^ (h2 >>> 13), 0xc2b2ae35);
-    out[k] = (h1 >>> 0).toString(16).padStart(8, '0') + ((h2 ^ (h2 >>> 16)) >>> 0).toString(16).padStart(8, '0');
+    // 16 hex digits, h1 then h2 (Buffer's hex is several times faster than toString(16) and padding).
+    digest.writeUInt32BE(h1 >>> 0, 0);
+    digest.writeUInt32BE((h2 ^ (h2 >>> 16)) >>> 0, 4);
+    out[k] = digest.toString('hex');
   }
   return out;
 }

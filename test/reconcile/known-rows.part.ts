@@ -1,0 +1,46 @@
+// models.json's known-rows written from two lists must be exactly what JSON.stringify writes for
+// the id → digest object (ECMA-262's own-key order, §10.1.11.1 OrdinaryOwnPropertyKeys: array
+// indices ascending, then other strings in insertion order), so runs stay byte-identical.
+import fc from 'fast-check';
+import t from 'tap';
+import { KnownRowList, knownRows } from '../../src/reconcile/known-ids.js';
+import { modelsJson, type ModelsFile } from '../../src/reconcile/models-file.js';
+
+const tricky = [
+  'b',
+  '10',
+  '2',
+  '0',
+  '01',
+  '4294967294',
+  '4294967295',
+  '-1',
+  '1.0',
+  '1e3',
+  ' 3',
+  'é',
+  '"q"',
+  'a\\b',
+  '9007199254740993',
+  '',
+];
+
+t.test('known rows from lists serialize as the object does', async (t) => {
+  const X = { rows: tricky.length, cols: 2, data: Float64Array.from({ length: tricky.length * 2 }, (_, i) => i * 0.5 - 3) };
+  const names = ['x', 'y'];
+  const object = knownRows(tricky, X, names);
+  const list = KnownRowList.of(tricky, X, names);
+  t.equal(list.json(), JSON.stringify(object), 'tricky ids');
+  const file = { 'foldseal-models': 1, folds: [], 'known-rows': object } as unknown as ModelsFile;
+  t.equal(modelsJson({ ...file, 'known-rows': list }), modelsJson(file), 'inside models.json');
+  // Not the last key: still the same text.
+  const { 'known-rows': _, ...rest } = file;
+  const first = { 'known-rows': list, ...rest } as unknown as ModelsFile;
+  t.equal(modelsJson(first), JSON.stringify({ 'known-rows': object, ...rest }) + '\n', 'known-rows not last');
+  fc.assert(
+    fc.property(fc.uniqueArray(fc.oneof(fc.string(), fc.nat().map(String)), { maxLength: 30 }), (ids) => {
+      const m = { rows: ids.length, cols: 1, data: Float64Array.from(ids, (_, i) => i) };
+      return KnownRowList.of(ids, m, ['v']).json() === JSON.stringify(knownRows(ids, m, ['v']));
+    }),
+  );
+});
