@@ -39,20 +39,29 @@ const t0 = performance.now();
 execFileSync(process.execPath, [bin, 'run', join(out, 'tall.yaml'), '--out', join(out, 'res'), '--force'], { stdio: 'ignore' });
 const ours = (performance.now() - t0) / 1000;
 execFileSync(process.execPath, [bin, 'folds', join(out, 'tall.yaml'), '--out', join(out, 'folds.csv')], { stdio: 'ignore' });
-const ref = (tol, solver = 'lbfgs') =>
-  execFileSync(
+// Each reference call is also timed as a whole process (start-up, reading the CSV, the fits),
+// which is what foldseal's time is.
+const ref = (tol, solver = 'lbfgs') => {
+  const start = performance.now();
+  const [fits, diff] = execFileSync(
     '/usr/bin/python3',
     [join(here, 'logistic_reference.py'), data, join(out, 'folds.csv'), join(out, 'res', 'predictions.csv'), String(tol), solver],
     { encoding: 'utf8' },
   )
     .trim()
     .split(' ');
-const [fast, fastDiff] = ref(1e-4);
-const [tight, tightDiff] = ref(1e-10);
-const [exact, exactDiff] = ref(1e-10, 'newton-cholesky');
+  return [fits, diff, (performance.now() - start) / 1000];
+};
+const [fast, fastDiff, fastWhole] = ref(1e-4);
+const [tight, tightDiff, tightWhole] = ref(1e-10);
+const [exact, exactDiff, exactWhole] = ref(1e-10, 'newton-cholesky');
 console.log(`${rows} × ${features}, 10-fold, standardize + logistic (l2 1)`);
 console.log(`foldseal run (whole process): ${ours.toFixed(2)} s`);
-console.log(`reference fits, lbfgs tol 1e-4 (its default): ${fast} s, max |Δp| ${fastDiff}`);
-console.log(`reference fits, lbfgs tol 1e-10: ${tight} s, max |Δp| ${tightDiff}`);
-console.log(`reference fits, newton-cholesky tol 1e-10 (converged): ${exact} s, max |Δp| ${exactDiff}`);
-console.log(`ratio foldseal / reference (lbfgs tol 1e-10): ${(ours / Number(tight)).toFixed(2)}`);
+const whole = (s) => `${s.toFixed(2)} s as a whole process`;
+console.log(`reference fits, lbfgs tol 1e-4 (its default): ${fast} s (${whole(fastWhole)}), max |Δp| ${fastDiff}`);
+console.log(`reference fits, lbfgs tol 1e-10: ${tight} s (${whole(tightWhole)}), max |Δp| ${tightDiff}`);
+console.log(`reference fits, newton-cholesky tol 1e-10 (converged): ${exact} s (${whole(exactWhole)}), max |Δp| ${exactDiff}`);
+console.log(
+  `ratio foldseal / reference, whole processes (lbfgs tol 1e-4): ${(ours / fastWhole).toFixed(2)}; ` +
+    `against its fits alone (lbfgs tol 1e-10): ${(ours / Number(tight)).toFixed(2)}`,
+);
