@@ -10,6 +10,7 @@
 import type { ColumnChunk, CompressionCodec, FileMetaData, ParquetType, SchemaElement } from 'hyparquet';
 import { Encodings, PageTypes } from 'hyparquet/src/constants.js';
 import { deserializeTCompactProtocol } from 'hyparquet/src/thrift.js';
+import { inSafeRange } from '../table/numeric.js';
 
 /** Thrown (and caught in parquet.ts) when a column needs the general reader. */
 export class NeedsGeneralReader extends Error {}
@@ -178,8 +179,9 @@ interface Page {
 const view = (bytes: Uint8Array) => new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
 
 /**
- * Decodes column `c` of every row group into `sink`, every cell written (NaN or '' where null).
- * Throws NeedsGeneralReader for anything outside the fast path, and Error for a broken file.
+ * Decodes column `c` of every row group into `sink`, every cell written (NaN or '' where null),
+ * and returns how many numbers are missing or outside the safe range (table/numeric.ts; 0 for
+ * text). Throws NeedsGeneralReader for anything outside the fast path, and Error for a broken file.
  */
 export function decodeColumn(
   file: Uint8Array,
@@ -188,10 +190,11 @@ export function decodeColumn(
   sink: Sink,
   decompress: Decompress,
   scratch: Scratch,
-): void {
+): number {
   const leaf = metadata.schema[c + 1];
   const type = leaf.type as ParquetType;
   const optional = leaf.repetition_type === 'OPTIONAL';
+  let suspect = 0;
   const rows = Number(metadata.num_rows);
   let rowStart = 0;
   for (const group of metadata.row_groups) {
@@ -252,7 +255,7 @@ export function decodeColumn(
         page = { total: h.values, encoding: h.encoding, defined, values: view(h.compressed ? unpack(rest, size - levels) : rest) };
       } else throw new NeedsGeneralReader();
       if (rowStart + seen + page.total > rows) throw new Error(`column ${leaf.name} holds more values than the file has rows`);
-      writePage(page, type, dictionary, sink, rowStart + seen, scratch);
+      suspect += writePage(page, type, dictionary, sink, rowStart + seen, scratch);
       seen += page.total;
     }
     if (seen !== Number(group.num_rows))
@@ -260,6 +263,7 @@ export function decodeColumn(
     rowStart += seen;
   }
   if (rowStart !== rows) throw new Error(`the row groups hold ${rowStart} rows, the file says ${rows}`);
+  return suspect;
 }
 
 /** Dictionary indices of a page's present values (bit width in the first byte, then the hybrid). */
@@ -279,7 +283,7 @@ function writePage(
   sink: Sink,
   at: number,
   scratch: Scratch,
-): void {
+): number {
   const { defined, total } = page;
   let present = total;
   if (defined) {
@@ -296,12 +300,12 @@ function writePage(
       const indices = indicesOf(page, present, words.length, scratch);
       if (!defined) for (let i = 0; i < total; i++) texts[at + i] = words[indices[i]];
       else for (let i = 0, k = 0; i < total; i++) texts[at + i] = defined[i] ? words[indices[k++]] : '';
-      return;
+      return 0;
     }
     const values = plainTexts(page.values, present);
     if (!defined) for (let i = 0; i < total; i++) texts[at + i] = values[i];
     else for (let i = 0, k = 0; i < total; i++) texts[at + i] = defined[i] ? values[k++] : '';
-    return;
+    return 0;
   }
   const values = scratch.f64(present);
   if (dictionaryEncoded) {
@@ -310,13 +314,17 @@ function writePage(
     for (let i = 0; i < present; i++) values[i] = numbers[indices[i]];
   } else plainNumbers(page.values, type, present, values);
   const { block, width, slot } = sink;
+  let suspect = total - present;
+  for (let i = 0; i < present; i++) if (!inSafeRange(values[i])) suspect++;
   if (!defined) for (let i = 0, k = at * width + slot; i < total; i++, k += width) block[k] = values[i];
   else for (let i = 0, j = 0, k = at * width + slot; i < total; i++, k += width) block[k] = defined[i] ? values[j++] : Number.NaN;
+  return suspect;
 }
 
 /**
  * Decodes the numeric columns `cols` (column `cols[i]` into slot `slots[i]` of the row-major
- * block) and returns those it gives back for the general reader. Throws Error for a broken file.
+ * block); returns those it gives back for the general reader and how many numbers are missing or
+ * out of the safe range. Throws Error for a broken file.
  * Both threads of a two-thread read call this, each for its share of the columns. (Decoding
  * eight columns side by side and then writing them row by row was tried: no faster.)
  */
@@ -328,16 +336,17 @@ export function decodeNumberColumns(
   block: Float64Array,
   width: number,
   decompress: Decompress,
-): number[] {
+): { back: number[]; suspect: number } {
   const scratch = new Scratch();
   const back: number[] = [];
+  let suspect = 0;
   cols.forEach((c, i) => {
     try {
-      decodeColumn(file, metadata, c, { block, width, slot: slots[i] }, decompress, scratch);
+      suspect += decodeColumn(file, metadata, c, { block, width, slot: slots[i] }, decompress, scratch);
     } catch (e) {
       if (!(e instanceof NeedsGeneralReader)) throw e;
       back.push(c);
     }
   });
-  return back;
+  return { back, suspect };
 }

@@ -68,6 +68,7 @@ export type ParquetTwin = {
     touch: [number, number];
   }): () => {
     back: number[];
+    suspect?: number;
     broken?: string;
   };
 };
@@ -100,9 +101,9 @@ async function decodeColumns(
   const shared = twin !== undefined && file.buffer instanceof SharedArrayBuffer && (total >= TWIN_BYTES || (forcedThreads() ?? 0) >= 2);
   const numbers = shared ? twin.numbers(rows * width) : new Float64Array(rows * width);
   const slotOf = (c: number) => columns[c] as number;
-  // The other thread takes the last columns, a little over half of the bytes (it is faster: it does not hold the texts).
+  // The other thread takes the last columns, about half of the bytes.
   let mine = numberCols.length;
-  for (let sum = 0; shared && mine > 0 && sum + sizes[mine - 1] <= 0.55 * total; ) sum += sizes[--mine];
+  for (let sum = 0; shared && mine > 0 && sum + sizes[mine - 1] <= 0.5 * total; ) sum += sizes[--mine];
   const theirs = numberCols.slice(mine);
   // Fresh memory is slow to touch the first time: before either thread writes a cell, this one
   // touches the first third of the block's rows and decodes the text columns while the other
@@ -127,10 +128,11 @@ async function decodeColumns(
   });
   while (answer && Atomics.load(ready, 0) === 0) Atomics.wait(ready, 0, 0, 1000);
   const mineCols = numberCols.slice(0, mine);
-  back.push(...decodeNumberColumns(file, metadata, mineCols, mineCols.map(slotOf), numbers, width, decompress));
+  const here = decodeNumberColumns(file, metadata, mineCols, mineCols.map(slotOf), numbers, width, decompress);
   const other = answer?.();
   if (other?.broken) throw new Error(other.broken);
-  back.push(...(other?.back ?? []));
+  back.push(...here.back, ...(other?.back ?? []));
+  const suspect = here.suspect + (other?.suspect ?? 0);
   const general: string[] = [];
   names.forEach((name, c) => {
     const column = columns[c];
@@ -140,7 +142,9 @@ async function decodeColumns(
     else column.fill('');
     general.push(name);
   });
-  const table: ColumnTable = { names, rows, columns, numbers, width };
+  // Every number checked while decoding (none given to the general reader): the table need not scan them.
+  const checked = !names.some((_, c) => typeof columns[c] === 'number' && (!fast[c] || back.includes(c)));
+  const table: ColumnTable = { names, rows, columns, numbers, width, inRange: checked && suspect === 0 };
   if (!general.length) return table;
   const { parquetRead } = await import('hyparquet');
   const at = new Map(names.map((name, c) => [name, c]));

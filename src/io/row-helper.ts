@@ -85,7 +85,7 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
     },
     parquet(job) {
       const wait = post({ kind: 'parquet', ...job });
-      return () => wait() as { back: number[]; broken?: string };
+      return () => wait() as { back: number[]; suspect?: number; broken?: string };
     },
     start(t, numberCols, textCols, from, to, numbers) {
       const table = {

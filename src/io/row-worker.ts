@@ -27,14 +27,14 @@ type Job = { id: number; done: Int32Array } & (
 );
 
 /** The share of a Parquet file's numeric columns this thread was given; a broken file is an answer, not a failure. */
-async function parquetShare(job: Extract<Job, { kind: 'parquet' }>): Promise<{ back: number[]; broken?: string }> {
+async function parquetShare(job: Extract<Job, { kind: 'parquet' }>): Promise<{ back: number[]; suspect?: number; broken?: string }> {
   job.numbers.fill(0, job.touch[0], job.touch[1]);
   Atomics.store(job.ready, 0, 1);
   Atomics.notify(job.ready, 0);
   const [{ parquetMetadata }, { decodeNumberColumns }, { decompress }] = await (loading ?? parquetModules());
   try {
     const metadata = parquetMetadata(job.file);
-    return { back: decodeNumberColumns(job.file, metadata, job.cols, job.slots, job.numbers, job.width, decompress) };
+    return decodeNumberColumns(job.file, metadata, job.cols, job.slots, job.numbers, job.width, decompress);
   } catch (e) {
     return { back: [], broken: (e as Error).message };
   }

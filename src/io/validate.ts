@@ -124,12 +124,10 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
 async function startsLikeParquet(path: string): Promise<boolean> {
   const handle = await open(path).catch(() => undefined);
   if (!handle) return false;
-  try {
-    const { buffer, bytesRead } = await handle.read(Buffer.alloc(4), 0, 4, 0);
-    return bytesRead === 4 && buffer.toString('latin1') === 'PAR1';
-  } finally {
-    await handle.close();
-  }
+  // A folder or an unreadable file is reported by the read that follows; here it is just not Parquet.
+  const read = await handle.read(Buffer.alloc(4), 0, 4, 0).catch(() => undefined);
+  await handle.close();
+  return read?.bytesRead === 4 && read.buffer.toString('latin1') === 'PAR1';
 }
 
 async function validateWithData(

@@ -10,6 +10,8 @@ export interface Extracted {
   failed: number[];
   /** Per text column, every row's text. */
   texts: string[][];
+  /** Known already: every number is finite and in the safe range (numeric.ts), so no cell failed (a reader that checked while decoding). */
+  inRange?: boolean;
 }
 
 export interface Grid {

@@ -30,7 +30,7 @@ export function numberProblems(
     }
   }
   if (bad > MAX_LISTED) problems.push(error('data-not-a-number', `${bad - MAX_LISTED} more non-numeric cells not listed`, { file }));
-  problems.push(...rangeProblems(grid, extracted.numbers, columns, file));
+  if (!extracted.inRange) problems.push(...rangeProblems(grid, extracted.numbers, columns, file));
   return problems;
 }
 
@@ -41,6 +41,12 @@ export function numberProblems(
  */
 export const MAX_MAGNITUDE = 1e150;
 export const MIN_MAGNITUDE = 1e-150;
+
+/** A number foldseal computes with safely: finite, and 0 or 1e-150 ≤ |x| ≤ 1e150 (false for NaN). */
+export function inSafeRange(v: number): boolean {
+  const a = v < 0 ? -v : v;
+  return a <= MAX_MAGNITUDE && (a >= MIN_MAGNITUDE || a === 0);
+}
 
 export function rangeProblems(grid: Grid, numbers: Float64Array, columns: readonly number[], file: string): Problem[] {
   const width = columns.length;

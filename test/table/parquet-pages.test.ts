@@ -14,6 +14,7 @@ import { readParquet } from '../../src/io/parquet.js';
 import { startRowThread } from '../../src/io/row-helper.js';
 import { unsnappy } from '../../src/io/snappy.js';
 import type { ColumnTable } from '../../src/table/columns.js';
+import { tableFromLayout } from '../../src/table/load.js';
 
 const require = createRequire(import.meta.url);
 const pq = require('parquet-wasm/node');
@@ -176,4 +177,37 @@ t.test('snappy: the format description, by hand, and its errors', async (t) => {
     ['cut length', bytes(0x80), 0],
   ] as const)
     t.throws(() => unsnappy(input, new Uint8Array(size)), /snappy/, why);
+});
+
+t.test('numbers checked while decoding: a clean file skips the scan, a bad number is still reported', async (t) => {
+  const roles = { id: 'id', label: 'diagnosis', missing: ['', 'NA', 'NaN'] };
+  const make = (value: number) => {
+    const columns = {
+      id: body.map((r) => r[0]),
+      diagnosis: body.map((r) => r[1]),
+      a: Float64Array.from(body, (r, i) => (i === 7 ? value : num(r, 2))),
+    };
+    const props = new pq.WriterPropertiesBuilder().setCompression(pq.Compression.SNAPPY).build();
+    return pq.writeParquet(pq.Table.fromIPCStream(arrow.tableToIPC(arrow.tableFromArrays(columns), 'stream')), props);
+  };
+  for (const [value, inRange, code] of [
+    [1.5, true, undefined],
+    [1e200, false, 'data-out-of-range'],
+    [1e-200, false, 'data-out-of-range'],
+    [Number.NaN, false, 'data-missing'],
+  ] as const) {
+    const read = await readParquet(make(value), 'v.parquet');
+    t.equal(read.problem ? undefined : read.table.inRange, inRange, `${value}: checked while decoding`);
+    const built = read.problem
+      ? undefined
+      : tableFromLayout(read.table, 'v.parquet', roles, undefined, 'samples-in-rows', undefined, () => undefined);
+    if (code === undefined) t.same(built?.problems, [], `${value}: no problem`);
+    else if (code === 'data-missing')
+      t.ok(built?.table?.hasMissing && Number.isNaN(built.table.X.data[7 * built.table.X.cols]), `${value}: a missing value`);
+    else
+      t.ok(
+        built?.problems.some((q) => q.code === code),
+        `${value}: reported`,
+      );
+  }
 });
