@@ -76,6 +76,11 @@ async function run(job: Job): Promise<void> {
   } catch (e) {
     port.postMessage({ id: job.id, error: String((e as Error).stack ?? e) });
   }
+  // A Parquet share that failed before touching its memory must not leave the main thread waiting.
+  if (job.kind === 'parquet' && Atomics.load(job.ready, 0) === 0) {
+    Atomics.store(job.ready, 0, 1);
+    Atomics.notify(job.ready, 0);
+  }
   Atomics.store(job.done, 0, 1);
   Atomics.notify(job.done, 0);
 }
