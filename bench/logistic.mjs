@@ -3,7 +3,7 @@
 // Times `foldseal run` (whole process) and scikit-learn's fits on the same exported folds, and
 // prints the largest out-of-fold probability difference. Not part of npm test.
 //   node bench/logistic.mjs [rows] [features]
-import { execFileSync } from 'node:child_process';
+import { execFileSync, spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
@@ -36,7 +36,13 @@ writeFileSync(
 );
 const bin = join(here, '..', 'dist', 'src', 'cli', 'main.js');
 const t0 = performance.now();
-execFileSync(process.execPath, [bin, 'run', join(out, 'tall.yaml'), '--out', join(out, 'res'), '--force'], { stdio: 'ignore' });
+const timed = spawnSync(
+  '/usr/bin/time',
+  ['-f', 'peak-kb %M', process.execPath, bin, 'run', join(out, 'tall.yaml'), '--out', join(out, 'res'), '--force'],
+  { encoding: 'utf8' },
+);
+if (timed.status !== 0) throw new Error(timed.stderr);
+const peakMb = Number(/peak-kb (\d+)/.exec(timed.stderr)?.[1] ?? Number.NaN) / 1024;
 const ours = (performance.now() - t0) / 1000;
 execFileSync(process.execPath, [bin, 'folds', join(out, 'tall.yaml'), '--out', join(out, 'folds.csv')], { stdio: 'ignore' });
 // Each reference call is also timed as a whole process (start-up, reading the CSV, the fits),
@@ -56,7 +62,7 @@ const [fast, fastDiff, fastWhole] = ref(1e-4);
 const [tight, tightDiff, tightWhole] = ref(1e-10);
 const [exact, exactDiff, exactWhole] = ref(1e-10, 'newton-cholesky');
 console.log(`${rows} × ${features}, 10-fold, standardize + logistic (l2 1)`);
-console.log(`foldseal run (whole process): ${ours.toFixed(2)} s`);
+console.log(`foldseal run (whole process): ${ours.toFixed(2)} s (peak RSS ${peakMb.toFixed(0)} MB)`);
 const whole = (s) => `${s.toFixed(2)} s as a whole process`;
 console.log(`reference fits, lbfgs tol 1e-4 (its default): ${fast} s (${whole(fastWhole)}), max |Δp| ${fastDiff}`);
 console.log(`reference fits, lbfgs tol 1e-10: ${tight} s (${whole(tightWhole)}), max |Δp| ${tightDiff}`);

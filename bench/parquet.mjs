@@ -48,10 +48,15 @@ for (const ext of kinds) {
       'split: {rule: stratified-kfold, folds: 10, seed: 1}\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy]\n',
   );
 }
+// Wall time of a whole process, and its peak resident set (GNU time's %M) kept per file.
+const peak = {};
 const time = (ext) => {
   const start = process.hrtime.bigint();
-  const r = spawnSync(process.execPath, [bin, 'validate', join(out, `${ext}.yaml`)], { encoding: 'utf8' });
+  const r = spawnSync('/usr/bin/time', ['-f', 'peak-kb %M', process.execPath, bin, 'validate', join(out, `${ext}.yaml`)], {
+    encoding: 'utf8',
+  });
   if (r.status !== 0) throw new Error(r.stderr);
+  peak[ext] = Math.max(peak[ext] ?? 0, Number(/peak-kb (\d+)/.exec(r.stderr)?.[1] ?? Number.NaN) / 1024);
   return Number(process.hrtime.bigint() - start) / 1e9;
 };
 const t = Object.fromEntries(kinds.map((k) => [k, []]));
@@ -59,11 +64,14 @@ const runs = Number(process.argv[2] ?? 5);
 for (let i = 0; i < runs; i++) for (const ext of kinds) t[ext].push(time(ext));
 const median = (xs) => [...xs].sort((a, b) => a - b)[xs.length >> 1];
 const size = (ext) => (readFileSync(join(out, `t.${ext}`)).length / 1e6).toFixed(1);
-console.log(`100,000 × 50, foldseal validate (median of ${runs}): csv ${median(t.csv).toFixed(2)} s (${size('csv')} MB)`);
+console.log(
+  `100,000 × 50, foldseal validate (median of ${runs}): csv ${median(t.csv).toFixed(2)} s (${size('csv')} MB; peak RSS ${peak.csv.toFixed(0)} MB)`,
+);
 for (const [ext, what] of [
   ['parquet', 'dictionary pages (the writer default), snappy'],
   ['plain.parquet', 'plain pages, snappy'],
 ])
   console.log(
-    `  parquet, ${what}: ${median(t[ext]).toFixed(2)} s (${size(ext)} MB), ratio parquet / csv ${(median(t[ext]) / median(t.csv)).toFixed(2)}`,
+    `  parquet, ${what}: ${median(t[ext]).toFixed(2)} s (${size(ext)} MB; peak RSS ${peak[ext].toFixed(0)} MB), ` +
+      `ratio parquet / csv ${(median(t[ext]) / median(t.csv)).toFixed(2)}`,
   );
