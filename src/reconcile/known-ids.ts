@@ -87,7 +87,7 @@ export class KnownRowList {
   json(): string {
     const indices: number[] = [];
     const others: number[] = [];
-    this.ids.forEach((id, k) => (isArrayIndex(id) ? indices : others).push(k));
+    for (let k = 0; k < this.ids.length; k++) (isArrayIndex(this.ids[k]) ? indices : others).push(k);
     indices.sort((a, b) => Number(this.ids[a]) - Number(this.ids[b]));
     const parts = new Array<string>(this.ids.length);
     let n = 0;
