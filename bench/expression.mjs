@@ -5,7 +5,7 @@
 // transpose, join, filter, check, assign folds), median of 5. Target: under 1 s. Invented data.
 import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
-import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { mkdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { gzipSync } from 'node:zlib';
 import { seededRandom } from '../scripts/seeded-random.mjs';

@@ -8,8 +8,7 @@
  * reader instead.
  */
 import type { ColumnChunk, CompressionCodec, FileMetaData, ParquetType, SchemaElement } from 'hyparquet';
-import { Encodings, PageTypes } from 'hyparquet/src/constants.js';
-import { deserializeTCompactProtocol } from 'hyparquet/src/thrift.js';
+import { readStruct, type ThriftStruct } from './thrift-compact.js';
 import { inSafeRange } from '../table/numeric.js';
 
 /** Thrown (and caught in parquet.ts) when a column needs the general reader. */
@@ -147,21 +146,30 @@ interface PageHead {
   v2?: { values: number; encoding: string; definitionBytes: number; repetitionBytes: number; compressed: boolean };
 }
 
+/** parquet.thrift's PageType and Encoding values, by number (the ones this path names). */
+const PAGE_TYPES = ['DATA_PAGE', 'INDEX_PAGE', 'DICTIONARY_PAGE', 'DATA_PAGE_V2'];
+const ENCODINGS: Record<number, string> = { 0: 'PLAIN', 2: 'PLAIN_DICTIONARY', 3: 'RLE', 8: 'RLE_DICTIONARY', 9: 'BYTE_STREAM_SPLIT' };
+
 function pageHeader(reader: { view: DataView; offset: number }): PageHead {
-  const h = deserializeTCompactProtocol(reader);
-  const v2 = h.field_8;
+  const h = readStruct(reader);
+  const int = (s: ThriftStruct | undefined, field: number) => (typeof s?.[field] === 'number' ? (s[field] as number) : 0);
+  const struct = (field: number) => (typeof h[field] === 'object' ? (h[field] as ThriftStruct) : undefined);
+  const encoding = (s: ThriftStruct, field: number) => ENCODINGS[int(s, field)] ?? `encoding ${int(s, field)}`;
+  const v1 = struct(5);
+  const dictionary = struct(7);
+  const v2 = struct(8);
   return {
-    type: PageTypes[h.field_1],
-    uncompressed: h.field_2,
-    compressed: h.field_3,
-    dictionary: h.field_7 && { values: h.field_7.field_1 },
-    v1: h.field_5 && { values: h.field_5.field_1, encoding: Encodings[h.field_5.field_2] },
+    type: PAGE_TYPES[int(h, 1)] ?? `page type ${int(h, 1)}`,
+    uncompressed: int(h, 2),
+    compressed: int(h, 3),
+    dictionary: dictionary && { values: int(dictionary, 1) },
+    v1: v1 && { values: int(v1, 1), encoding: encoding(v1, 2) },
     v2: v2 && {
-      values: v2.field_1,
-      encoding: Encodings[v2.field_4],
-      definitionBytes: v2.field_5,
-      repetitionBytes: v2.field_6,
-      compressed: v2.field_7 === undefined ? true : v2.field_7,
+      values: int(v2, 1),
+      encoding: encoding(v2, 4),
+      definitionBytes: int(v2, 5),
+      repetitionBytes: int(v2, 6),
+      compressed: v2[7] === undefined ? true : v2[7] === true,
     },
   };
 }

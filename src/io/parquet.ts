@@ -30,7 +30,7 @@ export async function readParquet(
     problem: error('data-bad-parquet', `file ${shownAs} is a Parquet file foldseal cannot read: ${why}`, { ...where, hint }),
   });
   // Loaded only for a Parquet file: the library costs every other run ~45 ms of start-up.
-  const { parquetMetadata } = await import('hyparquet/src/metadata.js');
+  const { parquetMetadata } = await import('hyparquet');
   let metadata: FileMetaData;
   try {
     metadata = parquetMetadata(bytes);

@@ -13,8 +13,7 @@ import type { ParquetTwin } from './parquet.js';
 const { port, parquet } = workerData as { port: MessagePort; parquet: boolean };
 
 // The modules that decode a Parquet file, loaded while the main thread still reads it.
-const parquetModules = () =>
-  Promise.all([import('hyparquet/src/metadata.js'), import('./parquet-pages.js'), import('./parquet-codecs.js')]);
+const parquetModules = () => Promise.all([import('hyparquet'), import('./parquet-pages.js'), import('./parquet-codecs.js')]);
 const loading = parquet ? parquetModules() : undefined;
 
 type Job = { id: number; done: Int32Array } & (

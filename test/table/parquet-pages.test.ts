@@ -13,6 +13,7 @@ import { referenceTable } from '../helpers.js';
 import { readParquet } from '../../src/io/parquet.js';
 import { startRowThread } from '../../src/io/row-helper.js';
 import { unsnappy } from '../../src/io/snappy.js';
+import { readStruct } from '../../src/io/thrift-compact.js';
 import type { ColumnTable } from '../../src/table/columns.js';
 import { tableFromLayout } from '../../src/table/load.js';
 
@@ -210,4 +211,39 @@ t.test('numbers checked while decoding: a clean file skips the scan, a bad numbe
         `${value}: reported`,
       );
   }
+});
+
+t.test('thrift compact protocol: a struct built by hand from the specification', async (t) => {
+  // Field headers are (id delta << 4) | type; i32 values are zigzag varints; a field id that is
+  // not a small delta follows its header (type only) as a zigzag i16.
+  const bytes = Uint8Array.from([
+    0x15,
+    0x06, // field 1, i32 3
+    0x15,
+    0x01, // field 2, i32 -1
+    0x3c,
+    0x15,
+    0xc8,
+    0x01,
+    0x00, // field 5, struct { field 1: i32 100 }
+    0x19,
+    0x35,
+    0x02,
+    0x04,
+    0x06, // field 6, list of 3 i32: 1, 2, 3
+    0x18,
+    0x02,
+    0x61,
+    0x62, // field 7, binary "ab" (skipped: its length)
+    0x11, // field 8, true
+    0x05,
+    0x28,
+    0x02, // field 20 (long form), i32 1
+    0x00,
+  ]);
+  const reader = { view: new DataView(bytes.buffer), offset: 0 };
+  t.same(readStruct(reader), { 1: 3, 2: -1, 5: { 1: 100 }, 6: [1, 2, 3], 7: 2, 8: true, 20: 1 });
+  t.equal(reader.offset, bytes.length, 'stops after the stop byte');
+  t.throws(() => readStruct({ view: new DataView(bytes.buffer, 0, 7), offset: 0 }), /ends early/, 'cut short');
+  t.throws(() => readStruct({ view: new DataView(Uint8Array.of(0x1d, 0).buffer), offset: 0 }), /unknown Thrift type/);
 });
