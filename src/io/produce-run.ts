@@ -65,11 +65,15 @@ export async function produceRun(protocolPath: string, options: ProduceOptions =
     refit: options.refit,
     warnings: report.problems.filter((q) => q.severity === 'warning'),
   };
+  // The audit first: once its findings are placed, the description of the file's other columns
+  // (which keeps the file's bytes to place cells) can go before the folds need the memory.
+  const audit = options.audit ? auditReport(report, { quick: true }) : undefined;
+  report.described = undefined;
   if (input.protocol.model.kind === 'command') {
     const external = await runCommandModel(protocolPath, report, input, options);
     input.external = external.external;
     const out = runProtocol(input, options.hooks, external.cv, undefined);
-    return { report, input, out, audit: options.audit ? auditReport(report, { quick: true }) : undefined };
+    return { report, input, out, audit };
   }
   const merged = options.merged;
   const cv = merged
@@ -83,7 +87,7 @@ export async function produceRun(protocolPath: string, options: ProduceOptions =
         throw asUserError(e, input.protocolFile);
       });
   const out = runProtocol(input, options.hooks, cv, permuted);
-  return { report, input, out, audit: options.audit ? auditReport(report, { quick: true }) : undefined };
+  return { report, input, out, audit };
 }
 
 /** A command model's folds, refit and new-row probabilities, by running its program (only with the user's consent). */
