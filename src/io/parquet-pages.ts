@@ -9,6 +9,7 @@
  */
 import type { ColumnChunk, CompressionCodec, FileMetaData, ParquetType, SchemaElement } from 'hyparquet';
 import { readStruct, type ThriftStruct } from './thrift-compact.js';
+import { uleb128 } from './varint.js';
 import { inSafeRange } from '../table/numeric.js';
 
 /** Thrown (and caught in parquet.ts) when a column needs the general reader. */
@@ -22,10 +23,15 @@ export type Sink = { block: Float64Array; width: number; slot: number } | { text
 
 const WIDTH: Partial<Record<ParquetType, number>> = { DOUBLE: 8, FLOAT: 4, INT32: 4, INT64: 8 };
 
+/** A plain number column: DOUBLE, FLOAT, INT32 or INT64 with no logical or converted type. */
+export function plainNumber(leaf: SchemaElement): boolean {
+  return leaf.type !== undefined && WIDTH[leaf.type] !== undefined && !leaf.logical_type && !leaf.converted_type;
+}
+
 /** Can this leaf take the fast path, and as what? */
 export function fastKind(leaf: SchemaElement): 'number' | 'text' | undefined {
   if (leaf.repetition_type === 'REPEATED' || leaf.type === undefined) return undefined;
-  if (WIDTH[leaf.type] !== undefined && !leaf.logical_type && !leaf.converted_type) return 'number';
+  if (plainNumber(leaf)) return 'number';
   const utf8 = (!leaf.logical_type || leaf.logical_type.type === 'STRING') && (!leaf.converted_type || leaf.converted_type === 'UTF8');
   return leaf.type === 'BYTE_ARRAY' && utf8 ? 'text' : undefined;
 }
@@ -100,13 +106,9 @@ function hybrid(bytes: Uint8Array, pos: number, end: number, width: number, out:
   const mask = width === 0 ? 0 : 0xffffffff >>> (32 - width);
   let n = 0;
   while (n < count) {
-    let header = 0;
-    for (let shift = 0; ; shift += 7) {
-      if (pos >= end || shift > 28) throw new Error('a page ends inside its run-length data');
-      const b = bytes[pos++];
-      header += (b & 0x7f) * 2 ** shift;
-      if (b < 0x80) break;
-    }
+    const at = { pos };
+    const header = uleb128(bytes, at, end, 'a page ends inside its run-length data');
+    pos = at.pos;
     if (header % 2 === 1) {
       const total = (header - 1) * 4;
       const keep = Math.min(total, count - n);

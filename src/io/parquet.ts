@@ -10,15 +10,13 @@ import { error, type Problem } from '../problems/problem.js';
 import type { ColumnTable } from '../table/columns.js';
 import { compressors, decompress } from './parquet-codecs.js';
 import { forcedThreads } from './threads.js';
-import { decodeColumn, decodeNumberColumns, fastKind, NeedsGeneralReader, Scratch } from './parquet-pages.js';
+import { decodeColumn, decodeNumberColumns, fastKind, NeedsGeneralReader, plainNumber, Scratch } from './parquet-pages.js';
 
 export function isParquet(bytes: Uint8Array): boolean {
   const n = bytes.length;
   const par1 = (i: number) => bytes[i] === 0x50 && bytes[i + 1] === 0x41 && bytes[i + 2] === 0x52 && bytes[i + 3] === 0x31;
   return n >= 12 && par1(0) && par1(n - 4);
 }
-
-const NUMERIC = new Set(['DOUBLE', 'FLOAT', 'INT32', 'INT64']);
 
 export async function readParquet(
   bytes: Uint8Array,
@@ -42,7 +40,7 @@ export async function readParquet(
   if (leaves.length !== (root.num_children ?? 0) || leaves.some((s) => s.num_children))
     return fail('it has nested columns', 'write a flat table: one column per feature');
   const names = leaves.map((s) => s.name);
-  const numeric = leaves.map((s) => NUMERIC.has(s.type ?? '') && !s.logical_type && !s.converted_type);
+  const numeric = leaves.map(plainNumber);
   try {
     return { table: await decodeColumns(bytes, metadata, names, numeric, twin) };
   } catch (e) {

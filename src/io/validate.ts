@@ -215,8 +215,8 @@ async function validateWithData(
     helper.expectKeys({ idColumn: p.data.id, seed: p.split.seed ?? 0, repeats: p.split.repeats });
   // A decoded columnar file's ids are known already: the other thread derives half of their keys
   // while this one builds the table.
-  const idColumn = !(text.content instanceof Uint8Array) && p.data.id !== undefined ? text.content.names.indexOf(p.data.id) : -1;
-  const ids = idColumn >= 0 && !(text.content instanceof Uint8Array) ? text.content.columns[idColumn] : undefined;
+  const decoded = text.content instanceof Uint8Array ? undefined : text.content;
+  const ids = decoded && p.data.id !== undefined ? decoded.columns[decoded.names.indexOf(p.data.id)] : undefined;
   if (rowThread && Array.isArray(ids) && ids.length >= 10_000 && hashesIds(p.split) && p.data.layout === 'samples-in-rows' && !sheet)
     rowThread.keysAhead(ids, p.split.seed ?? 0, p.split.repeats);
   const built: ReturnType<typeof tableFromLayout> = simple
