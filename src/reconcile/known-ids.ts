@@ -58,7 +58,8 @@ export function knownRows(
   rows?: readonly number[],
 ): Record<string, string> {
   const d = featureDigests(X, features, rows);
-  const out: Record<string, string> = {};
+  // No prototype: an id "__proto__" is a key like any other (on a plain object it set the prototype and vanished).
+  const out: Record<string, string> = Object.create(null);
   d.forEach((digest, k) => {
     out[ids[rows ? rows[k] : k]] = digest;
   });

@@ -23,6 +23,8 @@ const tricky = [
   'a\\b',
   '9007199254740993',
   '',
+  // On a plain object this key set the prototype and the row vanished from known-rows.
+  '__proto__',
 ];
 
 t.test('known rows from lists serialize as the object does', async (t) => {
@@ -31,6 +33,7 @@ t.test('known rows from lists serialize as the object does', async (t) => {
   const object = knownRows(tricky, X, names);
   const list = KnownRowList.of(tricky, X, names);
   t.equal(list.json(), JSON.stringify(object), 'tricky ids');
+  t.ok(Object.hasOwn(JSON.parse(list.json()), '__proto__'), 'an id "__proto__" is kept');
   const file = { 'foldseal-models': 1, folds: [], 'known-rows': object } as unknown as ModelsFile;
   t.equal(modelsJson({ ...file, 'known-rows': list }), modelsJson(file), 'inside models.json');
   // Not the last key: still the same text.
