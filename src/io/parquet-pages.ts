@@ -9,7 +9,6 @@
  */
 import type { ColumnChunk, CompressionCodec, FileMetaData, ParquetType, SchemaElement } from 'hyparquet';
 import { readStruct, type ThriftStruct } from './thrift-compact.js';
-import { uleb128 } from './varint.js';
 import { inSafeRange } from '../table/numeric.js';
 
 /** Thrown (and caught in parquet.ts) when a column needs the general reader. */
@@ -106,9 +105,15 @@ function hybrid(bytes: Uint8Array, pos: number, end: number, width: number, out:
   const mask = width === 0 ? 0 : 0xffffffff >>> (32 - width);
   let n = 0;
   while (n < count) {
-    const at = { pos };
-    const header = uleb128(bytes, at, end, 'a page ends inside its run-length data');
-    pos = at.pos;
+    // The run header, a varint, read in place: a shared reader with a cursor object cost about 3 %
+    // of a whole Parquet read (measured), as this runs once per run of every page.
+    let header = 0;
+    for (let shift = 0; ; shift += 7) {
+      if (pos >= end || shift > 28) throw new Error('a page ends inside its run-length data');
+      const b = bytes[pos++];
+      header += (b & 0x7f) * 2 ** shift;
+      if (b < 0x80) break;
+    }
     if (header % 2 === 1) {
       const total = (header - 1) * 4;
       const keep = Math.min(total, count - n);

@@ -4,14 +4,17 @@
  * Parquet pages, into `out`, which must be exactly the declared size. Long literals and
  * non-overlapping copies move as blocks. Pure.
  */
-import { uleb128 } from './varint.js';
-
 export function unsnappy(input: Uint8Array, out: Uint8Array): Uint8Array {
   const size = out.length;
   const end = input.length;
-  const start = { pos: 0 };
-  const declared = uleb128(input, start, end, 'snappy: a broken length header');
-  let pos = start.pos;
+  let pos = 0;
+  let declared = 0;
+  for (let shift = 0; ; shift += 7) {
+    if (pos >= end || shift > 28) throw new Error('snappy: a broken length header');
+    const b = input[pos++];
+    declared += (b & 0x7f) * 2 ** shift;
+    if (b < 0x80) break;
+  }
   if (declared !== size) throw new Error(`snappy: the block holds ${declared} bytes, the page header says ${size}`);
   let at = 0;
   while (pos < end) {
