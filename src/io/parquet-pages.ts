@@ -1,13 +1,13 @@
 /**
  * The fast path for a Parquet file's flat columns: numbers decoded straight into their slot of one
  * row-major Float64Array (NaN where null), text into one array of strings ('' where null), with
- * no intermediate array of boxed values and one set of reused page buffers. Page headers come from hyparquet's own module; the page
- * layout follows the Parquet format documentation (data pages v1 and v2, plain and dictionary
+ * no intermediate array of boxed values and one set of reused page buffers. Page headers are read by
+ * thrift-compact.ts, the footer by parquet-footer.ts; the page layout follows the Parquet format documentation (data pages v1 and v2, plain and dictionary
  * encodings, the run-length / bit-packed hybrid). A column outside this path (another encoding,
  * a logical type, nesting) is given back, and parquet.ts reads it through hyparquet's general
  * reader instead.
  */
-import type { ColumnChunk, CompressionCodec, FileMetaData, ParquetType, SchemaElement } from 'hyparquet';
+import type { Codec, ParquetFooter, ParquetType, SchemaNode } from './parquet-footer.js';
 import { readStruct, type ThriftStruct } from './thrift-compact.js';
 import { inSafeRange } from '../table/numeric.js';
 
@@ -15,7 +15,7 @@ import { inSafeRange } from '../table/numeric.js';
 export class NeedsGeneralReader extends Error {}
 
 /** Decompresses a page into `into` (exactly its uncompressed size), or throws. */
-export type Decompress = (bytes: Uint8Array, into: Uint8Array, codec: CompressionCodec) => Uint8Array;
+export type Decompress = (bytes: Uint8Array, into: Uint8Array, codec: Codec) => Uint8Array;
 
 /** Where a column's cells go: a slot of the row-major number block, or an array of texts. */
 export type Sink = { block: Float64Array; width: number; slot: number } | { texts: string[] };
@@ -23,15 +23,15 @@ export type Sink = { block: Float64Array; width: number; slot: number } | { text
 const WIDTH: Partial<Record<ParquetType, number>> = { DOUBLE: 8, FLOAT: 4, INT32: 4, INT64: 8 };
 
 /** A plain number column: DOUBLE, FLOAT, INT32 or INT64 with no logical or converted type. */
-export function plainNumber(leaf: SchemaElement): boolean {
-  return leaf.type !== undefined && WIDTH[leaf.type] !== undefined && !leaf.logical_type && !leaf.converted_type;
+export function plainNumber(leaf: SchemaNode): boolean {
+  return leaf.type !== undefined && WIDTH[leaf.type] !== undefined && !leaf.logical && !leaf.converted;
 }
 
 /** Can this leaf take the fast path, and as what? */
-export function fastKind(leaf: SchemaElement): 'number' | 'text' | undefined {
-  if (leaf.repetition_type === 'REPEATED' || leaf.type === undefined) return undefined;
+export function fastKind(leaf: SchemaNode): 'number' | 'text' | undefined {
+  if (leaf.repetition === 'REPEATED' || leaf.type === undefined) return undefined;
   if (plainNumber(leaf)) return 'number';
-  const utf8 = (!leaf.logical_type || leaf.logical_type.type === 'STRING') && (!leaf.converted_type || leaf.converted_type === 'UTF8');
+  const utf8 = (!leaf.logical || leaf.logical === 'STRING') && (!leaf.converted || leaf.converted === 'UTF8');
   return leaf.type === 'BYTE_ARRAY' && utf8 ? 'text' : undefined;
 }
 
@@ -200,32 +200,30 @@ const view = (bytes: Uint8Array) => new DataView(bytes.buffer, bytes.byteOffset,
  */
 export function decodeColumn(
   file: Uint8Array,
-  metadata: FileMetaData,
+  footer: ParquetFooter,
   c: number,
   sink: Sink,
   decompress: Decompress,
   scratch: Scratch,
 ): number {
-  const leaf = metadata.schema[c + 1];
+  const leaf = footer.schema[c + 1];
   const type = leaf.type as ParquetType;
-  const optional = leaf.repetition_type === 'OPTIONAL';
+  const optional = leaf.repetition === 'OPTIONAL';
   let suspect = 0;
-  const rows = Number(metadata.num_rows);
+  const rows = footer.rows;
   let rowStart = 0;
-  for (const group of metadata.row_groups) {
-    const chunk: ColumnChunk = group.columns[c];
-    const meta = chunk.meta_data;
-    if (!meta || chunk.file_path || meta.path_in_schema.length !== 1 || meta.path_in_schema[0] !== leaf.name)
-      throw new NeedsGeneralReader();
-    const start = Number(meta.dictionary_page_offset ?? meta.data_page_offset);
-    const end = start + Number(meta.total_compressed_size);
+  for (const group of footer.groups) {
+    const chunk = group.chunks[c];
+    if (!chunk || chunk.elsewhere || chunk.path.length !== 1 || chunk.path[0] !== leaf.name) throw new NeedsGeneralReader();
+    const { start, codec } = chunk;
+    const end = start + chunk.size;
     if (!(start >= 0 && end <= file.byteLength)) throw new Error(`column ${leaf.name} lies outside the file`);
     const reader = { view: new DataView(file.buffer, file.byteOffset + start, end - start), offset: 0 };
     const unpack = (bytes: Uint8Array, size: number) =>
-      meta.codec === 'UNCOMPRESSED' ? bytes : decompress(bytes, scratch.bytes(size), meta.codec);
+      codec === 'UNCOMPRESSED' ? bytes : decompress(bytes, scratch.bytes(size), codec);
     let dictionary: Float64Array | string[] | undefined;
     let seen = 0;
-    while (seen < Number(group.num_rows)) {
+    while (seen < group.rows) {
       if (reader.offset >= reader.view.byteLength) throw new Error(`column ${leaf.name} ends before its last value`);
       const header = pageHeader(reader);
       if (!(header.compressed >= 0 && reader.offset + header.compressed <= reader.view.byteLength))
@@ -273,8 +271,7 @@ export function decodeColumn(
       suspect += writePage(page, type, dictionary, sink, rowStart + seen, scratch);
       seen += page.total;
     }
-    if (seen !== Number(group.num_rows))
-      throw new Error(`column ${leaf.name} holds ${seen} values in a row group of ${group.num_rows} rows`);
+    if (seen !== group.rows) throw new Error(`column ${leaf.name} holds ${seen} values in a row group of ${group.rows} rows`);
     rowStart += seen;
   }
   if (rowStart !== rows) throw new Error(`the row groups hold ${rowStart} rows, the file says ${rows}`);
@@ -345,7 +342,7 @@ function writePage(
  */
 export function decodeNumberColumns(
   file: Uint8Array,
-  metadata: FileMetaData,
+  footer: ParquetFooter,
   cols: readonly number[],
   slots: readonly number[],
   block: Float64Array,
@@ -357,7 +354,7 @@ export function decodeNumberColumns(
   let suspect = 0;
   cols.forEach((c, i) => {
     try {
-      suspect += decodeColumn(file, metadata, c, { block, width, slot: slots[i] }, decompress, scratch);
+      suspect += decodeColumn(file, footer, c, { block, width, slot: slots[i] }, decompress, scratch);
     } catch (e) {
       if (!(e instanceof NeedsGeneralReader)) throw e;
       back.push(c);

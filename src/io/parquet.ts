@@ -1,14 +1,15 @@
 /**
- * Parquet files (the columnar format applied ML teams keep feature tables in), read through
- * hyparquet: numeric columns straight into one row-major Float64Array, others as text. Recognized by their
- * magic bytes ("PAR1" at both ends), whatever their name. gzip and Brotli pages are decompressed
- * with node:zlib, snappy by snappy.ts; other codecs are reported. Flat numeric and text columns
- * are decoded by parquet-pages.ts straight into their arrays.
+ * Parquet files (the columnar format applied ML teams keep feature tables in): numeric columns
+ * straight into one row-major Float64Array, others as text. Recognized by their magic bytes
+ * ("PAR1" at both ends), whatever their name. The footer is read by parquet-footer.ts; flat numeric
+ * and text columns are decoded by parquet-pages.ts straight into their arrays, any other column
+ * by hyparquet's general reader (loaded only then). gzip and Brotli pages are decompressed with
+ * node:zlib, snappy by snappy.ts; other codecs are reported.
  */
-import type { FileMetaData } from 'hyparquet';
 import { error, type Problem } from '../problems/problem.js';
 import type { ColumnTable } from '../table/columns.js';
 import { compressors, decompress } from './parquet-codecs.js';
+import { type ParquetFooter, readFooter } from './parquet-footer.js';
 import { forcedThreads } from './threads.js';
 import { decodeColumn, decodeNumberColumns, fastKind, NeedsGeneralReader, plainNumber, Scratch } from './parquet-pages.js';
 
@@ -27,27 +28,27 @@ export async function readParquet(
   const fail = (why: string, hint?: string) => ({
     problem: error('data-bad-parquet', `file ${shownAs} is a Parquet file foldseal cannot read: ${why}`, { ...where, hint }),
   });
-  // Loaded only for a Parquet file: the library costs every other run ~45 ms of start-up.
-  const { parquetMetadata } = await import('hyparquet');
-  let metadata: FileMetaData;
+  let footer: ParquetFooter;
   try {
-    metadata = parquetMetadata(bytes);
+    footer = readFooter(bytes);
   } catch (e) {
-    return fail((e as Error).message);
+    const message = (e as Error).message;
+    return fail(message, /codec/.test(message) ? CODEC_HINT : undefined);
   }
-  const root = metadata.schema[0];
-  const leaves = metadata.schema.slice(1);
-  if (leaves.length !== (root.num_children ?? 0) || leaves.some((s) => s.num_children))
+  const [root, ...leaves] = footer.schema;
+  if (leaves.length !== root.children || leaves.some((s) => s.children))
     return fail('it has nested columns', 'write a flat table: one column per feature');
   const names = leaves.map((s) => s.name);
   const numeric = leaves.map(plainNumber);
   try {
-    return { table: await decodeColumns(bytes, metadata, names, numeric, twin) };
+    return { table: await decodeColumns(bytes, footer, names, numeric, twin) };
   } catch (e) {
     const message = (e as Error).message;
-    return fail(message, /compress|codec/i.test(message) ? 'write it with snappy, gzip, Brotli or no compression' : undefined);
+    return fail(message, /compress|codec/i.test(message) ? CODEC_HINT : undefined);
   }
 }
+
+const CODEC_HINT = 'write it with snappy, gzip, Brotli or no compression';
 
 /**
  * Another thread that decodes a share of the numeric columns into the shared block, given the
@@ -82,19 +83,17 @@ const TWIN_BYTES = 4 * 1024 * 1024;
  */
 async function decodeColumns(
   file: Uint8Array,
-  metadata: FileMetaData,
+  footer: ParquetFooter,
   names: string[],
   numeric: boolean[],
   twin: ParquetTwin | undefined,
 ): Promise<ColumnTable> {
-  const rows = Number(metadata.num_rows);
+  const { rows } = footer;
   let width = 0;
   const columns = names.map((_, c) => (numeric[c] ? width++ : new Array<string>(rows)));
-  const fast = names.map((_, c) => fastKind(metadata.schema[c + 1]) === (numeric[c] ? 'number' : 'text'));
+  const fast = names.map((_, c) => fastKind(footer.schema[c + 1]) === (numeric[c] ? 'number' : 'text'));
   const numberCols = names.flatMap((_, c) => (fast[c] && numeric[c] ? [c] : []));
-  const sizes = numberCols.map((c) =>
-    metadata.row_groups.reduce((sum, g) => sum + Number(g.columns[c].meta_data?.total_compressed_size ?? 0), 0),
-  );
+  const sizes = numberCols.map((c) => footer.groups.reduce((sum, g) => sum + (g.chunks[c]?.size ?? 0), 0));
   const total = sizes.reduce((a, b) => a + b, 0);
   const shared = twin !== undefined && file.buffer instanceof SharedArrayBuffer && (total >= TWIN_BYTES || (forcedThreads() ?? 0) >= 2);
   const numbers = shared ? twin.numbers(rows * width) : new Float64Array(rows * width);
@@ -118,7 +117,7 @@ async function decodeColumns(
     const column = columns[c];
     if (typeof column === 'number' || !fast[c]) return;
     try {
-      decodeColumn(file, metadata, c, { texts: column }, decompress, scratch);
+      decodeColumn(file, footer, c, { texts: column }, decompress, scratch);
     } catch (e) {
       if (!(e instanceof NeedsGeneralReader)) throw e;
       back.push(c);
@@ -126,7 +125,7 @@ async function decodeColumns(
   });
   while (answer && Atomics.load(ready, 0) === 0) Atomics.wait(ready, 0, 0, 1000);
   const mineCols = numberCols.slice(0, mine);
-  const here = decodeNumberColumns(file, metadata, mineCols, mineCols.map(slotOf), numbers, width, decompress);
+  const here = decodeNumberColumns(file, footer, mineCols, mineCols.map(slotOf), numbers, width, decompress);
   const other = answer?.();
   if (other?.broken) throw new Error(other.broken);
   back.push(...here.back, ...(other?.back ?? []));
@@ -144,7 +143,9 @@ async function decodeColumns(
   const checked = !names.some((_, c) => typeof columns[c] === 'number' && (!fast[c] || back.includes(c)));
   const table: ColumnTable = { names, rows, columns, numbers, width, inRange: checked && suspect === 0 };
   if (!general.length) return table;
-  const { parquetRead } = await import('hyparquet');
+  // Loaded only here: the library's entry costs ~45 ms of start-up.
+  const { parquetMetadata, parquetRead } = await import('hyparquet');
+  const metadata = parquetMetadata(file);
   const at = new Map(names.map((name, c) => [name, c]));
   await parquetRead({
     // Slices are copied: the file may sit in shared memory, which the library does not take.

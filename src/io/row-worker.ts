@@ -13,7 +13,7 @@ import type { ParquetTwin } from './parquet.js';
 const { port, parquet } = workerData as { port: MessagePort; parquet: boolean };
 
 // The modules that decode a Parquet file, loaded while the main thread still reads it.
-const parquetModules = () => Promise.all([import('hyparquet'), import('./parquet-pages.js'), import('./parquet-codecs.js')]);
+const parquetModules = () => Promise.all([import('./parquet-footer.js'), import('./parquet-pages.js'), import('./parquet-codecs.js')]);
 const loading = parquet ? parquetModules() : undefined;
 
 type Job = { id: number; done: Int32Array } & (
@@ -30,10 +30,9 @@ async function parquetShare(job: Extract<Job, { kind: 'parquet' }>): Promise<{ b
   job.numbers.fill(0, job.touch[0], job.touch[1]);
   Atomics.store(job.ready, 0, 1);
   Atomics.notify(job.ready, 0);
-  const [{ parquetMetadata }, { decodeNumberColumns }, { decompress }] = await (loading ?? parquetModules());
+  const [{ readFooter }, { decodeNumberColumns }, { decompress }] = await (loading ?? parquetModules());
   try {
-    const metadata = parquetMetadata(job.file);
-    return decodeNumberColumns(job.file, metadata, job.cols, job.slots, job.numbers, job.width, decompress);
+    return decodeNumberColumns(job.file, readFooter(job.file), job.cols, job.slots, job.numbers, job.width, decompress);
   } catch (e) {
     return { back: [], broken: (e as Error).message };
   }

@@ -11,6 +11,7 @@ import t from 'tap';
 import { parquetRead } from 'hyparquet';
 import { referenceTable } from '../helpers.js';
 import { readParquet } from '../../src/io/parquet.js';
+import { readFooter } from '../../src/io/parquet-footer.js';
 import { startRowThread } from '../../src/io/row-helper.js';
 import { unsnappy } from '../../src/io/snappy.js';
 import { readStruct } from '../../src/io/thrift-compact.js';
@@ -246,4 +247,61 @@ t.test('thrift compact protocol: a struct built by hand from the specification',
   t.equal(reader.offset, bytes.length, 'stops after the stop byte');
   t.throws(() => readStruct({ view: new DataView(bytes.buffer, 0, 7), offset: 0 }), /ends early/, 'cut short');
   t.throws(() => readStruct({ view: new DataView(Uint8Array.of(0x1d, 0).buffer), offset: 0 }), /unknown Thrift type/);
+  const asText = { view: new DataView(bytes.buffer), offset: 0 };
+  t.equal(readStruct(asText, true)[7], 'ab', 'binaries read as text when asked');
+  // A list that claims more elements than bytes are left, and structs nested past any real file.
+  t.throws(() => readStruct({ view: new DataView(Uint8Array.of(0x19, 0xf5, 0xff, 0xff, 0x03, 0).buffer), offset: 0 }), /ends early/);
+  const deep = Uint8Array.from({ length: 200 }, (_, i) => (i < 100 ? 0x1c : 0));
+  t.throws(() => readStruct({ view: new DataView(deep.buffer), offset: 0 }, false, 'the footer'), /the footer nests deeper than 64/);
+});
+
+t.test("the footer: what foldseal reads of it equals the general reader's metadata", async (t) => {
+  const { parquetMetadata } = await import('hyparquet');
+  for (const layout of layouts) {
+    const bytes = write(layout);
+    const ours = readFooter(bytes);
+    const theirs = parquetMetadata(bytes);
+    const name = `${layout.v2 ? 'v2' : 'v1'} ${layout.dictionary ? 'dictionary' : 'plain'} ${layout.small ? 'small' : 'one'} ${layout.codecName}`;
+    t.equal(ours.rows, Number(theirs.num_rows), `${name}: rows`);
+    t.same(
+      ours.schema.map((s) => [s.name, s.type, s.repetition, s.children, s.logical, s.converted]),
+      theirs.schema.map((s) => [s.name, s.type, s.repetition_type, s.num_children ?? 0, s.logical_type?.type, s.converted_type]),
+      `${name}: schema`,
+    );
+    t.same(
+      ours.groups.map((g) => [g.rows, g.chunks.map((c) => [c.path, c.codec, c.start, c.size, c.elsewhere])]),
+      theirs.row_groups.map((g) => [
+        Number(g.num_rows),
+        g.columns.map((c) => {
+          const m = c.meta_data!;
+          return [m.path_in_schema, m.codec, Number(m.dictionary_page_offset ?? m.data_page_offset), Number(m.total_compressed_size), false];
+        }),
+      ]),
+      `${name}: row groups and column chunks`,
+    );
+  }
+});
+
+t.test('a broken footer is a problem with a reason, never a crash', async (t) => {
+  const good = write({ v2: false, dictionary: true, small: false, codec: pq.Compression.SNAPPY });
+  const n = good.length;
+  const footerLength = new DataView(good.buffer, good.byteOffset + n - 8, 4).getUint32(0, true);
+  const withLength = (length: number) => {
+    const b = Uint8Array.from(good);
+    new DataView(b.buffer).setUint32(n - 8, length, true);
+    return b;
+  };
+  const cut = Uint8Array.from(good);
+  cut.fill(0, n - 8 - footerLength, n - 8 - footerLength + 40);
+  const cases: [string, Uint8Array, RegExp][] = [
+    ['a length past the file', withLength(n), /the footer length \(\d+ bytes\) does not fit/],
+    ['a zero length', withLength(0), /does not fit/],
+    ['a footer cut short', withLength(20), /the footer (ends early|lacks|has)/],
+    ['a footer overwritten', cut, /the footer/],
+  ];
+  for (const [why, bytes, message] of cases) {
+    t.throws(() => readFooter(bytes), message, why);
+    const read = await readParquet(bytes, 'f.parquet');
+    t.match(read.problem?.message, /^file f\.parquet is a Parquet file foldseal cannot read: the footer/, why);
+  }
 });
