@@ -89,8 +89,7 @@ function unionField(v: ThriftValue): string {
 
 function chunkPlace(c: ThriftStruct): ChunkPlace {
   const m = c[3];
-  if (typeof m !== 'object' || Array.isArray(m) || m instanceof Map)
-    throw new Error(`${FOOTER} has a column chunk without its metadata`);
+  if (typeof m !== 'object' || Array.isArray(m) || m instanceof Map) throw new Error(`${FOOTER} has a column chunk without its metadata`);
   const path = m[3];
   if (!Array.isArray(path) || !path.every((p): p is string => typeof p === 'string'))
     throw new Error(`${FOOTER} has a column chunk without a valid path`);

@@ -219,8 +219,7 @@ export function decodeColumn(
     const end = start + chunk.size;
     if (!(start >= 0 && end <= file.byteLength)) throw new Error(`column ${leaf.name} lies outside the file`);
     const reader = { view: new DataView(file.buffer, file.byteOffset + start, end - start), offset: 0 };
-    const unpack = (bytes: Uint8Array, size: number) =>
-      codec === 'UNCOMPRESSED' ? bytes : decompress(bytes, scratch.bytes(size), codec);
+    const unpack = (bytes: Uint8Array, size: number) => (codec === 'UNCOMPRESSED' ? bytes : decompress(bytes, scratch.bytes(size), codec));
     let dictionary: Float64Array | string[] | undefined;
     let seen = 0;
     while (seen < group.rows) {

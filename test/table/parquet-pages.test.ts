@@ -274,7 +274,13 @@ t.test("the footer: what foldseal reads of it equals the general reader's metada
         Number(g.num_rows),
         g.columns.map((c) => {
           const m = c.meta_data!;
-          return [m.path_in_schema, m.codec, Number(m.dictionary_page_offset ?? m.data_page_offset), Number(m.total_compressed_size), false];
+          return [
+            m.path_in_schema,
+            m.codec,
+            Number(m.dictionary_page_offset ?? m.data_page_offset),
+            Number(m.total_compressed_size),
+            false,
+          ];
         }),
       ]),
       `${name}: row groups and column chunks`,
