@@ -62,7 +62,11 @@ export type ParquetTwin = {
     slots: number[];
     numbers: Float64Array;
     width: number;
-    /** Set to 1 once the other thread has touched numbers[touch[0]..touch[1]). */
+    /**
+     * Two flags: [0] set to 1 once the other thread has touched numbers[touch[0]..touch[1]),
+     * [1] set to 1 by this thread once it has touched the rest; neither thread writes a value
+     * before both are set (a touch after the other's write would zero it).
+     */
     ready: Int32Array;
     touch: [number, number];
   }): () => {
@@ -104,13 +108,17 @@ async function decodeColumns(
   const theirs = numberCols.slice(mine);
   // Fresh memory is slow to touch the first time: before either thread writes a cell, this one
   // touches the first third of the block's rows and decodes the text columns while the other
-  // finishes hashing the file and touches the rest, then signals `ready`.
-  const ready = new Int32Array(new SharedArrayBuffer(4));
+  // finishes hashing the file and touches the rest; each signals `ready` and waits for the other.
+  const ready = new Int32Array(new SharedArrayBuffer(8));
   const third = Math.floor(rows / 3) * width;
   const answer = theirs.length
     ? twin?.parquet({ file, cols: theirs, slots: theirs.map(slotOf), numbers, width, ready, touch: [third, rows * width] })
     : undefined;
-  if (answer) numbers.fill(0, 0, third);
+  if (answer) {
+    numbers.fill(0, 0, third);
+    Atomics.store(ready, 1, 1);
+    Atomics.notify(ready, 1);
+  }
   const scratch = new Scratch();
   const back: number[] = [];
   names.forEach((_, c) => {

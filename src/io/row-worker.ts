@@ -31,6 +31,8 @@ async function parquetShare(job: Extract<Job, { kind: 'parquet' }>): Promise<{ b
   Atomics.store(job.ready, 0, 1);
   Atomics.notify(job.ready, 0);
   const [{ readFooter }, { decodeNumberColumns }, { decompress }] = await (loading ?? parquetModules());
+  // The main thread touches the first rows: no value is written there before it has.
+  while (Atomics.load(job.ready, 1) === 0) Atomics.wait(job.ready, 1, 0, 1000);
   try {
     return decodeNumberColumns(job.file, readFooter(job.file), job.cols, job.slots, job.numbers, job.width, decompress);
   } catch (e) {

@@ -133,13 +133,22 @@ t.test('the two-thread read (FOLDSEAL_THREADS=2) decodes the same cells', async 
     const shared = new Uint8Array(new SharedArrayBuffer(plain.length));
     shared.set(plain);
     const oneRead = await readParquet(plain, 'one');
-    const twoRead = await readParquet(shared, 'two', {}, thread);
     const one = oneRead.problem ? undefined : oneRead.table;
-    const two = twoRead.problem ? undefined : twoRead.table;
-    t.ok(two && two.numbers.buffer instanceof SharedArrayBuffer, 'decoded into shared memory');
     const bits = (x: ColumnTable | undefined) => x && Buffer.from(x.numbers.buffer, x.numbers.byteOffset, x.numbers.byteLength);
-    t.ok(one && two && bits(one)?.equals(bits(two) as Buffer), 'the same numbers, bit for bit');
-    t.same(two?.columns, one?.columns, 'the same texts and slots');
+    // Many reads: the threads' order varies from read to read. (A race once let this thread's
+    // first touch of the block zero values the other had already written; it showed in one
+    // read of a few hundred, more often on a busy machine.)
+    const differing: number[] = [];
+    for (let i = 0; i < 40; i++) {
+      const twoRead = await readParquet(shared, 'two', {}, thread);
+      const two = twoRead.problem ? undefined : twoRead.table;
+      if (i === 0) {
+        t.ok(two && two.numbers.buffer instanceof SharedArrayBuffer, 'decoded into shared memory');
+        t.same(two?.columns, one?.columns, 'the same texts and slots');
+      }
+      if (!(one && two && bits(one)?.equals(bits(two) as Buffer))) differing.push(i);
+    }
+    t.same(differing, [], 'the same numbers, bit for bit, in each of 40 reads');
   }
   // A broken file found by the other thread is the same located problem.
   const broken = write({ v2: false, dictionary: false, small: false, codec: pq.Compression.SNAPPY });
