@@ -30,3 +30,4 @@ import './cli/apply.part.js';
 import './cli/sign-verify.part.js';
 import './table/plain.part.js';
 import './reconcile/known-rows.part.js';
+import './model/knn-kernel.part.js';

@@ -29,7 +29,9 @@ const table: ExecData = {
 parentPort!.on('message', (job: FoldJob) => {
   try {
     const fit = runJob(w.protocol, table, job);
-    parentPort!.postMessage({ index: job.index, fit }, [fit.proba.buffer as ArrayBuffer]);
+    // A later part of a split fold sends its probabilities only: the first part carries the fold's models.
+    const sent = job.part ? { proba: fit.proba } : fit;
+    parentPort!.postMessage({ index: job.index, fit: sent }, [fit.proba.buffer as ArrayBuffer]);
   } catch (e) {
     parentPort!.postMessage({ index: job.index, error: toWorkerError(e) });
   }

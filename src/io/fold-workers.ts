@@ -12,7 +12,7 @@ import type { Assignment } from '../split/assignment.js';
 import type { Table } from '../table/table.js';
 import { assembleResult, atFold, crossValidate, planFolds, type CvHooks, type CvResult } from '../run/cross-validate.js';
 import type { FoldFit } from '../run/fit-fold.js';
-import { jobsFor, strategyFor, wantsColumns } from '../run/executor.js';
+import { jobsFor, joinParts, partsFor, splitJobs, strategyFor, wantsColumns } from '../run/executor.js';
 import { columnMajor } from '../preprocess/by-columns.js';
 import { candidates } from '../protocol/grid.js';
 import { innerFits } from '../run/nested.js';
@@ -36,7 +36,8 @@ export async function crossValidateInWorkers(p: Protocol, table: Table, a: Assig
   // Fits from class moments cost little per fold: no thread pays for its start-up there. Every
   // other strategy comes as jobs from the executor, which the workers run as they are.
   if (threads < 2 || !import.meta.url.endsWith('.js') || strategyFor(p) === 'moments') return crossValidate(p, table, a, hooks);
-  const jobs = jobsFor(p, table, a, plans);
+  const parts = partsFor(p, plans.length, threads);
+  const jobs = splitJobs(jobsFor(p, table, a, plans), parts);
   const data = new SharedArrayBuffer(table.X.data.byteLength);
   new Float64Array(data).set(table.X.data);
   const y = new SharedArrayBuffer(table.y.byteLength);
@@ -58,28 +59,29 @@ export async function crossValidateInWorkers(p: Protocol, table: Table, a: Assig
     ids: p.tune ? table.ids : [],
     groups: p.tune ? table.groups : undefined,
   };
-  const fits: FoldFit[] = new Array(plans.length);
+  const fits: FoldFit[] = new Array(jobs.length);
   const workers = Array.from({ length: threads }, () => new Worker(new URL('./fold-worker.js', import.meta.url), { workerData }));
   try {
     await new Promise<void>((resolve, reject) => {
       let next = 0;
       let done = 0;
       const feed = (w: Worker) => {
-        if (next >= plans.length) return;
-        const index = next++;
-        w.postMessage(jobs[index]);
+        if (next >= jobs.length) return;
+        w.postMessage(jobs[next++]);
       };
       for (const w of workers) {
         w.on('message', (m: { index: number; fit?: FoldFit; error?: WorkerError }) => {
+          const plan = plans[Math.floor(m.index / parts)];
           if (m.error) {
-            reject(atFold(fromWorkerError(m.error), plans[m.index].repeat, plans[m.index].fold));
+            reject(atFold(fromWorkerError(m.error), plan.repeat, plan.fold));
             return;
           }
           fits[m.index] = m.fit!;
           // Counted outside the optional call: `f?.(++done)` skips the increment when there is no f.
           done++;
-          hooks.onFold?.(done, plans.length);
-          if (done === plans.length) resolve();
+          // Progress in folds: every `parts` jobs done count as one.
+          if (done % parts === 0) hooks.onFold?.(done / parts, plans.length);
+          if (done === jobs.length) resolve();
           else feed(w);
         });
         w.on('error', reject);
@@ -89,5 +91,5 @@ export async function crossValidateInWorkers(p: Protocol, table: Table, a: Assig
   } finally {
     await Promise.all(workers.map((w) => w.terminate()));
   }
-  return assembleResult(p, table, a, plans, fits);
+  return assembleResult(p, table, a, plans, joinParts(fits, parts));
 }

@@ -72,6 +72,11 @@ export interface ModelCapabilities<P> {
    * out — every fold's held-out rows in one call. Equals predict per model.
    */
   predictRows?(models: P[], X: Matrix, which: Int32Array, modelOf: Int32Array): Float64Array;
+  /**
+   * Fitting is cheap next to predicting (the model keeps its training rows): a fold's test rows
+   * may then be predicted in parts on several threads, each fitting the fold again.
+   */
+  cheapFit?: true;
   /** Remarks on a fitted model worth a warning (e.g. every distance tied). */
   notes?(params: P): string[];
 }

@@ -13,6 +13,7 @@ import { columnMajor, fitsByColumns } from '../preprocess/by-columns.js';
 import { positiveClass, type Protocol } from '../protocol/types.js';
 import type { Assignment } from '../split/assignment.js';
 import { nestedFold, type SearchData, type TunedParts } from './nested.js';
+import { models } from '../model/registry.js';
 
 /** What the executor reads of a protocol: the pipeline and model, and the grid and inner split when it tunes. */
 export type ExecParts = Pick<Protocol, 'preprocess' | 'model'> & Partial<Pick<Protocol, 'grid' | 'tune' | 'data'>>;
@@ -56,6 +57,47 @@ export interface FoldJob {
   train: Int32Array;
   test: Int32Array;
   pipeline?: FittedPipeline;
+  /** Set when the job predicts one part of its fold's test rows (splitJobs): the part's number from 0. */
+  part?: number;
+}
+
+/**
+ * Into how many parts each fold's test rows may be split among `threads` threads: more than one
+ * only when the model is cheap to fit next to predicting (each part fits again, the same bits)
+ * and the folds alone would leave a thread idle at the end.
+ */
+export function partsFor(p: ExecParts, folds: number, threads: number): number {
+  if (p.tune || !models[p.model.kind].capabilities?.cheapFit || folds % threads === 0) return 1;
+  return threads;
+}
+
+/** Each job as `parts` jobs over consecutive slices of its test rows, numbered in order. */
+export function splitJobs(jobs: readonly FoldJob[], parts: number): FoldJob[] {
+  if (parts === 1) return [...jobs];
+  return jobs.flatMap((job) =>
+    Array.from({ length: parts }, (_, part) => {
+      const from = Math.floor((job.test.length * part) / parts);
+      const to = Math.floor((job.test.length * (part + 1)) / parts);
+      return { ...job, index: job.index * parts + part, test: job.test.subarray(from, to), part };
+    }),
+  );
+}
+
+/** The fits of split jobs joined back per fold: the first part's pipeline and model, every part's probabilities in order. */
+export function joinParts(fits: readonly Pick<FoldFit, 'proba'>[], parts: number): FoldFit[] {
+  if (parts === 1) return fits as FoldFit[];
+  const joined: FoldFit[] = [];
+  for (let f = 0; f < fits.length; f += parts) {
+    const pieces = fits.slice(f, f + parts);
+    const proba = new Float64Array(pieces.reduce((sum, x) => sum + x.proba.length, 0));
+    let at = 0;
+    for (const x of pieces) {
+      proba.set(x.proba, at);
+      at += x.proba.length;
+    }
+    joined.push({ ...(pieces[0] as FoldFit), proba });
+  }
+  return joined;
 }
 
 /** The jobs of a strategy that fits per fold (everything but 'moments'). */

@@ -35,6 +35,22 @@ t.test('FOLDSEAL_THREADS=3 and =1 write identical files, the folds and a permuta
   t.equal(JSON.parse(readFileSync(join(dir, 'res-1', 'results.json'), 'utf8')).statistics.permutation.count, 6);
 });
 
+t.test('knn on two threads: five folds split into parts of their test rows, the same files as one thread', async (t) => {
+  // knn fits cheaply (it keeps its rows), so five folds on two threads become ten half-folds (run/executor.ts partsFor).
+  const knn = onWorkers
+    .replace('model: {kind: gaussian-nb}', 'model: {kind: knn, options: {k: 7}}')
+    .replace(/folds: \d+/, 'folds: 5')
+    .replace(/repeats: \d+/, 'repeats: 1');
+  const dir = tempDir({ 'p.yaml': knn });
+  const two = await run('2', ['run', 'p.yaml', '--out', 'res-2'], dir);
+  t.equal(two.status, 0, two.stderr);
+  const one = await run('1', ['run', 'p.yaml', '--out', 'res-1'], dir);
+  t.equal(one.status, 0, one.stderr);
+  t.match(readFileSync(join(dir, 'res-1', 'results.json'), 'utf8'), '"fold": 5');
+  for (const f of ['predictions.csv', 'results.json', 'models.json', 'applied.csv'])
+    t.equal(readFileSync(join(dir, 'res-2', f), 'utf8'), readFileSync(join(dir, 'res-1', f), 'utf8'), f);
+});
+
 t.test('a fit error inside a worker is the same user error', async (t) => {
   const dir = tempDir({ 'p.yaml': onWorkers.replace('model: {kind: gaussian-nb}', 'model: {kind: multinomial-nb}') });
   const r = await run('2', ['run', 'p.yaml', '--out', 'res'], dir);
