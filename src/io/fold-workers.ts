@@ -30,12 +30,25 @@ export function threadCount(table: Table, folds: number, weight = 1): number {
   return Math.max(1, Math.min(availableParallelism(), folds, 8));
 }
 
-export async function crossValidateInWorkers(p: Protocol, table: Table, a: Assignment, hooks: CvHooks = {}): Promise<CvResult> {
+/**
+ * `meanwhile`: work for this thread that must come before the folds' own (it runs first when the
+ * folds are fitted here, and while the workers start up and fit otherwise).
+ */
+export async function crossValidateInWorkers(
+  p: Protocol,
+  table: Table,
+  a: Assignment,
+  hooks: CvHooks = {},
+  meanwhile: () => void = () => {},
+): Promise<CvResult> {
   const plans = planFolds(p, table, a);
   const threads = threadCount(table, plans.length, p.tune ? candidates(p.grid).length * innerFits(p.tune.split) : 1);
   // Fits from class moments cost little per fold: no thread pays for its start-up there. Every
   // other strategy comes as jobs from the executor, which the workers run as they are.
-  if (threads < 2 || !import.meta.url.endsWith('.js') || strategyFor(p) === 'moments') return crossValidate(p, table, a, hooks);
+  if (threads < 2 || !import.meta.url.endsWith('.js') || strategyFor(p) === 'moments') {
+    meanwhile();
+    return crossValidate(p, table, a, hooks);
+  }
   const parts = partsFor(p, plans.length, threads);
   const jobs = splitJobs(jobsFor(p, table, a, plans), parts);
   const data = new SharedArrayBuffer(table.X.data.byteLength);
@@ -87,6 +100,8 @@ export async function crossValidateInWorkers(p: Protocol, table: Table, a: Assig
         w.on('error', reject);
         feed(w);
       }
+      // This thread's own work while the workers start up and fit.
+      meanwhile();
     });
   } finally {
     await Promise.all(workers.map((w) => w.terminate()));

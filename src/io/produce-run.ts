@@ -65,20 +65,25 @@ export async function produceRun(protocolPath: string, options: ProduceOptions =
     refit: options.refit,
     warnings: report.problems.filter((q) => q.severity === 'warning'),
   };
-  // The audit first: once its findings are placed, the description of the file's other columns
-  // (which keeps the file's bytes to place cells) can go before the folds need the memory.
-  const audit = options.audit ? auditReport(report, { quick: true }) : undefined;
-  report.described = undefined;
+  // The audit before the folds' memory is needed: once its findings are placed, the description
+  // of the file's other columns (which keeps the file's bytes to place cells) can go. With fold
+  // workers it runs while they start up and fit.
+  let audit: AuditResult | undefined;
+  const runAudit = () => {
+    audit = options.audit ? auditReport(report, { quick: true }) : undefined;
+    report.described = undefined;
+  };
+  const merged = options.merged;
+  if (merged || input.protocol.model.kind === 'command') runAudit();
   if (input.protocol.model.kind === 'command') {
     const external = await runCommandModel(protocolPath, report, input, options);
     input.external = external.external;
     const out = runProtocol(input, options.hooks, external.cv, undefined);
     return { report, input, out, audit };
   }
-  const merged = options.merged;
   const cv = merged
     ? assembleResult(input.protocol, input.table, input.assignment, planFolds(input.protocol, input.table, input.assignment), merged.fits)
-    : await crossValidateInWorkers(input.protocol, input.table, input.assignment, options.hooks).catch((e: unknown) => {
+    : await crossValidateInWorkers(input.protocol, input.table, input.assignment, options.hooks, runAudit).catch((e: unknown) => {
         throw asUserError(e, input.protocolFile);
       });
   const permuted = merged
