@@ -75,7 +75,7 @@ export function fitPipelineOnRows(
       if (!(e instanceof FitError)) throw e;
     }
   }
-  return fitPipeline(steps, takeRows(source, rows), y, classCount, names);
+  return fitPipeline(steps, takeRows(source, rows), y, classCount, names, true);
 }
 
 function byColumns(
@@ -139,6 +139,7 @@ function byColumns(
     y,
     classCount,
     keep.map((j) => names[j]),
+    true,
   );
   if (rest.pipeline.steps.length === 0) assertFinite(rest.X, rest.pipeline.columns);
   return {

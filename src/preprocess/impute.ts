@@ -55,8 +55,8 @@ export const impute: TransformImpl<ImputeParams, ImputeStep> = {
       },
     },
   },
-  apply(p, X) {
-    const out = Float64Array.from(X.data);
+  apply(p, X, owned) {
+    const out = owned ? X.data : Float64Array.from(X.data);
     for (let k = 0; k < out.length; k++) if (out[k] !== out[k]) out[k] = p.fill[k % X.cols];
     return { rows: X.rows, cols: X.cols, data: out };
   },

@@ -25,8 +25,8 @@ export const log2p: TransformImpl<Record<string, never>, Record<string, never>> 
       },
     },
   },
-  apply(_p, X) {
-    const out = new Float64Array(X.data.length);
+  apply(_p, X, owned) {
+    const out = owned ? X.data : new Float64Array(X.data.length);
     for (let k = 0; k < out.length; k++) {
       const v = X.data[k];
       if (v < 0)

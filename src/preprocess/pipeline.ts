@@ -25,14 +25,20 @@ export function fitPipeline(
   y: Int32Array,
   classCount: number,
   names: readonly string[],
+  /** X is the caller's temporary copy: steps may overwrite it. */
+  owned = false,
 ): { pipeline: FittedPipeline; X: Matrix } {
   let current = X;
+  let mine = owned;
   let columns = [...names];
   const fitted: FittedStep[] = [];
   for (const step of steps) {
     const impl = transforms[step.step];
     const params = impl.fit(current, y, classCount, step);
-    current = impl.apply(params, current);
+    const next = impl.apply(params, current, mine);
+    // A step's new array is this pipeline's own from then on.
+    mine ||= next.data !== current.data;
+    current = next;
     columns = outputColumns(impl, params, columns);
     fitted.push({ step, params });
   }
@@ -50,7 +56,13 @@ export function applyPipeline(p: FittedPipeline, X: Matrix, rows?: Int32Array): 
     : p.input
       ? takeCols(X, Int32Array.from(p.input))
       : X;
-  for (const s of p.steps) current = transforms[s.step.step].apply(s.params, current);
+  // A copy made here is this call's own: the steps may write over it.
+  let mine = current !== X;
+  for (const s of p.steps) {
+    const next = transforms[s.step.step].apply(s.params, current, mine);
+    mine ||= next.data !== current.data;
+    current = next;
+  }
   if (p.steps.length) assertFinite(current, p.columns);
   return current;
 }

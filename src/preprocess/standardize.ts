@@ -80,9 +80,9 @@ export const standardize: TransformImpl<StandardizeParams, Record<string, never>
       },
     },
   },
-  apply(p, X) {
+  apply(p, X, owned) {
     const { rows, cols, data } = X;
-    const out = new Float64Array(rows * cols);
+    const out = owned ? data : new Float64Array(rows * cols);
     const mean = Float64Array.from(p.mean);
     const scale = Float64Array.from(p.scale);
     for (let r = 0; r < rows; r++) for (let j = 0; j < cols; j++) out[r * cols + j] = (data[r * cols + j] - mean[j]) / scale[j];

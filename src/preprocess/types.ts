@@ -43,7 +43,11 @@ export interface TransformImpl<P = unknown, S extends object = object> {
   /** Problems of the settings against the data (located under the step), and the width of its output. */
   check(step: S, ctx: StepContext): { problems: StepProblem[]; width: number };
   fit(X: Matrix, y: Int32Array, classCount: number, step: S): P;
-  apply(params: P, X: Matrix): Matrix;
+  /**
+   * `owned`: X's data is the pipeline's own temporary copy, so a step whose output has X's shape
+   * may write its output over it (fresh memory is slow to touch; the arithmetic is the same).
+   */
+  apply(params: P, X: Matrix, owned?: boolean): Matrix;
   /** The one optional capability: how the step can be fitted faster with identical bits. */
   readonly fast?: ColumnWise<P, S> | Selection<P, S>;
 }
