@@ -221,6 +221,7 @@ export function decodeColumn(
     const reader = { view: new DataView(file.buffer, file.byteOffset + start, end - start), offset: 0 };
     const unpack = (bytes: Uint8Array, size: number) => (codec === 'UNCOMPRESSED' ? bytes : decompress(bytes, scratch.bytes(size), codec));
     let dictionary: Float64Array | string[] | undefined;
+    let dictionaryBad: Uint8Array | undefined;
     let seen = 0;
     while (seen < group.rows) {
       if (reader.offset >= reader.view.byteLength) throw new Error(`column ${leaf.name} ends before its last value`);
@@ -237,6 +238,7 @@ export function decodeColumn(
         else {
           dictionary = new Float64Array(count);
           plainNumbers(page, type, count, dictionary);
+          dictionaryBad = outOfRange(dictionary);
         }
         continue;
       }
@@ -267,7 +269,7 @@ export function decodeColumn(
         page = { total: h.values, encoding: h.encoding, defined, values: view(h.compressed ? unpack(rest, size - levels) : rest) };
       } else throw new NeedsGeneralReader();
       if (rowStart + seen + page.total > rows) throw new Error(`column ${leaf.name} holds more values than the file has rows`);
-      suspect += writePage(page, type, dictionary, sink, rowStart + seen, scratch);
+      suspect += writePage(page, type, dictionary, dictionaryBad, sink, rowStart + seen, scratch);
       seen += page.total;
     }
     if (seen !== group.rows) throw new Error(`column ${leaf.name} holds ${seen} values in a row group of ${group.rows} rows`);
@@ -275,6 +277,13 @@ export function decodeColumn(
   }
   if (rowStart !== rows) throw new Error(`the row groups hold ${rowStart} rows, the file says ${rows}`);
   return suspect;
+}
+
+/** 1 for each dictionary entry outside the safe range (table/numeric.ts), else 0. */
+function outOfRange(numbers: Float64Array): Uint8Array {
+  const bad = new Uint8Array(numbers.length);
+  for (let e = 0; e < numbers.length; e++) bad[e] = inSafeRange(numbers[e]) ? 0 : 1;
+  return bad;
 }
 
 /** Dictionary indices of a page's present values (bit width in the first byte, then the hybrid). */
@@ -291,6 +300,8 @@ function writePage(
   page: Page,
   type: ParquetType,
   dictionary: Float64Array | string[] | undefined,
+  /** For a number dictionary: 1 for each entry outside the safe range. */
+  dictionaryBad: Uint8Array | undefined,
   sink: Sink,
   at: number,
   scratch: Scratch,
@@ -318,17 +329,49 @@ function writePage(
     else for (let i = 0, k = 0; i < total; i++) texts[at + i] = defined[i] ? values[k++] : '';
     return 0;
   }
-  const values = scratch.f64(present);
-  if (dictionaryEncoded) {
-    const numbers = dictionary as Float64Array;
-    const indices = indicesOf(page, present, numbers.length, scratch);
-    for (let i = 0; i < present; i++) values[i] = numbers[indices[i]];
-  } else plainNumbers(page.values, type, present, values);
   const { block, width, slot } = sink;
   let suspect = total - present;
-  for (let i = 0; i < present; i++) if (!inSafeRange(values[i])) suspect++;
-  if (!defined) for (let i = 0, k = at * width + slot; i < total; i++, k += width) block[k] = values[i];
-  else for (let i = 0, j = 0, k = at * width + slot; i < total; i++, k += width) block[k] = defined[i] ? values[j++] : Number.NaN;
+  if (dictionaryEncoded) {
+    // Each entry's range is checked once; a value then counts by its entry (one pass, no copy).
+    const numbers = dictionary as Float64Array;
+    const bad = dictionaryBad as Uint8Array;
+    const indices = indicesOf(page, present, numbers.length, scratch);
+    if (!defined)
+      for (let i = 0, k = at * width + slot; i < total; i++, k += width) {
+        const e = indices[i];
+        block[k] = numbers[e];
+        suspect += bad[e];
+      }
+    else
+      for (let i = 0, j = 0, k = at * width + slot; i < total; i++, k += width) {
+        if (!defined[i]) {
+          block[k] = Number.NaN;
+          continue;
+        }
+        const e = indices[j++];
+        block[k] = numbers[e];
+        suspect += bad[e];
+      }
+    return suspect;
+  }
+  const values = scratch.f64(present);
+  plainNumbers(page.values, type, present, values);
+  if (!defined)
+    for (let i = 0, k = at * width + slot; i < total; i++, k += width) {
+      const v = values[i];
+      block[k] = v;
+      if (!inSafeRange(v)) suspect++;
+    }
+  else
+    for (let i = 0, j = 0, k = at * width + slot; i < total; i++, k += width) {
+      if (!defined[i]) {
+        block[k] = Number.NaN;
+        continue;
+      }
+      const v = values[j++];
+      block[k] = v;
+      if (!inSafeRange(v)) suspect++;
+    }
   return suspect;
 }
 
