@@ -11,7 +11,15 @@ import type { ColumnTable } from '../table/columns.js';
 import { compressors, decompress } from './parquet-codecs.js';
 import { type ParquetFooter, readFooter } from './parquet-footer.js';
 import { forcedThreads } from './threads.js';
-import { decodeColumn, decodeNumberColumns, fastKind, NeedsGeneralReader, plainNumber, Scratch } from './parquet-pages.js';
+import {
+  decodeColumn,
+  decodeNumberColumns,
+  fastKind,
+  NeedsGeneralReader,
+  type NumberColumnsDone,
+  plainNumber,
+  Scratch,
+} from './parquet-pages.js';
 
 export function isParquet(bytes: Uint8Array): boolean {
   const n = bytes.length;
@@ -69,11 +77,9 @@ export type ParquetTwin = {
      */
     ready: Int32Array;
     touch: [number, number];
-  }): () => {
-    back: number[];
-    suspect?: number;
-    broken?: string;
-  };
+    /** Shared with this thread: the next column (in `cols`) not yet taken. */
+    claim: Int32Array;
+  }): () => NumberColumnsDone;
 };
 
 /** Below this many compressed bytes of numeric columns a second thread is not worth its message (FOLDSEAL_THREADS=2 forces it). */
@@ -101,19 +107,18 @@ async function decodeColumns(
   const total = sizes.reduce((a, b) => a + b, 0);
   const shared = twin !== undefined && file.buffer instanceof SharedArrayBuffer && (total >= TWIN_BYTES || (forcedThreads() ?? 0) >= 2);
   const numbers = shared ? twin.numbers(rows * width) : new Float64Array(rows * width);
-  const slotOf = (c: number) => columns[c] as number;
-  // The other thread takes the last columns, about half of the bytes.
-  let mine = numberCols.length;
-  for (let sum = 0; shared && mine > 0 && sum + sizes[mine - 1] <= 0.5 * total; ) sum += sizes[--mine];
-  const theirs = numberCols.slice(mine);
+  const slots = numberCols.map((c) => columns[c] as number);
+  // Both threads take the next column not yet taken from a shared counter.
+  const claim = new Int32Array(new SharedArrayBuffer(4));
   // Fresh memory is slow to touch the first time: before either thread writes a cell, this one
   // touches the first third of the block's rows and decodes the text columns while the other
   // finishes hashing the file and touches the rest; each signals `ready` and waits for the other.
   const ready = new Int32Array(new SharedArrayBuffer(8));
   const third = Math.floor(rows / 3) * width;
-  const answer = theirs.length
-    ? twin?.parquet({ file, cols: theirs, slots: theirs.map(slotOf), numbers, width, ready, touch: [third, rows * width] })
-    : undefined;
+  const answer =
+    shared && numberCols.length > 1
+      ? twin.parquet({ file, cols: numberCols, slots, numbers, width, ready, touch: [third, rows * width], claim })
+      : undefined;
   if (answer) {
     numbers.fill(0, 0, third);
     Atomics.store(ready, 1, 1);
@@ -132,10 +137,11 @@ async function decodeColumns(
     }
   });
   while (answer && Atomics.load(ready, 0) === 0) Atomics.wait(ready, 0, 0, 1000);
-  const mineCols = numberCols.slice(0, mine);
-  const here = decodeNumberColumns(file, footer, mineCols, mineCols.map(slotOf), numbers, width, decompress);
+  const here = decodeNumberColumns(file, footer, numberCols, slots, numbers, width, decompress, answer && claim);
   const other = answer?.();
-  if (other?.broken) throw new Error(other.broken);
+  // The first broken column in file order, whichever thread met it.
+  const broken = [here.broken, other?.broken].reduce((a, b) => (!a || (b && b.at < a.at) ? b : a));
+  if (broken) throw new Error(broken.message);
   back.push(...here.back, ...(other?.back ?? []));
   const suspect = here.suspect + (other?.suspect ?? 0);
   const general: string[] = [];

@@ -9,6 +9,7 @@ import { forcedThreads } from './threads.js';
 import { deriveKeys } from '../split/key.js';
 import type { RowHelper, RowsPart } from '../table/plain.js';
 import type { ParquetTwin } from './parquet.js';
+import type { NumberColumnsDone } from './parquet-pages.js';
 
 /** Files below this size read faster on one thread than a worker takes to start. */
 export const SHARED_READ_BYTES = 8 * 1024 * 1024;
@@ -85,7 +86,7 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
     },
     parquet(job) {
       const wait = post({ kind: 'parquet', ...job });
-      return () => wait() as { back: number[]; suspect?: number; broken?: string };
+      return () => wait() as unknown as NumberColumnsDone;
     },
     start(t, numberCols, textCols, from, to, numbers) {
       const table = {

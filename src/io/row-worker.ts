@@ -9,6 +9,7 @@ import type { PlainTable } from '../table/plain.js';
 import { decodeSpan } from '../table/grid.js';
 import { extractRows, type RowsPart } from '../table/plain-rows.js';
 import type { ParquetTwin } from './parquet.js';
+import type { NumberColumnsDone } from './parquet-pages.js';
 
 const { port, parquet } = workerData as { port: MessagePort; parquet: boolean };
 
@@ -26,7 +27,7 @@ type Job = { id: number; done: Int32Array } & (
 );
 
 /** The share of a Parquet file's numeric columns this thread was given; a broken file is an answer, not a failure. */
-async function parquetShare(job: Extract<Job, { kind: 'parquet' }>): Promise<{ back: number[]; suspect?: number; broken?: string }> {
+async function parquetShare(job: Extract<Job, { kind: 'parquet' }>): Promise<NumberColumnsDone> {
   job.numbers.fill(0, job.touch[0], job.touch[1]);
   Atomics.store(job.ready, 0, 1);
   Atomics.notify(job.ready, 0);
@@ -34,9 +35,10 @@ async function parquetShare(job: Extract<Job, { kind: 'parquet' }>): Promise<{ b
   // The main thread touches the first rows: no value is written there before it has.
   while (Atomics.load(job.ready, 1) === 0) Atomics.wait(job.ready, 1, 0, 1000);
   try {
-    return decodeNumberColumns(job.file, readFooter(job.file), job.cols, job.slots, job.numbers, job.width, decompress);
+    return decodeNumberColumns(job.file, readFooter(job.file), job.cols, job.slots, job.numbers, job.width, decompress, job.claim);
   } catch (e) {
-    return { back: [], broken: (e as Error).message };
+    // The footer read on this thread as on the other: not reached unless the bytes changed.
+    return { back: [], suspect: 0, broken: { at: -1, message: (e as Error).message } };
   }
 }
 
