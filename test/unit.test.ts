@@ -31,3 +31,4 @@ import './cli/sign-verify.part.js';
 import './table/plain.part.js';
 import './reconcile/known-rows.part.js';
 import './model/knn-kernel.part.js';
+import './table/csv-write.part.js';

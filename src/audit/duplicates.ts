@@ -44,11 +44,17 @@ export function exactDuplicateSets(X: Matrix): Int32Array[] {
   const packed = new Float64Array(rows);
   for (let r = 0; r < rows; r++) packed[r] = hash[r] * 2097152 + r;
   packed.sort();
-  const order = Int32Array.from(packed, (v) => v % 2097152);
+  const order = new Int32Array(rows);
+  for (let r = 0; r < rows; r++) order[r] = packed[r] % 2097152;
   const sets: Int32Array[] = [];
   for (let s = 0; s < rows; ) {
     let e = s + 1;
     while (e < rows && hash[order[e]] === hash[order[s]]) e++;
+    // A hash of one row (nearly all of them): nothing to split.
+    if (e - s === 1) {
+      s = e;
+      continue;
+    }
     // Rows of one hash may still differ: split the run into classes of equal rows.
     const left = Array.from(order.subarray(s, e));
     while (left.length > 1) {

@@ -12,6 +12,9 @@ export function predictionsCsv(cv: CvResult, table: Table): string {
   const order = idOrder(table.ids);
   const quotedClass = cv.classes.map(csvCell);
   const quotedIds = csvCells(table.ids);
+  let lines = 0;
+  let total = 0;
+  for (const tested of cv.testedIn) for (let i = 0; i < tested.length; i++) if (tested[i] !== 0) total++;
   cv.oof.forEach((proba, r) => {
     const predicted = predictedClasses(proba, k);
     const repeat = `,${r + 1},`;
@@ -22,6 +25,8 @@ export function predictionsCsv(cv: CvResult, table: Table): string {
       let line = quotedIds[row] + repeat + fold + ',' + quotedClass[table.y[row]] + ',' + quotedClass[predicted[row]];
       for (let c = 0; c < k; c++) line += ',' + proba[row * k + c];
       out.add(line + '\n');
+      // The first thousand lines tell the size of the rest: room for all of it at once.
+      if (++lines === 1000 && total > 2000) out.reserve(Math.ceil((out.size / lines) * total * 1.1) + 65536);
     }
   });
   return out.text();

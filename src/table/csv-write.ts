@@ -35,6 +35,22 @@ export class TextBuilder {
     if (this.pending.length >= 1 << 16) this.flush();
   }
 
+  /** Bytes so far: those copied into the buffer and the characters still gathered (one byte each in ASCII). */
+  get size(): number {
+    return this.length + this.pending.length;
+  }
+
+  /**
+   * Room for about `bytes` in all, in one allocation: a text whose length is known roughly
+   * ahead then grows once instead of doubling (each fresh buffer is slow to touch).
+   */
+  reserve(bytes: number): void {
+    if (bytes <= this.bytes.length) return;
+    const grown = Buffer.allocUnsafe(bytes);
+    this.bytes.copy(grown, 0, 0, this.length);
+    this.bytes = grown;
+  }
+
   text(): string {
     this.flush();
     return this.bytes.toString('utf8', 0, this.length);
