@@ -268,7 +268,8 @@ export const WASM_LIMIT = 1 << 30;
 /** Pairs of training rows per kernel call (kept in cache while a block of test rows is measured against them). */
 const PAIRS = 256;
 
-let kernel: { memory: WebAssembly.Memory; distances: (...args: number[]) => void } | undefined;
+/** The kernel's instance on this thread; null where WebAssembly is not available (node --jitless): the plain loop then. */
+let kernel: { memory: WebAssembly.Memory; distances: (...args: number[]) => void } | null | undefined;
 
 /**
  * The distances by the WebAssembly kernel (kernels/knn-distances.wat): two training rows per
@@ -283,7 +284,8 @@ function wasmScan(near: Nearest, data: Float64Array, rows: number, train: Float6
   const outBytes = TEST_BLOCK * PAIRS * 16;
   const total = trainBytes + testBytes + (TEST_BLOCK + 1) * 8 + outBytes + TEST_BLOCK * (PAIRS / 4);
   if (total > WASM_LIMIT || cols === 0) return false;
-  kernel ??= instantiate();
+  if (kernel === undefined) kernel = instantiate();
+  if (kernel === null) return false;
   const { memory } = kernel;
   const pages = Math.ceil(total / 65536) - memory.buffer.byteLength / 65536;
   if (pages > 0) memory.grow(pages);
@@ -329,6 +331,7 @@ function wasmScan(near: Nearest, data: Float64Array, rows: number, train: Float6
 }
 
 function instantiate() {
+  if (typeof WebAssembly !== 'object') return null;
   const bytes = Uint8Array.from(atob(wasmBase64), (c) => c.charCodeAt(0));
   const { exports } = new WebAssembly.Instance(new WebAssembly.Module(bytes));
   return exports as unknown as { memory: WebAssembly.Memory; distances: (...args: number[]) => void };

@@ -112,7 +112,9 @@ t.test('signing through a real ssh-agent: the private key never reaches foldseal
   const sock = join(dir, 'agent.sock');
   const agent = spawn('ssh-agent', ['-D', '-a', sock], { stdio: 'ignore' });
   try {
-    for (let i = 0; i < 100 && !existsSync(sock); i++) await new Promise((r) => setTimeout(r, 20));
+    // Up to 15 s for the agent's socket: a busy CI machine can be slow to start it.
+    for (let i = 0; i < 750 && !existsSync(sock); i++) await new Promise((r) => setTimeout(r, 20));
+    t.ok(existsSync(sock), 'the agent is listening');
     const env = { ...process.env, SSH_AUTH_SOCK: sock };
     const runWith = (args: string[], e: NodeJS.ProcessEnv) =>
       spawnSync(process.execPath, [bin, ...args], { cwd: dir, encoding: 'utf8', env: e });

@@ -5,6 +5,7 @@
  * huge values and odd sizes (fast-check). The scikit-learn cross-check of knn's probabilities
  * runs through the kernel too (test/reference).
  */
+import { spawnSync } from 'node:child_process';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
@@ -99,4 +100,35 @@ t.test('a training set of many chunks: the kernel and the plain loop agree row f
     (r) => [...kernel.of(r)].sort((a, b) => a - b).join() !== [...plain.of(r)].sort((a, b) => a - b).join(),
   );
   t.same(differ, []);
+});
+
+t.test('without WebAssembly (node --jitless) knn takes the plain loop and gives the same neighbours', async (t) => {
+  const knnModule = pathToFileURL(join(root, 'dist', 'src', 'model', 'knn.js')).href;
+  const script = `
+    import { neighbours } from ${JSON.stringify(knnModule)};
+    const X = Array.from({ length: 40 }, (_, i) => [i % 7, (i * 3) % 5, i % 2]);
+    const p = { k: 4, classCount: 2, X, y: X.map((_, i) => i % 2) };
+    const T = { rows: 9, cols: 3, data: Float64Array.from({ length: 27 }, (_, i) => (i * 5) % 6) };
+    const rows = (near) => Array.from({ length: 9 }, (_, r) => [...near.of(r)].sort((a, b) => a - b).join(' '));
+    console.log(JSON.stringify({ wasm: typeof WebAssembly, kernel: rows(neighbours(p, T)), plain: rows(neighbours(p, T, true)) }));`;
+  const r = spawnSync(process.execPath, ['--jitless', '--input-type=module', '-e', script], { encoding: 'utf8' });
+  t.equal(r.status, 0, r.stderr);
+  const out = JSON.parse(r.stdout);
+  t.equal(out.wasm, 'undefined', 'no WebAssembly in that process');
+  t.same(out.kernel, out.plain);
+  // The same table here, through the kernel.
+  const X = Array.from({ length: 40 }, (_, i) => [i % 7, (i * 3) % 5, i % 2]);
+  const here = neighbours(
+    { k: 4, classCount: 2, X, y: X.map((_, i) => i % 2) },
+    {
+      rows: 9,
+      cols: 3,
+      data: Float64Array.from({ length: 27 }, (_, i) => (i * 5) % 6),
+    },
+  );
+  t.same(
+    Array.from({ length: 9 }, (_, r) => [...here.of(r)].sort((a, b) => a - b).join(' ')),
+    out.plain,
+    'the kernel here agrees',
+  );
 });
