@@ -288,7 +288,14 @@ function wasmScan(near: Nearest, data: Float64Array, rows: number, train: Float6
   if (kernel === null) return false;
   const { memory } = kernel;
   const pages = Math.ceil(total / 65536) - memory.buffer.byteLength / 65536;
-  if (pages > 0) memory.grow(pages);
+  if (pages > 0) {
+    try {
+      memory.grow(pages);
+    } catch {
+      /* c8 ignore next -- the system refused the memory: the plain loop needs none of it */
+      return false;
+    }
+  }
   const mem = new Float64Array(memory.buffer);
   // Pairs of training rows interleaved, padded with rows of zeros (never offered).
   mem.fill(0, 0, trainBytes / 8);
