@@ -66,6 +66,8 @@ export type ParquetTwin = {
   numbers(length: number): Float64Array;
   parquet(job: {
     file: Uint8Array;
+    /** As this thread read it (plain data: the other thread need not read it again). */
+    footer: ParquetFooter;
     cols: number[];
     slots: number[];
     numbers: Float64Array;
@@ -103,8 +105,8 @@ async function decodeColumns(
   const columns = names.map((_, c) => (numeric[c] ? width++ : new Array<string>(rows)));
   const fast = names.map((_, c) => fastKind(footer.schema[c + 1]) === (numeric[c] ? 'number' : 'text'));
   const numberCols = names.flatMap((_, c) => (fast[c] && numeric[c] ? [c] : []));
-  const sizes = numberCols.map((c) => footer.groups.reduce((sum, g) => sum + (g.chunks[c]?.size ?? 0), 0));
-  const total = sizes.reduce((a, b) => a + b, 0);
+  let total = 0;
+  for (const c of numberCols) for (const g of footer.groups) total += g.chunks[c]?.size ?? 0;
   const shared = twin !== undefined && file.buffer instanceof SharedArrayBuffer && (total >= TWIN_BYTES || (forcedThreads() ?? 0) >= 2);
   const numbers = shared ? twin.numbers(rows * width) : new Float64Array(rows * width);
   const slots = numberCols.map((c) => columns[c] as number);
@@ -117,7 +119,7 @@ async function decodeColumns(
   const third = Math.floor(rows / 3) * width;
   const answer =
     shared && numberCols.length > 1
-      ? twin.parquet({ file, cols: numberCols, slots, numbers, width, ready, touch: [third, rows * width], claim })
+      ? twin.parquet({ file, footer, cols: numberCols, slots, numbers, width, ready, touch: [third, rows * width], claim })
       : undefined;
   if (answer) {
     numbers.fill(0, 0, third);

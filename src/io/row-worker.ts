@@ -14,7 +14,7 @@ import type { NumberColumnsDone } from './parquet-pages.js';
 const { port, parquet } = workerData as { port: MessagePort; parquet: boolean };
 
 // The modules that decode a Parquet file, loaded while the main thread still reads it.
-const parquetModules = () => Promise.all([import('./parquet-footer.js'), import('./parquet-pages.js'), import('./parquet-codecs.js')]);
+const parquetModules = () => Promise.all([import('./parquet-pages.js'), import('./parquet-codecs.js')]);
 const loading = parquet ? parquetModules() : undefined;
 
 type Job = { id: number; done: Int32Array } & (
@@ -31,15 +31,10 @@ async function parquetShare(job: Extract<Job, { kind: 'parquet' }>): Promise<Num
   job.numbers.fill(0, job.touch[0], job.touch[1]);
   Atomics.store(job.ready, 0, 1);
   Atomics.notify(job.ready, 0);
-  const [{ readFooter }, { decodeNumberColumns }, { decompress }] = await (loading ?? parquetModules());
+  const [{ decodeNumberColumns }, { decompress }] = await (loading ?? parquetModules());
   // The main thread touches the first rows: no value is written there before it has.
   while (Atomics.load(job.ready, 1) === 0) Atomics.wait(job.ready, 1, 0, 1000);
-  try {
-    return decodeNumberColumns(job.file, readFooter(job.file), job.cols, job.slots, job.numbers, job.width, decompress, job.claim);
-  } catch (e) {
-    // The footer read on this thread as on the other: not reached unless the bytes changed.
-    return { back: [], suspect: 0, broken: { at: -1, message: (e as Error).message } };
-  }
+  return decodeNumberColumns(job.file, job.footer, job.cols, job.slots, job.numbers, job.width, decompress, job.claim);
 }
 
 // The last rows job's table and result, for the keys of the ids it parsed.

@@ -79,7 +79,7 @@ export const knn: ModelImpl<KnnParams> = {
 /**
  * The k nearest training rows of each test row (training positions, nearest first not
  * guaranteed), by the WebAssembly kernel when the rows fit its memory, else in plain JavaScript
- * (`plain`: always; the two give the same neighbours, test/model/knn-kernel.test.ts).
+ * (`plain`: always; the two give the same neighbours, test/model/knn-kernel.part.ts).
  */
 export function neighbours(p: KnnParams, X: Matrix, plain = false): Nearest {
   const n = p.y.length;
@@ -298,7 +298,10 @@ function wasmScan(near: Nearest, data: Float64Array, rows: number, train: Float6
   }
   const mem = new Float64Array(memory.buffer);
   // Pairs of training rows interleaved, padded with rows of zeros (never offered).
-  mem.fill(0, 0, trainBytes / 8);
+  for (let i = n; i < 2 * np; i++) {
+    const base = (i >> 1) * cols * 2 + (i & 1);
+    for (let j = 0; j < cols; j++) mem[base + 2 * j] = 0;
+  }
   for (let i = 0; i < n; i++) {
     const base = (i >> 1) * cols * 2 + (i & 1);
     for (let j = 0; j < cols; j++) mem[base + 2 * j] = train[i * cols + j];
