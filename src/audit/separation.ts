@@ -37,6 +37,72 @@ export function pairwiseSeparation(score: Float64Array, y: Int32Array, classes: 
   return worst;
 }
 
+/** Buckets of the screen below (counts reused across calls on one thread would save little: 8 KB). */
+const SCREEN_BUCKETS = 1024;
+
+/**
+ * Whether pairwiseSeparation(score, y, classes) can be at least `threshold`, decided in one pass
+ * per class pair without sorting: the pair's values are put in equal-width buckets between their
+ * minimum and maximum (a monotone map, so a positive in a higher bucket than a negative is
+ * certainly above it). Pairs in different buckets are then counted exactly and pairs sharing a
+ * bucket are the only unknowns, so the AUC lies in [L, L + S]; when for some class pair both
+ * AUC and 1 − AUC must stay below the threshold, the answer is no. True means "maybe": the exact
+ * value is then needed. Never false when the exact value reaches the threshold.
+ */
+export function mayReachSeparation(score: Float64Array, y: Int32Array, classes: number, threshold: number): boolean {
+  const pos = new Float64Array(SCREEN_BUCKETS);
+  const neg = new Float64Array(SCREEN_BUCKETS);
+  for (let a = 0; a < classes; a++) {
+    for (let b = a + 1; b < classes; b++) {
+      let lo = Number.POSITIVE_INFINITY;
+      let hi = Number.NEGATIVE_INFINITY;
+      let n1 = 0;
+      let n0 = 0;
+      for (let i = 0; i < y.length; i++) {
+        const v = score[i];
+        if ((y[i] !== a && y[i] !== b) || v !== v) continue;
+        if (v < lo) lo = v;
+        if (v > hi) hi = v;
+        if (y[i] === a) n1++;
+        else n0++;
+      }
+      // A class without values leaves the pair out, as the exact measure does.
+      if (n1 === 0 || n0 === 0) continue;
+      // All values equal: AUC ½ exactly.
+      if (lo === hi) {
+        if (0.5 < threshold) return false;
+        continue;
+      }
+      if (!Number.isFinite(lo) || !Number.isFinite(hi)) return true;
+      const scale = SCREEN_BUCKETS / (hi - lo);
+      // A range past the largest double: no scale to bucket by.
+      if (!(scale > 0)) return true;
+      pos.fill(0);
+      neg.fill(0);
+      for (let i = 0; i < y.length; i++) {
+        const v = score[i];
+        if ((y[i] !== a && y[i] !== b) || v !== v) continue;
+        const k = Math.min(SCREEN_BUCKETS - 1, Math.floor((v - lo) * scale));
+        if (y[i] === a) pos[k]++;
+        else neg[k]++;
+      }
+      let below = 0;
+      let certain = 0;
+      let shared = 0;
+      for (let k = 0; k < SCREEN_BUCKETS; k++) {
+        certain += pos[k] * below;
+        shared += pos[k] * neg[k];
+        below += neg[k];
+      }
+      const pairs = n1 * n0;
+      const aucLow = certain / pairs;
+      const aucHigh = (certain + shared) / pairs;
+      if (Math.max(aucHigh, 1 - aucLow) < threshold) return false;
+    }
+  }
+  return true;
+}
+
 export function proxyFindings(input: AuditInput): Problem[] {
   const { table } = input;
   const { rows, cols, data } = table.X;
@@ -45,6 +111,7 @@ export function proxyFindings(input: AuditInput): Problem[] {
   const out: Problem[] = [];
   for (let c = 0; c < cols; c++) {
     for (let r = 0; r < rows; r++) column[r] = data[r * cols + c];
+    if (!mayReachSeparation(column, table.y, k, AUDIT_THRESHOLDS.proxyAuc)) continue;
     const sep = pairwiseSeparation(column, table.y, k);
     if (sep === null || sep < AUDIT_THRESHOLDS.proxyAuc) continue;
     const { file, line, col } = input.described.featureCell(0, c);

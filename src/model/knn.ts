@@ -3,6 +3,7 @@
  * Training rows arrive in the split spec's id order, so equal distances are broken by id order.
  */
 import { wasmBase64 } from './kernels/knn-distances.wasm.js';
+import { instantiate, type Kernel, reserve } from './kernels/instance.js';
 import type { Matrix } from '../table/matrix.js';
 import type { ModelImpl } from './types.js';
 
@@ -268,8 +269,11 @@ export const WASM_LIMIT = 1 << 30;
 /** Pairs of training rows per kernel call (kept in cache while a block of test rows is measured against them). */
 const PAIRS = 256;
 
+interface DistanceKernel extends Kernel {
+  distances: (...args: number[]) => void;
+}
 /** The kernel's instance on this thread; null where WebAssembly is not available (node --jitless): the plain loop then. */
-let kernel: { memory: WebAssembly.Memory; distances: (...args: number[]) => void } | null | undefined;
+let kernel: DistanceKernel | null | undefined;
 
 /**
  * The distances by the WebAssembly kernel (kernels/knn-distances.wat): two training rows per
@@ -284,18 +288,11 @@ function wasmScan(near: Nearest, data: Float64Array, rows: number, train: Float6
   const outBytes = TEST_BLOCK * PAIRS * 16;
   const total = trainBytes + testBytes + (TEST_BLOCK + 1) * 8 + outBytes + TEST_BLOCK * (PAIRS / 4);
   if (total > WASM_LIMIT || cols === 0) return false;
-  if (kernel === undefined) kernel = instantiate();
+  if (kernel === undefined) kernel = instantiate<DistanceKernel>(wasmBase64);
   if (kernel === null) return false;
   const { memory } = kernel;
-  const pages = Math.ceil(total / 65536) - memory.buffer.byteLength / 65536;
-  if (pages > 0) {
-    try {
-      memory.grow(pages);
-    } catch {
-      /* c8 ignore next -- the system refused the memory: the plain loop needs none of it */
-      return false;
-    }
-  }
+  /* c8 ignore next -- the system refused the memory: the plain loop needs none of it */
+  if (!reserve(memory, total)) return false;
   const mem = new Float64Array(memory.buffer);
   // Pairs of training rows interleaved, padded with rows of zeros (never offered).
   for (let i = n; i < 2 * np; i++) {
@@ -338,11 +335,4 @@ function wasmScan(near: Nearest, data: Float64Array, rows: number, train: Float6
     near.close(r0, tb);
   }
   return true;
-}
-
-function instantiate() {
-  if (typeof WebAssembly !== 'object') return null;
-  const bytes = Uint8Array.from(atob(wasmBase64), (c) => c.charCodeAt(0));
-  const { exports } = new WebAssembly.Instance(new WebAssembly.Module(bytes));
-  return exports as unknown as { memory: WebAssembly.Memory; distances: (...args: number[]) => void };
 }

@@ -16,6 +16,7 @@
  * the projected features XQᵀ, and w = Qᵀu. The penalty is unchanged (‖Qᵀu‖ = ‖u‖).
  */
 import { choleskySolve } from './linalg.js';
+import { rowPasses } from './logistic-rows.js';
 import { noChecks, FitError, classCounts, type ModelImpl } from './types.js';
 import type { Matrix } from '../table/matrix.js';
 
@@ -438,9 +439,8 @@ function unpack(theta: Float64Array, step: Float64Array, scale: number, out: Flo
  * never the p × p Hessian. The inner solve stops at ‖r‖ ≤ η‖g‖ with η = min(0.5, √(‖g‖/‖g₀‖)) (a
  * forcing sequence that gives superlinear convergence), and at η = 1e-8 for the final polishing
  * step once the outer rule is met. Stopping rule and floor as in `newton`, with λ² = gᵀd for the
- * CG solution d. Every product, and the loss with its gradient and the Hessian's diagonal, is one
- * pass over X's rows: each row's dot product and its update are done while the row is in cache
- * (a tall X does not fit in it, so passes are what cost).
+ * CG solution d. The passes over X's rows (scores, gradient sums, products) are `rowPasses`:
+ * a WebAssembly kernel, or plain loops with the same bits.
  */
 function newtonCg(
   X: Matrix,
@@ -452,174 +452,91 @@ function newtonCg(
   const n = X.rows;
   const p = X.cols;
   const width = p + 1;
-  const data = X.data;
   const theta = new Float64Array(width);
   let ones = 0;
   for (let i = 0; i < n; i++) ones += yl[i];
   theta[p] = Math.log(ones / (n - ones));
-  const v = new Float64Array(n);
-  const grad = new Float64Array(width);
-  const diag = new Float64Array(width);
+  const rows = rowPasses(X);
+  const { grad, diag } = rows;
   const hessianTimes = (d: Float64Array, out: Float64Array) => {
-    out.fill(0);
-    // Four rows at a time: their four dot products, then one sweep of `out` for all four.
-    let i = 0;
-    for (; i + 4 <= n; i += 4) {
-      const b0 = i * p;
-      const b1 = b0 + p;
-      const b2 = b1 + p;
-      const b3 = b2 + p;
-      const w0 = v[i] * (rowDot(data, b0, d, p) + d[p]);
-      const w1 = v[i + 1] * (rowDot(data, b1, d, p) + d[p]);
-      const w2 = v[i + 2] * (rowDot(data, b2, d, p) + d[p]);
-      const w3 = v[i + 3] * (rowDot(data, b3, d, p) + d[p]);
-      for (let j = 0; j < p; j++) out[j] += w0 * data[b0 + j] + w1 * data[b1 + j] + (w2 * data[b2 + j] + w3 * data[b3 + j]);
-      out[p] += w0 + w1 + (w2 + w3);
-    }
-    for (; i < n; i++) {
-      const b = i * p;
-      const w = v[i] * (rowDot(data, b, d, p) + d[p]);
-      for (let j = 0; j < p; j++) out[j] += w * data[b + j];
-      out[p] += w;
-    }
+    rows.d.set(d);
+    rows.hessian();
+    out.set(rows.out);
     for (let j = 0; j < p; j++) out[j] += l2 * d[j];
+  };
+  /** The penalized loss at t; with `derivatives`, also its gradient, the rows' weights and the Hessian's diagonal. */
+  const lossAt = (t: Float64Array, derivatives: boolean) => {
+    rows.theta.set(t);
+    rows.scores();
+    const { z, r, w } = rows;
+    let loss = 0;
+    for (let i = 0; i < n; i++) {
+      const zi = z[i];
+      const y = yl[i] === 1 ? 1 : 0;
+      // log(1 + e^z) − y·z, computed stably
+      loss += (zi > 0 ? zi + Math.log1p(Math.exp(-zi)) : Math.log1p(Math.exp(zi))) - y * zi;
+      if (!derivatives) continue;
+      const q = 1 / (1 + Math.exp(-zi));
+      r[i] = q - y;
+      w[i] = q * (1 - q);
+    }
+    for (let j = 0; j < p; j++) loss += 0.5 * l2 * t[j] * t[j];
+    if (derivatives) {
+      rows.gradient();
+      // The penalty's terms; a tiny floor keeps the diagonal (the Jacobi preconditioner) invertible when l2 = 0.
+      for (let j = 0; j < p; j++) {
+        grad[j] += l2 * t[j];
+        diag[j] += l2 + 1e-12;
+      }
+      diag[p] += 1e-12;
+    }
+    return loss;
   };
   let iterations = 0;
   let polished = false;
   let first: number | undefined;
-  for (;;) {
-    const loss = binaryRowPass(data, yl, theta, l2, n, p, { grad, diag, v });
-    const g = grad;
-    let gnorm = 0;
-    for (let j = 0; j <= p; j++) gnorm += g[j] * g[j];
-    gnorm = Math.sqrt(gnorm);
-    first ??= gnorm;
-    const eta = Math.min(0.5, Math.sqrt(gnorm / first));
-    const inner = Math.max(2 * width, 50);
-    let step = conjugateGradients(hessianTimes, g, diag, eta * gnorm, inner);
-    let decrement = 0;
-    for (let j = 0; j <= p; j++) decrement += g[j] * step[j];
-    checkFinite(loss, decrement);
-    if (decrement / 2 <= tolerance * (1 + loss)) {
-      if (polished) break;
-      polished = true;
-      // The polishing step is solved tighter (its error is then far below the optimum's own rounding).
-      step = conjugateGradients(hessianTimes, g, diag, POLISH * gnorm, inner);
-      decrement = 0;
+  try {
+    for (;;) {
+      const loss = lossAt(theta, true);
+      const g = Float64Array.from(grad);
+      const m = Float64Array.from(diag);
+      let gnorm = 0;
+      for (let j = 0; j <= p; j++) gnorm += g[j] * g[j];
+      gnorm = Math.sqrt(gnorm);
+      first ??= gnorm;
+      const eta = Math.min(0.5, Math.sqrt(gnorm / first));
+      const inner = Math.max(2 * width, 50);
+      let step = conjugateGradients(hessianTimes, g, m, eta * gnorm, inner);
+      let decrement = 0;
       for (let j = 0; j <= p; j++) decrement += g[j] * step[j];
+      checkFinite(loss, decrement);
+      if (decrement / 2 <= tolerance * (1 + loss)) {
+        if (polished) break;
+        polished = true;
+        // The polishing step is solved tighter (its error is then far below the optimum's own rounding).
+        step = conjugateGradients(hessianTimes, g, m, POLISH * gnorm, inner);
+        decrement = 0;
+        for (let j = 0; j <= p; j++) decrement += g[j] * step[j];
+      }
+      if (iterations >= maxIterations) throw noConvergence(maxIterations, decrement, loss, tolerance, l2);
+      const candidate = lineSearch(
+        width,
+        polished,
+        loss,
+        decrement,
+        (t, out) => {
+          for (let k = 0; k <= p; k++) out[k] = theta[k] - t * step[k];
+        },
+        (c) => lossAt(c, false),
+      );
+      if (!candidate) break;
+      theta.set(candidate);
+      iterations++;
     }
-    if (iterations >= maxIterations) throw noConvergence(maxIterations, decrement, loss, tolerance, l2);
-    const candidate = lineSearch(
-      width,
-      polished,
-      loss,
-      decrement,
-      (t, out) => {
-        for (let k = 0; k <= p; k++) out[k] = theta[k] - t * step[k];
-      },
-      (c) => binaryRowPass(data, yl, c, l2, n, p),
-    );
-    if (!candidate) break;
-    theta.set(candidate);
-    iterations++;
+  } finally {
+    rows.release();
   }
   return { weights: [Array.from(theta)], iterations };
-}
-
-/** Σ_j data[b + j]·d[j] over one row, four partial sums (added in a fixed order). */
-function rowDot(data: Float64Array, b: number, d: Float64Array, p: number): number {
-  let s0 = 0;
-  let s1 = 0;
-  let s2 = 0;
-  let s3 = 0;
-  let j = 0;
-  for (; j + 4 <= p; j += 4) {
-    s0 += data[b + j] * d[j];
-    s1 += data[b + j + 1] * d[j + 1];
-    s2 += data[b + j + 2] * d[j + 2];
-    s3 += data[b + j + 3] * d[j + 3];
-  }
-  for (; j < p; j++) s0 += data[b + j] * d[j];
-  return s0 + s1 + (s2 + s3);
-}
-
-/**
- * Two classes, one pass over X's rows (row-major, the intercept implicit): the penalized loss
- * Σ log(1 + e^z) − t·z + l2/2·‖w‖² of z = Xθ, and, when `into` is given, the gradient Xᵀ(q − t) +
- * l2·w, the weights q(1 − q) of every row and the Hessian's diagonal (a tiny floor keeps it
- * invertible when l2 = 0; it serves as the Jacobi preconditioner).
- */
-function binaryRowPass(
-  data: Float64Array,
-  y: Int32Array,
-  theta: Float64Array,
-  l2: number,
-  n: number,
-  p: number,
-  into?: { grad: Float64Array; diag: Float64Array; v: Float64Array },
-): number {
-  let loss = 0;
-  if (into) {
-    into.grad.fill(0);
-    into.diag.fill(0);
-  }
-  const rows = into ? 4 : 1;
-  const r = new Float64Array(4);
-  const w = new Float64Array(4);
-  // Four rows at a time when the gradient is wanted: their scores, then one sweep of the sums.
-  for (let i = 0; i < n; i += rows) {
-    const m = Math.min(rows, n - i);
-    for (let k = 0; k < m; k++) {
-      const zi = rowDot(data, (i + k) * p, theta, p) + theta[p];
-      const t = y[i + k] === 1 ? 1 : 0;
-      // log(1 + e^z) − t·z, computed stably
-      loss += (zi > 0 ? zi + Math.log1p(Math.exp(-zi)) : Math.log1p(Math.exp(zi))) - t * zi;
-      if (!into) continue;
-      const q = 1 / (1 + Math.exp(-zi));
-      r[k] = q - t;
-      w[k] = q * (1 - q);
-      into.v[i + k] = w[k];
-    }
-    if (!into) continue;
-    const { grad, diag } = into;
-    if (m === 4) {
-      const b0 = i * p;
-      const b1 = b0 + p;
-      const b2 = b1 + p;
-      const b3 = b2 + p;
-      const [r0, r1, r2, r3] = r;
-      const [w0, w1, w2, w3] = w;
-      for (let j = 0; j < p; j++) {
-        const x0 = data[b0 + j];
-        const x1 = data[b1 + j];
-        const x2 = data[b2 + j];
-        const x3 = data[b3 + j];
-        grad[j] += r0 * x0 + r1 * x1 + (r2 * x2 + r3 * x3);
-        diag[j] += w0 * x0 * x0 + w1 * x1 * x1 + (w2 * x2 * x2 + w3 * x3 * x3);
-      }
-    } else
-      for (let k = 0; k < m; k++) {
-        const b = (i + k) * p;
-        for (let j = 0; j < p; j++) {
-          const x = data[b + j];
-          grad[j] += r[k] * x;
-          diag[j] += w[k] * x * x;
-        }
-      }
-    for (let k = 0; k < m; k++) {
-      grad[p] += r[k];
-      diag[p] += w[k];
-    }
-  }
-  for (let j = 0; j < p; j++) loss += 0.5 * l2 * theta[j] * theta[j];
-  if (into) {
-    for (let j = 0; j < p; j++) {
-      into.grad[j] += l2 * theta[j];
-      into.diag[j] += l2 + 1e-12;
-    }
-    into.diag[p] += 1e-12;
-  }
-  return loss;
 }
 
 /** Relative residual of the polishing step's inner solve. */

@@ -64,6 +64,8 @@ export function fitPipelineOnRows(
   classCount: number,
   names: readonly string[],
   columns?: Float64Array,
+  /** Where the training rows' copy goes (a buffer of rows.length × source.cols), when not fresh memory. */
+  into?: (length: number) => Float64Array,
 ): { pipeline: FittedPipeline; X: Matrix } {
   const plan = columns ? columnPlan(steps) : undefined;
   if (plan && columns) {
@@ -75,7 +77,8 @@ export function fitPipelineOnRows(
       if (!(e instanceof FitError)) throw e;
     }
   }
-  return fitPipeline(steps, takeRows(source, rows), y, classCount, names, true);
+  const copy = takeRows(source, rows, into?.(rows.length * source.cols));
+  return fitPipeline(steps, copy, y, classCount, names, true);
 }
 
 function byColumns(

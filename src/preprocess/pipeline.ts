@@ -47,12 +47,15 @@ export function fitPipeline(
   return { pipeline: { steps: fitted, columns }, X: current };
 }
 
-/** `rows`: apply to just these rows of X (read straight from X, no copy of unused columns). */
-export function applyPipeline(p: FittedPipeline, X: Matrix, rows?: Int32Array): Matrix {
+/**
+ * `rows`: apply to just these rows of X (read straight from X, no copy of unused columns);
+ * `into`: where their copy goes (a buffer of the given length), when not fresh memory.
+ */
+export function applyPipeline(p: FittedPipeline, X: Matrix, rows?: Int32Array, into?: (length: number) => Float64Array): Matrix {
   let current = rows
     ? p.input
-      ? takeCells(X, rows, Int32Array.from(p.input))
-      : takeRows(X, rows)
+      ? takeCells(X, rows, Int32Array.from(p.input), into?.(rows.length * p.input.length))
+      : takeRows(X, rows, into?.(rows.length * X.cols))
     : p.input
       ? takeCols(X, Int32Array.from(p.input))
       : X;

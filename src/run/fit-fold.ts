@@ -6,6 +6,7 @@ import { applyPipeline, prunePipeline, type FittedPipeline } from '../preprocess
 import type { Protocol } from '../protocol/types.js';
 import type { FoldSearch } from './nested.js';
 import { takeInt, type Matrix } from '../table/matrix.js';
+import { foldScratch } from './fold-scratch.js';
 
 export interface FoldData {
   X: Matrix;
@@ -28,7 +29,7 @@ export interface FoldFit {
 export function fitFold(p: Pick<Protocol, 'preprocess' | 'model'>, d: FoldData, train: Int32Array, test: Int32Array): FoldFit {
   const k = d.classes.length;
   const yTrain = takeInt(d.y, train);
-  const fitted = fitPipelineOnRows(p.preprocess, d.X, train, yTrain, k, d.featureNames, d.columns);
+  const fitted = fitPipelineOnRows(p.preprocess, d.X, train, yTrain, k, d.featureNames, d.columns, foldScratch);
   const pipeline = prunePipeline(fitted.pipeline, d.X.cols);
   const impl = models[p.model.kind];
   const model = impl.fit(fitted.X, yTrain, fitOptions(p.model.kind, p.model.options, d.classes), { classCount: k });
@@ -48,9 +49,14 @@ export function fitModelAfterPipeline(
   test: Int32Array,
 ): FoldFit {
   const impl = models[p.model.kind];
-  const model = impl.fit(applyPipeline(pipeline, d.X, train), takeInt(d.y, train), fitOptions(p.model.kind, p.model.options, d.classes), {
-    classCount: d.classes.length,
-  });
+  const model = impl.fit(
+    applyPipeline(pipeline, d.X, train, foldScratch),
+    takeInt(d.y, train),
+    fitOptions(p.model.kind, p.model.options, d.classes),
+    {
+      classCount: d.classes.length,
+    },
+  );
   return { pipeline, model, proba: impl.predict(model, applyPipeline(pipeline, d.X, test)) };
 }
 

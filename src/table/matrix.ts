@@ -9,10 +9,9 @@ export function matrix(rows: number, cols: number, data = new Float64Array(rows 
   return { rows, cols, data };
 }
 
-/** The rows listed in `index`, in that order. */
-export function takeRows(m: Matrix, index: Int32Array): Matrix {
+/** The rows listed in `index`, in that order; written into `out` when given (its length index.length × cols). */
+export function takeRows(m: Matrix, index: Int32Array, out: Float64Array = new Float64Array(index.length * m.cols)): Matrix {
   const cols = m.cols;
-  const out = new Float64Array(index.length * cols);
   const data = m.data;
   if (cols < 256) {
     // Short rows: a plain loop beats allocating a subarray view per row.
@@ -42,9 +41,13 @@ export function takeCols(m: Matrix, index: Int32Array): Matrix {
 }
 
 /** Cells at the listed rows and columns: out(i, j) = m(rows[i], cols[j]). */
-export function takeCells(m: Matrix, rows: Int32Array, cols: Int32Array): Matrix {
+export function takeCells(
+  m: Matrix,
+  rows: Int32Array,
+  cols: Int32Array,
+  out: Float64Array = new Float64Array(rows.length * cols.length),
+): Matrix {
   const k = cols.length;
-  const out = new Float64Array(rows.length * k);
   const data = m.data;
   for (let i = 0; i < rows.length; i++) {
     const base = rows[i] * m.cols;

@@ -10,7 +10,7 @@ import { join } from 'node:path';
 import t from 'tap';
 import { association } from '../../src/audit/confounding.js';
 import { exactDuplicateSets, nearDuplicatePairs } from '../../src/audit/duplicates.js';
-import { pairwiseSeparation } from '../../src/audit/separation.js';
+import { mayReachSeparation, pairwiseSeparation } from '../../src/audit/separation.js';
 import { tableFromBytes } from '../../src/table/load.js';
 import { debianPython, root } from '../helpers.js';
 
@@ -40,6 +40,19 @@ t.test('per-feature separation equals scikit-learn roc_auc_score (max of AUC and
     Math.max(...(Object.values(fixture['breast-cancer-auc']) as number[])) < 0.99,
     'no breast-cancer feature reaches the 0.99 threshold',
   );
+});
+
+t.test('the sort-free screen never rules out a breast-cancer feature at or below its scikit-learn separation', async (t) => {
+  const column = new Float64Array(bc.X.rows);
+  let ruledOut = 0;
+  bc.featureNames.forEach((name, c) => {
+    for (let r = 0; r < bc.X.rows; r++) column[r] = bc.X.data[r * bc.X.cols + c];
+    const sep: number = fixture['breast-cancer-auc'][name];
+    // At the feature's own value the screen must say "maybe"; a little above, it may rule it out.
+    t.ok(mayReachSeparation(column, bc.y, 2, sep), `${name} at ${sep}`);
+    if (!mayReachSeparation(column, bc.y, 2, sep + 0.02)) ruledOut++;
+  });
+  t.ok(ruledOut > 20, `${ruledOut} of 30 features ruled out 0.02 above their separation without a sort`);
 });
 
 t.test('near-duplicate pairs at r ≥ 0.95 are numpy corrcoef’s pairs of standardized breast-cancer rows', async (t) => {
