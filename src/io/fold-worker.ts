@@ -15,6 +15,9 @@ const w = workerData as {
   /** Ids and groups: only a tuned protocol's inner splits read them (empty otherwise). */
   ids: string[];
   groups?: string[];
+  /** Every job, and the shared counter (one Int32) each thread claims the next job's index from. */
+  jobs: FoldJob[];
+  claim: SharedArrayBuffer;
 };
 const table: ExecData = {
   X: { rows: w.rows, cols: w.cols, data: new Float64Array(w.data) },
@@ -26,7 +29,10 @@ const table: ExecData = {
   groups: w.groups,
 };
 
-parentPort!.on('message', (job: FoldJob) => {
+// Jobs are claimed from the shared counter until none is left (this thread and the others take from it too).
+const claim = new Int32Array(w.claim);
+for (let i = Atomics.add(claim, 0, 1); i < w.jobs.length; i = Atomics.add(claim, 0, 1)) {
+  const job = w.jobs[i];
   try {
     const fit = runJob(w.protocol, table, job);
     // A later part of a split fold sends its probabilities only: the first part carries the fold's models.
@@ -34,5 +40,6 @@ parentPort!.on('message', (job: FoldJob) => {
     parentPort!.postMessage({ index: job.index, fit: sent }, [fit.proba.buffer as ArrayBuffer]);
   } catch (e) {
     parentPort!.postMessage({ index: job.index, error: toWorkerError(e) });
+    break;
   }
-});
+}

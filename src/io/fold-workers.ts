@@ -12,7 +12,7 @@ import type { Assignment } from '../split/assignment.js';
 import type { Table } from '../table/table.js';
 import { assembleResult, atFold, crossValidate, planFolds, type CvHooks, type CvResult } from '../run/cross-validate.js';
 import type { FoldFit } from '../run/fit-fold.js';
-import { jobsFor, joinParts, partsFor, splitJobs, strategyFor, wantsColumns } from '../run/executor.js';
+import { type ExecData, jobsFor, joinParts, partsFor, runJob, splitJobs, strategyFor, wantsColumns } from '../run/executor.js';
 import { columnMajor } from '../preprocess/by-columns.js';
 import { candidates } from '../protocol/grid.js';
 import { innerFits } from '../run/nested.js';
@@ -40,6 +40,8 @@ export async function crossValidateInWorkers(
   a: Assignment,
   hooks: CvHooks = {},
   meanwhile: () => void = () => {},
+  /** `here: false`: every fold on a worker, none on this thread (tests of the workers). */
+  { here = true }: { here?: boolean } = {},
 ): Promise<CvResult> {
   const plans = planFolds(p, table, a);
   const threads = threadCount(table, plans.length, p.tune ? candidates(p.grid).length * innerFits(p.tune.split) : 1);
@@ -60,6 +62,9 @@ export async function crossValidateInWorkers(
     columns = new SharedArrayBuffer(table.X.data.byteLength);
     columnMajor(table.X, new Float64Array(columns));
   }
+  // Jobs are taken in order from one shared counter, by the workers and by this thread alike, so
+  // no thread waits for another to hand it work.
+  const claim = new Int32Array(new SharedArrayBuffer(4));
   const workerData = {
     protocol: { preprocess: p.preprocess, model: p.model, grid: p.grid, tune: p.tune, data: p.data },
     rows: table.X.rows,
@@ -71,37 +76,51 @@ export async function crossValidateInWorkers(
     featureNames: table.featureNames,
     ids: p.tune ? table.ids : [],
     groups: p.tune ? table.groups : undefined,
+    jobs,
+    claim: claim.buffer,
   };
   const fits: FoldFit[] = new Array(jobs.length);
-  const workers = Array.from({ length: threads }, () => new Worker(new URL('./fold-worker.js', import.meta.url), { workerData }));
+  // This thread is one of the `threads`: it has its code loaded already, where a worker spends a
+  // fifth of a 5,000 × 200 logistic run starting up.
+  const workers = Array.from(
+    { length: here ? threads - 1 : threads },
+    () => new Worker(new URL('./fold-worker.js', import.meta.url), { workerData }),
+  );
   try {
     await new Promise<void>((resolve, reject) => {
-      let next = 0;
       let done = 0;
-      const feed = (w: Worker) => {
-        if (next >= jobs.length) return;
-        w.postMessage(jobs[next++]);
+      const finish = (index: number, fit: FoldFit) => {
+        fits[index] = fit;
+        // Counted outside the optional call: `f?.(++done)` skips the increment when there is no f.
+        done++;
+        // Progress in folds: every `parts` jobs done count as one.
+        if (done % parts === 0) hooks.onFold?.(done / parts, plans.length);
+        if (done === jobs.length) resolve();
+      };
+      const failed = (index: number, e: unknown) => {
+        const plan = plans[Math.floor(index / parts)];
+        reject(atFold(e, plan.repeat, plan.fold));
       };
       for (const w of workers) {
         w.on('message', (m: { index: number; fit?: FoldFit; error?: WorkerError }) => {
-          const plan = plans[Math.floor(m.index / parts)];
-          if (m.error) {
-            reject(atFold(fromWorkerError(m.error), plan.repeat, plan.fold));
-            return;
-          }
-          fits[m.index] = m.fit!;
-          // Counted outside the optional call: `f?.(++done)` skips the increment when there is no f.
-          done++;
-          // Progress in folds: every `parts` jobs done count as one.
-          if (done % parts === 0) hooks.onFold?.(done / parts, plans.length);
-          if (done === jobs.length) resolve();
-          else feed(w);
+          if (m.error) failed(m.index, fromWorkerError(m.error));
+          else finish(m.index, m.fit!);
         });
         w.on('error', reject);
-        feed(w);
       }
-      // This thread's own work while the workers start up and fit.
+      // This thread's own work first, while the workers start up and fit; then folds, as a worker does.
       meanwhile();
+      if (!here) return;
+      const local: ExecData = { ...table, columns: columns && new Float64Array(columns) };
+      for (let i = Atomics.add(claim, 0, 1); i < jobs.length; i = Atomics.add(claim, 0, 1)) {
+        try {
+          finish(i, runJob(p, local, jobs[i]));
+        } catch (e) {
+          failed(i, e);
+          Atomics.store(claim, 0, jobs.length);
+          return;
+        }
+      }
     });
   } finally {
     await Promise.all(workers.map((w) => w.terminate()));

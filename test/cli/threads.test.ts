@@ -51,7 +51,7 @@ t.test('knn on two threads: five folds split into parts of their test rows, the 
     t.equal(readFileSync(join(dir, 'res-2', f), 'utf8'), readFileSync(join(dir, 'res-1', f), 'utf8'), f);
 });
 
-t.test('a fit error inside a worker is the same user error', async (t) => {
+t.test('a fit error on the fold threads is the same user error', async (t) => {
   const dir = tempDir({ 'p.yaml': onWorkers.replace('model: {kind: gaussian-nb}', 'model: {kind: multinomial-nb}') });
   const r = await run('2', ['run', 'p.yaml', '--out', 'res'], dir);
   t.equal(r.status, 1, r.stderr);
