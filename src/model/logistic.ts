@@ -206,10 +206,7 @@ function newton(
     let decrement = 0;
     for (let i = 0; i < dim; i++) decrement += g[i] * step[i];
     checkFinite(loss, decrement);
-    if (decrement / 2 <= tolerance * (1 + loss)) {
-      if (polished) break;
-      polished = true;
-    }
+    if (decrement / 2 <= tolerance * (1 + loss)) polished = true;
     if (iterations >= maxIterations) throw noConvergence(maxIterations, decrement, loss, tolerance, l2);
     const candidate = lineSearch(
       theta.length,
@@ -223,6 +220,8 @@ function newton(
     if (!candidate) break;
     theta.set(candidate);
     iterations++;
+    // The rule was met and one more full step taken: stop (convergence is quadratic, so that step lands at the floor).
+    if (polished) break;
   }
   const weights: number[][] = [];
   for (let b = 0; b < blocks; b++) weights.push(Array.from(theta.subarray(b * width, (b + 1) * width)));
@@ -511,7 +510,6 @@ function newtonCg(
       for (let j = 0; j <= p; j++) decrement += g[j] * step[j];
       checkFinite(loss, decrement);
       if (decrement / 2 <= tolerance * (1 + loss)) {
-        if (polished) break;
         polished = true;
         // The polishing step is solved tighter (its error is then far below the optimum's own rounding).
         step = conjugateGradients(hessianTimes, g, m, POLISH * gnorm, inner);
@@ -532,6 +530,8 @@ function newtonCg(
       if (!candidate) break;
       theta.set(candidate);
       iterations++;
+      // The rule was met and one more full step taken: stop.
+      if (polished) break;
     }
   } finally {
     rows.release();
