@@ -4,7 +4,9 @@
  * output is byte-identical to the serial loop.
  */
 import { availableParallelism } from 'node:os';
-import { Worker } from 'node:worker_threads';
+import { MessageChannel, type MessagePort, Worker } from 'node:worker_threads';
+import type { FoldThreadData } from './fold-jobs.js';
+import type { RowThread } from './row-helper.js';
 import { forcedThreads } from './threads.js';
 import { fromWorkerError, type WorkerError } from './worker-errors.js';
 import type { Protocol } from '../protocol/types.js';
@@ -30,6 +32,15 @@ export function threadCount(table: Table, folds: number, weight = 1): number {
   return Math.max(1, Math.min(availableParallelism(), folds, 8));
 }
 
+/** The numbers in shared memory: the array itself when it already is (a table parsed on two threads), else a copy. */
+function sharedCopy(a: Float64Array): SharedArrayBuffer {
+  const b = a.buffer;
+  if (b instanceof SharedArrayBuffer && a.byteOffset === 0 && a.byteLength === b.byteLength) return b;
+  const copy = new SharedArrayBuffer(a.byteLength);
+  new Float64Array(copy).set(a);
+  return copy;
+}
+
 /**
  * `meanwhile`: work for this thread that must come before the folds' own (it runs first when the
  * folds are fitted here, and while the workers start up and fit otherwise).
@@ -40,8 +51,11 @@ export async function crossValidateInWorkers(
   a: Assignment,
   hooks: CvHooks = {},
   meanwhile: () => void = () => {},
-  /** `here: false`: every fold on a worker, none on this thread (tests of the workers). */
-  { here = true }: { here?: boolean } = {},
+  /**
+   * `here: false`: every fold on a worker, none on this thread (tests of the workers). `helper`:
+   * the thread that helped read the table, already started: it takes the place of one worker.
+   */
+  { here = true, helper }: { here?: boolean; helper?: RowThread } = {},
 ): Promise<CvResult> {
   const plans = planFolds(p, table, a);
   const threads = threadCount(table, plans.length, p.tune ? candidates(p.grid).length * innerFits(p.tune.split) : 1);
@@ -53,8 +67,7 @@ export async function crossValidateInWorkers(
   }
   const parts = partsFor(p, plans.length, threads);
   const jobs = splitJobs(jobsFor(p, table, a, plans), parts);
-  const data = new SharedArrayBuffer(table.X.data.byteLength);
-  new Float64Array(data).set(table.X.data);
+  const data = sharedCopy(table.X.data);
   const y = new SharedArrayBuffer(table.y.byteLength);
   new Int32Array(y).set(table.y);
   let columns: SharedArrayBuffer | undefined;
@@ -65,7 +78,7 @@ export async function crossValidateInWorkers(
   // Jobs are taken in order from one shared counter, by the workers and by this thread alike, so
   // no thread waits for another to hand it work.
   const claim = new Int32Array(new SharedArrayBuffer(4));
-  const workerData = {
+  const workerData: FoldThreadData = {
     protocol: { preprocess: p.preprocess, model: p.model, grid: p.grid, tune: p.tune, data: p.data },
     rows: table.X.rows,
     cols: table.X.cols,
@@ -82,10 +95,14 @@ export async function crossValidateInWorkers(
   const fits: FoldFit[] = new Array(jobs.length);
   // This thread is one of the `threads`: it has its code loaded already, where a worker spends a
   // fifth of a 5,000 × 200 logistic run starting up.
+  const count = here ? threads - 1 : threads;
+  const fromHelper = helper && count > 0 ? new MessageChannel() : undefined;
+  if (fromHelper) helper!.folds(workerData, fromHelper.port2);
   const workers = Array.from(
-    { length: here ? threads - 1 : threads },
+    { length: fromHelper ? count - 1 : count },
     () => new Worker(new URL('./fold-worker.js', import.meta.url), { workerData }),
   );
+  const sources: (Worker | MessagePort)[] = fromHelper ? [fromHelper.port1, ...workers] : workers;
   try {
     await new Promise<void>((resolve, reject) => {
       let done = 0;
@@ -101,13 +118,15 @@ export async function crossValidateInWorkers(
         const plan = plans[Math.floor(index / parts)];
         reject(atFold(e, plan.repeat, plan.fold));
       };
-      for (const w of workers) {
+      for (const w of sources) {
         w.on('message', (m: { index: number; fit?: FoldFit; error?: WorkerError }) => {
-          if (m.error) failed(m.index, fromWorkerError(m.error));
+          /* c8 ignore next -- the row thread could not load its fold code: a bug in foldseal */
+          if (m.index < 0) reject(fromWorkerError(m.error!));
+          else if (m.error) failed(m.index, fromWorkerError(m.error));
           else finish(m.index, m.fit!);
         });
-        w.on('error', reject);
       }
+      for (const w of workers) w.on('error', reject);
       // This thread's own work first, while the workers start up and fit; then folds, as a worker does.
       meanwhile();
       if (!here) return;
@@ -123,6 +142,7 @@ export async function crossValidateInWorkers(
       }
     });
   } finally {
+    fromHelper?.port1.close();
     await Promise.all(workers.map((w) => w.terminate()));
   }
   return assembleResult(p, table, a, plans, joinParts(fits, parts));

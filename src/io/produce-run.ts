@@ -4,6 +4,9 @@ import { assembleResult, planFolds, type CvHooks } from '../run/cross-validate.j
 import type { FoldFit } from '../run/fit-fold.js';
 import { asUserError, refitRows, runProtocol, type RunInput, type RunOutput } from '../run/run.js';
 import { crossValidateInWorkers } from './fold-workers.js';
+import type { RowThread } from './row-helper.js';
+import type { Protocol } from '../protocol/types.js';
+import { strategyFor } from '../run/executor.js';
 import { permutedScoresInWorkers, type PermutationProgress } from './permutation-workers.js';
 import { validateProtocol, type ValidationReport } from './validate.js';
 import type { PathPolicy } from './path-policy.js';
@@ -48,8 +51,33 @@ export interface ProduceOptions {
 }
 
 export async function produceRun(protocolPath: string, options: ProduceOptions = {}): Promise<Produced> {
+  // The thread that helps read a large table stays to fit folds, where they go to threads.
+  let helper: RowThread | undefined;
+  try {
+    return await produce(
+      protocolPath,
+      options,
+      (thread, p) => {
+        if (p.model.kind === 'command' || strategyFor(p) === 'moments') return false;
+        helper = thread;
+        return true;
+      },
+      () => helper,
+    );
+  } finally {
+    await helper?.close();
+  }
+}
+
+async function produce(
+  protocolPath: string,
+  options: ProduceOptions,
+  keepThread: (thread: RowThread, p: Protocol) => boolean,
+  kept: () => RowThread | undefined,
+): Promise<Produced> {
   // Merged parts come with the protocol already validated (and its data read once).
-  const report = options.merged?.report ?? (await validateProtocol(protocolPath, { access: options.access, describe: options.audit }));
+  const report =
+    options.merged?.report ?? (await validateProtocol(protocolPath, { access: options.access, describe: options.audit, keepThread }));
   if (options.repoRules && report.protocol && !report.unreadable) report.problems.push(...(await lockedRepoProblems(protocolPath, report)));
   if (report.unreadable || hasErrors(report.problems) || !report.protocol || !report.table || !report.assignment) return { report };
   const input: RunInput = {
@@ -83,9 +111,11 @@ export async function produceRun(protocolPath: string, options: ProduceOptions =
   }
   const cv = merged
     ? assembleResult(input.protocol, input.table, input.assignment, planFolds(input.protocol, input.table, input.assignment), merged.fits)
-    : await crossValidateInWorkers(input.protocol, input.table, input.assignment, options.hooks, runAudit).catch((e: unknown) => {
-        throw asUserError(e, input.protocolFile);
-      });
+    : await crossValidateInWorkers(input.protocol, input.table, input.assignment, options.hooks, runAudit, { helper: kept() }).catch(
+        (e: unknown) => {
+          throw asUserError(e, input.protocolFile);
+        },
+      );
   const permuted = merged
     ? merged.permuted
     : await permutedScoresInWorkers(input.protocol, input.table, input.assignment, options.onPermutation).catch((e: unknown) => {

@@ -4,12 +4,13 @@
  * thread waits for it synchronously (Atomics.wait), so the pure table builder stays synchronous.
  */
 import { availableParallelism } from 'node:os';
-import { MessageChannel, receiveMessageOnPort, Worker } from 'node:worker_threads';
+import { MessageChannel, type MessagePort, receiveMessageOnPort, Worker } from 'node:worker_threads';
 import { forcedThreads } from './threads.js';
 import { deriveKeys } from '../split/key.js';
 import type { RowHelper, RowsPart } from '../table/plain.js';
 import type { ParquetTwin } from './parquet.js';
 import type { NumberColumnsDone } from './parquet-pages.js';
+import type { FoldThreadData } from './fold-jobs.js';
 
 /** Files below this size read faster on one thread than a worker takes to start. */
 export const SHARED_READ_BYTES = 8 * 1024 * 1024;
@@ -29,6 +30,10 @@ export interface RowThread extends RowHelper, ParquetTwin {
    * thread derives the keys of the second half of them for every repeat meanwhile.
    */
   keysAhead(ids: readonly string[], seed: number, repeats: number): void;
+  /** The reading is done: the other thread loads the code that fits folds, to be ready for `folds`. */
+  prepareFolds(): void;
+  /** The other thread fits fold jobs as a fold worker does, its fits and errors posted to `port`. */
+  folds(data: FoldThreadData, port: MessagePort): void;
   close(): Promise<void>;
 }
 
@@ -147,6 +152,12 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
       out.set(deriveKeys(ids.slice(0, mid), seed, repeat));
       wait();
       return out;
+    },
+    prepareFolds() {
+      worker.postMessage({ kind: 'prepare-folds' });
+    },
+    folds(data, port) {
+      worker.postMessage({ kind: 'folds', data, port }, [port]);
     },
     async close() {
       port1.close();

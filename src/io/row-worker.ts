@@ -10,6 +10,7 @@ import { decodeSpan } from '../table/grid.js';
 import { extractRows, type RowsPart } from '../table/plain-rows.js';
 import type { ParquetTwin } from './parquet.js';
 import type { NumberColumnsDone } from './parquet-pages.js';
+import type { FoldThreadData } from './fold-jobs.js';
 
 const { port, parquet } = workerData as { port: MessagePort; parquet: boolean };
 
@@ -40,10 +41,32 @@ async function parquetShare(job: Extract<Job, { kind: 'parquet' }>): Promise<Num
 // The last rows job's table and result, for the keys of the ids it parsed.
 let last: { table: PlainTable; part: RowsPart | undefined } | undefined;
 
+/**
+ * After the read: this thread, already started, fits folds as a fold worker does. Its code is
+ * loaded on the first word (`prepare-folds`, sent when the table is read), and the folds come
+ * with a port of their own for the fits.
+ */
+type FoldsMessage = { kind: 'prepare-folds' } | { kind: 'folds'; data: FoldThreadData; port: MessagePort };
+let foldJobs: Promise<typeof import('./fold-jobs.js')> | undefined;
+
+async function folds(m: FoldsMessage): Promise<void> {
+  // The parsed rows are not needed any more: let the file's bytes go.
+  last = undefined;
+  foldJobs ??= import('./fold-jobs.js');
+  if (m.kind === 'prepare-folds') return;
+  try {
+    const { fitClaimedJobs } = await foldJobs;
+    fitClaimedJobs(m.data, (message, transfer) => m.port.postMessage(message, transfer));
+  } catch (e) {
+    /* c8 ignore next 2 -- the fold code failed to load: a bug in foldseal, reported rather than left waiting */
+    m.port.postMessage({ index: -1, error: { message: String((e as Error).stack ?? e) } });
+  }
+}
+
 // Jobs run one at a time, in the order they came (a Parquet share waits for its modules).
 let queue = Promise.resolve();
-parentPort!.on('message', (job: Job) => {
-  queue = queue.then(() => run(job));
+parentPort!.on('message', (job: Job | FoldsMessage) => {
+  queue = queue.then(() => (job.kind === 'prepare-folds' || job.kind === 'folds' ? folds(job) : run(job)));
 });
 
 async function run(job: Job): Promise<void> {

@@ -67,6 +67,12 @@ export interface ValidateOptions {
   access?: PathPolicy;
   /** Also describe the columns that are not features (covariates, cell positions): for the leakage audit. */
   describe?: boolean;
+  /**
+   * Offered the second thread that helped read the data, if one did: true takes it over instead
+   * of it being stopped (run fits folds on it; it is told to load that code meanwhile), and the
+   * taker closes it.
+   */
+  keepThread?: (thread: RowThread, p: Protocol) => boolean;
 }
 
 export async function validateProtocol(path: string, options: ValidateOptions = {}): Promise<ValidationReport> {
@@ -113,10 +119,16 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
     () => 0,
   );
   const rowThread = rowThreadsAvailable(size) ? startRowThread({ parquet: await startsLikeParquet(paths.data) }) : undefined;
+  let kept = false;
   try {
-    return await validateWithData({ ...parsed, protocol: p, source }, paths, at, rowThread, Boolean(options.describe));
+    const report = await validateWithData({ ...parsed, protocol: p, source }, paths, at, rowThread, Boolean(options.describe));
+    if (rowThread && options.keepThread?.(rowThread, p)) {
+      kept = true;
+      rowThread.prepareFolds();
+    }
+    return report;
   } finally {
-    await rowThread?.close();
+    if (!kept) await rowThread?.close();
   }
 }
 
