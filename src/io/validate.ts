@@ -68,9 +68,9 @@ export interface ValidateOptions {
   /** Also describe the columns that are not features (covariates, cell positions): for the leakage audit. */
   describe?: boolean;
   /**
-   * Offered the second thread that helped read the data, if one did: true takes it over instead
-   * of it being stopped (run fits folds on it; it is told to load that code meanwhile), and the
-   * taker closes it.
+   * Offered the second thread that helps read the data, if one does: true takes it over instead
+   * of it being stopped after the read (run fits folds on it; it loads that code while the file
+   * is read), and the taker closes it.
    */
   keepThread?: (thread: RowThread, p: Protocol) => boolean;
 }
@@ -119,14 +119,11 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
     () => 0,
   );
   const rowThread = rowThreadsAvailable(size) ? startRowThread({ parquet: await startsLikeParquet(paths.data) }) : undefined;
-  let kept = false;
+  // A thread kept for the folds loads their code now, while this one reads the file.
+  const kept = rowThread !== undefined && options.keepThread?.(rowThread, p) === true;
+  if (kept) rowThread.prepareFolds();
   try {
-    const report = await validateWithData({ ...parsed, protocol: p, source }, paths, at, rowThread, Boolean(options.describe));
-    if (rowThread && options.keepThread?.(rowThread, p)) {
-      kept = true;
-      rowThread.prepareFolds();
-    }
-    return report;
+    return await validateWithData({ ...parsed, protocol: p, source }, paths, at, rowThread, Boolean(options.describe));
   } finally {
     if (!kept) await rowThread?.close();
   }
