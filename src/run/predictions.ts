@@ -1,11 +1,14 @@
-/** predictions.csv: one line per tested id and repeat, sorted by repeat then id byte order. */
+/**
+ * predictions.csv: one line per tested id and repeat, sorted by repeat then id byte order, as
+ * UTF-8 bytes (a million-line file is hashed and written as it is, never held as text).
+ */
 import { predictedClasses } from '../metric/types.js';
 import { idOrder } from '../split/key.js';
 import { csvCell, csvCells, csvLine, TextBuilder } from '../table/csv-write.js';
 import type { Table } from '../table/table.js';
 import type { CvResult } from './cross-validate.js';
 
-export function predictionsCsv(cv: CvResult, table: Table): string {
+export function predictionsCsv(cv: CvResult, table: Table): Uint8Array {
   const k = cv.classes.length;
   const out = new TextBuilder();
   out.add(csvLine(['id', 'repeat', 'fold', 'truth', 'predicted', ...cv.classes.map((c) => `p_${c}`)]));
@@ -29,5 +32,5 @@ export function predictionsCsv(cv: CvResult, table: Table): string {
       if (++lines === 1000 && total > 2000) out.reserve(Math.ceil((out.size / lines) * total * 1.1) + 65536);
     }
   });
-  return out.text();
+  return out.utf8();
 }

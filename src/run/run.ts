@@ -57,8 +57,11 @@ export interface RunOutput {
   results: Record<string, unknown>;
   assignmentCsv: string;
   assignmentSha256: string;
+  /** The text files (results.json, models.json, applied.csv), by name. */
   files: Record<string, string>;
-  /** SHA-256 of every file in `files`. */
+  /** predictions.csv, as bytes: the largest file, hashed and written without a text copy. */
+  predictions: Uint8Array;
+  /** SHA-256 of predictions.csv and of every file in `files`. */
   digests: Record<string, string>;
 }
 
@@ -102,7 +105,7 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
     refit,
     'known-rows': KnownRowList.of(input.table.ids, input.table.X, input.table.featureNames),
   };
-  const files: Record<string, string> = { 'predictions.csv': predictions, 'models.json': modelsJson(saved) };
+  const files: Record<string, string> = { 'models.json': modelsJson(saved) };
   let applied: AppliedRow[] | undefined;
   let newRowScores: NewRowScores | undefined;
   if (input.newRows) {
@@ -134,7 +137,10 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
     }
     files['applied.csv'] = appliedCsv(applied, cv.classes, undefined, labels);
   }
-  const digests = Object.fromEntries(Object.entries(files).map(([name, text]) => [name, sha256Bytes(text)]));
+  const digests: Record<string, string> = {
+    'predictions.csv': sha256Bytes(predictions),
+    ...Object.fromEntries(Object.entries(files).map(([name, text]) => [name, sha256Bytes(text)])),
+  };
   const assignmentSha256 = sha256Bytes(folds);
   const statistics = guardFit(input.protocolFile, () => runStatistics(p, input.table, input.assignment, cv, permuted));
   const results = buildResults({
@@ -155,7 +161,7 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
   });
   files['results.json'] = JSON.stringify(results, null, 2) + '\n';
   digests['results.json'] = sha256Bytes(files['results.json']);
-  return { cv, results, assignmentCsv: folds, assignmentSha256, files, digests, applied, statistics, newRowScores };
+  return { cv, results, assignmentCsv: folds, assignmentSha256, files, predictions, digests, applied, statistics, newRowScores };
 }
 
 export function guardFit<T>(protocolFile: string, f: () => T): T {

@@ -56,6 +56,12 @@ export class TextBuilder {
     return this.bytes.toString('utf8', 0, this.length);
   }
 
+  /** The text's UTF-8 bytes, without a copy (a view of the buffer; add nothing after). */
+  utf8(): Uint8Array {
+    this.flush();
+    return this.bytes.subarray(0, this.length);
+  }
+
   private flush(): void {
     const text = this.pending;
     this.pending = '';

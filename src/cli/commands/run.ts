@@ -76,7 +76,7 @@ export async function runCommand(args: RunArgs, io: CommandIo, merged?: ProduceO
     key: key?.kind === 'raw' ? key : undefined,
     validate: schemaValidator(MANIFEST_SCHEMA),
   });
-  const written: Record<string, string> = { ...out.files, 'manifest.json': text };
+  const written: Record<string, string | Uint8Array> = { 'predictions.csv': out.predictions, ...out.files, 'manifest.json': text };
   // An SSH key signs the manifest's bytes in manifest.json.sig, the file `ssh-keygen -Y verify` reads.
   if (key?.kind === 'ssh') {
     const bytes = Buffer.from(text, 'utf8');

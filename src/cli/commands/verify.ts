@@ -249,14 +249,15 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
     fresh.protocol.sha256 = protocolSha;
     const differences = compareRuns(m, fresh, doc.verify?.tolerance ?? 0);
     const recordedPredictions = await readFileOr(join(manifestDir, 'predictions.csv'), '');
-    if (recordedPredictions && recordedPredictions !== out.files['predictions.csv']) {
+    const freshPredictions = Buffer.from(out.predictions.buffer, out.predictions.byteOffset, out.predictions.byteLength).toString('utf8');
+    if (recordedPredictions && recordedPredictions !== freshPredictions) {
       const d = differences.find((x) => x.message.startsWith('predictions.csv'));
-      if (d) d.message += `; ${lineDifferences(recordedPredictions, out.files['predictions.csv'])} lines differ`;
+      if (d) d.message += `; ${lineDifferences(recordedPredictions, freshPredictions)} lines differ`;
     }
     const n = (m.split.assignment as unknown[]).length;
     const lines = [
       `rerun: ${n} assignments, ${countMetrics(m.results)} metric values and ` +
-        `${sha256Bytes(out.files['predictions.csv']) === m.files['predictions.csv'] ? 'identical' : 'changed'} predictions ` +
+        `${sha256Bytes(out.predictions) === m.files['predictions.csv'] ? 'identical' : 'changed'} predictions ` +
         `compared (tolerance ${doc.verify?.tolerance ?? 0})`,
     ];
     return { differences, lines };
