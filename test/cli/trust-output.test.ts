@@ -9,6 +9,7 @@ import { join } from 'node:path';
 import t from 'tap';
 import { bin, cli, tempDir } from '../helpers.js';
 import { complete, csv, project, protocolFor } from './trust-fixtures.js';
+import { manifestListing } from '../../src/io/output-dir.js';
 
 t.test('run --out . --force refuses a folder foldseal did not write; nothing is deleted', async (t) => {
   const dir = project();
@@ -52,6 +53,29 @@ t.test('an empty folder is written into; a results folder of ours needs --force 
     [],
     'no temporary folder or lock left behind',
   );
+});
+
+t.test('a manifest is read for its version and files from its head, or whole when not in canonical order', async (t) => {
+  const dir = project();
+  t.equal((await cli(['run', 'demo.yaml', '--out', 'res'], dir)).code, 0);
+  const text = readFileSync(join(dir, 'res', 'manifest.json'), 'utf8');
+  const whole = JSON.parse(text);
+  const head = manifestListing(text)!;
+  t.same(head.files, whole.files, 'the files, from the text before "protocol"');
+  t.equal(head['foldseal-manifest'], whole['foldseal-manifest']);
+  t.notOk('split' in head, 'the assignment was not parsed');
+  // Members in another order (a manifest pretty-printed or rewritten by hand): parsed whole.
+  const { files, ...rest } = whole;
+  const reordered = JSON.stringify({ ...rest, files }, null, 1);
+  t.same(manifestListing(reordered), JSON.parse(reordered));
+  // The sequence searched for, inside a string, is escaped and never cut at.
+  const tricky = JSON.stringify({ a: ',"protocol":', ...whole });
+  t.same(manifestListing(tricky)?.files, whole.files);
+  t.equal((manifestListing(tricky) as { a?: string }).a, ',"protocol":');
+  // Such a folder is still ours: --force replaces it.
+  writeFileSync(join(dir, 'res', 'manifest.json'), reordered);
+  t.equal((await cli(['run', 'demo.yaml', '--out', 'res', '--force'], dir)).code, 0);
+  t.ok(complete(join(dir, 'res')));
 });
 
 t.test('kill -9 at any moment: the old or the new complete folder, and the next run cleans up', async (t) => {
