@@ -1,7 +1,9 @@
 /** foldseal.lock.json: what the team accepted for each protocol, plus sealed rows and policy. Pure. */
 import { error, type Problem } from '../problems/problem.js';
 
-export const LOCK_FILE = 'foldseal.lock.json';
+import { LOCK_FILE } from './lock-name.js';
+
+export { LOCK_FILE };
 export const LOCK_VERSION = 1;
 
 export interface LockEntry {

@@ -10,7 +10,7 @@
 import { mkdir, mkdtemp, open, readdir, readFile, rename, rm, rmdir, lstat, unlink, writeFile } from 'node:fs/promises';
 import { basename, dirname, join } from 'node:path';
 import { error, FoldsealError } from '../problems/problem.js';
-import { REPORT_MARK } from '../report/page.js';
+import { REPORT_MARK } from '../report/mark.js';
 import { writeProblem } from './output-file.js';
 
 const NEW = '.foldseal-new-';

@@ -21,11 +21,7 @@ import {
   Scratch,
 } from './parquet-pages.js';
 
-export function isParquet(bytes: Uint8Array): boolean {
-  const n = bytes.length;
-  const par1 = (i: number) => bytes[i] === 0x50 && bytes[i + 1] === 0x41 && bytes[i + 2] === 0x52 && bytes[i + 3] === 0x31;
-  return n >= 12 && par1(0) && par1(n - 4);
-}
+export { isParquet } from './parquet-magic.js';
 
 export async function readParquet(
   bytes: Uint8Array,

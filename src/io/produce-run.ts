@@ -18,7 +18,7 @@ import { error, FoldsealError } from '../problems/problem.js';
 import { locate } from '../protocol/document.js';
 import type { GivenProbabilities } from '../reconcile/reconcile.js';
 import type { SavedModel } from '../reconcile/models-file.js';
-import { commandFileProblems, commandFold, commandFolds, commandLine, newRowProbabilities, type CommandContext } from './command-model.js';
+import type { CommandContext } from './command-model.js';
 
 export interface Produced {
   report: ValidationReport;
@@ -127,6 +127,7 @@ async function produce(
 
 /** A command model's folds, refit and new-row probabilities, by running its program (only with the user's consent). */
 async function runCommandModel(protocolPath: string, report: ValidationReport, input: RunInput, options: ProduceOptions) {
+  const { commandFileProblems, commandFold, commandFolds, commandLine, newRowProbabilities } = await import('./command-model.js');
   const p = input.protocol;
   const spec = p.model.command!;
   const at = (path: (string | number)[]) => ({ file: report.file, path, position: report.source && locate(report.source, path) });

@@ -4,8 +4,7 @@
  * (by id or by content), exactly as `foldseal check` would report them.
  */
 import { dirname, join, relative } from 'node:path';
-import { sealedFindings } from '../check/gate.js';
-import { LOCK_FILE, parseLock, parseSealed } from '../check/lock.js';
+import { LOCK_FILE } from '../check/lock-name.js';
 import { error, warning, type Problem } from '../problems/problem.js';
 import { pathSkipped } from './discover.js';
 import { readRegular, readRegularText } from './files.js';
@@ -20,6 +19,8 @@ export function findLockFolder(protocolPath: string): string | undefined {
 export async function lockedRepoProblems(protocolPath: string, report: ValidationReport): Promise<Problem[]> {
   const root = findLockFolder(protocolPath);
   if (!root) return [];
+  // The gate's modules load only in a locked repository.
+  const [{ sealedFindings }, { parseLock, parseSealed }] = await Promise.all([import('../check/gate.js'), import('../check/lock.js')]);
   const lockFile = shown(join(root, LOCK_FILE));
   let text: string;
   try {

@@ -5,7 +5,8 @@
 import type { Problem } from '../problems/problem.js';
 import type { ColumnTable } from '../table/columns.js';
 import { decompressed } from './decompress.js';
-import { isParquet, type ParquetTwin, readParquet } from './parquet.js';
+import type { ParquetTwin } from './parquet.js';
+import { isParquet } from './parquet-magic.js';
 
 export async function tableContent(
   bytes: Uint8Array,
@@ -16,6 +17,8 @@ export async function tableContent(
   const text = decompressed(bytes, shownAs, where);
   if (text.problem) return text;
   if (!isParquet(text.bytes)) return { content: text.bytes };
+  // The decoder's modules load only for a Parquet file.
+  const { readParquet } = await import('./parquet.js');
   const pq = await readParquet(text.bytes, shownAs, where, twin);
   return pq.problem ? pq : { content: pq.table };
 }

@@ -20,7 +20,6 @@ import { newRowsFromBytes, type NewRows } from '../table/new-rows.js';
 import { fileProblem, readBytes, readRegularText } from './files.js';
 import { knownIdProblems, knownRows } from '../reconcile/known-ids.js';
 import { outsideProblem, protocolPolicy, type PathPolicy } from './path-policy.js';
-import { commandFileProblems } from './command-model.js';
 import { rowThreadsAvailable, startRowThread, type RowThread } from './row-helper.js';
 
 export type { ValidationReport } from '../protocol/report.js';
@@ -112,7 +111,8 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
   ].filter((q): q is Problem => q !== undefined);
   if (outside.length) return { ...parsed, problems: [...parsed.problems, ...outside], paths };
   // A command model's files are hashed like the data before anything runs (the run checks them again after).
-  if (p.model.kind === 'command' && p.model.command) parsed.problems.push(...(await commandFileProblems(p.model.command, base, at)));
+  if (p.model.kind === 'command' && p.model.command)
+    parsed.problems.push(...(await (await import('./command-model.js')).commandFileProblems(p.model.command, base, at)));
   // A large data file is parsed on two threads: start the second while the file is read.
   const size = await stat(paths.data).then(
     (st) => st.size,

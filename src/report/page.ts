@@ -31,7 +31,9 @@ export interface ReportInput {
 }
 
 /** In every report's head: a results folder's report.html without it is the user's, and `run --force` leaves the folder alone. */
-export const REPORT_MARK = '<meta name="generator" content="foldseal report">';
+import { REPORT_MARK } from './mark.js';
+
+export { REPORT_MARK };
 
 export function escapeHtml(s: string): string {
   return s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&#39;');

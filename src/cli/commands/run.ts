@@ -1,10 +1,7 @@
 import { dirname, join, relative, resolve } from 'node:path';
 import { writeOutputFile } from '../../io/output-file.js';
-import { readSigningKey } from '../../io/keys.js';
-import { encodeSshsig, MANIFEST_NAMESPACE, sshsigSignedData } from '../../manifest/ssh.js';
 import { writeOutputDir } from '../../io/output-dir.js';
 import { produceRun, type ProduceOptions } from '../../io/produce-run.js';
-import { shardCommand } from './shard.js';
 import { auditLine } from '../audit-text.js';
 import { MANIFEST_SCHEMA, schemaValidator } from '../../io/schemas.js';
 import { protocolPolicy } from '../../io/path-policy.js';
@@ -37,8 +34,9 @@ export interface RunArgs {
 }
 
 export async function runCommand(args: RunArgs, io: CommandIo, merged?: ProduceOptions['merged']): Promise<ExitCode> {
-  if (args.shard !== undefined) return shardCommand(args, io);
-  const key = args.key ? await readSigningKey(args.key) : undefined;
+  if (args.shard !== undefined) return (await import('./shard.js')).shardCommand(args, io);
+  // The signing modules load only when a key is given.
+  const key = args.key ? await (await import('../../io/keys.js')).readSigningKey(args.key) : undefined;
   const started = Date.now();
   let lastShown = 0;
   const progress = (what: string) => (done: number, total: number) => {
@@ -79,6 +77,7 @@ export async function runCommand(args: RunArgs, io: CommandIo, merged?: ProduceO
   const written: Record<string, string | Uint8Array> = { 'predictions.csv': out.predictions, ...out.files, 'manifest.json': text };
   // An SSH key signs the manifest's bytes in manifest.json.sig, the file `ssh-keygen -Y verify` reads.
   if (key?.kind === 'ssh') {
+    const { encodeSshsig, MANIFEST_NAMESPACE, sshsigSignedData } = await import('../../manifest/ssh.js');
     const bytes = Buffer.from(text, 'utf8');
     written['manifest.json.sig'] = encodeSshsig(
       key.blob,
