@@ -5,6 +5,7 @@
  */
 import { error, type Problem } from '../problems/problem.js';
 import { featureDigests } from '../table/row-digest.js';
+import { TextBuilder } from '../table/csv-write.js';
 import type { NewRows } from '../table/new-rows.js';
 
 /** Where the training row of an id is, for the message: a file and line, or a description. */
@@ -90,10 +91,18 @@ export class KnownRowList {
     const others: number[] = [];
     for (let k = 0; k < this.ids.length; k++) (isArrayIndex(this.ids[k]) ? indices : others).push(k);
     indices.sort((a, b) => Number(this.ids[a]) - Number(this.ids[b]));
-    const parts = new Array<string>(this.ids.length);
-    let n = 0;
-    for (const list of [indices, others]) for (const k of list) parts[n++] = `${JSON.stringify(this.ids[k])}:"${this.digests[k]}"`;
-    return `{${parts.join(',')}}`;
+    // Written into one buffer as it goes: a million member strings joined at the end made as much
+    // garbage again as the text itself.
+    const out = new TextBuilder();
+    out.add('{');
+    let first = true;
+    for (const list of [indices, others])
+      for (const k of list) {
+        out.add(`${first ? '' : ','}${JSON.stringify(this.ids[k])}:"${this.digests[k]}"`);
+        first = false;
+      }
+    out.add('}');
+    return out.text();
   }
 }
 
