@@ -1,7 +1,8 @@
 /**
- * Fits the folds on worker threads when the job is large enough to pay for them. Each fold runs
- * the same pure fitFold on the same inputs, and results are assembled in plan order, so the
- * output is byte-identical to the serial loop.
+ * Fits the folds on several threads when the job is large enough to pay for them: this thread
+ * and N − 1 others (workers, or the row thread that helped read the table), each claiming the
+ * next job from a shared counter. Each fold runs the same pure runJob on the same inputs, and
+ * results are assembled in plan order, so the output is byte-identical to the serial loop.
  */
 import { availableParallelism } from 'node:os';
 import { MessageChannel, type MessagePort, Worker } from 'node:worker_threads';

@@ -6,22 +6,18 @@
  * runs through the kernel too (test/reference).
  */
 import { spawnSync } from 'node:child_process';
-import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import fc from 'fast-check';
 import t from 'tap';
 import { neighbours, type KnnParams } from '../../src/model/knn.js';
-import { watSha256, wasmBase64 } from '../../src/model/kernels/knn-distances.wasm.js';
+import * as kernel from '../../src/model/kernels/knn-distances.wasm.js';
+import { committedKernelMatches } from './kernel-module.js';
 import { root } from '../helpers.js';
 
-t.test('the committed kernel module is what its text assembles to (npm run kernels after an edit)', async (t) => {
-  const text = readFileSync(join(root, 'src', 'model', 'kernels', 'knn-distances.wat'), 'utf8');
-  const { kernelModule } = await import(pathToFileURL(join(root, 'scripts', 'compile-wasm.mjs')).href);
-  const expected: string = kernelModule('knn-distances.wat', text);
-  t.match(expected, watSha256);
-  t.match(expected, wasmBase64);
-});
+t.test('the committed kernel module is what its text assembles to (npm run kernels after an edit)', (t) =>
+  committedKernelMatches(t, 'knn-distances.wat', kernel),
+);
 
 /** The definition: every distance summed in column order, sorted by (distance, training position), the first k. */
 function bySort(p: KnnParams, X: { rows: number; cols: number; data: Float64Array }, r: number): number[] {
