@@ -30,7 +30,7 @@ export interface RowThread extends RowHelper, ParquetTwin {
    * thread derives the keys of the second half of them for every repeat meanwhile.
    */
   keysAhead(ids: readonly string[], seed: number, repeats: number): void;
-  /** The reading is done: the other thread loads the code that fits folds, to be ready for `folds`. */
+  /** The other thread will fit folds after the read: it loads that code meanwhile, to be ready for `folds`. */
   prepareFolds(): void;
   /** The other thread fits fold jobs as a fold worker does, its fits and errors posted to `port`. */
   folds(data: FoldThreadData, port: MessagePort): void;

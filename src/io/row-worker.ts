@@ -43,17 +43,17 @@ let last: { table: PlainTable; part: RowsPart | undefined } | undefined;
 
 /**
  * After the read: this thread, already started, fits folds as a fold worker does. Its code is
- * loaded on the first word (`prepare-folds`, sent when the table is read), and the folds come
- * with a port of their own for the fits.
+ * loaded on the first word (`prepare-folds`, sent as the file starts to be read, when `run`
+ * keeps this thread), and the folds come with a port of their own for the fits.
  */
 type FoldsMessage = { kind: 'prepare-folds' } | { kind: 'folds'; data: FoldThreadData; port: MessagePort };
 let foldJobs: Promise<typeof import('./fold-jobs.js')> | undefined;
 
 async function folds(m: FoldsMessage): Promise<void> {
-  // The parsed rows are not needed any more: let the file's bytes go.
-  last = undefined;
   foldJobs ??= import('./fold-jobs.js');
   if (m.kind === 'prepare-folds') return;
+  // The parsed rows are not needed any more: let the file's bytes go.
+  last = undefined;
   try {
     const { fitClaimedJobs } = await foldJobs;
     fitClaimedJobs(m.data, (message, transfer) => m.port.postMessage(message, transfer));
