@@ -1,6 +1,8 @@
 /** The result manifest: everything a reviewer needs to check a run, as plain JSON. Pure. */
 import { SPLIT_VERSION, type Assignment } from '../split/assignment.js';
 import { idOrder } from '../split/key.js';
+import { TextBuilder } from '../table/csv-write.js';
+import { CanonicalText } from './canonical.js';
 import type { Table } from '../table/table.js';
 
 export const MANIFEST_VERSION = 1;
@@ -28,15 +30,39 @@ export interface ManifestInput {
 
 export type Manifest = Record<string, unknown>;
 
-export function buildManifest(m: ManifestInput): Manifest {
+/** The assignment as [id, repeat, fold] triples, repeat by repeat, ids in id order (the first `limit` only, when given). */
+export function assignmentTriples(a: Assignment, limit = Number.POSITIVE_INFINITY): [string, number, number][] {
+  const order = idOrder(a.ids);
+  const n = a.ids.length;
+  const triples: [string, number, number][] = [];
+  for (let r = 1; r <= a.repeats && triples.length < limit; r++)
+    for (let i = 0; i < n && triples.length < limit; i++) triples.push([a.ids[order[i]], r, a.fold[(r - 1) * n + order[i]]]);
+  return triples;
+}
+
+/** JSON.stringify(assignmentTriples(a)), written directly: the same text without a small array per row. */
+export function assignmentTriplesJson(a: Assignment): string {
+  const order = idOrder(a.ids);
+  const n = a.ids.length;
+  const out = new TextBuilder();
+  out.add('[');
+  for (let r = 1; r <= a.repeats; r++)
+    for (let i = 0; i < n; i++)
+      out.add(`${r > 1 || i > 0 ? ',' : ''}[${JSON.stringify(a.ids[order[i]])},${r},${a.fold[(r - 1) * n + order[i]]}]`);
+  out.add(']');
+  return out.text();
+}
+
+/**
+ * `textAssignment`: the assignment as its canonical JSON text (CanonicalText) instead of triples,
+ * for a manifest that is only written (run); one that is compared (verify) keeps the triples.
+ */
+export function buildManifest(m: ManifestInput, textAssignment = false): Manifest {
   const counts: Record<string, number> = {};
   for (const c of m.table.classes) counts[c] = 0;
   for (const c of m.table.y) counts[m.table.classes[c]]++;
-  const order = idOrder(m.assignment.ids);
   const n = m.assignment.ids.length;
-  const triples: [string, number, number][] = [];
-  for (let r = 1; r <= m.assignment.repeats; r++)
-    for (const row of order) triples.push([m.assignment.ids[row], r, m.assignment.fold[(r - 1) * n + row]]);
+  const triples = textAssignment ? new CanonicalText(assignmentTriplesJson(m.assignment)) : assignmentTriples(m.assignment);
   return {
     'foldseal-manifest': MANIFEST_VERSION,
     tool: m.tool,

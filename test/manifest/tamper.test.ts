@@ -4,7 +4,9 @@ import { join } from 'node:path';
 import fc from 'fast-check';
 import t from 'tap';
 import { produceRun } from '../../src/io/produce-run.js';
+import { assignmentTriples, assignmentTriplesJson } from '../../src/manifest/build.js';
 import { canonicalJson } from '../../src/manifest/canonical.js';
+import { type Assignment, SPLIT_VERSION } from '../../src/split/assignment.js';
 import { checkManifest } from '../../src/manifest/check.js';
 import { manifestForRun } from '../../src/run/manifest-of-run.js';
 import { rawPublicKey } from '../../src/manifest/sign.js';
@@ -45,6 +47,36 @@ const get = (o: any, p: Path) => p.reduce((x, k) => x[k], o);
 const set = (o: any, p: Path, v: unknown) => {
   get(o, p.slice(0, -1))[p[p.length - 1]] = v;
 };
+
+t.test('written with its assignment as text (run), the signed manifest is the same bytes', async (t) => {
+  const lean = manifestForRun(input!, out!, {
+    tool,
+    created: '2026-12-01T00:00:00.000Z',
+    protocolLocation: '../protocols',
+    key: keyA,
+    validate,
+    textOnly: true,
+  });
+  t.equal(lean.text, text);
+  t.same(checkManifest(lean.text, { file: 'm.json', pinned: pin(keyA), validate }).problems, []);
+});
+
+t.test('the assignment written directly is JSON.stringify of its triples, for any ids (fast-check)', async (t) => {
+  fc.assert(
+    fc.property(
+      fc.uniqueArray(fc.string(), { minLength: 0, maxLength: 20 }),
+      fc.integer({ min: 1, max: 3 }),
+      fc.infiniteStream(fc.integer({ min: 0, max: 9 })),
+      (ids, repeats, folds) => {
+        const it = folds[Symbol.iterator]();
+        const fold = Int32Array.from({ length: ids.length * repeats }, () => it.next().value as number);
+        const a: Assignment = { version: SPLIT_VERSION, ids, repeats, folds: 9, fold };
+        return assignmentTriplesJson(a) === JSON.stringify(assignmentTriples(a));
+      },
+    ),
+  );
+  t.pass('100 generated assignments');
+});
 
 t.test('the untouched manifest verifies with key A and fails with key B', async (t) => {
   t.same(checkManifest(text, { file: 'm.json', pinned: pin(keyA), validate }).problems, []);

@@ -73,6 +73,7 @@ export async function runCommand(args: RunArgs, io: CommandIo, merged?: ProduceO
         .join('/') || '.',
     key: key?.kind === 'raw' ? key : undefined,
     validate: schemaValidator(MANIFEST_SCHEMA),
+    textOnly: true,
   });
   const written: Record<string, string | Uint8Array> = { 'predictions.csv': out.predictions, ...out.files, 'manifest.json': text };
   // An SSH key signs the manifest's bytes in manifest.json.sig, the file `ssh-keygen -Y verify` reads.
