@@ -52,29 +52,20 @@ export interface ProduceOptions {
 
 export async function produceRun(protocolPath: string, options: ProduceOptions = {}): Promise<Produced> {
   // The thread that helps read a large table stays to fit folds, where they go to threads.
-  let helper: RowThread | undefined;
+  const kept: { thread?: RowThread } = {};
   try {
-    return await produce(
-      protocolPath,
-      options,
-      (thread, p) => {
-        if (p.model.kind === 'command' || strategyFor(p) === 'moments') return false;
-        helper = thread;
-        return true;
-      },
-      () => helper,
-    );
+    return await produce(protocolPath, options, kept);
   } finally {
-    await helper?.close();
+    await kept.thread?.close();
   }
 }
 
-async function produce(
-  protocolPath: string,
-  options: ProduceOptions,
-  keepThread: (thread: RowThread, p: Protocol) => boolean,
-  kept: () => RowThread | undefined,
-): Promise<Produced> {
+async function produce(protocolPath: string, options: ProduceOptions, kept: { thread?: RowThread }): Promise<Produced> {
+  const keepThread = (thread: RowThread, p: Protocol) => {
+    if (p.model.kind === 'command' || strategyFor(p) === 'moments') return false;
+    kept.thread = thread;
+    return true;
+  };
   // Merged parts come with the protocol already validated (and its data read once).
   const report =
     options.merged?.report ?? (await validateProtocol(protocolPath, { access: options.access, describe: options.audit, keepThread }));
@@ -111,7 +102,7 @@ async function produce(
   }
   const cv = merged
     ? assembleResult(input.protocol, input.table, input.assignment, planFolds(input.protocol, input.table, input.assignment), merged.fits)
-    : await crossValidateInWorkers(input.protocol, input.table, input.assignment, options.hooks, runAudit, { helper: kept() }).catch(
+    : await crossValidateInWorkers(input.protocol, input.table, input.assignment, options.hooks, runAudit, { helper: kept.thread }).catch(
         (e: unknown) => {
           throw asUserError(e, input.protocolFile);
         },

@@ -30,25 +30,30 @@ export interface ManifestInput {
 
 export type Manifest = Record<string, unknown>;
 
-/** The assignment as [id, repeat, fold] triples, repeat by repeat, ids in id order (the first `limit` only, when given). */
-export function assignmentTriples(a: Assignment, limit = Number.POSITIVE_INFINITY): [string, number, number][] {
+/** Calls f(id, repeat, fold) for the assignment's rows, repeat by repeat, ids in id order, while it returns true. */
+function eachTriple(a: Assignment, f: (id: string, repeat: number, fold: number) => boolean): void {
   const order = idOrder(a.ids);
   const n = a.ids.length;
+  for (let r = 1; r <= a.repeats; r++) for (let i = 0; i < n; i++) if (!f(a.ids[order[i]], r, a.fold[(r - 1) * n + order[i]])) return;
+}
+
+/** The assignment as [id, repeat, fold] triples (the first `limit` only, when given). */
+export function assignmentTriples(a: Assignment, limit = Number.POSITIVE_INFINITY): [string, number, number][] {
   const triples: [string, number, number][] = [];
-  for (let r = 1; r <= a.repeats && triples.length < limit; r++)
-    for (let i = 0; i < n && triples.length < limit; i++) triples.push([a.ids[order[i]], r, a.fold[(r - 1) * n + order[i]]]);
+  if (limit > 0) eachTriple(a, (id, r, fold) => triples.push([id, r, fold]) < limit);
   return triples;
 }
 
 /** JSON.stringify(assignmentTriples(a)), written directly: the same text without a small array per row. */
 export function assignmentTriplesJson(a: Assignment): string {
-  const order = idOrder(a.ids);
-  const n = a.ids.length;
   const out = new TextBuilder();
+  let sep = '';
   out.add('[');
-  for (let r = 1; r <= a.repeats; r++)
-    for (let i = 0; i < n; i++)
-      out.add(`${r > 1 || i > 0 ? ',' : ''}[${JSON.stringify(a.ids[order[i]])},${r},${a.fold[(r - 1) * n + order[i]]}]`);
+  eachTriple(a, (id, r, fold) => {
+    out.add(`${sep}[${JSON.stringify(id)},${r},${fold}]`);
+    sep = ',';
+    return true;
+  });
   out.add(']');
   return out.text();
 }

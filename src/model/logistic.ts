@@ -497,8 +497,9 @@ function newtonCg(
   try {
     for (;;) {
       const loss = lossAt(theta, true);
-      const g = Float64Array.from(grad);
-      const m = Float64Array.from(diag);
+      // The gradient and the diagonal stay as they are until the next lossAt with derivatives.
+      const g = grad;
+      const m = diag;
       let gnorm = 0;
       for (let j = 0; j <= p; j++) gnorm += g[j] * g[j];
       gnorm = Math.sqrt(gnorm);
