@@ -29,6 +29,7 @@ import './audit/screen.part.js';
 import './protocol/schema.part.js';
 import './stats/compare-logic.part.js';
 import './cli/apply.part.js';
+import './cli/apply-knn.part.js';
 import './cli/sign-verify.part.js';
 import './table/plain.part.js';
 import './reconcile/known-rows.part.js';

@@ -189,18 +189,29 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
         'samples-in-rows or features-in-rows (one row per feature, one column per sample); default: detected from the header',
       ).choices(['samples-in-rows', 'features-in-rows']),
     )
+    .option('--data <file>', "a copy of the run's data file, for k-nearest-neighbour models (they reference their training rows)")
+    .option('--allow-outside', "let the run's data be read from outside the review folders")
     .addOption(commandsOption())
     .addHelpText(
       'after',
       '\nExamples:\n  foldseal apply results/demo protocols/data/seedlings-new.csv --out applied.csv\n  foldseal apply ' +
         'results/demo new.csv --rule majority-vote --tie abstain --out voted.csv\n\nmodels.json and predictions.csv are checked ' +
-        'against the hashes in results.json first.',
+        'against the hashes in results.json first. k-nearest-neighbour models reference their training rows: ' +
+        "apply reads the run's data again through the protocol the manifest records (or --data FILE) and checks its hash.",
     )
     .action(
       async (
         results: string,
         table: string,
-        o: { out?: string; rule?: ReconcileRule; tie?: TieRule; layout?: DataLayout; allowCommands?: boolean },
+        o: {
+          out?: string;
+          rule?: ReconcileRule;
+          tie?: TieRule;
+          layout?: DataLayout;
+          allowCommands?: boolean;
+          data?: string;
+          allowOutside?: boolean;
+        },
       ) => done(await (await import('./commands/apply.js')).applyCommand({ results, table, ...o }, io)),
     );
 

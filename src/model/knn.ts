@@ -56,6 +56,11 @@ export const knn: ModelImpl<KnnParams> = {
   },
   capabilities: {
     cheapFit: true,
+    keepsRows: {
+      without: (p) => ({ k: p.k, classCount: p.classCount }),
+      with: (rest, X, y) => knn.fit(X, y, { k: rest.k }, { classCount: rest.classCount as number }),
+      rows: (p) => ({ X: packed(p), y: Int32Array.from(p.y) }),
+    },
     notes(p) {
       // Every training row the same: every distance ties, so the neighbours are simply the first k rows in id order.
       const first = p.X[0];
@@ -77,6 +82,15 @@ export const knn: ModelImpl<KnnParams> = {
   },
 };
 
+/** The training rows in one row-major array (`cols` wide: a model of no rows has no row to tell). */
+function packed(p: KnnParams, cols = p.X.length ? p.X[0].length : 0): Float64Array {
+  const X = new Float64Array(p.X.length * cols);
+  p.X.forEach((row, i) => {
+    X.set(row, i * cols);
+  });
+  return X;
+}
+
 /**
  * The k nearest training rows of each test row (training positions, nearest first not
  * guaranteed), by the WebAssembly kernel when the rows fit its memory, else in plain JavaScript
@@ -85,10 +99,7 @@ export const knn: ModelImpl<KnnParams> = {
 export function neighbours(p: KnnParams, X: Matrix, plain = false): Nearest {
   const n = p.y.length;
   const cols = X.cols;
-  const train = new Float64Array(n * cols);
-  p.X.forEach((row, i) => {
-    train.set(row, i * cols);
-  });
+  const train = packed(p, cols);
   const near = nearest(X.rows, Math.min(p.k, n));
   if (plain || !wasmScan(near, X.data, X.rows, train, n, cols)) scalarScan(near, X.data, X.rows, train, n, cols);
   return near;

@@ -79,6 +79,18 @@ export interface ModelCapabilities<P> {
   cheapFit?: true;
   /** Remarks on a fitted model worth a warning (e.g. every distance tied). */
   notes?(params: P): string[];
+  /**
+   * The parameters hold the training rows themselves (after the fold's pipeline) and their
+   * classes. models.json then records which rows of the run's table they were instead of a
+   * copy (the data file's hash seals them; see reconcile/training-rows.ts), and `apply` puts
+   * them back: `without` is the rest of the parameters, `with` rebuilds the whole from it and
+   * the rows, `rows` hands out the rows and classes exactly as predict reads them.
+   */
+  keepsRows?: {
+    without(params: P): Record<string, unknown>;
+    with(rest: Record<string, unknown>, X: Matrix, y: Int32Array): P;
+    rows(params: P): { X: Float64Array; y: Int32Array };
+  };
 }
 
 export { FitError } from '../problems/problem.js';

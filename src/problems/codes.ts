@@ -159,6 +159,8 @@ export const PROBLEM_CODES = {
   'refuse-foreign-folder': {},
   'refuse-overwrite': {},
   'rerun-failed': {},
+  'training-rows-unavailable': {},
+  'training-rows-changed': {},
   'rerun-untrusted': {},
   'results-missing': {},
   'results-version': {},

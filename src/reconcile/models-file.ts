@@ -5,8 +5,10 @@
 import type { PreprocessStep, ModelKind, ReconcileRule, TieRule } from '../protocol/types.js';
 import type { FittedPipeline } from '../preprocess/pipeline.js';
 import { KnownRowList } from './known-ids.js';
+import type { TrainingRows } from './training-rows.js';
 
-export const MODELS_VERSION = 1;
+/** 2: a model that keeps its training rows references them (`training-rows`) instead of copying them. */
+export const MODELS_VERSION = 2;
 
 export interface SavedModel {
   repeat: number;
@@ -15,6 +17,8 @@ export interface SavedModel {
   model: unknown;
   /** A tuned protocol's chosen value of each tuned setting (the fitted pipeline and model already carry them). */
   chosen?: Record<string, number | string>;
+  /** Which rows of the run's table trained a model that keeps its rows (`model` then lacks them): training-rows.ts. */
+  'training-rows'?: TrainingRows;
 }
 
 export interface ModelsFile {

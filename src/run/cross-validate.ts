@@ -28,6 +28,8 @@ export interface FoldModel {
   model: unknown;
   /** A tuned protocol's chosen value of each tuned setting for this fold. */
   chosen?: Record<string, number | string>;
+  /** The training rows (in id order), for a model that keeps them: models.json references them. */
+  train?: Int32Array;
 }
 
 /** The grid searches of a tuned protocol: per outer fold, every candidate's mean inner score and the winner. */
@@ -164,7 +166,14 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
       confusion: confusionRows(s),
     });
     const search = fits[index].search;
-    fitted.push({ repeat: r, fold: f, pipeline, model: params, ...(search ? { chosen: valuesOf(p.grid, grid[search.chosen]) } : {}) });
+    fitted.push({
+      repeat: r,
+      fold: f,
+      pipeline,
+      model: params,
+      ...(search ? { chosen: valuesOf(p.grid, grid[search.chosen]) } : {}),
+      ...(impl.capabilities?.keepsRows ? { train } : {}),
+    });
   });
   const summary: Record<string, MetricSummary> = {};
   const pooledByRepeat = pooled(p.metrics, table, oof, testedIn, order, positive);

@@ -18,6 +18,7 @@ import { appliedCsv, applyRows, type AppliedRow } from '../reconcile/applied.js'
 import type { GivenProbabilities } from '../reconcile/reconcile.js';
 import { heldOutFromOof } from '../reconcile/held-out.js';
 import { KnownRowList } from '../reconcile/known-ids.js';
+import { keepsRows, referenced } from '../reconcile/training-rows.js';
 import { MODELS_VERSION, modelsJson, type ModelsFile, type SavedModel } from '../reconcile/models-file.js';
 import { idOrder } from '../split/key.js';
 import { takeInt } from '../table/matrix.js';
@@ -76,7 +77,11 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
   const p = input.protocol;
   const protocolSha256 = canonicalSha256(input.raw);
   const refitted =
-    input.refit || p.reconcile.rule === 'refit' ? (input.external?.refit ? { model: input.external.refit } : fitOnAll(input)) : null;
+    input.refit || p.reconcile.rule === 'refit'
+      ? input.external?.refit
+        ? { model: input.external.refit, search: undefined }
+        : fitOnAll(input)
+      : null;
   const refit = refitted?.model ?? null;
   const saved: ModelsFile = {
     'foldseal-models': MODELS_VERSION,
@@ -101,8 +106,8 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
           },
         }
       : {}),
-    folds: cv.models,
-    refit,
+    folds: cv.models.map((m) => savedModel(p.model.kind, m, input.table.ids.length)),
+    refit: refit && savedModel(p.model.kind, refit, input.table.ids.length),
     'known-rows': KnownRowList.of(input.table.ids, input.table.X, input.table.featureNames),
   };
   const files: Record<string, string> = { 'models.json': modelsJson(saved) };
@@ -164,6 +169,12 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
   return { cv, results, assignmentCsv: folds, assignmentSha256, files, predictions, digests, applied, statistics, newRowScores };
 }
 
+/** A fold model as models.json saves it: a model that keeps its training rows references them (training-rows.ts). */
+function savedModel(kind: Protocol['model']['kind'], m: SavedModel & { train?: Int32Array }, tableRows: number): SavedModel {
+  const { train, ...rest } = m;
+  return train && keepsRows(kind) ? { ...rest, ...referenced(kind, m.model, train, tableRows) } : rest;
+}
+
 export function guardFit<T>(protocolFile: string, f: () => T): T {
   try {
     return f();
@@ -187,7 +198,7 @@ export function refitRows(p: Pick<Protocol, 'split' | 'final'>, ids: readonly st
  * One pipeline and model fitted on every labeled row, visited in id order. A tuned protocol
  * first searches its grid on those rows (as outer repeat 0, fold 0) and fits the winner.
  */
-function fitOnAll(input: RunInput): { model: SavedModel; search?: FoldSearch } {
+function fitOnAll(input: RunInput): { model: SavedModel & { train: Int32Array }; search?: FoldSearch } {
   const { table } = input;
   const order = refitRows(input.protocol, table.ids, input.assignment);
   return guardFit(input.protocolFile, () => {
@@ -215,6 +226,9 @@ function fitOnAll(input: RunInput): { model: SavedModel; search?: FoldSearch } {
     const model = models[p.model.kind].fit(X, y, fitOptions(p.model.kind, p.model.options, table.classes), {
       classCount: table.classes.length,
     });
-    return { model: { repeat: 0, fold: 0, pipeline: prunePipeline(pipeline, table.X.cols), model, ...(chosen ? { chosen } : {}) }, search };
+    return {
+      model: { repeat: 0, fold: 0, pipeline: prunePipeline(pipeline, table.X.cols), model, ...(chosen ? { chosen } : {}), train: order },
+      search,
+    };
   });
 }

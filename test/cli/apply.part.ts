@@ -26,7 +26,7 @@ t.test('run on the demo writes models.json and applied.csv with held-out and fol
   t.ok(/^[0-9a-f]{64}$/.test(results.files['models.json']));
   t.ok(/^[0-9a-f]{64}$/.test(results.files['applied.csv']));
   const models = JSON.parse(readFileSync(join(res, 'models.json'), 'utf8'));
-  t.equal(models['foldseal-models'], 1);
+  t.equal(models['foldseal-models'], 2);
   t.equal(models.folds.length, 10);
   t.ok(models.refit, '--refit saves a model fitted on every labeled row');
 });

@@ -21,6 +21,7 @@ import { newRowsFromBytes, type NewRows } from '../../table/new-rows.js';
 import { commandFileProblems, commandLine, newRowProbabilities } from '../../io/command-model.js';
 import type { GivenProbabilities } from '../../reconcile/reconcile.js';
 import { asUserError } from '../../run/run.js';
+import { withTrainingRows } from '../../io/recorded-table.js';
 import type { CommandIo, ExitCode } from '../io.js';
 import { reportProblems } from '../report-problems.js';
 
@@ -33,6 +34,10 @@ export interface ApplyArgs {
   rule?: ReconcileRule;
   tie?: TieRule;
   layout?: DataLayout;
+  /** A copy of the run's data, for fold models that reference their training rows. */
+  data?: string;
+  /** Let that read go outside the review folders. */
+  allowOutside?: boolean;
 }
 
 export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<ExitCode> {
@@ -47,7 +52,8 @@ export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<Exit
     're-run the protocol instead of editing saved models',
   );
   const saved = parseJson(modelBytes, modelsPath) as ModelsFile;
-  if (saved['foldseal-models'] !== MODELS_VERSION)
+  // Format 1 differs only in copying a k-nearest-neighbour model's training rows into models.json.
+  if (saved['foldseal-models'] !== MODELS_VERSION && saved['foldseal-models'] !== 1)
     throw new FoldsealError(
       error(
         'models-version',
@@ -74,6 +80,8 @@ export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<Exit
       }),
     );
   if (problems.length) throw new FoldsealError(problems, 2);
+  // Fold models that reference their training rows get them back from the run's table.
+  const { folds, refit } = await withTrainingRows(args.results, saved, { data: args.data, allowOutside: args.allowOutside });
 
   const tableBytes = await readInput(args.table);
   const plain = await tableContent(tableBytes, shown(args.table), { file: shown(args.table) });
@@ -99,8 +107,8 @@ export async function applyCommand(args: ApplyArgs, io: CommandIo): Promise<Exit
     rows = applyRows({
       given,
       kind: saved.kind,
-      folds: saved.folds,
-      refit: saved.refit,
+      folds,
+      refit,
       classes: saved.classes,
       rule,
       tie,

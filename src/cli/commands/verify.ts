@@ -1,11 +1,9 @@
 import { existsSync } from 'node:fs';
-import { mkdtemp, rm, writeFile } from 'node:fs/promises';
-import { tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { error, FoldsealError, hasErrors, warning, type Problem } from '../../problems/problem.js';
 import { sha256Bytes, sha256File } from '../../io/hash.js';
 import { fileProblem, readRegularText } from '../../io/files.js';
-import { folderAbove, isInside, outsideProblem, protocolPolicy, realPath, trustedFolders, type PathPolicy } from '../../io/path-policy.js';
+import { localizeProtocol, reviewPolicy, withProtocolCopy } from '../../io/recorded-protocol.js';
 import { selfCheck } from '../../manifest/self-check.js';
 import { readPinnedKeys } from '../../io/keys.js';
 import { MANIFEST_SCHEMA, schemaValidator } from '../../io/schemas.js';
@@ -178,17 +176,7 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
     base = resolve(manifestDir, m.protocol.location);
   }
   const protocolSha = canonicalSha256(doc);
-  // Nothing is read before every path the manifest (or protocol) names is known to lie inside the review folders.
-  const named: [string, string, string][] = [];
-  if (!args.data) named.push([resolve(base, doc.data.file), doc.data.file, 'data file']);
-  if (doc.data.samples) named.push([resolve(base, doc.data.samples.file), doc.data.samples.file, 'sample sheet']);
-  if (doc.split?.pinned) named.push([resolve(base, doc.split.pinned.file), doc.split.pinned.file, 'pinned assignment file']);
-  if (doc.reconcile?.['new-rows'])
-    named.push([resolve(base, doc.reconcile['new-rows'].file), doc.reconcile['new-rows'].file, 'new-rows file']);
-  for (const f of doc.model?.command?.files ?? []) named.push([resolve(base, f.file), f.file, "model's file"]);
-  const outside = named
-    .map(([path, as, what]) => outsideProblem(path, access, as, what, { file: shown(resolve(args.manifest)) }))
-    .filter((q): q is Problem => q !== undefined);
+  const outside = localizeProtocol(doc, base, access, args.data, shown(resolve(args.manifest)));
   if (outside.length) {
     problems.push(
       ...outside,
@@ -198,11 +186,6 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
     );
     return { differences: [], lines: [] };
   }
-  doc.data.file = args.data ? resolve(args.data) : resolve(base, doc.data.file);
-  if (doc.data.samples) doc.data.samples.file = resolve(base, doc.data.samples.file);
-  if (doc.split?.pinned) doc.split.pinned.file = resolve(base, doc.split.pinned.file);
-  if (doc.reconcile?.['new-rows']) doc.reconcile['new-rows'].file = resolve(base, doc.reconcile['new-rows'].file);
-  for (const f of doc.model?.command?.files ?? []) f.file = resolve(base, f.file);
   let localSha: string;
   try {
     localSha = await sha256File(doc.data.file);
@@ -215,10 +198,7 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
   }
   // A changed data file is itself a difference; the run goes ahead so its effect is visible too.
   doc.data.sha256 = localSha;
-  const work = await mkdtemp(join(tmpdir(), 'foldseal-verify-'));
-  try {
-    const path = join(work, 'protocol.yaml');
-    await writeFile(path, JSON.stringify(doc, null, 2));
+  return withProtocolCopy(doc, async (path) => {
     const { report, input, out } = await produceRun(path, {
       refit: await recordedRefit(join(manifestDir, 'models.json')),
       allowCommands: args.allowCommands,
@@ -261,9 +241,7 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
         `compared (tolerance ${doc.verify?.tolerance ?? 0})`,
     ];
     return { differences, lines };
-  } finally {
-    await rm(work, { recursive: true, force: true });
-  }
+  });
 }
 
 /** Whether the recorded run saved a refit model (run --refit), so the re-run does the same. */
@@ -285,20 +263,6 @@ async function readFileOr<T extends string | undefined>(path: string, fallback: 
 
 /** The largest manifest foldseal reads (a 1,000,000-row assignment is about 40 MB). */
 const MANIFEST_MAX_BYTES = 512 << 20;
-
-/**
- * Where a re-run may read: the review folder of the manifest — the git work tree it lies in, else
- * the working folder when it holds the manifest, else the manifest's own folder — and the folders
- * of the files the user named (--protocol, --data), and the trusted folders.
- */
-export function reviewPolicy(manifestDir: string, args: Pick<VerifyArgs, 'protocol' | 'data' | 'allowOutside'>): PathPolicy {
-  const roots = [
-    folderAbove(manifestDir, '.git') ?? (isInside(realPath(manifestDir), realPath(process.cwd())) ? process.cwd() : manifestDir),
-  ];
-  if (args.protocol) roots.push(...protocolPolicy(args.protocol).roots);
-  if (args.data) roots.push(dirname(resolve(args.data)));
-  return { roots: [...new Set([...roots, ...trustedFolders()])], allowOutside: Boolean(args.allowOutside) };
-}
 
 function lineDifferences(a: string, b: string): number {
   const x = a.split('\n');
