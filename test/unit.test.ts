@@ -32,6 +32,8 @@ import './cli/apply.part.js';
 import './cli/apply-knn.part.js';
 import './cli/sign-verify.part.js';
 import './table/plain.part.js';
+import './table/streamed.part.js';
+import './table/streamed-file.part.js';
 import './reconcile/known-rows.part.js';
 import './model/knn-kernel.part.js';
 import './table/csv-write.part.js';

@@ -7,15 +7,18 @@ import { availableParallelism } from 'node:os';
 import { MessageChannel, type MessagePort, receiveMessageOnPort, Worker } from 'node:worker_threads';
 import { forcedThreads } from './threads.js';
 import { deriveKeys } from '../split/key.js';
+import { changedWhileRead } from './file-identity.js';
 import type { RowHelper, RowsPart } from '../table/plain.js';
 import type { ParquetTwin } from './parquet.js';
 import type { NumberColumnsDone } from './parquet-pages.js';
 import type { FoldThreadData } from './fold-jobs.js';
+import type { StreamTwin } from './streamed-read.js';
+import type { StretchRows } from '../table/streamed-grid.js';
 
 /** Files below this size read faster on one thread than a worker takes to start. */
 export const SHARED_READ_BYTES = 8 * 1024 * 1024;
 
-export interface RowThread extends RowHelper, ParquetTwin {
+export interface RowThread extends RowHelper, ParquetTwin, StreamTwin {
   /** Starts SHA-256 of bytes on the other thread; the returned function waits for the hex digest. */
   sha256(bytes: Uint8Array): () => string;
   /** deriveKeys(ids, seed, repeat), the second half of the ids on the other thread. */
@@ -80,6 +83,20 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
   let early:
     | { seed: number; from: number; to: number; out: Uint8Array; wait: () => unknown; parsed: boolean; ids?: readonly string[] }
     | undefined;
+  /** With a plan (expectKeys), the other thread derives the keys of the ids it parses right after parsing them. */
+  const keysAfterRows = (header: readonly string[], textCols: readonly number[], from: number, to: number) => {
+    const slot = plan ? textCols.indexOf(header.indexOf(plan.idColumn)) : -1;
+    if (!plan || slot < 0) return;
+    const out = new Uint8Array(new SharedArrayBuffer(plan.repeats * (to - from) * 32));
+    early = {
+      seed: plan.seed,
+      from,
+      to,
+      out,
+      wait: post({ kind: 'keys-of-rows', slot, textCount: textCols.length, seed: plan.seed, repeats: plan.repeats, out }),
+      parsed: false,
+    };
+  };
   return {
     numbers: (length) => new Float64Array(new SharedArrayBuffer(length * 8)),
     expectKeys(p) {
@@ -104,22 +121,31 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
         rowEnd: t.rowEnd,
       };
       const wait = post({ kind: 'rows', table, numberCols, textCols, from, to, numbers });
-      const slot = plan ? textCols.indexOf(t.header.indexOf(plan.idColumn)) : -1;
-      if (plan && slot >= 0) {
-        const out = new Uint8Array(new SharedArrayBuffer(plan.repeats * (to - from) * 32));
-        early = {
-          seed: plan.seed,
-          from,
-          to,
-          out,
-          wait: post({ kind: 'keys-of-rows', slot, textCount: textCols.length, seed: plan.seed, repeats: plan.repeats, out }),
-          parsed: false,
-        };
-      }
+      keysAfterRows(t.header, textCols, from, to);
       return () => {
         const part = wait().part as RowsPart | undefined;
         if (early) early.parsed = part !== undefined;
         return part;
+      };
+    },
+    sha256File(path, identity) {
+      const wait = post({ kind: 'hash-file', path, identity });
+      return () => wait().sha256 as string | undefined;
+    },
+    stretchHelper(path, identity, ix, shownAs) {
+      const index = { rowStart: ix.rowStart, rowEnd: ix.rowEnd, delimiter: ix.delimiter, cols: ix.cols };
+      return {
+        numbers: (length) => new Float64Array(new SharedArrayBuffer(length * 8)),
+        start(numberCols, textCols, from, to, numbers) {
+          const wait = post({ kind: 'rows-file', path, identity, index, numberCols, textCols, from, to, numbers });
+          keysAfterRows(ix.header, textCols, from, to);
+          return () => {
+            const reply = wait() as { part?: StretchRows; changed?: true };
+            if (reply.changed) throw changedWhileRead(shownAs);
+            if (early) early.parsed = reply.part !== undefined;
+            return reply.part;
+          };
+        },
       };
     },
     keysAhead(ids, seed, repeats) {

@@ -11,6 +11,11 @@ import { extractRows, type RowsPart } from '../table/plain-rows.js';
 import type { ParquetTwin } from './parquet.js';
 import type { NumberColumnsDone } from './parquet-pages.js';
 import type { FoldThreadData } from './fold-jobs.js';
+import { closeSync } from 'node:fs';
+import { FoldsealError } from '../problems/problem.js';
+import { fdReader, openIdentified, sameFile, type FileIdentity } from './file-identity.js';
+import type { LineIndex } from '../table/line-index.js';
+import { extractStretches, STRETCH } from '../table/streamed-grid.js';
 
 const { port, parquet } = workerData as { port: MessagePort; parquet: boolean };
 
@@ -25,6 +30,18 @@ type Job = { id: number; done: Int32Array } & (
   | { kind: 'keys-of-rows'; slot: number; textCount: number; seed: number; repeats: number; out: Uint8Array }
   | { kind: 'keys-of-ids'; ids: string[]; seed: number; repeats: number; out: Uint8Array }
   | ({ kind: 'parquet' } & Parameters<ParquetTwin['parquet']>[0])
+  | { kind: 'hash-file'; path: string; identity: FileIdentity }
+  | {
+      kind: 'rows-file';
+      path: string;
+      identity: FileIdentity;
+      index: Pick<LineIndex, 'rowStart' | 'rowEnd' | 'delimiter' | 'cols'>;
+      numberCols: number[];
+      textCols: number[];
+      from: number;
+      to: number;
+      numbers: Float64Array;
+    }
 );
 
 /** The share of a Parquet file's numeric columns this thread was given; a broken file is an answer, not a failure. */
@@ -69,11 +86,57 @@ parentPort!.on('message', (job: Job | FoldsMessage) => {
   queue = queue.then(() => (job.kind === 'prepare-folds' || job.kind === 'folds' ? folds(job) : run(job)));
 });
 
+/** The file opened again, or undefined when it is not the same unchanged file. */
+function openedAgain(path: string, identity: FileIdentity): number | undefined {
+  const opened = openIdentified(path);
+  if (opened && sameFile(opened.identity, identity)) return opened.fd;
+  if (opened) closeSync(opened.fd);
+  return undefined;
+}
+
+/** SHA-256 of the file read in stretches into one buffer; undefined when it is not the same file any more. */
+function fileSha256(path: string, identity: FileIdentity): string | undefined {
+  const fd = openedAgain(path, identity);
+  if (fd === undefined) return undefined;
+  try {
+    const hash = createHash('sha256');
+    const buffer = new Uint8Array(Math.min(STRETCH, Math.max(identity.size, 1)));
+    const read = fdReader(fd, path);
+    for (let at = 0; at < identity.size; at += buffer.length) {
+      const length = Math.min(buffer.length, identity.size - at);
+      read(at, buffer, length);
+      hash.update(buffer.subarray(0, length));
+    }
+    return hash.digest('hex');
+  } catch {
+    return undefined;
+  } finally {
+    closeSync(fd);
+  }
+}
+
 async function run(job: Job): Promise<void> {
   try {
     if (job.kind === 'parquet') port.postMessage({ id: job.id, ...(await parquetShare(job)) });
     else if (job.kind === 'hash') port.postMessage({ id: job.id, sha256: createHash('sha256').update(job.bytes).digest('hex') });
-    else if (job.kind === 'rows') {
+    else if (job.kind === 'hash-file') port.postMessage({ id: job.id, sha256: fileSha256(job.path, job.identity) });
+    else if (job.kind === 'rows-file') {
+      const fd = openedAgain(job.path, job.identity);
+      if (fd === undefined) port.postMessage({ id: job.id, changed: true });
+      else {
+        try {
+          const part = extractStretches(job.index, job.numberCols, job.textCols, job.from, job.to, job.numbers, fdReader(fd, job.path));
+          last = { table: { bytes: part?.arena } as PlainTable, part };
+          port.postMessage({ id: job.id, part });
+        } catch (e) {
+          // The file shrank under the read: that is the main thread's to report.
+          if (!(e instanceof FoldsealError)) throw e;
+          port.postMessage({ id: job.id, changed: true });
+        } finally {
+          closeSync(fd);
+        }
+      }
+    } else if (job.kind === 'rows') {
       const part = extractRows(job.table, job.numberCols, job.textCols, job.from, job.to, job.numbers);
       last = { table: job.table, part };
       port.postMessage({ id: job.id, part });

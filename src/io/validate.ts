@@ -12,7 +12,8 @@ import { schemaValidator } from './schemas.js';
 import { checkAgainstData } from '../protocol/semantic.js';
 import { isPinned, type Protocol, type RuleSplit } from '../protocol/types.js';
 import { splitRules } from '../split/registry.js';
-import { tableFromBytes, tableFromLayout, type SheetInput } from '../table/load.js';
+import { delimiterFor, tableFromBytes, tableFromLayout, type SheetInput } from '../table/load.js';
+import { readStreamed } from './streamed-read.js';
 import { tableContent } from './table-content.js';
 import type { ColumnTable } from '../table/columns.js';
 import { knownColumns } from '../protocol/known-columns.js';
@@ -149,12 +150,35 @@ async function validateWithData(
   const p = parsed.protocol;
   const source = parsed.source;
   const problems: Problem[] = [...parsed.problems];
-  const data = await readBytes(
-    paths.data,
-    shown(paths.data),
-    at(['data', 'file']),
-    rowThread ? { shared: true, hash: (bytes) => rowThread.sha256(bytes) } : {},
-  );
+  const roleLocate = (role: 'id' | 'label' | 'group' | 'features', index?: number) =>
+    locate(
+      source,
+      index === undefined ? ['data', role] : ['data', 'features', ...(Array.isArray(p.data.features) ? [] : ['exclude']), index],
+    );
+  // A large plain table is read in stretches on two threads, never whole (undefined: read whole below).
+  const streamed =
+    rowThread && p.data.layout === 'samples-in-rows' && !p.data.samples && !p.data.where && !p.data.classes
+      ? readStreamed(
+          paths.data,
+          shown(paths.data),
+          delimiterFor(shown(paths.data), p.data.format),
+          { ...dataRoles(p), keepOtherColumns: describe },
+          roleLocate,
+          rowThread,
+          () => {
+            if (hashesIds(p.split) && p.data.id !== undefined)
+              rowThread.expectKeys({ idColumn: p.data.id, seed: p.split.seed ?? 0, repeats: p.split.repeats });
+          },
+        )
+      : undefined;
+  const data = streamed
+    ? { sha256: streamed.sha256, bytes: undefined, problem: undefined }
+    : await readBytes(
+        paths.data,
+        shown(paths.data),
+        at(['data', 'file']),
+        rowThread ? { shared: true, hash: (bytes) => rowThread.sha256(bytes) } : {},
+      );
   let pinned: { bytes: Uint8Array; sha256: string; shownAs: string } | undefined;
   if (paths.pinned) {
     const pin = await readBytes(paths.pinned, shown(paths.pinned), at(['split', 'pinned', 'file']));
@@ -184,7 +208,9 @@ async function validateWithData(
     return { ...parsed, problems, paths };
   }
   // The declared hashes are of the bytes on disk; a gzip file is then read as its text.
-  const text = await tableContent(data.bytes!, shown(paths.data), at(['data', 'file']), rowThread);
+  const text = streamed
+    ? { content: new Uint8Array(0), problem: undefined }
+    : await tableContent(data.bytes!, shown(paths.data), at(['data', 'file']), rowThread);
   let sheet: SheetInput | undefined;
   if (paths.samples && p.data.samples) {
     const raw = await readBytes(paths.samples, shown(paths.samples), at(['data', 'samples', 'file']));
@@ -212,11 +238,6 @@ async function validateWithData(
     if (text.problem) problems.push(text.problem);
     return { ...parsed, problems, paths };
   }
-  const roleLocate = (role: 'id' | 'label' | 'group' | 'features', index?: number) =>
-    locate(
-      source,
-      index === undefined ? ['data', role] : ['data', 'features', ...(Array.isArray(p.data.features) ? [] : ['exclude']), index],
-    );
   // The second thread parses half of a plain, uncompressed samples-in-rows file; other files are read here.
   const simple = text.content === data.bytes && p.data.layout === 'samples-in-rows' && !sheet && !p.data.where && !p.data.classes;
   const helper = simple ? rowThread : undefined;
@@ -228,18 +249,20 @@ async function validateWithData(
   const ids = decoded && p.data.id !== undefined ? decoded.columns[decoded.names.indexOf(p.data.id)] : undefined;
   if (rowThread && Array.isArray(ids) && ids.length >= 10_000 && hashesIds(p.split) && p.data.layout === 'samples-in-rows' && !sheet)
     rowThread.keysAhead(ids, p.split.seed ?? 0, p.split.repeats);
-  const built: ReturnType<typeof tableFromLayout> = simple
-    ? tableFromBytes(data.bytes!, shown(paths.data), { ...dataRoles(p), keepOtherColumns: describe }, p.data.format, roleLocate, helper)
-    : tableFromLayout(
-        text.content,
-        shown(paths.data),
-        { ...dataRoles(p), keepOtherColumns: describe },
-        p.data.format,
-        p.data.layout,
-        sheet,
-        roleLocate,
-        (column) => at(['data', 'where', column]),
-      );
+  const built: ReturnType<typeof tableFromLayout> = streamed
+    ? streamed.built
+    : simple
+      ? tableFromBytes(data.bytes!, shown(paths.data), { ...dataRoles(p), keepOtherColumns: describe }, p.data.format, roleLocate, helper)
+      : tableFromLayout(
+          text.content,
+          shown(paths.data),
+          { ...dataRoles(p), keepOtherColumns: describe },
+          p.data.format,
+          p.data.layout,
+          sheet,
+          roleLocate,
+          (column) => at(['data', 'where', column]),
+        );
   // A file that is not the recorded one is reported as that alone: its structural problems would
   // only distract. (The hash is taken while the file is parsed, on the second thread for large files.)
   if (data.sha256 !== p.data.sha256) {

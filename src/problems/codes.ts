@@ -161,6 +161,7 @@ export const PROBLEM_CODES = {
   'rerun-failed': {},
   'training-rows-unavailable': {},
   'training-rows-changed': {},
+  'data-changed-while-read': {},
   'rerun-untrusted': {},
   'results-missing': {},
   'results-version': {},

@@ -7,7 +7,7 @@
 import { isUtf8 } from 'node:buffer';
 import { error, type Problem } from '../problems/problem.js';
 
-const SIGNATURES: [string, number[]][] = [
+export const SIGNATURES: [string, number[]][] = [
   ['gzip-compressed', [0x1f, 0x8b]],
   ['zip archive', [0x50, 0x4b, 0x03, 0x04]],
   ['bzip2-compressed', [0x42, 0x5a, 0x68]],

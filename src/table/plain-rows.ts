@@ -4,7 +4,6 @@
  */
 import { decodeSpan } from './grid.js';
 import { parseNumberBytes } from './number.js';
-import type { PlainTable } from './plain.js';
 
 const POW10 = [1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15];
 
@@ -15,14 +14,28 @@ export interface RowsPart {
   spans: Int32Array;
 }
 
-/** Rows [from, to) into numbers (at their own row positions); failed cells ascending. */
+/** Where each row's line lies: byte offsets of its start and its end (without the line break). */
+export interface RowBytes {
+  bytes: Uint8Array;
+  delimiter: number;
+  cols: number;
+  rowStart: ArrayLike<number>;
+  rowEnd: ArrayLike<number>;
+}
+
+/**
+ * Rows [from, to) into numbers (at their own row positions); failed cells ascending. `base`: the
+ * offset in the file of bytes[0], when `bytes` holds only a stretch of the file that covers these
+ * rows (the spans are then into `bytes`).
+ */
 export function extractRows(
-  t: PlainTable,
+  t: RowBytes,
   numberCols: readonly number[],
   textCols: readonly number[],
   from: number,
   to: number,
   numbers: Float64Array,
+  base = 0,
 ): RowsPart | undefined {
   const { bytes, delimiter, cols } = t;
   const rows = to - from;
@@ -38,8 +51,8 @@ export function extractRows(
   const failed: number[] = [];
   const spans = new Int32Array(rows * textCols.length * 2);
   for (let r = from; r < to; r++) {
-    let i = t.rowStart[r];
-    const end = t.rowEnd[r];
+    let i = t.rowStart[r] - base;
+    const end = t.rowEnd[r] - base;
     for (let c = 0; c < cols; c++) {
       const start = i;
       const j = numberSlot[c];

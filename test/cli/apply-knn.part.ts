@@ -135,7 +135,7 @@ t.test('a reference is followed only onto a table of its size and its row list',
   t.equal(saved['training-rows'].bits, Buffer.from([0b11010]).toString('base64'));
   const pipeline = { steps: [], columns: ['u', 'v'] };
   const back = restored('knn', { ...saved, pipeline }, { X, y, ids });
-  t.same(back.model, fitted, 'rows a, b, c put back in id order');
+  t.same(back.problem === undefined && back.model, fitted, 'rows a, b, c put back in id order');
   t.equal(restored('knn', { ...saved, pipeline }, { X: matrix(4, 2), y: y.subarray(0, 4), ids: ids.slice(0, 4) }).problem, 'table-rows');
   const wide = { ...saved, 'training-rows': { ...saved['training-rows'], bits: Buffer.from([0b11010, 0]).toString('base64') } };
   t.equal(restored('knn', { ...wide, pipeline }, { X, y, ids }).problem, 'bits', 'a row list of the wrong length');
@@ -145,4 +145,25 @@ t.test('a reference is followed only onto a table of its size and its row list',
   t.equal(restored('knn', { ...more, pipeline }, { X, y, ids }).problem, 'bits', 'a row list naming more rows than recorded');
   const other = restored('knn', { ...saved, pipeline }, { X, y: Int32Array.from([0, 0, 0, 1, 0]), ids });
   t.equal(other.problem, 'changed', 'another class for a row');
+});
+
+t.test('the run is read again only from the protocol it recorded, inside the review folders', async (t) => {
+  const d = tempDir();
+  mkdirSync(join(d, 'work', 'data'), { recursive: true });
+  for (const f of ['mean.yaml', 'data/bc.csv', 'data/new.csv']) copyFileSync(join(dir, f), join(d, 'work', f));
+  t.equal((await cli(['run', 'mean.yaml', '--out', 'res'], join(d, 'work'))).code, 0);
+  // Run from inside the results folder: the review folder is that folder, and the data lies above it.
+  const outside = await cli(['apply', '.', '../data/new.csv'], join(d, 'work', 'res'));
+  t.equal(outside.code, 1);
+  t.match(outside.stderr, "error: the knn fold models reference their training rows, and the run's files lie outside the review folders");
+  t.match(outside.stderr, 'or --allow-outside if you trust this results folder');
+  const allowed = await cli(['apply', '.', '../data/new.csv', '--allow-outside'], join(d, 'work', 'res'));
+  t.equal(allowed.code, 0, allowed.stderr);
+  t.equal(allowed.stdout, readFileSync(join(d, 'work', 'res', 'applied.csv'), 'utf8'));
+  // A manifest whose protocol is not the one models.json was made by (the manifest is signed, not hash-listed).
+  const manifestPath = join(d, 'work', 'res', 'manifest.json');
+  writeFileSync(manifestPath, readFileSync(manifestPath, 'utf8').replace('"k":7', '"k":9'));
+  const other = await cli(['apply', 'res', 'data/new.csv'], join(d, 'work'));
+  t.equal(other.code, 1);
+  t.match(other.stderr, 'does not record the protocol models.json was made by');
 });

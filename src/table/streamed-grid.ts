@@ -1,0 +1,209 @@
+/**
+ * The fast reader over a file that is never held whole: the rows are read in stretches of a few
+ * megabytes into one reused buffer (line-index.ts found where they lie), parsed by extractRows,
+ * and let go. A large table then costs its matrix, not its file's bytes too, and no fresh memory
+ * is touched for the file (here about 3 ms per megabyte). Reading is the caller's: `readInto`
+ * fills a buffer from a file offset. Cells asked for one at a time (the column probe, messages,
+ * the audit's other columns) come from a small cache of the last stretch read.
+ */
+import { charColumn, decodeSpan, type Extracted, type Grid } from './grid.js';
+import type { LineIndex } from './line-index.js';
+import { parseNumberBytes } from './number.js';
+import { extractRows, type RowBytes, type RowsPart } from './plain-rows.js';
+
+/** Fills into[0, length) with the file's bytes from `offset`. */
+export type ReadInto = (offset: number, into: Uint8Array, length: number) => void;
+
+/** Rows the other thread parsed: their text cells' bytes copied into `arena`, the spans into it. */
+export interface StretchRows extends RowsPart {
+  arena: Uint8Array;
+}
+
+/** The other thread's share: rows [from, to) into the shared numbers, read from the file itself. */
+export interface StretchHelper {
+  numbers(length: number): Float64Array;
+  start(
+    numberCols: readonly number[],
+    textCols: readonly number[],
+    from: number,
+    to: number,
+    numbers: Float64Array,
+  ): () => StretchRows | undefined;
+}
+
+/** Bytes per stretch while extracting. */
+export const STRETCH = 4 << 20;
+/** Bytes per stretch of the cache for single cells. */
+const CELL_STRETCH = 1 << 20;
+
+/**
+ * Calls `each` with the bytes of consecutive stretches of rows [from, to): whole rows, `limit`
+ * bytes at most unless one row alone is longer. `each` returns false to stop (the rows were
+ * ragged); the result is then false.
+ */
+export function forStretches(
+  ix: Pick<LineIndex, 'rowStart' | 'rowEnd'>,
+  from: number,
+  to: number,
+  limit: number,
+  readInto: ReadInto,
+  each: (bytes: Uint8Array, base: number, from: number, to: number) => boolean,
+): boolean {
+  let buffer = new Uint8Array(0);
+  for (let r0 = from; r0 < to; ) {
+    const r1 = stretchEnd(ix, r0, to, limit);
+    const base = ix.rowStart[r0];
+    const length = ix.rowEnd[r1 - 1] - base;
+    if (buffer.length < length) buffer = new Uint8Array(Math.max(length, Math.min(limit, lengthOf(ix, from, to))));
+    readInto(base, buffer, length);
+    if (!each(buffer.subarray(0, length), base, r0, r1)) return false;
+    r0 = r1;
+  }
+  return true;
+}
+
+function lengthOf(ix: Pick<LineIndex, 'rowStart' | 'rowEnd'>, from: number, to: number): number {
+  return to > from ? ix.rowEnd[to - 1] - ix.rowStart[from] : 0;
+}
+
+/** The end of the stretch that starts at row r0: whole rows within `limit` bytes, at least one. */
+function stretchEnd(ix: Pick<LineIndex, 'rowStart' | 'rowEnd'>, r0: number, to: number, limit: number): number {
+  const stop = ix.rowStart[r0] + limit;
+  let r1 = r0 + 1;
+  while (r1 < to && ix.rowEnd[r1] <= stop) r1++;
+  return r1;
+}
+
+/** `read.rows` serves the one pass over the rows, `read.cells` the cells asked for one at a time (also after the pass). */
+export function streamedGrid(ix: LineIndex, read: { rows: ReadInto; cells: ReadInto }, helper?: StretchHelper, limit = STRETCH): Grid {
+  const rowBytes = (bytes: Uint8Array): RowBytes => ({
+    bytes,
+    delimiter: ix.delimiter,
+    cols: ix.cols,
+    rowStart: ix.rowStart,
+    rowEnd: ix.rowEnd,
+  });
+  // The stretch holding the row last asked for, and the walk along that row (see plain.ts).
+  const cache = { from: 0, to: 0, base: 0, bytes: new Uint8Array(0) };
+  const walk = { row: -1, col: 0, at: 0 };
+  const line = (r: number) => {
+    if (r < cache.from || r >= cache.to) {
+      const to = stretchEnd(ix, r, ix.rows, Math.min(limit, CELL_STRETCH));
+      const length = ix.rowEnd[to - 1] - ix.rowStart[r];
+      if (cache.bytes.length < length) cache.bytes = new Uint8Array(Math.max(length, Math.min(limit, CELL_STRETCH)));
+      read.cells(ix.rowStart[r], cache.bytes, length);
+      Object.assign(cache, { from: r, to, base: ix.rowStart[r] });
+      walk.row = -1;
+    }
+    return cache;
+  };
+  const span = (r: number, c: number): [number, number] => {
+    const { bytes, base } = line(r);
+    const end = ix.rowEnd[r] - base;
+    if (r !== walk.row || c < walk.col) Object.assign(walk, { row: r, col: 0, at: ix.rowStart[r] - base });
+    for (; walk.col < c; walk.col++) {
+      const stop = bytes.indexOf(ix.delimiter, walk.at);
+      if (stop === -1 || stop >= end) {
+        walk.row = -1;
+        return [end, end];
+      } // past the row's last cell
+      walk.at = stop + 1;
+    }
+    const stop = bytes.indexOf(ix.delimiter, walk.at);
+    return [walk.at, stop === -1 || stop >= end ? end : stop];
+  };
+  return {
+    header: ix.header,
+    rows: ix.rows,
+    rowLine: Int32Array.from({ length: ix.rows }, (_, r) => r + 2),
+    text: (r, c) => {
+      const [s, e] = span(r, c);
+      return decodeSpan(cache.bytes, s, e);
+    },
+    number: (r, c) => {
+      const [s, e] = span(r, c);
+      return parseNumberBytes(cache.bytes, s, e);
+    },
+    position: (r, c) => {
+      const [s] = span(r, c);
+      return { line: r + 2, col: charColumn(cache.bytes, ix.rowStart[r] - cache.base, s).col };
+    },
+    extract(numberCols, textCols): Extracted | undefined {
+      const width = numberCols.length;
+      const numbers = helper ? helper.numbers(ix.rows * width) : new Float64Array(ix.rows * width);
+      // The other thread is running already (it hashed the file meanwhile): an even share.
+      const mid = helper ? ix.rows >> 1 : ix.rows;
+      const upper = helper?.start(numberCols, textCols, mid, ix.rows, numbers);
+      const texts = textCols.map(() => new Array<string>(ix.rows));
+      const failed: number[] = [];
+      const whole = forStretches(ix, 0, mid, limit, read.rows, (bytes, base, from, to) => {
+        const part = extractRows(rowBytes(bytes), numberCols, textCols, from, to, numbers, base);
+        if (!part) return false;
+        for (const f of part.failed) failed.push(f);
+        const { spans } = part;
+        for (let r = from, o = 0; r < to; r++)
+          for (let k = 0; k < textCols.length; k++, o += 2) texts[k][r] = decodeSpan(bytes, spans[o], spans[o + 1]);
+        return true;
+      });
+      const other = upper?.();
+      if (!whole || (upper && !other)) return undefined;
+      if (other) {
+        for (const f of other.failed) failed.push(f);
+        const { spans, arena } = other;
+        for (let r = mid, o = 0; r < ix.rows; r++)
+          for (let k = 0; k < textCols.length; k++, o += 2) texts[k][r] = decodeSpan(arena, spans[o], spans[o + 1]);
+      }
+      return { numbers, failed, texts };
+    },
+  };
+}
+
+/**
+ * The other thread's side of extract: rows [from, to) read in stretches and parsed into the
+ * shared numbers; each text cell's bytes are copied into one arena (the stretches' buffer is
+ * reused), its spans pointing there.
+ */
+export function extractStretches(
+  ix: Pick<LineIndex, 'rowStart' | 'rowEnd' | 'delimiter' | 'cols'>,
+  numberCols: readonly number[],
+  textCols: readonly number[],
+  from: number,
+  to: number,
+  numbers: Float64Array,
+  readInto: ReadInto,
+  limit = STRETCH,
+): StretchRows | undefined {
+  const failed: number[] = [];
+  const spans = new Int32Array((to - from) * textCols.length * 2);
+  let arena = new Uint8Array(1 << 16);
+  let used = 0;
+  const whole = forStretches(ix, from, to, limit, readInto, (bytes, base, r0, r1) => {
+    const part = extractRows(
+      { bytes, delimiter: ix.delimiter, cols: ix.cols, rowStart: ix.rowStart, rowEnd: ix.rowEnd },
+      numberCols,
+      textCols,
+      r0,
+      r1,
+      numbers,
+      base,
+    );
+    if (!part) return false;
+    for (const f of part.failed) failed.push(f);
+    const o0 = (r0 - from) * textCols.length * 2;
+    for (let o = 0; o < part.spans.length; o += 2) {
+      const s = part.spans[o];
+      const e = part.spans[o + 1];
+      if (used + e - s > arena.length) {
+        const grown = new Uint8Array(Math.max(arena.length * 2, used + e - s));
+        grown.set(arena.subarray(0, used));
+        arena = grown;
+      }
+      spans[o0 + o] = used;
+      // Cells are short (ids, labels): a loop beats a subarray and a copy call per cell.
+      for (let i = s; i < e; i++) arena[used++] = bytes[i];
+      spans[o0 + o + 1] = used;
+    }
+    return true;
+  });
+  return whole ? { failed, spans, arena: arena.subarray(0, used) } : undefined;
+}
