@@ -34,7 +34,7 @@ function pathReader(path: string, identity: FileIdentity, shownAs: string): Read
 
 /** The lines of the file, read in stretches; undefined when it is not a file for the fast reader. */
 export function indexLines(fd: number, size: number, delimiter: number, shownAs: string, limit = STRETCH): LineIndex | undefined {
-  const indexer = new LineIndexer(delimiter);
+  const indexer = new LineIndexer(delimiter, size, (n) => new Float64Array(new SharedArrayBuffer(n * 8)));
   const read = fdReader(fd, shownAs);
   let buffer = new Uint8Array(Math.min(limit, Math.max(size, 1)));
   for (let at = 0; at < size; ) {
@@ -48,7 +48,7 @@ export function indexLines(fd: number, size: number, delimiter: number, shownAs:
     }
     at += taken;
   }
-  return indexer.done((n) => new Float64Array(new SharedArrayBuffer(n * 8)));
+  return indexer.done();
 }
 
 /** What the other thread does for a streamed read: hash the file, and parse its share of the rows. */

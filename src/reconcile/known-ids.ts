@@ -4,8 +4,7 @@
  * error, never silently given another row's prediction. Pure.
  */
 import { error, type Problem } from '../problems/problem.js';
-import { featureDigests } from '../table/row-digest.js';
-import { TextBuilder } from '../table/csv-write.js';
+import { featureDigests, featureHashes } from '../table/row-digest.js';
 import type { NewRows } from '../table/new-rows.js';
 
 /** Where the training row of an id is, for the message: a file and line, or a description. */
@@ -68,42 +67,89 @@ export function knownRows(
 }
 
 /**
- * knownRows for a run's models.json, kept as two lists: a million-key object is slow to build and
- * to serialize, so modelsJson writes this one's JSON text itself (exactly as JSON.stringify would
- * write the object).
+ * knownRows for a run's models.json, kept as the ids and their rows' hashes: a million-key object
+ * is slow to build and to serialize, so this writes its JSON itself (exactly as JSON.stringify
+ * would write the object), as bytes, with no string per row.
  */
 export class KnownRowList {
   constructor(
     readonly ids: readonly string[],
-    readonly digests: readonly string[],
+    /** featureHashes of the rows: two words per id. */
+    readonly hashes: Uint32Array,
   ) {}
 
   static of(ids: readonly string[], X: NewRows['X'], features: readonly string[]): KnownRowList {
-    return new KnownRowList(ids, featureDigests(X, features));
+    return new KnownRowList(ids, featureHashes(X, features));
+  }
+
+  /** The object's JSON text. */
+  json(): string {
+    return Buffer.from(this.bytes()).toString('utf8');
   }
 
   /**
-   * The object's JSON: keys in a JavaScript object's own order — array indices ("0", "17"; at
-   * most 2³² − 2, no leading zero) ascending, then the other keys as inserted. Ids are unique.
+   * `before`, the object's JSON, then `after`, as UTF-8 in one buffer. Keys come in a JavaScript
+   * object's own order — array indices ("0", "17"; at most 2³² − 2, no leading zero) ascending,
+   * then the other keys as inserted. Ids are unique.
    */
-  json(): string {
+  bytes(before = '', after = ''): Uint8Array {
     const indices: number[] = [];
     const others: number[] = [];
-    for (let k = 0; k < this.ids.length; k++) (isArrayIndex(this.ids[k]) ? indices : others).push(k);
+    let idChars = 0;
+    for (let k = 0; k < this.ids.length; k++) {
+      (isArrayIndex(this.ids[k]) ? indices : others).push(k);
+      idChars += this.ids[k].length;
+    }
     indices.sort((a, b) => Number(this.ids[a]) - Number(this.ids[b]));
-    // Written into one buffer as it goes: a million member strings joined at the end made as much
-    // garbage again as the text itself.
-    const out = new TextBuilder();
-    out.add('{');
+    // Each member: "id":"16 hex digits" and a comma; ids that need escapes or are not ASCII grow it.
+    let out = Buffer.allocUnsafe(Buffer.byteLength(before) + Buffer.byteLength(after) + idChars + this.ids.length * 22 + 2);
+    let at = out.write(before, 0);
+    const room = (n: number) => {
+      if (at + n <= out.length) return;
+      const grown = Buffer.allocUnsafe(Math.max(out.length * 2, at + n));
+      out.copy(grown, 0, 0, at);
+      out = grown;
+    };
+    out[at++] = 0x7b; // {
     let first = true;
     for (const list of [indices, others])
       for (const k of list) {
-        out.add(`${first ? '' : ','}${JSON.stringify(this.ids[k])}:"${this.digests[k]}"`);
+        const id = this.ids[k];
+        room(id.length * 6 + 24);
+        if (!first) out[at++] = 0x2c;
         first = false;
+        if (plainAscii(id)) {
+          out[at++] = 0x22;
+          for (let i = 0; i < id.length; i++) out[at++] = id.charCodeAt(i);
+          out[at++] = 0x22;
+        } else at += out.write(JSON.stringify(id), at);
+        out[at++] = 0x3a; // :
+        out[at++] = 0x22;
+        at = hex8(out, at, this.hashes[2 * k]);
+        at = hex8(out, at, this.hashes[2 * k + 1]);
+        out[at++] = 0x22;
       }
-    out.add('}');
-    return out.text();
+    room(Buffer.byteLength(after) + 1);
+    out[at++] = 0x7d; // }
+    at += out.write(after, at);
+    return out.subarray(0, at);
   }
+}
+
+const HEX = Uint8Array.from('0123456789abcdef', (c) => c.charCodeAt(0));
+
+function hex8(out: Uint8Array, at: number, word: number): number {
+  for (let shift = 28; shift >= 0; shift -= 4) out[at++] = HEX[(word >>> shift) & 15];
+  return at;
+}
+
+/** Printable ASCII without a quote or a backslash: JSON writes it as it is. */
+function plainAscii(text: string): boolean {
+  for (let i = 0; i < text.length; i++) {
+    const c = text.charCodeAt(i);
+    if (c < 0x20 || c > 0x7e || c === 0x22 || c === 0x5c) return false;
+  }
+  return true;
 }
 
 function isArrayIndex(key: string): boolean {

@@ -50,13 +50,19 @@ export interface ModelsFile {
 }
 
 export function modelsJson(m: ModelsFile): string {
+  const bytes = modelsJsonBytes(m);
+  return Buffer.from(bytes.buffer, bytes.byteOffset, bytes.length).toString('utf8');
+}
+
+/** models.json as UTF-8: a run's million known rows go straight into the bytes (no text in between). */
+export function modelsJsonBytes(m: ModelsFile): Uint8Array {
   const known = m['known-rows'];
   const keys = Object.keys(m);
-  if (!(known instanceof KnownRowList)) return JSON.stringify(m) + '\n';
+  if (!(known instanceof KnownRowList)) return Buffer.from(JSON.stringify(m) + '\n');
   // The list's text is spliced in where JSON.stringify would have put the object: last.
-  if (keys[keys.length - 1] !== 'known-rows') return JSON.stringify({ ...m, 'known-rows': JSON.parse(known.json()) }) + '\n';
+  if (keys[keys.length - 1] !== 'known-rows') return Buffer.from(JSON.stringify({ ...m, 'known-rows': JSON.parse(known.json()) }) + '\n');
   const { 'known-rows': _, ...rest } = m;
-  return `${JSON.stringify(rest).slice(0, -1)},"known-rows":${known.json()}}\n`;
+  return known.bytes(`${JSON.stringify(rest).slice(0, -1)},"known-rows":`, '}\n');
 }
 
 /** 1 for each input feature that some model the rule uses reads (all of them for a model whose pipeline is not pruned). */

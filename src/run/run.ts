@@ -19,7 +19,7 @@ import type { GivenProbabilities } from '../reconcile/reconcile.js';
 import { heldOutFromOof } from '../reconcile/held-out.js';
 import { KnownRowList } from '../reconcile/known-ids.js';
 import { keepsRows, referenced } from '../reconcile/training-rows.js';
-import { MODELS_VERSION, modelsJson, type ModelsFile, type SavedModel } from '../reconcile/models-file.js';
+import { MODELS_VERSION, modelsJsonBytes, type ModelsFile, type SavedModel } from '../reconcile/models-file.js';
 import { idOrder } from '../split/key.js';
 import { takeInt } from '../table/matrix.js';
 import type { NewRows } from '../table/new-rows.js';
@@ -58,8 +58,8 @@ export interface RunOutput {
   results: Record<string, unknown>;
   assignmentCsv: string;
   assignmentSha256: string;
-  /** The text files (results.json, models.json, applied.csv), by name. */
-  files: Record<string, string>;
+  /** The other files by name: models.json as bytes (a million known rows go straight into them), the rest as text. */
+  files: { 'models.json': Uint8Array; 'results.json': string; 'applied.csv'?: string };
   /** predictions.csv, as bytes: the largest file, hashed and written without a text copy. */
   predictions: Uint8Array;
   /** SHA-256 of predictions.csv and of every file in `files`. */
@@ -110,7 +110,8 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
     refit: refit && savedModel(p.model.kind, refit, input.table.ids.length),
     'known-rows': KnownRowList.of(input.table.ids, input.table.X, input.table.featureNames),
   };
-  const files: Record<string, string> = { 'models.json': modelsJson(saved) };
+  const models = modelsJsonBytes(saved);
+  let appliedText: string | undefined;
   let applied: AppliedRow[] | undefined;
   let newRowScores: NewRowScores | undefined;
   if (input.newRows) {
@@ -140,11 +141,12 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
       if (hasErrors(s.problems)) throw new FoldsealError(s.problems, 1);
       newRowScores = s.scores;
     }
-    files['applied.csv'] = appliedCsv(applied, cv.classes, undefined, labels);
+    appliedText = appliedCsv(applied, cv.classes, undefined, labels);
   }
   const digests: Record<string, string> = {
     'predictions.csv': sha256Bytes(predictions),
-    ...Object.fromEntries(Object.entries(files).map(([name, text]) => [name, sha256Bytes(text)])),
+    'models.json': sha256Bytes(models),
+    ...(appliedText === undefined ? {} : { 'applied.csv': sha256Bytes(appliedText) }),
   };
   const assignmentSha256 = sha256Bytes(folds);
   const statistics = guardFit(input.protocolFile, () => runStatistics(p, input.table, input.assignment, cv, permuted));
@@ -164,7 +166,11 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
     refitSearch: refitted?.search,
     warnings: [...input.warnings, ...cv.warnings],
   });
-  files['results.json'] = JSON.stringify(results, null, 2) + '\n';
+  const files: RunOutput['files'] = {
+    'models.json': models,
+    ...(appliedText === undefined ? {} : { 'applied.csv': appliedText }),
+    'results.json': JSON.stringify(results, null, 2) + '\n',
+  };
   digests['results.json'] = sha256Bytes(files['results.json']);
   return { cv, results, assignmentCsv: folds, assignmentSha256, files, predictions, digests, applied, statistics, newRowScores };
 }

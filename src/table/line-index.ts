@@ -30,8 +30,8 @@ export interface LineIndex {
 }
 
 export class LineIndexer {
-  private starts = new Float64Array(1024);
-  private ends = new Float64Array(1024);
+  private starts: Float64Array<ArrayBufferLike>;
+  private ends: Float64Array<ArrayBufferLike>;
   private count = 0;
   private crs = 0;
   private strippedCrs = 0;
@@ -39,7 +39,19 @@ export class LineIndexer {
   private header: string[] | undefined;
   private lineStart = 0;
 
-  constructor(private readonly delimiter: number) {}
+  /**
+   * `size`: the file's size, to make room for about as many lines as the first stretch promises
+   * (growing a large array again and again touches fresh memory each time); `offsets` makes the
+   * arrays of offsets (shared memory, for another thread to read them without a copy).
+   */
+  constructor(
+    private readonly delimiter: number,
+    private readonly size = 0,
+    private readonly offsets: (length: number) => Float64Array<ArrayBufferLike> = (n) => new Float64Array(n),
+  ) {
+    this.starts = offsets(1024);
+    this.ends = offsets(1024);
+  }
 
   /**
    * `bytes` are the file's bytes from offset `at`, which is where the previous call's stretch
@@ -72,14 +84,12 @@ export class LineIndexer {
       this.lineStart = p + 1;
     }
     if (last && this.lineStart < at + taken) this.record(bytes, at, at + taken);
+    if (at === 0 && this.count > 0) this.reserve(Math.ceil((this.size / taken) * this.count * 1.1) + 64);
     return taken;
   }
 
-  /**
-   * The index once every stretch was taken; undefined when the file is not one for the fast
-   * reader. `offsets` makes the arrays of row offsets (shared memory, for another thread to read).
-   */
-  done(offsets: (length: number) => Float64Array<ArrayBufferLike> = (n) => new Float64Array(n)): LineIndex | undefined {
+  /** The index once every stretch was taken; undefined when the file is not one for the fast reader. */
+  done(): LineIndex | undefined {
     if (this.refused || this.crs !== this.strippedCrs) return undefined;
     let n = this.count;
     while (n > 0 && this.starts[n - 1] === this.ends[n - 1]) n--;
@@ -89,20 +99,27 @@ export class LineIndexer {
       rows: n - 1,
       cols: this.header.length,
       delimiter: this.delimiter,
-      rowStart: copied(this.starts.subarray(1, n), offsets),
-      rowEnd: copied(this.ends.subarray(1, n), offsets),
+      rowStart: this.starts.subarray(1, n),
+      rowEnd: this.ends.subarray(1, n),
     };
   }
 
   private record(bytes: Uint8Array, at: number, end: number): void {
-    if (this.count === this.starts.length) {
-      this.starts = grown(this.starts);
-      this.ends = grown(this.ends);
-    }
+    if (this.count === this.starts.length) this.reserve(this.starts.length * 2);
     if (this.count === 0) this.header = cells(bytes, this.lineStart - at, end - at, this.delimiter);
     this.starts[this.count] = this.lineStart;
     this.ends[this.count] = end;
     this.count++;
+  }
+
+  private reserve(length: number): void {
+    if (length <= this.starts.length) return;
+    const starts = this.offsets(length);
+    const ends = this.offsets(length);
+    starts.set(this.starts.subarray(0, this.count));
+    ends.set(this.ends.subarray(0, this.count));
+    this.starts = starts;
+    this.ends = ends;
   }
 
   private refuse(bytes: Uint8Array): number {
@@ -120,16 +137,4 @@ function cells(bytes: Uint8Array, start: number, end: number, delimiter: number)
     if (stop === end) return out;
     i = stop + 1;
   }
-}
-
-function copied(a: Float64Array, make: (length: number) => Float64Array<ArrayBufferLike>): Float64Array<ArrayBufferLike> {
-  const b = make(a.length);
-  b.set(a);
-  return b;
-}
-
-function grown(a: Float64Array<ArrayBuffer>): Float64Array<ArrayBuffer> {
-  const b = new Float64Array(a.length * 2);
-  b.set(a);
-  return b;
 }

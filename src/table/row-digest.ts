@@ -45,14 +45,13 @@ export function rowDigests(table: Table, rows?: readonly number[]): string[] {
   return out;
 }
 
-/** The digest of each row (or of rows[i] only, in that order). */
-export function featureDigests(X: Matrix, names: readonly string[], rows?: readonly number[]): string[] {
+/** The 64-bit hash of each row (or of rows[i] only, in that order): two 32-bit words per row, h1 then h2. */
+export function featureHashes(X: Matrix, names: readonly string[], rows?: readonly number[]): Uint32Array {
   const order = nameOrder(names);
   const values = new Float64Array(order.length);
   const words = new Uint32Array(values.buffer);
   const count = rows ? rows.length : X.rows;
-  const out: string[] = new Array(count);
-  const digest = Buffer.alloc(8);
+  const out = new Uint32Array(count * 2);
   for (let k = 0; k < count; k++) {
     const r = rows ? rows[k] : k;
     canonicalRow(X, r, order, values);
@@ -66,9 +65,21 @@ export function featureDigests(X: Matrix, names: readonly string[], rows?: reado
     }
     h1 = Math.imul(h1 ^ (h1 >>> 16), 0x85ebca6b);
     h2 = Math.imul(h2 ^ (h2 >>> 13), 0xc2b2ae35);
-    // 16 hex digits, h1 then h2 (Buffer's hex is several times faster than toString(16) and padding).
-    digest.writeUInt32BE(h1 >>> 0, 0);
-    digest.writeUInt32BE((h2 ^ (h2 >>> 16)) >>> 0, 4);
+    out[2 * k] = h1 >>> 0;
+    out[2 * k + 1] = (h2 ^ (h2 >>> 16)) >>> 0;
+  }
+  return out;
+}
+
+/** The digest of each row (or of rows[i] only, in that order): its hash as 16 hex digits. */
+export function featureDigests(X: Matrix, names: readonly string[], rows?: readonly number[]): string[] {
+  const hashes = featureHashes(X, names, rows);
+  const digest = Buffer.alloc(8);
+  const out: string[] = new Array(hashes.length / 2);
+  for (let k = 0; k < out.length; k++) {
+    // Buffer's hex is several times faster than toString(16) and padding.
+    digest.writeUInt32BE(hashes[2 * k], 0);
+    digest.writeUInt32BE(hashes[2 * k + 1], 4);
     out[k] = digest.toString('hex');
   }
   return out;

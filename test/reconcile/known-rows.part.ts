@@ -46,4 +46,13 @@ t.test('known rows from lists serialize as the object does', async (t) => {
       return KnownRowList.of(ids, m, ['v']).json() === JSON.stringify(knownRows(ids, m, ['v']));
     }),
   );
+  // Any UTF-16 text, lone surrogates and control characters included (JSON.stringify escapes
+  // them), between a text before and after: the bytes are that text's UTF-8.
+  fc.assert(
+    fc.property(fc.uniqueArray(fc.string({ unit: 'binary' }), { maxLength: 30 }), fc.string({ unit: 'grapheme' }), (ids, around) => {
+      const m = { rows: ids.length, cols: 1, data: Float64Array.from(ids, (_, i) => i / 3) };
+      const bytes = KnownRowList.of(ids, m, ['v']).bytes(around, `${around}\n`);
+      return Buffer.from(bytes).equals(Buffer.from(`${around}${JSON.stringify(knownRows(ids, m, ['v']))}${around}\n`));
+    }),
+  );
 });
