@@ -4,6 +4,8 @@
 //   b) 200 rows × 20,000 features, 2 classes  — 10 × repeated stratified 5-fold,
 //      standardize + top-100 f-test + gaussian-nb
 //   c) 1,000,000 rows × 20 features, 2 classes — stratified 5-fold, gaussian-nb
+//   d) 1,000,000 rows × 50 features, 2 classes — stratified 5-fold, gaussian-nb (the memory case;
+//      a 410 MB CSV, written only by `node bench/generate.mjs d`)
 import { createHash } from 'node:crypto';
 import { appendFileSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
@@ -31,6 +33,16 @@ function table(name, rows, cols, informative, seed) {
   return createHash('sha256').update(readFileSync(file)).digest('hex');
 }
 
+if (process.argv[2] === 'd') {
+  const d = table('d-1m-x50', 1_000_000, 50, 10, 4);
+  writeFileSync(
+    join(out, 'd.yaml'),
+    `foldseal: 1\nname: bench-d\ndata: {file: d-1m-x50.csv, sha256: "${d}", id: id, label: class}\nsplit: {rule: ` +
+      `stratified-kfold, folds: 5, seed: 4}\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy, roc-auc, log-loss]\n`,
+  );
+  console.log(`wrote ${join(out, 'd.yaml')}`);
+  process.exit(0);
+}
 const a = table('a-100k-x50', 100000, 50, 10, 1);
 writeFileSync(
   join(out, 'a.yaml'),

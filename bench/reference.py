@@ -19,7 +19,7 @@ y = df["class"].to_numpy()
 X = df.drop(columns=["id", "class"]).to_numpy(dtype=float)
 if case == "a":
     splitter, make = StratifiedKFold(n_splits=10, shuffle=True, random_state=1), lambda: GaussianNB()
-elif case == "c":
+elif case in ("c", "d"):
     splitter, make = StratifiedKFold(n_splits=5, shuffle=True, random_state=3), lambda: GaussianNB()
 else:
     splitter = RepeatedStratifiedKFold(n_splits=5, n_repeats=10, random_state=2)

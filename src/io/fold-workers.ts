@@ -10,7 +10,8 @@ import type { FoldThreadData } from './fold-jobs.js';
 import type { RowThread } from './row-helper.js';
 import { forcedThreads } from './threads.js';
 import { fromWorkerError, type WorkerError } from './worker-errors.js';
-import type { Protocol } from '../protocol/types.js';
+import type { ModelKind, Protocol } from '../protocol/types.js';
+import { models } from '../model/registry.js';
 import type { Assignment } from '../split/assignment.js';
 import type { Table } from '../table/table.js';
 import { assembleResult, atFold, crossValidate, planFolds, type CvHooks, type CvResult } from '../run/cross-validate.js';
@@ -20,16 +21,21 @@ import { columnMajor } from '../preprocess/by-columns.js';
 import { candidates } from '../protocol/grid.js';
 import { innerFits } from '../run/nested.js';
 
-/** Cells × folds below which thread start-up costs more than it saves. */
-const MIN_WORK = 2_000_000;
+/**
+ * The work (in the models' units, see ModelCapabilities.work: about 60 ns each) below which
+ * thread start-up costs more than it saves: a worker takes about 0.3 s to start and load its
+ * code here, so it pays from about twice that.
+ */
+const MIN_WORK = 10_000_000;
 
 /** `weight`: fits per fold (a tuned fold fits every candidate on every inner fold first). */
-export function threadCount(table: Table, folds: number, weight = 1): number {
+export function threadCount(table: Table, folds: number, weight = 1, kind?: ModelKind): number {
   const forced = forcedThreads();
   if (forced !== undefined) return forced;
   // Workers load compiled JavaScript; from TypeScript sources (tests) the serial loop runs.
   if (!import.meta.url.endsWith('.js')) return 1;
-  if (table.X.rows * table.X.cols * folds * weight < MIN_WORK) return 1;
+  const perFold = (kind && models[kind].capabilities?.work?.(table.X.rows, table.X.cols)) ?? table.X.rows * table.X.cols;
+  if (perFold * folds * weight < MIN_WORK) return 1;
   return Math.max(1, Math.min(availableParallelism(), folds, 8));
 }
 
@@ -59,7 +65,7 @@ export async function crossValidateInWorkers(
   { here = true, helper }: { here?: boolean; helper?: RowThread } = {},
 ): Promise<CvResult> {
   const plans = planFolds(p, table, a);
-  const threads = threadCount(table, plans.length, p.tune ? candidates(p.grid).length * innerFits(p.tune.split) : 1);
+  const threads = threadCount(table, plans.length, p.tune ? candidates(p.grid).length * innerFits(p.tune.split) : 1, p.model.kind);
   // Fits from class moments cost little per fold: no thread pays for its start-up there. Every
   // other strategy comes as jobs from the executor, which the workers run as they are.
   if (threads < 2 || !import.meta.url.endsWith('.js') || strategyFor(p) === 'moments') {

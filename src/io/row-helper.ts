@@ -16,7 +16,7 @@ import type { StreamTwin } from './streamed-read.js';
 import type { StretchRows } from '../table/streamed-grid.js';
 
 /** Files below this size read faster on one thread than a worker takes to start. */
-export const SHARED_READ_BYTES = 8 * 1024 * 1024;
+export const SHARED_READ_BYTES = 24 * 1024 * 1024;
 
 export interface RowThread extends RowHelper, ParquetTwin, StreamTwin {
   /** Starts SHA-256 of bytes on the other thread; the returned function waits for the hex digest. */

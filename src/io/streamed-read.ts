@@ -9,6 +9,7 @@
  * must find the same file — device, inode, size and modification time as at the first — or the
  * read stops with `data-changed-while-read`: the hash and the rows must come from one file.
  */
+import { createHash, type Hash } from 'node:crypto';
 import { closeSync, fstatSync } from 'node:fs';
 import type { Problem } from '../problems/problem.js';
 import { changedWhileRead, fdReader, type FileIdentity, openIdentified, reopen, sameFile } from './file-identity.js';
@@ -32,12 +33,22 @@ function pathReader(path: string, identity: FileIdentity, shownAs: string): Read
   };
 }
 
-/** The lines of the file, read in stretches; undefined when it is not a file for the fast reader. */
-export function indexLines(fd: number, size: number, delimiter: number, shownAs: string, limit = STRETCH): LineIndex | undefined {
+/**
+ * The lines of the file, read in stretches; undefined when it is not a file for the fast reader
+ * (the reading stops where that shows). `hash` is given every byte, in order; `accepted` is
+ * called once the first stretch passed (a file with a quoted header goes no further).
+ */
+export function indexLines(
+  fd: number,
+  size: number,
+  delimiter: number,
+  shownAs: string,
+  options: { hash?: Hash; accepted?: () => void; limit?: number } = {},
+): LineIndex | undefined {
   const indexer = new LineIndexer(delimiter, size, (n) => new Float64Array(new SharedArrayBuffer(n * 8)));
   const read = fdReader(fd, shownAs);
-  let buffer = new Uint8Array(Math.min(limit, Math.max(size, 1)));
-  for (let at = 0; at < size; ) {
+  let buffer = new Uint8Array(Math.min(options.limit ?? STRETCH, Math.max(size, 1)));
+  for (let at = 0; at < size && !indexer.refused; ) {
     const length = Math.min(buffer.length, size - at);
     read(at, buffer, length);
     const taken = indexer.take(buffer.subarray(0, length), at, at + length === size);
@@ -46,6 +57,9 @@ export function indexLines(fd: number, size: number, delimiter: number, shownAs:
       buffer = new Uint8Array(buffer.length * 2);
       continue;
     }
+    if (indexer.refused) break;
+    options.hash?.update(buffer.subarray(0, taken));
+    if (at === 0) options.accepted?.();
     at += taken;
   }
   return indexer.done();
@@ -69,7 +83,7 @@ export function readStreamed(
   delimiter: number,
   roles: DataRoles,
   locate: (role: keyof RolePaths, index?: number) => Problem['position'],
-  twin: StreamTwin,
+  twin: StreamTwin | undefined,
   beforeRows: () => void,
 ): StreamedTable | undefined {
   const opened = openIdentified(path);
@@ -80,20 +94,27 @@ export function readStreamed(
     const head = new Uint8Array(Math.min(8, identity.size));
     fdReader(fd, shownAs)(0, head, head.length);
     if (head.length === 0 || SIGNATURES.some(([, magic]) => magic.every((b, i) => head[i] === b))) return undefined;
-    const hash = twin.sha256File(path, identity);
-    const ix = indexLines(fd, identity.size, delimiter, shownAs);
+    // The other thread hashes the file meanwhile, once its first stretch shows it is one for this reader; alone, the index pass hashes it.
+    let waitHash: (() => string | undefined) | undefined;
+    const here = twin ? undefined : createHash('sha256');
+    const ix = indexLines(fd, identity.size, delimiter, shownAs, {
+      hash: here,
+      accepted: () => {
+        waitHash = twin?.sha256File(path, identity);
+      },
+    });
     if (!ix) {
-      hash();
+      waitHash?.();
       return undefined;
     }
     beforeRows();
     const grid = streamedGrid(
       ix,
       { rows: fdReader(fd, shownAs), cells: pathReader(path, identity, shownAs) },
-      twin.stretchHelper(path, identity, ix, shownAs),
+      twin?.stretchHelper(path, identity, ix, shownAs),
     );
     const built = buildTable(grid, roles, shownAs, locate);
-    const sha256 = hash();
+    const sha256 = here ? here.digest('hex') : waitHash!();
     if (sha256 === undefined || !sameFile(identityOf(fd), identity)) throw changedWhileRead(shownAs);
     if (built.ragged) return undefined;
     return {

@@ -31,6 +31,9 @@ export function shown(path: string): string {
   return rel && !rel.startsWith('..') ? rel : path;
 }
 
+/** Plain tables from this size on are read in stretches, never held whole (a fresh megabyte costs about 3 ms to touch here). */
+export const STREAMED_READ_BYTES = 1 << 20;
+
 /** The largest protocol file foldseal reads (a protocol is a page of YAML; anything larger is refused before parsing). */
 export const PROTOCOL_MAX_BYTES = 1 << 20;
 
@@ -124,7 +127,7 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
   const kept = rowThread !== undefined && options.keepThread?.(rowThread, p) === true;
   if (kept) rowThread.prepareFolds();
   try {
-    return await validateWithData({ ...parsed, protocol: p, source }, paths, at, rowThread, Boolean(options.describe));
+    return await validateWithData({ ...parsed, protocol: p, source }, paths, at, rowThread, Boolean(options.describe), size);
   } finally {
     if (!kept) await rowThread?.close();
   }
@@ -146,6 +149,7 @@ async function validateWithData(
   at: (docPath: (string | number)[]) => Partial<Problem>,
   rowThread: RowThread | undefined,
   describe: boolean,
+  size: number,
 ): Promise<ValidationReport> {
   const p = parsed.protocol;
   const source = parsed.source;
@@ -155,9 +159,10 @@ async function validateWithData(
       source,
       index === undefined ? ['data', role] : ['data', 'features', ...(Array.isArray(p.data.features) ? [] : ['exclude']), index],
     );
-  // A large plain table is read in stretches on two threads, never whole (undefined: read whole below).
+  // A large plain table is read in stretches (on two threads when it is larger still), never
+  // whole (undefined: not such a table, read whole below).
   const streamed =
-    rowThread && p.data.layout === 'samples-in-rows' && !p.data.samples && !p.data.where && !p.data.classes
+    (rowThread || size >= STREAMED_READ_BYTES) && p.data.layout === 'samples-in-rows' && !p.data.samples && !p.data.where && !p.data.classes
       ? readStreamed(
           paths.data,
           shown(paths.data),
@@ -166,7 +171,7 @@ async function validateWithData(
           roleLocate,
           rowThread,
           () => {
-            if (hashesIds(p.split) && p.data.id !== undefined)
+            if (rowThread && hashesIds(p.split) && p.data.id !== undefined)
               rowThread.expectKeys({ idColumn: p.data.id, seed: p.split.seed ?? 0, repeats: p.split.repeats });
           },
         )

@@ -56,6 +56,8 @@ export const knn: ModelImpl<KnnParams> = {
   },
   capabilities: {
     cheapFit: true,
+    // Every test row against every training row: one fold of 20,000 × 30 took 0.35 s (6 M units).
+    work: (rows, cols) => (rows * rows * cols) / 2000,
     keepsRows: {
       without: (p) => ({ k: p.k, classCount: p.classCount }),
       with: (rest, X, y) => knn.fit(X, y, { k: rest.k }, { classCount: rest.classCount as number }),

@@ -80,6 +80,11 @@ export interface ModelCapabilities<P> {
   /** Remarks on a fitted model worth a warning (e.g. every distance tied). */
   notes?(params: P): string[];
   /**
+   * The work of one fold on a table of `rows` × `cols`, in units of about 60 ns (the default,
+   * rows × cols, fits logistic regression): whether fold threads pay for their start-up.
+   */
+  work?(rows: number, cols: number): number;
+  /**
    * The parameters hold the training rows themselves (after the fold's pipeline) and their
    * classes. models.json then records which rows of the run's table they were instead of a
    * copy (the data file's hash seals them; see reconcile/training-rows.ts), and `apply` puts

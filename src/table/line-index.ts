@@ -35,7 +35,8 @@ export class LineIndexer {
   private count = 0;
   private crs = 0;
   private strippedCrs = 0;
-  private refused = false;
+  /** The file is not one for the fast reader (nothing more needs to be read). */
+  refused = false;
   private header: string[] | undefined;
   private lineStart = 0;
 

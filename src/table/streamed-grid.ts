@@ -32,7 +32,7 @@ export interface StretchHelper {
 }
 
 /** Bytes per stretch while extracting. */
-export const STRETCH = 4 << 20;
+export const STRETCH = 1 << 20;
 /** Bytes per stretch of the cache for single cells. */
 const CELL_STRETCH = 1 << 20;
 
