@@ -9,6 +9,8 @@
  */
 import { mkdir, mkdtemp, open, readdir, readFile, rename, rm, rmdir, lstat, unlink, writeFile } from 'node:fs/promises';
 import { basename, dirname, join } from 'node:path';
+import { createHash } from 'node:crypto';
+import { closeSync, fsyncSync, openSync, writeSync } from 'node:fs';
 import { error, FoldsealError } from '../problems/problem.js';
 import { REPORT_MARK } from '../report/mark.js';
 import { writeProblem } from './output-file.js';
@@ -25,6 +27,24 @@ export async function writeOutputDir(
   force: boolean,
   shownAs: string,
 ): Promise<void> {
+  const out = await openOutputDir(dir, force, shownAs);
+  await out.commit(files);
+}
+
+/**
+ * A results folder being written: files streamed in as they are made, the rest and the swap at
+ * `commit`; `abort` leaves everything as it was. Exactly one of the two must be called (the
+ * folder's lock is held until then).
+ */
+export interface OutputDir {
+  /** Writes the file from its pieces as they come (synchronously), returning its SHA-256. */
+  stream(name: string, pieces: Iterable<Uint8Array>): string;
+  commit(files: Record<string, string | Uint8Array>): Promise<void>;
+  abort(): Promise<void>;
+}
+
+/** Checks the folder may be written (see the top of this file), takes its lock, and starts the new folder beside it. */
+export async function openOutputDir(dir: string, force: boolean, shownAs: string): Promise<OutputDir> {
   const parent = dirname(dir);
   const name = basename(dir);
   try {
@@ -33,9 +53,11 @@ export async function writeOutputDir(
     throw new FoldsealError(writeProblem(e as NodeJS.ErrnoException, shown(parent, shownAs, dir)), 2);
   }
   const release = await takeLock(parent, name, shownAs);
+  let state: FolderState;
+  let temp: string;
   try {
     await recover(parent, name, dir);
-    const state = await folderState(dir);
+    state = await folderState(dir);
     if (state.kind === 'foreign') {
       throw new FoldsealError(
         error(
@@ -56,35 +78,73 @@ export async function writeOutputDir(
         2,
       );
     }
-    let temp: string;
     try {
       temp = await mkdtemp(join(parent, `.${name}${NEW}`));
     } catch (e) {
       throw new FoldsealError(writeProblem(e as NodeJS.ErrnoException, shownAs), 2);
     }
-    try {
-      for (const [file, content] of Object.entries(files)) await writeDurably(join(temp, file), content);
-      if (state.kind === 'ours') {
-        const aside = await mkdtemp(join(parent, `.${name}${OLD}`));
-        await rename(dir, join(aside, 'previous'));
-        await rename(temp, dir);
-        await rm(aside, { recursive: true, force: true });
-      } else {
-        if (state.kind === 'empty') await rmdir(dir);
-        await rename(temp, dir);
-      }
-    } catch (e) {
-      await rm(temp, { recursive: true, force: true });
-      if (e instanceof FoldsealError) throw e;
-      throw new FoldsealError(writeProblem(e as NodeJS.ErrnoException, shownAs), 2);
-    }
-  } finally {
+  } catch (e) {
     await release();
+    throw e;
   }
+  // Once committed or aborted, the lock is no longer ours: a second abort does nothing.
+  let closed = false;
+  const abort = async () => {
+    if (closed) return;
+    closed = true;
+    await rm(temp, { recursive: true, force: true });
+    await release();
+  };
+  return {
+    stream(file, pieces) {
+      try {
+        return streamDurably(join(temp, file), pieces);
+      } catch (e) {
+        throw new FoldsealError(writeProblem(e as NodeJS.ErrnoException, shownAs), 2);
+      }
+    },
+    abort,
+    async commit(files) {
+      try {
+        for (const [file, content] of Object.entries(files)) await writeDurably(join(temp, file), content);
+        if (state.kind === 'ours') {
+          const aside = await mkdtemp(join(parent, `.${name}${OLD}`));
+          await rename(dir, join(aside, 'previous'));
+          await rename(temp, dir);
+          await rm(aside, { recursive: true, force: true });
+        } else {
+          if (state.kind === 'empty') await rmdir(dir);
+          await rename(temp, dir);
+        }
+      } catch (e) {
+        await abort();
+        if (e instanceof FoldsealError) throw e;
+        throw new FoldsealError(writeProblem(e as NodeJS.ErrnoException, shownAs), 2);
+      }
+      closed = true;
+      await release();
+    },
+  };
 }
 
 function shown(path: string, shownDir: string, dir: string): string {
   return path === dirname(dir) ? dirname(shownDir) || '.' : path;
+}
+
+/** A new file written piece by piece and synced, hashed as it goes. */
+function streamDurably(path: string, pieces: Iterable<Uint8Array>): string {
+  const fd = openSync(path, 'wx');
+  try {
+    const hash = createHash('sha256');
+    for (const piece of pieces) {
+      hash.update(piece);
+      for (let done = 0; done < piece.length; ) done += writeSync(fd, piece, done, piece.length - done);
+    }
+    fsyncSync(fd);
+    return hash.digest('hex');
+  } finally {
+    closeSync(fd);
+  }
 }
 
 async function writeDurably(path: string, content: string | Uint8Array): Promise<void> {

@@ -2,7 +2,7 @@
 import { hasErrors } from '../problems/problem.js';
 import { assembleResult, planFolds, type CvHooks } from '../run/cross-validate.js';
 import type { FoldFit } from '../run/fit-fold.js';
-import { asUserError, refitRows, runProtocol, type RunInput, type RunOutput } from '../run/run.js';
+import { asUserError, type PredictionSink, refitRows, runProtocol, type RunInput, type RunOutput } from '../run/run.js';
 import { crossValidateInWorkers } from './fold-workers.js';
 import type { RowThread } from './row-helper.js';
 import type { Protocol } from '../protocol/types.js';
@@ -48,6 +48,11 @@ export interface ProduceOptions {
   jobs?: number;
   /** Where a command model's program runs and its files lie (default: the protocol's folder). */
   commandFolder?: string;
+  /**
+   * Called once the folds are fitted, right before the outputs are made: where predictions.csv
+   * goes as it is made (`run` opens its results folder here, so a protocol that fails leaves no trace).
+   */
+  predictionSink?: (input: RunInput) => Promise<PredictionSink>;
 }
 
 export async function produceRun(protocolPath: string, options: ProduceOptions = {}): Promise<Produced> {
@@ -97,7 +102,7 @@ async function produce(protocolPath: string, options: ProduceOptions, kept: { th
   if (input.protocol.model.kind === 'command') {
     const external = await runCommandModel(protocolPath, report, input, options);
     input.external = external.external;
-    const out = runProtocol(input, options.hooks, external.cv, undefined);
+    const out = runProtocol(input, options.hooks, external.cv, undefined, await options.predictionSink?.(input));
     return { report, input, out, audit };
   }
   const cv = merged
@@ -112,7 +117,7 @@ async function produce(protocolPath: string, options: ProduceOptions, kept: { th
     : await permutedScoresInWorkers(input.protocol, input.table, input.assignment, options.onPermutation).catch((e: unknown) => {
         throw asUserError(e, input.protocolFile);
       });
-  const out = runProtocol(input, options.hooks, cv, permuted);
+  const out = runProtocol(input, options.hooks, cv, permuted, await options.predictionSink?.(input));
   return { report, input, out, audit };
 }
 

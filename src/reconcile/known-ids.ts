@@ -115,14 +115,15 @@ export class KnownRowList {
     for (const list of [indices, others])
       for (const k of list) {
         const id = this.ids[k];
-        room(id.length * 6 + 24);
+        const escaped = plainAscii(id) ? undefined : JSON.stringify(id);
+        room((escaped === undefined ? id.length + 2 : Buffer.byteLength(escaped)) + 21);
         if (!first) out[at++] = 0x2c;
         first = false;
-        if (plainAscii(id)) {
+        if (escaped === undefined) {
           out[at++] = 0x22;
           for (let i = 0; i < id.length; i++) out[at++] = id.charCodeAt(i);
           out[at++] = 0x22;
-        } else at += out.write(JSON.stringify(id), at);
+        } else at += out.write(escaped, at);
         out[at++] = 0x3a; // :
         out[at++] = 0x22;
         at = hex8(out, at, this.hashes[2 * k]);

@@ -9,28 +9,59 @@ import type { Table } from '../table/table.js';
 import type { CvResult } from './cross-validate.js';
 
 export function predictionsCsv(cv: CvResult, table: Table): Uint8Array {
-  const k = cv.classes.length;
   const out = new TextBuilder();
-  out.add(csvLine(['id', 'repeat', 'fold', 'truth', 'predicted', ...cv.classes.map((c) => `p_${c}`)]));
+  let total = 0;
+  for (const tested of cv.testedIn) for (let i = 0; i < tested.length; i++) if (tested[i] !== 0) total++;
+  let sized = false;
+  for (const lines of predictionLines(cv, table)) {
+    out.add(lines);
+    // The first lines tell the size of the rest: room for all of it at once (each fresh buffer is slow to touch).
+    if (!sized && total > 2000) {
+      sized = true;
+      const count = lines.split('\n').length - 1;
+      out.reserve(Math.ceil((lines.length / count) * total * 1.1) + 65536);
+    }
+  }
+  return out.utf8();
+}
+
+/**
+ * predictions.csv in pieces of about `piece` bytes, for a file written as it is made: each piece
+ * is a view of one reused buffer, valid until the next is asked for.
+ */
+export function* predictionsPieces(cv: CvResult, table: Table, piece = 1 << 20): Generator<Uint8Array> {
+  const out = new TextBuilder(piece + 65536);
+  for (const lines of predictionLines(cv, table)) {
+    out.add(lines);
+    if (out.size >= piece) yield out.drain();
+  }
+  yield out.drain();
+}
+
+/** The file's text, a few thousand lines at a time. */
+function* predictionLines(cv: CvResult, table: Table): Generator<string> {
+  const k = cv.classes.length;
   const order = idOrder(table.ids);
   const quotedClass = cv.classes.map(csvCell);
   const quotedIds = csvCells(table.ids);
-  let lines = 0;
-  let total = 0;
-  for (const tested of cv.testedIn) for (let i = 0; i < tested.length; i++) if (tested[i] !== 0) total++;
-  cv.oof.forEach((proba, r) => {
+  let pending = csvLine(['id', 'repeat', 'fold', 'truth', 'predicted', ...cv.classes.map((c) => `p_${c}`)]);
+  for (let r = 0; r < cv.oof.length; r++) {
+    const proba = cv.oof[r];
     const predicted = predictedClasses(proba, k);
     const repeat = `,${r + 1},`;
+    const testedIn = cv.testedIn[r];
     for (let i = 0; i < order.length; i++) {
       const row = order[i];
-      const fold = cv.testedIn[r][row];
+      const fold = testedIn[row];
       if (fold === 0) continue;
       let line = quotedIds[row] + repeat + fold + ',' + quotedClass[table.y[row]] + ',' + quotedClass[predicted[row]];
       for (let c = 0; c < k; c++) line += ',' + proba[row * k + c];
-      out.add(line + '\n');
-      // The first thousand lines tell the size of the rest: room for all of it at once.
-      if (++lines === 1000 && total > 2000) out.reserve(Math.ceil((out.size / lines) * total * 1.1) + 65536);
+      pending += line + '\n';
+      if (pending.length >= 1 << 16) {
+        yield pending;
+        pending = '';
+      }
     }
-  });
-  return out.utf8();
+  }
+  yield pending;
 }

@@ -25,7 +25,7 @@ import { takeInt } from '../table/matrix.js';
 import type { NewRows } from '../table/new-rows.js';
 import { knownColumns } from '../protocol/known-columns.js';
 import { crossValidate, type CvHooks, type CvResult } from './cross-validate.js';
-import { predictionsCsv } from './predictions.js';
+import { predictionsCsv, predictionsPieces } from './predictions.js';
 import { buildResults } from './results.js';
 import { runStatistics, type RunStatistics } from './statistics.js';
 
@@ -60,20 +60,31 @@ export interface RunOutput {
   assignmentSha256: string;
   /** The other files by name: models.json as bytes (a million known rows go straight into them), the rest as text. */
   files: { 'models.json': Uint8Array; 'results.json': string; 'applied.csv'?: string };
-  /** predictions.csv, as bytes: the largest file, hashed and written without a text copy. */
-  predictions: Uint8Array;
+  /** predictions.csv, as bytes: the largest file, hashed and written without a text copy (absent when a sink took it). */
+  predictions?: Uint8Array;
   /** SHA-256 of predictions.csv and of every file in `files`. */
   digests: Record<string, string>;
 }
+
+/** Takes predictions.csv piece by piece as it is made (each piece valid only until the next) and returns its SHA-256. */
+export type PredictionSink = (pieces: Iterable<Uint8Array>) => string;
 
 /**
  * `fitted` is a cross-validation already done elsewhere (on worker threads), `permuted` the
  * permutation test's permuted scores likewise; without them they are computed here.
  */
-export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvResult, permuted?: Float64Array): RunOutput {
+export function runProtocol(
+  input: RunInput,
+  hooks: CvHooks = {},
+  fitted?: CvResult,
+  permuted?: Float64Array,
+  sink?: PredictionSink,
+): RunOutput {
   const cv: CvResult = fitted ?? guardFit(input.protocolFile, () => crossValidate(input.protocol, input.table, input.assignment, hooks));
   const folds = assignmentCsv(input.assignment);
-  const predictions = predictionsCsv(cv, input.table);
+  // Written as it is made when the shell takes it (a million lines never held whole), else kept.
+  const predictions = sink ? undefined : predictionsCsv(cv, input.table);
+  const predictionsSha256 = sink ? sink(predictionsPieces(cv, input.table)) : sha256Bytes(predictions!);
   const p = input.protocol;
   const protocolSha256 = canonicalSha256(input.raw);
   const refitted =
@@ -144,7 +155,7 @@ export function runProtocol(input: RunInput, hooks: CvHooks = {}, fitted?: CvRes
     appliedText = appliedCsv(applied, cv.classes, undefined, labels);
   }
   const digests: Record<string, string> = {
-    'predictions.csv': sha256Bytes(predictions),
+    'predictions.csv': predictionsSha256,
     'models.json': sha256Bytes(models),
     ...(appliedText === undefined ? {} : { 'applied.csv': sha256Bytes(appliedText) }),
   };

@@ -26,9 +26,13 @@ export function csvLine(cells: readonly string[]): string {
  * costs more than the line itself.
  */
 export class TextBuilder {
-  private bytes = Buffer.allocUnsafe(1 << 20);
+  private bytes: Buffer;
   private length = 0;
   private pending = '';
+
+  constructor(capacity = 1 << 20) {
+    this.bytes = Buffer.allocUnsafe(capacity);
+  }
 
   add(text: string): void {
     this.pending += text;
@@ -60,6 +64,13 @@ export class TextBuilder {
   utf8(): Uint8Array {
     this.flush();
     return this.bytes.subarray(0, this.length);
+  }
+
+  /** The bytes so far, as a view of the buffer; the builder then starts over in the same buffer (the view is valid until the next add). */
+  drain(): Uint8Array {
+    const bytes = this.utf8();
+    this.length = 0;
+    return bytes;
   }
 
   private flush(): void {

@@ -7,9 +7,9 @@ import { spawn, spawnSync } from 'node:child_process';
 import { cpSync, existsSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import t from 'tap';
-import { bin, cli, tempDir } from '../helpers.js';
+import { bin, cli, sha256, tempDir } from '../helpers.js';
 import { complete, csv, project, protocolFor } from './trust-fixtures.js';
-import { manifestListing } from '../../src/io/output-dir.js';
+import { manifestListing, openOutputDir } from '../../src/io/output-dir.js';
 
 t.test('run --out . --force refuses a folder foldseal did not write; nothing is deleted', async (t) => {
   const dir = project();
@@ -253,4 +253,34 @@ t.test("leftover cleaning touches only what foldseal leaves: a user's entries un
   t.equal(readFileSync(join(dir, '.res.foldseal-new-mine', 'sub', 'notes.txt'), 'utf8'), 'mine\n');
   t.ok(existsSync(join(dir, '.res.foldseal-old-file')));
   t.equal(readFileSync(join(dir, '.res.foldseal-old-other', 'thesis.tex'), 'utf8'), 'mine\n');
+});
+
+t.test('predictions.csv is written into the new folder as it is made; a failure leaves nothing behind', async (t) => {
+  const dir = project();
+  // A protocol that fails validation: the results folder is never opened.
+  writeFileSync(join(dir, 'bad.yaml'), readFileSync(join(dir, 'demo.yaml'), 'utf8').replace('folds: 5', 'folds: 500'));
+  const bad = await cli(['run', 'bad.yaml', '--out', 'out/res'], dir);
+  t.equal(bad.code, 1);
+  t.notOk(existsSync(join(dir, 'out')), 'no folder was made for a run that could not start');
+  const out = await openOutputDir(join(dir, 'res'), false, 'res');
+  const text = 'id,repeat\na,1\n'.repeat(1000);
+  const pieces = [Buffer.from(text.slice(0, 7)), Buffer.from(text.slice(7))];
+  t.equal(out.stream('predictions.csv', pieces), sha256(text), 'hashed as written');
+  t.ok(existsSync(join(dir, '.res.foldseal-lock')), 'the folder is locked while it is written');
+  await out.abort();
+  await out.abort();
+  t.same(
+    readdirSync(dir).filter((e) => e.startsWith('.res') || e === 'res'),
+    [],
+    'aborted: no folder, no new folder, no lock',
+  );
+  const again = await openOutputDir(join(dir, 'res'), false, 'res');
+  again.stream('predictions.csv', [Buffer.from(text)]);
+  await again.commit({ 'manifest.json': '{}\n' });
+  t.equal(readFileSync(join(dir, 'res', 'predictions.csv'), 'utf8'), text);
+  // After the commit the lock is another writer's to take: a late abort must not delete theirs.
+  writeFileSync(join(dir, '.res.foldseal-lock'), '1\n');
+  await again.abort();
+  t.ok(existsSync(join(dir, '.res.foldseal-lock')), "an abort after the commit leaves another writer's lock alone");
+  t.ok(existsSync(join(dir, 'res', 'predictions.csv')));
 });

@@ -45,7 +45,7 @@ async function runOn(file: string, text: string, rule: string) {
   delete results.files['models.json'];
   const models = JSON.parse(Buffer.from(out.files['models.json']).toString('utf8'));
   delete models['protocol-sha256'];
-  return { folds: out.assignmentCsv, predictions: Buffer.from(out.predictions).toString('utf8'), results, models };
+  return { folds: out.assignmentCsv, predictions: Buffer.from(out.predictions!).toString('utf8'), results, models };
 }
 
 for (const rule of [

@@ -39,7 +39,8 @@ async function loadSide(path: string, args: CompareArgs, problems: Problem[]): P
   if (report.unreadable) throw new FoldsealError(report.problems, 2);
   if (!out) return undefined;
   problems.push(...out.cv.warnings);
-  return sideFromResults(shown(resolve(path)), out.results, out.predictions);
+  // Run in memory without a sink: its predictions.csv is kept.
+  return sideFromResults(shown(resolve(path)), out.results, out.predictions!);
 }
 
 export async function compareCommand(args: CompareArgs, io: CommandIo): Promise<ExitCode> {

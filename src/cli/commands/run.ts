@@ -1,6 +1,6 @@
 import { dirname, join, relative, resolve } from 'node:path';
 import { writeOutputFile } from '../../io/output-file.js';
-import { writeOutputDir } from '../../io/output-dir.js';
+import { openOutputDir, type OutputDir } from '../../io/output-dir.js';
 import { produceRun, type ProduceOptions } from '../../io/produce-run.js';
 import { auditLine } from '../audit-text.js';
 import { MANIFEST_SCHEMA, schemaValidator } from '../../io/schemas.js';
@@ -47,7 +47,14 @@ export async function runCommand(args: RunArgs, io: CommandIo, merged?: ProduceO
       lastShown = now;
     }
   };
-  const { report, input, out, audit } = await produceRun(args.protocol, {
+  // The results folder is opened once the folds are fitted, and predictions.csv written into it as it is made.
+  let folder: { dir: string; out: OutputDir } | undefined;
+  const produced = await produceRun(args.protocol, {
+    predictionSink: async (input) => {
+      const dir = resolve(args.out ?? `results/${input.protocol.name}`);
+      folder = { dir, out: await openOutputDir(dir, Boolean(args.force), shown(dir)) };
+      return (pieces) => folder!.out.stream('predictions.csv', pieces);
+    },
     merged,
     audit: true,
     refit: args.refit,
@@ -57,13 +64,32 @@ export async function runCommand(args: RunArgs, io: CommandIo, merged?: ProduceO
     repoRules: true,
     allowCommands: args.allowCommands,
     jobs: args.jobs,
+  }).catch(async (e: unknown) => {
+    await folder?.out.abort();
+    throw e;
   });
-  if (lastShown) io.err('\r\x1b[K');
+  try {
+    return await finish(args, io, produced, folder, key, lastShown > 0);
+  } catch (e) {
+    await folder?.out.abort();
+    throw e;
+  }
+}
+
+async function finish(
+  args: RunArgs,
+  io: CommandIo,
+  { report, input, out, audit }: Awaited<ReturnType<typeof produceRun>>,
+  folder: { dir: string; out: OutputDir } | undefined,
+  key: Awaited<ReturnType<typeof import('../../io/keys.js').readSigningKey>> | undefined,
+  progressShown: boolean,
+): Promise<ExitCode> {
+  if (progressShown) io.err('\r\x1b[K');
   reportProblems(io, report.problems, 'text');
   if (report.unreadable) return 2;
-  if (!input || !out) return 1;
+  if (!input || !out || !folder) return 1;
   reportProblems(io, out.cv.warnings, 'text');
-  const dir = resolve(args.out ?? `results/${input.protocol.name}`);
+  const dir = folder.dir;
   const { text } = manifestForRun(input, out, {
     tool: toolInfo(),
     created: new Date().toISOString(),
@@ -75,7 +101,7 @@ export async function runCommand(args: RunArgs, io: CommandIo, merged?: ProduceO
     validate: schemaValidator(MANIFEST_SCHEMA),
     textOnly: true,
   });
-  const written: Record<string, string | Uint8Array> = { 'predictions.csv': out.predictions, ...out.files, 'manifest.json': text };
+  const written: Record<string, string | Uint8Array> = { ...out.files, 'manifest.json': text };
   // An SSH key signs the manifest's bytes in manifest.json.sig, the file `ssh-keygen -Y verify` reads.
   if (key?.kind === 'ssh') {
     const { encodeSshsig, MANIFEST_NAMESPACE, sshsigSignedData } = await import('../../manifest/ssh.js');
@@ -87,7 +113,9 @@ export async function runCommand(args: RunArgs, io: CommandIo, merged?: ProduceO
       await key.sign(sshsigSignedData(MANIFEST_NAMESPACE, 'sha512', bytes)),
     );
   }
-  await writeOutputDir(dir, written, Boolean(args.force), shown(dir));
+  const committing = folder.out;
+  folder = undefined;
+  await committing.commit(written);
   io.out(cvTables(out.cv) + tunedLines(input.protocol, out) + statisticsLines(out.statistics));
   if (out.applied) io.out(`\nnew rows (reconcile: ${input.protocol.reconcile.rule}):\n` + disagreementReport(out.applied, out.cv.classes));
   if (out.newRowScores) io.out(newRowScoreLines(out.newRowScores, input.protocol.data.label));
@@ -99,7 +127,7 @@ export async function runCommand(args: RunArgs, io: CommandIo, merged?: ProduceO
     written['report.html'] = built.html;
   }
   io.out(
-    `wrote ${Object.keys(written).sort().join(', ')} to ` +
+    `wrote ${[...Object.keys(written), 'predictions.csv'].sort().join(', ')} to ` +
       `${shown(dir)}${key?.kind === 'ssh' ? ` (manifest signed with SSH key ${key.describe})` : key ? ' (manifest signed)' : ''}\n`,
   );
   return 0;

@@ -1,7 +1,7 @@
 import { existsSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
 import { error, FoldsealError, hasErrors, warning, type Problem } from '../../problems/problem.js';
-import { sha256Bytes, sha256File } from '../../io/hash.js';
+import { sha256File } from '../../io/hash.js';
 import { fileProblem, readRegularText } from '../../io/files.js';
 import { localizeProtocol, reviewPolicy, withProtocolCopy } from '../../io/recorded-protocol.js';
 import { selfCheck } from '../../manifest/self-check.js';
@@ -229,7 +229,9 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
     fresh.protocol.sha256 = protocolSha;
     const differences = compareRuns(m, fresh, doc.verify?.tolerance ?? 0);
     const recordedPredictions = await readFileOr(join(manifestDir, 'predictions.csv'), '');
-    const freshPredictions = Buffer.from(out.predictions.buffer, out.predictions.byteOffset, out.predictions.byteLength).toString('utf8');
+    // No sink was given: the re-run's predictions.csv is in memory.
+    const bytes = out.predictions!;
+    const freshPredictions = Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength).toString('utf8');
     if (recordedPredictions && recordedPredictions !== freshPredictions) {
       const d = differences.find((x) => x.message.startsWith('predictions.csv'));
       if (d) d.message += `; ${lineDifferences(recordedPredictions, freshPredictions)} lines differ`;
@@ -237,7 +239,7 @@ async function rerunManifest(m: any, args: VerifyArgs, problems: Problem[]): Pro
     const n = (m.split.assignment as unknown[]).length;
     const lines = [
       `rerun: ${n} assignments, ${countMetrics(m.results)} metric values and ` +
-        `${sha256Bytes(out.predictions) === m.files['predictions.csv'] ? 'identical' : 'changed'} predictions ` +
+        `${out.digests['predictions.csv'] === m.files['predictions.csv'] ? 'identical' : 'changed'} predictions ` +
         `compared (tolerance ${doc.verify?.tolerance ?? 0})`,
     ];
     return { differences, lines };
