@@ -83,11 +83,15 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
   let early:
     | { seed: number; from: number; to: number; out: Uint8Array; wait: () => unknown; parsed: boolean; ids?: readonly string[] }
     | undefined;
-  /** With a plan (expectKeys), the other thread derives the keys of the ids it parses right after parsing them. */
+  /**
+   * With a plan (expectKeys), the other thread derives the keys of the ids it parses right after
+   * parsing them: rows [from, to), `from` known only once they are parsed when the threads claim
+   * stretches (the room is then for every row; only what is written is touched).
+   */
   const keysAfterRows = (header: readonly string[], textCols: readonly number[], from: number, to: number) => {
     const slot = plan ? textCols.indexOf(header.indexOf(plan.idColumn)) : -1;
     if (!plan || slot < 0) return;
-    const out = new Uint8Array(new SharedArrayBuffer(plan.repeats * (to - from) * 32));
+    const out = new Uint8Array(new SharedArrayBuffer(plan.repeats * (to - Math.max(from, 0)) * 32));
     early = {
       seed: plan.seed,
       from,
@@ -133,16 +137,20 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
       return () => wait().sha256 as string | undefined;
     },
     stretchHelper(path, identity, ix, shownAs) {
-      const index = { rowStart: ix.rowStart, rowEnd: ix.rowEnd, delimiter: ix.delimiter, cols: ix.cols };
+      const index = { rowStart: ix.rowStart, rowEnd: ix.rowEnd, delimiter: ix.delimiter, cols: ix.cols, rows: ix.rows };
       return {
         numbers: (length) => new Float64Array(new SharedArrayBuffer(length * 8)),
-        start(numberCols, textCols, from, to, numbers) {
-          const wait = post({ kind: 'rows-file', path, identity, index, numberCols, textCols, from, to, numbers });
-          keysAfterRows(ix.header, textCols, from, to);
+        claims: (length) => new Int32Array(new SharedArrayBuffer(length * 4)),
+        start(numberCols, textCols, claims, numbers) {
+          const wait = post({ kind: 'rows-file', path, identity, index, numberCols, textCols, claims, numbers });
+          keysAfterRows(ix.header, textCols, -1, ix.rows);
           return () => {
             const reply = wait() as { part?: StretchRows; changed?: true };
             if (reply.changed) throw changedWhileRead(shownAs);
-            if (early) early.parsed = reply.part !== undefined;
+            if (early) {
+              early.parsed = reply.part !== undefined;
+              if (reply.part) early.from = reply.part.from;
+            }
             return reply.part;
           };
         },

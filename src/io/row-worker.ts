@@ -15,7 +15,7 @@ import { closeSync } from 'node:fs';
 import { FoldsealError } from '../problems/problem.js';
 import { fdReader, openIdentified, sameFile, type FileIdentity } from './file-identity.js';
 import type { LineIndex } from '../table/line-index.js';
-import { extractStretches, STRETCH } from '../table/streamed-grid.js';
+import { extractStretches, STRETCH, type StretchClaims } from '../table/streamed-grid.js';
 
 const { port, parquet } = workerData as { port: MessagePort; parquet: boolean };
 
@@ -35,11 +35,10 @@ type Job = { id: number; done: Int32Array } & (
       kind: 'rows-file';
       path: string;
       identity: FileIdentity;
-      index: Pick<LineIndex, 'rowStart' | 'rowEnd' | 'delimiter' | 'cols'>;
+      index: Pick<LineIndex, 'rowStart' | 'rowEnd' | 'delimiter' | 'cols' | 'rows'>;
       numberCols: number[];
       textCols: number[];
-      from: number;
-      to: number;
+      claims: StretchClaims;
       numbers: Float64Array;
     }
 );
@@ -125,7 +124,7 @@ async function run(job: Job): Promise<void> {
       if (fd === undefined) port.postMessage({ id: job.id, changed: true });
       else {
         try {
-          const part = extractStretches(job.index, job.numberCols, job.textCols, job.from, job.to, job.numbers, fdReader(fd, job.path));
+          const part = extractStretches(job.index, job.numberCols, job.textCols, job.claims, job.numbers, fdReader(fd, job.path));
           last = { table: { bytes: part?.arena } as PlainTable, part };
           port.postMessage({ id: job.id, part });
         } catch (e) {

@@ -14,19 +14,32 @@ import { extractRows, type RowBytes, type RowsPart } from './plain-rows.js';
 /** Fills into[0, length) with the file's bytes from `offset`. */
 export type ReadInto = (offset: number, into: Uint8Array, length: number) => void;
 
-/** Rows the other thread parsed: their text cells' bytes copied into `arena`, the spans into it. */
+/** Rows the other thread parsed, [from, rows): their text cells' bytes copied into `arena`, the spans into it. */
 export interface StretchRows extends RowsPart {
   arena: Uint8Array;
+  from: number;
 }
 
-/** The other thread's share: rows [from, to) into the shared numbers, read from the file itself. */
+/**
+ * How two threads share the rows without knowing ahead which is faster: the rows are cut into
+ * stretches (`starts`: each stretch's first row, then the row count), and each thread claims one
+ * stretch at a time by adding 1 to `taken` — this thread from the front, the other from the back —
+ * until every stretch is claimed. Each thread's rows stay one run, and they meet where they meet.
+ */
+export interface StretchClaims {
+  starts: Int32Array;
+  taken: Int32Array;
+}
+
+/** The other thread's share: the stretches it claims from the back, parsed into the shared numbers from the file itself. */
 export interface StretchHelper {
   numbers(length: number): Float64Array;
+  /** Shared memory for the claims (another thread reads it). */
+  claims(stretches: number): Int32Array;
   start(
     numberCols: readonly number[],
     textCols: readonly number[],
-    from: number,
-    to: number,
+    claims: StretchClaims,
     numbers: Float64Array,
   ): () => StretchRows | undefined;
 }
@@ -36,34 +49,18 @@ export const STRETCH = 1 << 20;
 /** Bytes per stretch of the cache for single cells. */
 const CELL_STRETCH = 1 << 20;
 
-/**
- * Calls `each` with the bytes of consecutive stretches of rows [from, to): whole rows, `limit`
- * bytes at most unless one row alone is longer. `each` returns false to stop (the rows were
- * ragged); the result is then false.
- */
-export function forStretches(
-  ix: Pick<LineIndex, 'rowStart' | 'rowEnd'>,
-  from: number,
-  to: number,
+/** The first row of each stretch of at most `limit` bytes (at least one row each), then the row count. */
+export function stretchStarts(
+  ix: Pick<LineIndex, 'rowStart' | 'rowEnd' | 'rows'>,
   limit: number,
-  readInto: ReadInto,
-  each: (bytes: Uint8Array, base: number, from: number, to: number) => boolean,
-): boolean {
-  let buffer = new Uint8Array(0);
-  for (let r0 = from; r0 < to; ) {
-    const r1 = stretchEnd(ix, r0, to, limit);
-    const base = ix.rowStart[r0];
-    const length = ix.rowEnd[r1 - 1] - base;
-    if (buffer.length < length) buffer = new Uint8Array(Math.max(length, Math.min(limit, lengthOf(ix, from, to))));
-    readInto(base, buffer, length);
-    if (!each(buffer.subarray(0, length), base, r0, r1)) return false;
-    r0 = r1;
-  }
-  return true;
-}
-
-function lengthOf(ix: Pick<LineIndex, 'rowStart' | 'rowEnd'>, from: number, to: number): number {
-  return to > from ? ix.rowEnd[to - 1] - ix.rowStart[from] : 0;
+  into?: (n: number) => Int32Array,
+): Int32Array {
+  const starts: number[] = [];
+  for (let r0 = 0; r0 < ix.rows; r0 = stretchEnd(ix, r0, ix.rows, limit)) starts.push(r0);
+  starts.push(ix.rows);
+  const out = into ? into(starts.length) : new Int32Array(starts.length);
+  out.set(starts);
+  return out;
 }
 
 /** The end of the stretch that starts at row r0: whole rows within `limit` bytes, at least one. */
@@ -74,7 +71,37 @@ function stretchEnd(ix: Pick<LineIndex, 'rowStart' | 'rowEnd'>, r0: number, to: 
   return r1;
 }
 
-/** `read.rows` serves the one pass over the rows, `read.cells` the cells asked for one at a time (also after the pass). */
+/**
+ * Claims stretches (from the front, or from the back) until none is left, reading each and
+ * handing it to `each`. False when `each` found ragged rows: the other thread then stops at its
+ * next claim too.
+ */
+export function claimStretches(
+  ix: Pick<LineIndex, 'rowStart' | 'rowEnd'>,
+  claims: StretchClaims,
+  fromBack: boolean,
+  readInto: ReadInto,
+  each: (bytes: Uint8Array, base: number, from: number, to: number) => boolean,
+): boolean {
+  const { starts, taken } = claims;
+  const count = starts.length - 1;
+  let buffer = new Uint8Array(0);
+  for (let k = 0; Atomics.add(taken, 0, 1) < count; k++) {
+    const s = fromBack ? count - 1 - k : k;
+    const r0 = starts[s];
+    const r1 = starts[s + 1];
+    const base = ix.rowStart[r0];
+    const length = ix.rowEnd[r1 - 1] - base;
+    if (buffer.length < length) buffer = new Uint8Array(length);
+    readInto(base, buffer, length);
+    if (!each(buffer.subarray(0, length), base, r0, r1)) {
+      Atomics.store(taken, 0, count);
+      return false;
+    }
+  }
+  return true;
+}
+
 export function streamedGrid(ix: LineIndex, read: { rows: ReadInto; cells: ReadInto }, helper?: StretchHelper, limit = STRETCH): Grid {
   const rowBytes = (bytes: Uint8Array): RowBytes => ({
     bytes,
@@ -131,12 +158,12 @@ export function streamedGrid(ix: LineIndex, read: { rows: ReadInto; cells: ReadI
     extract(numberCols, textCols): Extracted | undefined {
       const width = numberCols.length;
       const numbers = helper ? helper.numbers(ix.rows * width) : new Float64Array(ix.rows * width);
-      // The other thread is running already (it hashed the file meanwhile): an even share.
-      const mid = helper ? ix.rows >> 1 : ix.rows;
-      const upper = helper?.start(numberCols, textCols, mid, ix.rows, numbers);
+      const starts = stretchStarts(ix, limit, helper?.claims);
+      const claims = { starts, taken: helper ? helper.claims(1) : new Int32Array(1) };
+      const upper = helper?.start(numberCols, textCols, claims, numbers);
       const texts = textCols.map(() => new Array<string>(ix.rows));
       const failed: number[] = [];
-      const whole = forStretches(ix, 0, mid, limit, read.rows, (bytes, base, from, to) => {
+      const whole = claimStretches(ix, claims, false, read.rows, (bytes, base, from, to) => {
         const part = extractRows(rowBytes(bytes), numberCols, textCols, from, to, numbers, base);
         if (!part) return false;
         for (const f of part.failed) failed.push(f);
@@ -150,7 +177,7 @@ export function streamedGrid(ix: LineIndex, read: { rows: ReadInto; cells: ReadI
       if (other) {
         for (const f of other.failed) failed.push(f);
         const { spans, arena } = other;
-        for (let r = mid, o = 0; r < ix.rows; r++)
+        for (let r = other.from, o = 0; r < ix.rows; r++)
           for (let k = 0; k < textCols.length; k++, o += 2) texts[k][r] = decodeSpan(arena, spans[o], spans[o + 1]);
       }
       return { numbers, failed, texts };
@@ -159,25 +186,24 @@ export function streamedGrid(ix: LineIndex, read: { rows: ReadInto; cells: ReadI
 }
 
 /**
- * The other thread's side of extract: rows [from, to) read in stretches and parsed into the
- * shared numbers; each text cell's bytes are copied into one arena (the stretches' buffer is
- * reused), its spans pointing there.
+ * The other thread's side of extract: the stretches it claims from the back, read and parsed
+ * into the shared numbers; each text cell's bytes are copied into one arena (the read buffer is
+ * reused), its spans pointing there, in row order.
  */
 export function extractStretches(
-  ix: Pick<LineIndex, 'rowStart' | 'rowEnd' | 'delimiter' | 'cols'>,
+  ix: Pick<LineIndex, 'rowStart' | 'rowEnd' | 'delimiter' | 'cols' | 'rows'>,
   numberCols: readonly number[],
   textCols: readonly number[],
-  from: number,
-  to: number,
+  claims: StretchClaims,
   numbers: Float64Array,
   readInto: ReadInto,
-  limit = STRETCH,
 ): StretchRows | undefined {
-  const failed: number[] = [];
-  const spans = new Int32Array((to - from) * textCols.length * 2);
+  // Claimed from the back: each stretch's failed cells and spans are kept apart, then put in row order.
+  const parts: { failed: number[]; spans: Int32Array }[] = [];
   let arena = new Uint8Array(1 << 16);
   let used = 0;
-  const whole = forStretches(ix, from, to, limit, readInto, (bytes, base, r0, r1) => {
+  let from = ix.rows;
+  const whole = claimStretches(ix, claims, true, readInto, (bytes, base, r0, r1) => {
     const part = extractRows(
       { bytes, delimiter: ix.delimiter, cols: ix.cols, rowStart: ix.rowStart, rowEnd: ix.rowEnd },
       numberCols,
@@ -188,22 +214,31 @@ export function extractStretches(
       base,
     );
     if (!part) return false;
-    for (const f of part.failed) failed.push(f);
-    const o0 = (r0 - from) * textCols.length * 2;
-    for (let o = 0; o < part.spans.length; o += 2) {
-      const s = part.spans[o];
-      const e = part.spans[o + 1];
+    const spans = part.spans;
+    for (let o = 0; o < spans.length; o += 2) {
+      const s = spans[o];
+      const e = spans[o + 1];
       if (used + e - s > arena.length) {
         const grown = new Uint8Array(Math.max(arena.length * 2, used + e - s));
         grown.set(arena.subarray(0, used));
         arena = grown;
       }
-      spans[o0 + o] = used;
+      spans[o] = used;
       // Cells are short (ids, labels): a loop beats a subarray and a copy call per cell.
       for (let i = s; i < e; i++) arena[used++] = bytes[i];
-      spans[o0 + o + 1] = used;
+      spans[o + 1] = used;
     }
+    parts.push({ failed: part.failed, spans });
+    from = r0;
     return true;
   });
-  return whole ? { failed, spans, arena: arena.subarray(0, used) } : undefined;
+  if (!whole) return undefined;
+  parts.reverse();
+  const spans = new Int32Array((ix.rows - from) * textCols.length * 2);
+  let at = 0;
+  for (const p of parts) {
+    spans.set(p.spans, at);
+    at += p.spans.length;
+  }
+  return { failed: parts.flatMap((p) => p.failed), spans, arena: arena.subarray(0, used), from };
 }

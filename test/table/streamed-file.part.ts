@@ -12,7 +12,7 @@ import { startRowThread } from '../../src/io/row-helper.js';
 import { indexLines, readStreamed, type StreamTwin } from '../../src/io/streamed-read.js';
 import { FoldsealError } from '../../src/problems/problem.js';
 import { tableFromBytes } from '../../src/table/load.js';
-import { extractStretches } from '../../src/table/streamed-grid.js';
+import { extractStretches, stretchStarts } from '../../src/table/streamed-grid.js';
 import type { DataRoles } from '../../src/table/table.js';
 import { referenceTable, tempDir } from '../helpers.js';
 
@@ -29,9 +29,10 @@ function twinHere(meddle = () => {}): StreamTwin {
     },
     stretchHelper: (path, identity, ix, shownAs) => ({
       numbers: (n) => new Float64Array(n),
-      start: (numberCols, textCols, from, to, numbers) => {
+      claims: (n) => new Int32Array(n),
+      start: (numberCols, textCols, claims, numbers) => {
         const fd = reopen(path, identity, shownAs);
-        const part = extractStretches(ix, numberCols, textCols, from, to, numbers, fdReader(fd, shownAs), 1000);
+        const part = extractStretches(ix, numberCols, textCols, claims, numbers, fdReader(fd, shownAs));
         closeSync(fd);
         return () => part;
       },
@@ -121,13 +122,14 @@ t.test('the row thread hashes and parses from the file, and refuses another file
     const other: FileIdentity = { ...opened.identity, mtimeMs: opened.identity.mtimeMs + 1 };
     t.equal(thread.sha256File(path, other)(), undefined, 'another modification time: not the file indexed');
     const helper = thread.stretchHelper(path, other, ix, 'bc.csv');
-    const wait = helper.start([1], [0], 0, ix.rows, helper.numbers(ix.rows));
+    const claims = () => ({ starts: stretchStarts(ix, 1000, helper.claims), taken: helper.claims(1) });
+    const wait = helper.start([1], [0], claims(), helper.numbers(ix.rows));
     t.equal(thrownCode(wait), 'data-changed-while-read');
     const shrunk = tempDir({ 'bc.csv': csv.slice(0, 1000) });
     const small = openIdentified(join(shrunk, 'bc.csv'))!;
     closeSync(small.fd);
     const cut = thread.stretchHelper(join(shrunk, 'bc.csv'), small.identity, ix, 'bc.csv');
-    t.equal(thrownCode(cut.start([1], [0], 0, ix.rows, cut.numbers(ix.rows))), 'data-changed-while-read', 'rows past the end of the file');
+    t.equal(thrownCode(cut.start([1], [0], claims(), cut.numbers(ix.rows))), 'data-changed-while-read', 'rows past the end of the file');
   } finally {
     await thread.close();
   }

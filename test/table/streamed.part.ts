@@ -46,12 +46,28 @@ const reader =
   (offset, into, length) =>
     into.set(bytes.subarray(offset, offset + length));
 
-/** A helper that parses its share on this thread, as the row thread would (through the arena). */
-function sameThreadHelper(bytes: Uint8Array, ix: NonNullable<ReturnType<typeof indexOf>>, limit: number): StretchHelper {
+/**
+ * A helper that parses its share on this thread, as the row thread would (through the arena):
+ * it claims `share` stretches from the back before this thread claims any, as a faster other
+ * thread would, so every meeting point is tried.
+ */
+function sameThreadHelper(bytes: Uint8Array, ix: NonNullable<ReturnType<typeof indexOf>>, share: number): StretchHelper {
   return {
     numbers: (length) => new Float64Array(length),
-    start: (numberCols, textCols, from, to, numbers) => {
-      const part = extractStretches(ix, numberCols, textCols, from, to, numbers, reader(bytes), limit);
+    claims: (length) => new Int32Array(length),
+    start: (numberCols, textCols, claims, numbers) => {
+      const count = claims.starts.length - 1;
+      const mine = Math.min(share, count);
+      // Its own counter runs out after `mine` claims; the shared one is moved past them.
+      const part = extractStretches(
+        ix,
+        numberCols,
+        textCols,
+        { starts: claims.starts, taken: Int32Array.of(count - mine) },
+        numbers,
+        reader(bytes),
+      );
+      claims.taken[0] += mine;
       return () => part;
     },
   };
@@ -75,6 +91,7 @@ const file = fc.record({
   blankInside: fc.boolean(),
   stretch: fc.integer({ min: 1, max: 80 }),
   helped: fc.boolean(),
+  share: fc.nat(12),
 });
 
 t.test('the streamed reader builds the whole-file table, fed in any stretches', async (t) => {
@@ -97,7 +114,7 @@ t.test('the streamed reader builds the whole-file table, fed in any stretches', 
       const grid = streamedGrid(
         ix,
         { rows: reader(bytes), cells: reader(bytes) },
-        f.helped ? sameThreadHelper(bytes, ix, f.stretch) : undefined,
+        f.helped ? sameThreadHelper(bytes, ix, f.share) : undefined,
         f.stretch,
       );
       const built = buildTable(grid, roles, 'f.csv', where);
