@@ -162,7 +162,11 @@ export function buildTable(
     }
     classes = [...new Set(labels)].sort(compareUtf8);
     const code = new Map(classes.map((c, i) => [c, i]));
-    for (let r = 0; r < rows; r++) y[r] = code.get(labels[r])!;
+    // Each row's label becomes its class's one string: a million rows kept a million copies of "case" and "control".
+    for (let r = 0; r < rows; r++) {
+      y[r] = code.get(labels[r])!;
+      labels[r] = classes[y[r]];
+    }
     if (classes.length < 2)
       problems.push(
         error(
