@@ -8,7 +8,7 @@ import { asWritten, candidates, partsFor, valuesOf } from '../protocol/grid.js';
 import { searchGrid, type FoldSearch } from './nested.js';
 import { runInner, wantsColumns } from './executor.js';
 import type { Assignment } from '../split/assignment.js';
-import { assignmentCsv } from '../split/csv.js';
+import { assignmentCsvBytes } from '../split/csv.js';
 import type { Table } from '../table/table.js';
 import { sha256Bytes } from '../util/sha256.js';
 import { fitOptions, models } from '../model/registry.js';
@@ -56,7 +56,6 @@ export interface RunOutput {
   /** Scores of the new rows on their own labels, when the new-rows file has the label column. */
   newRowScores?: NewRowScores;
   results: Record<string, unknown>;
-  assignmentCsv: string;
   assignmentSha256: string;
   /** The other files by name: models.json as bytes (a million known rows go straight into them), the rest as text. */
   files: { 'models.json': Uint8Array; 'results.json': string; 'applied.csv'?: string };
@@ -81,7 +80,6 @@ export function runProtocol(
   sink?: PredictionSink,
 ): RunOutput {
   const cv: CvResult = fitted ?? guardFit(input.protocolFile, () => crossValidate(input.protocol, input.table, input.assignment, hooks));
-  const folds = assignmentCsv(input.assignment);
   // Written as it is made when the shell takes it (a million lines never held whole), else kept.
   const predictions = sink ? undefined : predictionsCsv(cv, input.table);
   const predictionsSha256 = sink ? sink(predictionsPieces(cv, input.table)) : sha256Bytes(predictions!);
@@ -159,7 +157,7 @@ export function runProtocol(
     'models.json': sha256Bytes(models),
     ...(appliedText === undefined ? {} : { 'applied.csv': sha256Bytes(appliedText) }),
   };
-  const assignmentSha256 = sha256Bytes(folds);
+  const assignmentSha256 = sha256Bytes(assignmentCsvBytes(input.assignment));
   const statistics = guardFit(input.protocolFile, () => runStatistics(p, input.table, input.assignment, cv, permuted));
   const results = buildResults({
     statistics,
@@ -183,7 +181,7 @@ export function runProtocol(
     'results.json': JSON.stringify(results, null, 2) + '\n',
   };
   digests['results.json'] = sha256Bytes(files['results.json']);
-  return { cv, results, assignmentCsv: folds, assignmentSha256, files, predictions, digests, applied, statistics, newRowScores };
+  return { cv, results, assignmentSha256, files, predictions, digests, applied, statistics, newRowScores };
 }
 
 /** A fold model as models.json saves it: a model that keeps its training rows references them (training-rows.ts). */

@@ -4,6 +4,15 @@ import type { Assignment } from './assignment.js';
 import { idOrder } from './key.js';
 
 export function assignmentCsv(a: Assignment): string {
+  return assignmentCsvText(a).text();
+}
+
+/** The same file as UTF-8 bytes (a million-row run hashes it without a text copy). */
+export function assignmentCsvBytes(a: Assignment): Uint8Array {
+  return assignmentCsvText(a).utf8();
+}
+
+function assignmentCsvText(a: Assignment): TextBuilder {
   const order = idOrder(a.ids);
   const n = a.ids.length;
   const out = new TextBuilder();
@@ -16,5 +25,5 @@ export function assignmentCsv(a: Assignment): string {
       out.add(`${quoted[row]},${r},${a.fold[base + row]}\n`);
     }
   }
-  return out.text();
+  return out;
 }

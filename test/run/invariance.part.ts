@@ -4,6 +4,7 @@ import { join } from 'node:path';
 import t from 'tap';
 import { validateProtocol } from '../../src/io/validate.js';
 import { runProtocol } from '../../src/run/run.js';
+import { assignmentCsv } from '../../src/split/csv.js';
 import { root, sha256, tempDir } from '../helpers.js';
 
 const demo = readFileSync(join(root, 'protocols', 'data', 'seedlings.csv'), 'utf8');
@@ -45,7 +46,7 @@ async function runOn(file: string, text: string, rule: string) {
   delete results.files['models.json'];
   const models = JSON.parse(Buffer.from(out.files['models.json']).toString('utf8'));
   delete models['protocol-sha256'];
-  return { folds: out.assignmentCsv, predictions: Buffer.from(out.predictions!).toString('utf8'), results, models };
+  return { folds: assignmentCsv(r.assignment!), predictions: Buffer.from(out.predictions!).toString('utf8'), results, models };
 }
 
 for (const rule of [
