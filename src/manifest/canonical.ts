@@ -6,6 +6,7 @@
  * signed bytes.
  */
 import { sha256Bytes } from '../util/sha256.js';
+import { TextBuilder } from '../table/csv-write.js';
 
 /**
  * A value already written as canonical JSON, spliced in as it is: the manifest's assignment of a
@@ -17,46 +18,70 @@ export class CanonicalText {
 }
 
 export function canonicalJson(value: unknown): string {
-  const path: (string | number)[] = [];
-  return write(value, path);
+  const parts: string[] = [];
+  write(value, [], (text) => parts.push(text));
+  return parts.join('');
+}
+
+/** canonicalJson's UTF-8 bytes, then `after`, written straight into one buffer (a million-row manifest never becomes one string). */
+export function canonicalBytes(value: unknown, after = ''): Uint8Array {
+  const out = new TextBuilder(1 << 16);
+  write(value, [], (text) => out.add(text));
+  out.add(after);
+  return out.utf8();
 }
 
 export function canonicalSha256(value: unknown): string {
-  return sha256Bytes(Buffer.from(canonicalJson(value), 'utf8'));
+  return sha256Bytes(canonicalJson(value));
 }
 
-function write(value: unknown, path: (string | number)[]): string {
-  if (value instanceof CanonicalText) return value.json;
-  if (value === null || typeof value === 'string' || typeof value === 'boolean') return JSON.stringify(value);
+/** The canonical text of `value`, handed to `emit` piece by piece in order. */
+function write(value: unknown, path: (string | number)[], emit: (text: string) => void): void {
+  if (value instanceof CanonicalText) {
+    emit(value.json);
+    return;
+  }
+  if (value === null || typeof value === 'string' || typeof value === 'boolean') {
+    emit(JSON.stringify(value));
+    return;
+  }
   if (typeof value === 'number') {
     if (!Number.isFinite(value)) fail(path, String(value));
-    return JSON.stringify(value);
+    emit(JSON.stringify(value));
+    return;
   }
   if (Array.isArray(value)) {
     // Arrays without objects (fold assignments, probabilities) are the bulk of a manifest:
     // JSON.stringify already writes them canonically once their numbers are known to be finite.
-    if (flat(value)) return JSON.stringify(value);
-    const parts = new Array<string>(value.length);
+    if (flat(value)) {
+      emit(JSON.stringify(value));
+      return;
+    }
+    emit('[');
     for (let i = 0; i < value.length; i++) {
+      if (i > 0) emit(',');
       path.push(i);
-      parts[i] = write(value[i], path);
+      write(value[i], path, emit);
       path.pop();
     }
-    return `[${parts.join(',')}]`;
+    emit(']');
+    return;
   }
   if (typeof value === 'object' && Object.getPrototypeOf(value) === Object.prototype) {
     const record = value as Record<string, unknown>;
     // Default string order compares UTF-16 code units, as §3.2.3 requires.
     const names = Object.keys(record).sort();
-    const parts = new Array<string>(names.length);
+    emit('{');
     for (let i = 0; i < names.length; i++) {
+      emit(`${i > 0 ? ',' : ''}${JSON.stringify(names[i])}:`);
       path.push(names[i]);
-      parts[i] = `${JSON.stringify(names[i])}:${write(record[names[i]], path)}`;
+      write(record[names[i]], path, emit);
       path.pop();
     }
-    return `{${parts.join(',')}}`;
+    emit('}');
+    return;
   }
-  return fail(path, typeof value);
+  fail(path, typeof value);
 }
 
 /** Only strings, finite numbers, booleans, null, and arrays of those, one level deep. */

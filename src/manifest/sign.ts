@@ -3,7 +3,7 @@
  * manifest without its `signature` member; the signature is Ed25519 (RFC 8032) via node:crypto.
  */
 import { createHash, sign as edSign, verify as edVerify, type KeyObject } from 'node:crypto';
-import { canonicalJson } from './canonical.js';
+import { canonicalBytes, canonicalJson } from './canonical.js';
 import type { Manifest } from './build.js';
 
 export interface Signature {
@@ -18,7 +18,8 @@ export interface Signature {
 export function signingBytes(manifest: Manifest): Buffer {
   const { signature: _omit, ...rest } = manifest;
   void _omit;
-  return Buffer.from(canonicalJson(rest), 'utf8');
+  const bytes = canonicalBytes(rest);
+  return Buffer.from(bytes.buffer, bytes.byteOffset, bytes.length);
 }
 
 /** The raw 32-byte Ed25519 public key. */
@@ -78,4 +79,9 @@ export function changedMembers(manifest: Manifest, recorded: Record<string, stri
 /** Serialized manifest file: canonical JSON plus a newline, so any byte change is detectable. */
 export function manifestText(manifest: Manifest): string {
   return canonicalJson(manifest) + '\n';
+}
+
+/** manifestText's UTF-8 bytes, written without the text. */
+export function manifestBytes(manifest: Manifest): Uint8Array {
+  return canonicalBytes(manifest, '\n');
 }

@@ -4,7 +4,7 @@ import type { ValidateFunction } from 'ajv/dist/2020.js';
 import type { RunInput, RunOutput } from './run.js';
 import { assignmentTriples, buildManifest, MANIFEST_FILES, type Manifest, type ToolInfo } from '../manifest/build.js';
 import { canonicalSha256 } from '../manifest/canonical.js';
-import { manifestText, signManifest } from '../manifest/sign.js';
+import { manifestBytes, signManifest } from '../manifest/sign.js';
 
 export interface ManifestMeta {
   tool: ToolInfo;
@@ -22,7 +22,11 @@ export interface ManifestMeta {
   textOnly?: boolean;
 }
 
-export function manifestForRun(input: RunInput, out: RunOutput, meta: ManifestMeta): { manifest: Manifest; text: string } {
+export function manifestForRun(
+  input: RunInput,
+  out: RunOutput,
+  meta: ManifestMeta,
+): { manifest: Manifest; bytes: Uint8Array; text: string } {
   const files: Record<string, string> = {};
   for (const name of MANIFEST_FILES) if (out.digests[name] !== undefined) files[name] = out.digests[name];
   let manifest = buildManifest(
@@ -48,5 +52,13 @@ export function manifestForRun(input: RunInput, out: RunOutput, meta: ManifestMe
   if (!validate(checked)) {
     throw new Error(`foldseal wrote a manifest that fails schema/manifest.schema.json: ${JSON.stringify(validate.errors)}`);
   }
-  return { manifest, text: manifestText(manifest) };
+  const bytes = manifestBytes(manifest);
+  return {
+    manifest,
+    bytes,
+    // The file's text, made only when asked for (run writes the bytes).
+    get text() {
+      return Buffer.from(bytes.buffer, bytes.byteOffset, bytes.length).toString('utf8');
+    },
+  };
 }

@@ -90,7 +90,7 @@ async function finish(
   if (!input || !out || !folder) return 1;
   reportProblems(io, out.cv.warnings, 'text');
   const dir = folder.dir;
-  const { text } = manifestForRun(input, out, {
+  const { bytes } = manifestForRun(input, out, {
     tool: toolInfo(),
     created: new Date().toISOString(),
     protocolLocation:
@@ -101,11 +101,10 @@ async function finish(
     validate: schemaValidator(MANIFEST_SCHEMA),
     textOnly: true,
   });
-  const written: Record<string, string | Uint8Array> = { ...out.files, 'manifest.json': text };
+  const written: Record<string, string | Uint8Array> = { ...out.files, 'manifest.json': bytes };
   // An SSH key signs the manifest's bytes in manifest.json.sig, the file `ssh-keygen -Y verify` reads.
   if (key?.kind === 'ssh') {
     const { encodeSshsig, MANIFEST_NAMESPACE, sshsigSignedData } = await import('../../manifest/ssh.js');
-    const bytes = Buffer.from(text, 'utf8');
     written['manifest.json.sig'] = encodeSshsig(
       key.blob,
       MANIFEST_NAMESPACE,
