@@ -89,32 +89,58 @@ function countByte(search: Buffer, value: number, n: number): number {
   return count;
 }
 
+/** Where row r's line lies: in `bytes`, from `start` to `end` (without its line break). Filled in by a RowLine. */
+export interface LineAt {
+  bytes: Uint8Array;
+  start: number;
+  end: number;
+}
+
+/** Fills `into` with where row r's line lies (the bytes may be a stretch of the file read for it). */
+export type RowLine = (r: number, into: LineAt) => void;
+
 /**
- * Finds cells by walking a row from its start. The walk resumes where the last one stopped when
- * it moves right along the same row, so probing every column of a row costs one pass, not one
- * per column (20,000 columns would make that quadratic).
+ * A grid's single cells (text, number, position), found by walking a row from its start. The walk
+ * resumes where the last one stopped when it moves right along the same row, so probing every
+ * column of a row costs one pass, not one per column (20,000 columns would make that quadratic).
  */
-function spanFinder(t: PlainTable): (row: number, col: number) => [number, number] {
+export function rowCells(line: RowLine, delimiter: number): Pick<Grid, 'text' | 'number' | 'position'> {
+  const at: LineAt = { bytes: new Uint8Array(0), start: 0, end: 0 };
   let row = -1;
   let col = 0;
-  let at = 0; // byte where cell `col` of `row` starts
-  return (r, c) => {
+  let offset = 0; // where cell `col` of `row` starts, from the line's start
+  const span = (r: number, c: number): [number, number] => {
+    line(r, at);
+    const { bytes, start, end } = at;
     if (r !== row || c < col) {
       row = r;
       col = 0;
-      at = t.rowStart[r];
+      offset = 0;
     }
-    const end = t.rowEnd[r];
     for (; col < c; col++) {
-      const stop = t.bytes.indexOf(t.delimiter, at);
+      const stop = bytes.indexOf(delimiter, start + offset);
       if (stop === -1 || stop >= end) {
         row = -1;
         return [end, end];
       } // past the row's last cell
-      at = stop + 1;
+      offset = stop + 1 - start;
     }
-    const stop = t.bytes.indexOf(t.delimiter, at);
-    return [at, stop === -1 || stop >= end ? end : stop];
+    const stop = bytes.indexOf(delimiter, start + offset);
+    return [start + offset, stop === -1 || stop >= end ? end : stop];
+  };
+  return {
+    text: (r, c) => {
+      const [s, e] = span(r, c);
+      return decodeSpan(at.bytes, s, e);
+    },
+    number: (r, c) => {
+      const [s, e] = span(r, c);
+      return parseNumberBytes(at.bytes, s, e);
+    },
+    position: (r, c) => {
+      const [s] = span(r, c);
+      return { line: r + 2, col: charColumn(at.bytes, at.start, s).col };
+    },
   };
 }
 
@@ -136,20 +162,16 @@ export interface RowHelper {
 }
 
 export function plainGrid(t: PlainTable, helper?: RowHelper): Grid {
-  const span = spanFinder(t);
+  const line: RowLine = (r, into) => {
+    into.bytes = t.bytes;
+    into.start = t.rowStart[r];
+    into.end = t.rowEnd[r];
+  };
   return {
     header: t.header,
     rows: t.rows,
     rowLine: Int32Array.from({ length: t.rows }, (_, r) => r + 2),
-    text: (r, c) => {
-      const [s, e] = span(r, c);
-      return decodeSpan(t.bytes, s, e);
-    },
-    number: (r, c) => {
-      const [s, e] = span(r, c);
-      return parseNumberBytes(t.bytes, s, e);
-    },
-    position: (r, c) => ({ line: r + 2, col: charColumn(t.bytes, t.rowStart[r], span(r, c)[0]).col }),
+    ...rowCells(line, t.delimiter),
     extract: (numberCols, textCols) => (helper ? extractShared(t, numberCols, textCols, helper) : extractPlain(t, numberCols, textCols)),
   };
 }

@@ -6,9 +6,9 @@
  * fills a buffer from a file offset. Cells asked for one at a time (the column probe, messages,
  * the audit's other columns) come from a small cache of the last stretch read.
  */
-import { charColumn, decodeSpan, type Extracted, type Grid } from './grid.js';
+import { decodeSpan, type Extracted, type Grid } from './grid.js';
+import { rowCells, type RowLine } from './plain.js';
 import type { LineIndex } from './line-index.js';
-import { parseNumberBytes } from './number.js';
 import { extractRows, type RowBytes, type RowsPart } from './plain-rows.js';
 
 /** Fills into[0, length) with the file's bytes from `offset`. */
@@ -110,51 +110,25 @@ export function streamedGrid(ix: LineIndex, read: { rows: ReadInto; cells: ReadI
     rowStart: ix.rowStart,
     rowEnd: ix.rowEnd,
   });
-  // The stretch holding the row last asked for, and the walk along that row (see plain.ts).
+  // The stretch holding the row last asked for.
   const cache = { from: 0, to: 0, base: 0, bytes: new Uint8Array(0) };
-  const walk = { row: -1, col: 0, at: 0 };
-  const line = (r: number) => {
+  const line: RowLine = (r, into) => {
     if (r < cache.from || r >= cache.to) {
       const to = stretchEnd(ix, r, ix.rows, Math.min(limit, CELL_STRETCH));
       const length = ix.rowEnd[to - 1] - ix.rowStart[r];
       if (cache.bytes.length < length) cache.bytes = new Uint8Array(Math.max(length, Math.min(limit, CELL_STRETCH)));
       read.cells(ix.rowStart[r], cache.bytes, length);
       Object.assign(cache, { from: r, to, base: ix.rowStart[r] });
-      walk.row = -1;
     }
-    return cache;
-  };
-  const span = (r: number, c: number): [number, number] => {
-    const { bytes, base } = line(r);
-    const end = ix.rowEnd[r] - base;
-    if (r !== walk.row || c < walk.col) Object.assign(walk, { row: r, col: 0, at: ix.rowStart[r] - base });
-    for (; walk.col < c; walk.col++) {
-      const stop = bytes.indexOf(ix.delimiter, walk.at);
-      if (stop === -1 || stop >= end) {
-        walk.row = -1;
-        return [end, end];
-      } // past the row's last cell
-      walk.at = stop + 1;
-    }
-    const stop = bytes.indexOf(ix.delimiter, walk.at);
-    return [walk.at, stop === -1 || stop >= end ? end : stop];
+    into.bytes = cache.bytes;
+    into.start = ix.rowStart[r] - cache.base;
+    into.end = ix.rowEnd[r] - cache.base;
   };
   return {
     header: ix.header,
     rows: ix.rows,
     rowLine: Int32Array.from({ length: ix.rows }, (_, r) => r + 2),
-    text: (r, c) => {
-      const [s, e] = span(r, c);
-      return decodeSpan(cache.bytes, s, e);
-    },
-    number: (r, c) => {
-      const [s, e] = span(r, c);
-      return parseNumberBytes(cache.bytes, s, e);
-    },
-    position: (r, c) => {
-      const [s] = span(r, c);
-      return { line: r + 2, col: charColumn(cache.bytes, ix.rowStart[r] - cache.base, s).col };
-    },
+    ...rowCells(line, ix.delimiter),
     extract(numberCols, textCols): Extracted | undefined {
       const width = numberCols.length;
       const numbers = helper ? helper.numbers(ix.rows * width) : new Float64Array(ix.rows * width);
