@@ -4,6 +4,7 @@
 // read.part.ts) and ECMAScript's correctly rounded Number() for every numeric cell.
 import fc from 'fast-check';
 import t from 'tap';
+import { comparable, generatedText } from './generated-file.js';
 import { delimitedGrid, readDelimited } from '../../src/table/delimited.js';
 import { tableFromBytes } from '../../src/table/load.js';
 import { readPlain } from '../../src/table/plain.js';
@@ -15,19 +16,6 @@ const where = () => undefined;
 function fullReader(bytes: Uint8Array, roles: DataRoles) {
   const read = readDelimited(bytes, 0x2c, 'f.csv');
   return read.table ? buildTable(delimitedGrid(read.table), roles, 'f.csv', where) : { problems: read.problems };
-}
-
-function comparable(r: ReturnType<typeof tableFromBytes>) {
-  const tb = r.table;
-  return {
-    problems: r.problems.map((p) => [p.severity, p.code, p.message, p.position]),
-    table: tb && {
-      ...tb,
-      X: { ...tb.X, data: Array.from(tb.X.data, (v) => (Object.is(v, -0) ? '-0' : Number.isNaN(v) ? 'NaN' : v)) },
-      y: Array.from(tb.y),
-      rowLines: Array.from(tb.rowLines),
-    },
-  };
 }
 
 const numberCell = fc.oneof(
@@ -70,14 +58,7 @@ t.test('the fast reader and the full reader agree on every generated file', asyn
   let fast = 0;
   fc.assert(
     fc.property(file, fc.boolean(), (f, listed) => {
-      const lines = [
-        'id,label,a,b,c',
-        ...f.rows.map(([id, label, xs], r) =>
-          [id, label, ...(r === f.ragged ? xs.slice(1) : r === f.ragged - 10 ? [...xs, '1'] : xs)].join(','),
-        ),
-      ];
-      if (f.blankInside && lines.length > 2) lines.splice(2, 0, '');
-      const text = (f.bom ? '\ufeff' : '') + lines.join(f.eol) + f.trailing;
+      const text = generatedText(f);
       const bytes = enc(text);
       const roles: DataRoles = { id: 'id', label: 'label', missing: ['NA'], features: listed ? ['c', 'a'] : undefined };
       if (readPlain(bytes, 0x2c)) fast++;

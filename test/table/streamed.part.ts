@@ -4,6 +4,7 @@
 // reader. Reference: tableFromBytes (held to the full RFC 4180 reader in plain.part.ts).
 import fc from 'fast-check';
 import t from 'tap';
+import { comparable, generatedText } from './generated-file.js';
 import { tableFromBytes } from '../../src/table/load.js';
 import { LineIndexer } from '../../src/table/line-index.js';
 import { readPlain } from '../../src/table/plain.js';
@@ -12,19 +13,6 @@ import { buildTable, type DataRoles } from '../../src/table/table.js';
 
 const enc = (s: string) => new TextEncoder().encode(s);
 const where = () => undefined;
-
-function comparable(r: ReturnType<typeof tableFromBytes>) {
-  const tb = r.table;
-  return {
-    problems: r.problems.map((p) => [p.severity, p.code, p.message, p.position]),
-    table: tb && {
-      ...tb,
-      X: { ...tb.X, data: Array.from(tb.X.data, (v) => (Object.is(v, -0) ? '-0' : Number.isNaN(v) ? 'NaN' : v)) },
-      y: Array.from(tb.y),
-      rowLines: Array.from(tb.rowLines),
-    },
-  };
-}
 
 /** The index of `bytes` fed in stretches of `size` bytes (longer when no line ends within one), as a file is read. */
 function indexOf(bytes: Uint8Array, size: number) {
@@ -98,14 +86,7 @@ t.test('the streamed reader builds the whole-file table, fed in any stretches', 
   let streamed = 0;
   fc.assert(
     fc.property(file, fc.boolean(), (f, listed) => {
-      const lines = [
-        'id,label,a,b,c',
-        ...f.rows.map(([id, label, xs], r) =>
-          [id, label, ...(r === f.ragged ? xs.slice(1) : r === f.ragged - 10 ? [...xs, '1'] : xs)].join(','),
-        ),
-      ];
-      if (f.blankInside && lines.length > 2) lines.splice(2, 0, '');
-      const text = (f.bom ? '\ufeff' : '') + lines.join(f.eol) + f.trailing;
+      const text = generatedText(f);
       const bytes = enc(text);
       const roles: DataRoles = { id: 'id', label: 'label', missing: ['NA'], features: listed ? ['c', 'a'] : undefined };
       const ix = indexOf(bytes, f.stretch);
