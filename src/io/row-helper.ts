@@ -15,8 +15,13 @@ import type { FoldThreadData } from './fold-jobs.js';
 import type { StreamTwin } from './streamed-read.js';
 import type { StretchRows } from '../table/streamed-grid.js';
 
-/** Files below this size read faster on one thread than a worker takes to start. */
+/**
+ * Files below this size read faster on one thread than a worker takes to start: a plain table
+ * (read in stretches, never whole), and a Parquet file (read whole, half its columns decoded on
+ * the other thread).
+ */
 export const SHARED_READ_BYTES = 24 * 1024 * 1024;
+export const SHARED_PARQUET_BYTES = 8 * 1024 * 1024;
 
 export interface RowThread extends RowHelper, ParquetTwin, StreamTwin {
   /** Starts SHA-256 of bytes on the other thread; the returned function waits for the hex digest. */
@@ -44,11 +49,11 @@ export interface RowThread extends RowHelper, ParquetTwin, StreamTwin {
  * Only from compiled JavaScript (the worker loads dist/), on a machine with a second core.
  * FOLDSEAL_THREADS=1 turns it off; 2 or more turns it on for any size (as the tests do).
  */
-export function rowThreadsAvailable(size: number): boolean {
+export function rowThreadsAvailable(size: number, parquet = false): boolean {
   if (!import.meta.url.endsWith('.js')) return false;
   const forced = forcedThreads();
   if (forced !== undefined) return forced >= 2;
-  return size >= SHARED_READ_BYTES && availableParallelism() >= 2;
+  return size >= (parquet ? SHARED_PARQUET_BYTES : SHARED_READ_BYTES) && availableParallelism() >= 2;
 }
 
 /** Started early (before the file is read) so the worker is loaded by the time rows are parsed. */

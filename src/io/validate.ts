@@ -122,7 +122,8 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
     (st) => st.size,
     () => 0,
   );
-  const rowThread = rowThreadsAvailable(size) ? startRowThread({ parquet: await startsLikeParquet(paths.data) }) : undefined;
+  const parquet = size > 0 && (await startsLikeParquet(paths.data));
+  const rowThread = rowThreadsAvailable(size, parquet) ? startRowThread({ parquet }) : undefined;
   // A thread kept for the folds loads their code now, while this one reads the file.
   const kept = rowThread !== undefined && options.keepThread?.(rowThread, p) === true;
   if (kept) rowThread.prepareFolds();
