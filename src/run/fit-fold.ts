@@ -6,7 +6,7 @@ import { applyPipeline, prunePipeline, type FittedPipeline } from '../preprocess
 import type { Protocol } from '../protocol/types.js';
 import type { FoldSearch } from './nested.js';
 import { takeInt, type Matrix } from '../table/matrix.js';
-import { foldScratch } from './fold-scratch.js';
+import { foldScratch, testScratch } from './fold-scratch.js';
 
 export interface FoldData {
   X: Matrix;
@@ -33,7 +33,7 @@ export function fitFold(p: Pick<Protocol, 'preprocess' | 'model'>, d: FoldData, 
   const pipeline = prunePipeline(fitted.pipeline, d.X.cols);
   const impl = models[p.model.kind];
   const model = impl.fit(fitted.X, yTrain, fitOptions(p.model.kind, p.model.options, d.classes), { classCount: k });
-  const proba = impl.predict(model, applyPipeline(pipeline, d.X, test));
+  const proba = impl.predict(model, applyPipeline(pipeline, d.X, test, testScratch));
   return { pipeline, model, proba };
 }
 
@@ -57,7 +57,7 @@ export function fitModelAfterPipeline(
       classCount: d.classes.length,
     },
   );
-  return { pipeline, model, proba: impl.predict(model, applyPipeline(pipeline, d.X, test)) };
+  return { pipeline, model, proba: impl.predict(model, applyPipeline(pipeline, d.X, test, testScratch)) };
 }
 
 /** A fit or transform failure of one fold, its message naming the repeat and fold. */

@@ -7,10 +7,17 @@
  * so a thread never keeps a large buffer.
  */
 const LIMIT = 64 << 20;
-let spare: Float64Array | undefined;
 
-export function foldScratch(length: number): Float64Array {
-  if (length * 8 > LIMIT) return new Float64Array(length);
-  if (!spare || spare.length < length) spare = new Float64Array(length);
-  return spare.subarray(0, length);
+function scratch(): (length: number) => Float64Array {
+  let spare: Float64Array | undefined;
+  return (length) => {
+    if (length * 8 > LIMIT) return new Float64Array(length);
+    if (!spare || spare.length < length) spare = new Float64Array(length);
+    return spare.subarray(0, length);
+  };
 }
+
+export const foldScratch = scratch();
+
+/** The same for a fold's copy of its test rows: predicting keeps nothing of them either. */
+export const testScratch = scratch();
