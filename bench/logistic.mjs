@@ -55,22 +55,35 @@ execFileSync(process.execPath, [bin, 'folds', join(out, 'tall.yaml'), '--out', j
 // which is what foldseal's time is.
 const ref = (tol, solver = 'lbfgs') => {
   const start = performance.now();
-  const [fits, diff] = execFileSync(
-    '/usr/bin/python3',
-    [join(here, 'logistic_reference.py'), data, join(out, 'folds.csv'), join(out, 'res', 'predictions.csv'), String(tol), solver],
+  const timed = spawnSync(
+    '/usr/bin/time',
+    [
+      '-f',
+      'peak-kb %M',
+      '/usr/bin/python3',
+      join(here, 'logistic_reference.py'),
+      data,
+      join(out, 'folds.csv'),
+      join(out, 'res', 'predictions.csv'),
+      String(tol),
+      solver,
+    ],
     { encoding: 'utf8' },
-  )
-    .trim()
-    .split(' ');
-  return [fits, diff, (performance.now() - start) / 1000];
+  );
+  if (timed.status !== 0) throw new Error(timed.stderr);
+  const [fits, diff] = timed.stdout.trim().split(' ');
+  const mb = Number(/peak-kb (\d+)/.exec(timed.stderr)?.[1] ?? Number.NaN) / 1024;
+  return [fits, diff, (performance.now() - start) / 1000, mb];
 };
 const ours = [];
 const theirs = [];
+const theirMb = [];
 let fast;
 for (let r = 0; r < runs; r++) {
   ours.push(foldseal());
   fast = ref(1e-4);
   theirs.push(fast[2]);
+  theirMb.push(fast[3]);
 }
 const oursS = median(ours.map((o) => o.s));
 const peakMb = median(ours.map((o) => o.mb));
@@ -79,7 +92,10 @@ const [tight, tightDiff] = ref(1e-10);
 const [exact, exactDiff, exactWhole] = ref(1e-10, 'newton-cholesky');
 console.log(`${rows} × ${features}, ${folds}-fold, standardize + logistic (l2 1); medians of ${runs} alternating runs`);
 console.log(`foldseal run (whole process): ${oursS.toFixed(2)} s (peak RSS ${peakMb.toFixed(0)} MB)`);
-console.log(`reference fits, lbfgs tol 1e-4 (its default): ${fast[0]} s (${theirsS.toFixed(2)} s as a whole process), max |Δp| ${fast[1]}`);
+console.log(
+  `reference fits, lbfgs tol 1e-4 (its default): ${fast[0]} s (${theirsS.toFixed(2)} s as a whole process, peak RSS ` +
+    `${median(theirMb).toFixed(0)} MB), max |Δp| ${fast[1]}`,
+);
 console.log(`reference fits, lbfgs tol 1e-10: ${tight} s, max |Δp| ${tightDiff}`);
 console.log(
   `reference fits, newton-cholesky tol 1e-10 (converged): ${exact} s (${exactWhole.toFixed(2)} s as a whole process), max |Δp| ${exactDiff}`,
