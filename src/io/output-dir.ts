@@ -58,17 +58,7 @@ export async function openOutputDir(dir: string, force: boolean, shownAs: string
   try {
     await recover(parent, name, dir);
     state = await folderState(dir);
-    if (state.kind === 'foreign') {
-      throw new FoldsealError(
-        error(
-          'refuse-foreign-folder',
-          `${shownAs} ${state.why}, so foldseal will not replace ` +
-            `it${force ? ' (--force replaces only a results folder foldseal wrote)' : ''}`,
-          { file: shownAs, hint: 'choose an empty or new folder with --out' },
-        ),
-        2,
-      );
-    }
+    if (state.kind === 'foreign') throw foreignFolder(shownAs, state.why, force);
     if (state.kind === 'ours' && !force) {
       throw new FoldsealError(
         error('refuse-overwrite', `${shownAs} already exists`, {
@@ -107,6 +97,11 @@ export async function openOutputDir(dir: string, force: boolean, shownAs: string
     async commit(files) {
       try {
         for (const [file, content] of Object.entries(files)) await writeDurably(join(temp, file), content);
+        // The folds ran since the folder was checked: it is replaced only if it is still what it was
+        // (a file put into a results folder meanwhile would go with it).
+        const now = await folderState(dir);
+        if (now.kind !== state.kind)
+          throw foreignFolder(shownAs, `${now.kind === 'foreign' ? now.why : 'is not what it was'} (it changed while foldseal ran)`, force);
         if (state.kind === 'ours') {
           const aside = await mkdtemp(join(parent, `.${name}${OLD}`));
           await rename(dir, join(aside, 'previous'));
@@ -125,6 +120,17 @@ export async function openOutputDir(dir: string, force: boolean, shownAs: string
       await release();
     },
   };
+}
+
+function foreignFolder(shownAs: string, why: string, force: boolean): FoldsealError {
+  return new FoldsealError(
+    error(
+      'refuse-foreign-folder',
+      `${shownAs} ${why}, so foldseal will not replace it${force ? ' (--force replaces only a results folder foldseal wrote)' : ''}`,
+      { file: shownAs, hint: 'choose an empty or new folder with --out' },
+    ),
+    2,
+  );
 }
 
 function shown(path: string, shownDir: string, dir: string): string {

@@ -284,3 +284,22 @@ t.test('predictions.csv is written into the new folder as it is made; a failure 
   t.ok(existsSync(join(dir, '.res.foldseal-lock')), "an abort after the commit leaves another writer's lock alone");
   t.ok(existsSync(join(dir, 'res', 'predictions.csv')));
 });
+
+t.test('a results folder that changed while the folds ran is not replaced: the file put there stays', async (t) => {
+  const dir = project();
+  t.equal((await cli(['run', 'demo.yaml', '--out', 'res'], dir)).code, 0);
+  const out = await openOutputDir(join(dir, 'res'), true, 'res');
+  out.stream('predictions.csv', [Buffer.from('id\n')]);
+  // While the run fits its folds, someone saves a file into the old results folder.
+  writeFileSync(join(dir, 'res', 'notes.txt'), 'mine\n');
+  await t.rejects(out.commit({ 'manifest.json': '{}\n' }), {
+    message: /res holds 1 entry foldseal did not write \(notes\.txt\) \(it changed while foldseal ran\)/,
+  });
+  t.equal(readFileSync(join(dir, 'res', 'notes.txt'), 'utf8'), 'mine\n', 'the file put there is kept');
+  t.ok(complete(join(dir, 'res')), 'and the old results with it');
+  t.same(
+    readdirSync(dir).filter((e) => e.startsWith('.res')),
+    [],
+    'no new folder and no lock are left',
+  );
+});
