@@ -22,22 +22,32 @@ export function openIdentified(path: string): { fd: number; identity: FileIdenti
   } catch {
     return undefined;
   }
-  const st = fstatSync(fd);
-  if (!st.isFile()) {
+  if (!fstatSync(fd).isFile()) {
     closeSync(fd);
     return undefined;
   }
-  return { fd, identity: { dev: st.dev, ino: st.ino, size: st.size, mtimeMs: st.mtimeMs } };
+  return { fd, identity: identityOf(fd) };
 }
 
-/** The file at `path` opened again, refused unless it is the same file, unchanged. */
-export function reopen(path: string, identity: FileIdentity, shownAs: string): number {
+/** The identity of an open file now. */
+export function identityOf(fd: number): FileIdentity {
+  const st = fstatSync(fd);
+  return { dev: st.dev, ino: st.ino, size: st.size, mtimeMs: st.mtimeMs };
+}
+
+/** The file at `path` opened again; undefined unless it is the same file, unchanged. */
+export function openedAgain(path: string, identity: FileIdentity): number | undefined {
   const opened = openIdentified(path);
-  if (!opened || !sameFile(opened.identity, identity)) {
-    if (opened) closeSync(opened.fd);
-    throw changedWhileRead(shownAs);
-  }
-  return opened.fd;
+  if (opened && sameFile(opened.identity, identity)) return opened.fd;
+  if (opened) closeSync(opened.fd);
+  return undefined;
+}
+
+/** openedAgain, refused with data-changed-while-read when it is not the same file. */
+export function reopen(path: string, identity: FileIdentity, shownAs: string): number {
+  const fd = openedAgain(path, identity);
+  if (fd === undefined) throw changedWhileRead(shownAs);
+  return fd;
 }
 
 export function sameFile(a: FileIdentity, b: FileIdentity): boolean {

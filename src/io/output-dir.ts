@@ -5,7 +5,9 @@
  * - the new folder is written to a hidden sibling, the old one is moved aside, the new one renamed
  *   in, then the old one deleted: a crash leaves the old or the new complete folder (or, for the
  *   instant between the two renames, the old one aside, which the next run puts back);
- * - one writer at a time per folder: a lock file beside it holds the writer's pid.
+ * - one writer at a time per folder: a lock file beside it holds the writer's pid;
+ * - the folder is checked when it is opened and again just before the swap (a run fits its folds
+ *   in between).
  */
 import { mkdir, mkdtemp, open, readdir, readFile, rename, rm, rmdir, lstat, unlink, writeFile } from 'node:fs/promises';
 import { basename, dirname, join } from 'node:path';
@@ -20,16 +22,6 @@ const OLD = '.foldseal-old-';
 const LIST = 5;
 
 type FolderState = { kind: 'absent' | 'empty' | 'ours' } | { kind: 'foreign'; why: string };
-
-export async function writeOutputDir(
-  dir: string,
-  files: Record<string, string | Uint8Array>,
-  force: boolean,
-  shownAs: string,
-): Promise<void> {
-  const out = await openOutputDir(dir, force, shownAs);
-  await out.commit(files);
-}
 
 /**
  * A results folder being written: files streamed in as they are made, the rest and the swap at

@@ -13,7 +13,7 @@ import type { NumberColumnsDone } from './parquet-pages.js';
 import type { FoldThreadData } from './fold-jobs.js';
 import { closeSync } from 'node:fs';
 import { FoldsealError } from '../problems/problem.js';
-import { fdReader, openIdentified, sameFile, type FileIdentity } from './file-identity.js';
+import { fdReader, openedAgain, type FileIdentity } from './file-identity.js';
 import type { LineIndex } from '../table/line-index.js';
 import { extractStretches, STRETCH, type StretchClaims } from '../table/streamed-grid.js';
 
@@ -84,14 +84,6 @@ let queue = Promise.resolve();
 parentPort!.on('message', (job: Job | FoldsMessage) => {
   queue = queue.then(() => (job.kind === 'prepare-folds' || job.kind === 'folds' ? folds(job) : run(job)));
 });
-
-/** The file opened again, or undefined when it is not the same unchanged file. */
-function openedAgain(path: string, identity: FileIdentity): number | undefined {
-  const opened = openIdentified(path);
-  if (opened && sameFile(opened.identity, identity)) return opened.fd;
-  if (opened) closeSync(opened.fd);
-  return undefined;
-}
 
 /** SHA-256 of the file read in stretches into one buffer; undefined when it is not the same file any more. */
 function fileSha256(path: string, identity: FileIdentity): string | undefined {

@@ -10,9 +10,9 @@
  * read stops with `data-changed-while-read`: the hash and the rows must come from one file.
  */
 import { createHash, type Hash } from 'node:crypto';
-import { closeSync, fstatSync } from 'node:fs';
+import { closeSync } from 'node:fs';
 import type { Problem } from '../problems/problem.js';
-import { changedWhileRead, fdReader, type FileIdentity, openIdentified, reopen, sameFile } from './file-identity.js';
+import { changedWhileRead, fdReader, type FileIdentity, identityOf, openIdentified, reopen, sameFile } from './file-identity.js';
 import { describe as describeColumns, type Described } from '../table/covariates.js';
 import { SIGNATURES } from '../table/content-check.js';
 import { LineIndexer, type LineIndex } from '../table/line-index.js';
@@ -124,9 +124,4 @@ export function readStreamed(
   } finally {
     closeSync(fd);
   }
-}
-
-function identityOf(fd: number): FileIdentity {
-  const st = fstatSync(fd);
-  return { dev: st.dev, ino: st.ino, size: st.size, mtimeMs: st.mtimeMs };
 }
