@@ -214,6 +214,7 @@ async function validateWithData(
     return { ...parsed, problems, paths };
   }
   // The declared hashes are of the bytes on disk; a gzip file is then read as its text.
+  // A streamed table is built already: no content is read again (the empty bytes are never parsed).
   const text = streamed
     ? { content: new Uint8Array(0), problem: undefined }
     : await tableContent(data.bytes!, shown(paths.data), at(['data', 'file']), rowThread);
@@ -245,7 +246,8 @@ async function validateWithData(
     return { ...parsed, problems, paths };
   }
   // The second thread parses half of a plain, uncompressed samples-in-rows file; other files are read here.
-  const simple = text.content === data.bytes && p.data.layout === 'samples-in-rows' && !sheet && !p.data.where && !p.data.classes;
+  const simple =
+    !streamed && text.content === data.bytes && p.data.layout === 'samples-in-rows' && !sheet && !p.data.where && !p.data.classes;
   const helper = simple ? rowThread : undefined;
   if (helper && hashesIds(p.split) && p.data.id !== undefined)
     helper.expectKeys({ idColumn: p.data.id, seed: p.split.seed ?? 0, repeats: p.split.repeats });
