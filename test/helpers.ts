@@ -1,7 +1,7 @@
 /** Test fixtures: temporary folders with data and protocols, and a runner for the built binary. */
 import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
-import { existsSync, mkdtempSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import type { Test } from 'tap';
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
@@ -26,8 +26,15 @@ export function sha256(text: string | Uint8Array): string {
   return createHash('sha256').update(text).digest('hex');
 }
 
+/** Folders tempDir made in this test process; removed when it exits, so runs do not pile up in the system's temporary folder. */
+const made: string[] = [];
+process.once('exit', () => {
+  for (const dir of made) rmSync(dir, { recursive: true, force: true, maxRetries: 2 });
+});
+
 export function tempDir(files: Record<string, string | Uint8Array> = {}): string {
   const dir = mkdtempSync(join(tmpdir(), 'foldseal-test-'));
+  made.push(dir);
   for (const [name, content] of Object.entries(files)) {
     mkdirSync(dirname(join(dir, name)), { recursive: true });
     writeFileSync(join(dir, name), content);

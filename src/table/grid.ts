@@ -10,7 +10,10 @@ export interface Extracted {
   failed: number[];
   /** Per text column, every row's text. */
   texts: string[][];
-  /** Known already: every number is finite and in the safe range (numeric.ts), so no cell failed (a reader that checked while decoding). */
+  /**
+   * Known already: every number that parsed is in the safe range (numeric.ts), so there is nothing
+   * to look for again; the cells that failed are in `failed` (a reader that checked while decoding).
+   */
   inRange?: boolean;
 }
 

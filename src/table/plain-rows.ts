@@ -4,12 +4,15 @@
  */
 import { decodeSpan } from './grid.js';
 import { parseNumberBytes } from './number.js';
+import { inSafeRange } from './numeric.js';
 
 const POW10 = [1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15];
 
 /** Rows [from, to) extracted elsewhere (another thread), into the shared numbers array. */
 export interface RowsPart {
   failed: number[];
+  /** Cells that parsed to a number outside the safe range (numeric.ts); the common shape never is. */
+  outOfRange: number;
   /** Start and end byte of each text cell, [(row - from) * textCols + k] pairs. */
   spans: Int32Array;
 }
@@ -49,6 +52,7 @@ export function extractRows(
     textSlot[c] = j;
   });
   const failed: number[] = [];
+  let outOfRange = 0;
   const spans = new Int32Array(rows * textCols.length * 2);
   for (let r = from; r < to; r++) {
     let i = t.rowStart[r] - base;
@@ -58,7 +62,8 @@ export function extractRows(
       const j = numberSlot[c];
       if (j >= 0) {
         // The common shape [-]digits[.digits] with at most 15 digits is exact as mantissa / 10^k
-        // (Clinger 1990); anything else goes to the full parser.
+        // (Clinger 1990), and 0 or between 1e-15 and 1e15 in magnitude, so in the safe range;
+        // anything else goes to the full parser.
         let negative = false;
         if (i < end && bytes[i] === 0x2d) {
           negative = true;
@@ -91,6 +96,7 @@ export function extractRows(
           while (i < end && bytes[i] !== delimiter) i++;
           v = parseNumberBytes(bytes, start, i);
           if (v !== v) failed.push(r * width + j);
+          else if (!inSafeRange(v)) outOfRange++;
         }
         numbers[r * width + j] = v;
       } else {
@@ -111,7 +117,7 @@ export function extractRows(
   }
   // Cells were met in file order; listed feature order may differ within a row.
   failed.sort((a, b) => a - b);
-  return { failed, spans };
+  return { failed, outOfRange, spans };
 }
 
 /** Text of every text cell, per text column, from the row parts' spans in row order. */

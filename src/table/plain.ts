@@ -179,7 +179,7 @@ export function plainGrid(t: PlainTable, helper?: RowHelper): Grid {
 function extractPlain(t: PlainTable, numberCols: readonly number[], textCols: readonly number[]): Extracted | undefined {
   const numbers = new Float64Array(t.rows * numberCols.length);
   const part = extractRows(t, numberCols, textCols, 0, t.rows, numbers);
-  return part && { numbers, failed: part.failed, texts: decodeTexts(t.bytes, [part.spans], textCols.length) };
+  return part && { numbers, failed: part.failed, texts: decodeTexts(t.bytes, [part.spans], textCols.length), inRange: part.outOfRange === 0 };
 }
 
 function extractShared(
@@ -195,5 +195,10 @@ function extractShared(
   const lower = extractRows(t, numberCols, textCols, 0, mid, numbers);
   const other = upper();
   if (!lower || !other) return undefined;
-  return { numbers, failed: [...lower.failed, ...other.failed], texts: decodeTexts(t.bytes, [lower.spans, other.spans], textCols.length) };
+  return {
+    numbers,
+    failed: [...lower.failed, ...other.failed],
+    texts: decodeTexts(t.bytes, [lower.spans, other.spans], textCols.length),
+    inRange: lower.outOfRange + other.outOfRange === 0,
+  };
 }

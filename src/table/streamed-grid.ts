@@ -137,10 +137,12 @@ export function streamedGrid(ix: LineIndex, read: { rows: ReadInto; cells: ReadI
       const upper = helper?.start(numberCols, textCols, claims, numbers);
       const texts = textCols.map(() => new Array<string>(ix.rows));
       const failed: number[] = [];
+      let outOfRange = 0;
       const whole = claimStretches(ix, claims, false, read.rows, (bytes, base, from, to) => {
         const part = extractRows(rowBytes(bytes), numberCols, textCols, from, to, numbers, base);
         if (!part) return false;
         for (const f of part.failed) failed.push(f);
+        outOfRange += part.outOfRange;
         const { spans } = part;
         for (let r = from, o = 0; r < to; r++)
           for (let k = 0; k < textCols.length; k++, o += 2) texts[k][r] = decodeSpan(bytes, spans[o], spans[o + 1]);
@@ -150,11 +152,12 @@ export function streamedGrid(ix: LineIndex, read: { rows: ReadInto; cells: ReadI
       if (!whole || (upper && !other)) return undefined;
       if (other) {
         for (const f of other.failed) failed.push(f);
+        outOfRange += other.outOfRange;
         const { spans, arena } = other;
         for (let r = other.from, o = 0; r < ix.rows; r++)
           for (let k = 0; k < textCols.length; k++, o += 2) texts[k][r] = decodeSpan(arena, spans[o], spans[o + 1]);
       }
-      return { numbers, failed, texts };
+      return { numbers, failed, texts, inRange: outOfRange === 0 };
     },
   };
 }
@@ -174,6 +177,7 @@ export function extractStretches(
 ): StretchRows | undefined {
   // Claimed from the back: each stretch's failed cells and spans are kept apart, then put in row order.
   const parts: { failed: number[]; spans: Int32Array }[] = [];
+  let outOfRange = 0;
   let arena = new Uint8Array(1 << 16);
   let used = 0;
   let from = ix.rows;
@@ -203,6 +207,7 @@ export function extractStretches(
       spans[o + 1] = used;
     }
     parts.push({ failed: part.failed, spans });
+    outOfRange += part.outOfRange;
     from = r0;
     return true;
   });
@@ -214,5 +219,5 @@ export function extractStretches(
     spans.set(p.spans, at);
     at += p.spans.length;
   }
-  return { failed: parts.flatMap((p) => p.failed), spans, arena: arena.subarray(0, used), from };
+  return { failed: parts.flatMap((p) => p.failed), outOfRange, spans, arena: arena.subarray(0, used), from };
 }

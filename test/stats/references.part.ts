@@ -6,7 +6,7 @@
 // - bootstrap draws and permutations: the vectors of docs/resample-spec.md §7, produced by an independent
 //   Python reading of the spec (resample_v1.py), which CI re-runs on them.
 import { spawnSync } from 'node:child_process';
-import { readFileSync, writeFileSync } from 'node:fs';
+import { readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { root } from '../helpers.js';
@@ -123,6 +123,7 @@ t.test('the independent Python reading of the spec agrees with the vectors', asy
       .join('\n') + '\n',
   );
   const r = spawnSync(python, [join(root, 'test/reference/resample_v1.py'), 'check', file], { encoding: 'utf8' });
+  rmSync(file, { force: true });
   // CI installs Debian's python3; a machine without it cannot run this cross-check.
   t.equal(r.error, undefined, `${python} runs`);
   t.equal(r.status, 0, r.stdout + r.stderr);
