@@ -4,7 +4,7 @@
 // peak-memory case). Each side is a
 // whole process (start-up, reading the file, the folds, writing predictions); best of 3.
 import { execFileSync, spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync } from 'node:fs';
+import { existsSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 
@@ -31,16 +31,19 @@ function time(cmd, args) {
 
 const scratch = mkdtempSync(join(tmpdir(), 'foldseal-bench-'));
 const rows = [];
+// `node bench/run.mjs a c` runs only those cases.
+const only = process.argv.slice(2);
 for (const [name, file, label] of [
   ['a', 'a-100k-x50.csv', '100,000 × 50, stratified 10-fold, gaussian-nb'],
   ['b', 'b-200-x20000.csv', '200 × 20,000, 10 × 5-fold, standardize + top-100 f-test + gaussian-nb'],
   ['c', 'c-1m-x20.csv', '1,000,000 × 20, stratified 5-fold, gaussian-nb'],
   ['d', 'd-1m-x50.csv', '1,000,000 × 50, stratified 5-fold, gaussian-nb (memory: ≤ 1.5 × the 400 MB matrix + 100 MB = 700 MB)'],
-]) {
+].filter(([name]) => only.length === 0 || only.includes(name))) {
   const ours = time(process.execPath, [bin, 'run', join(out, `${name}.yaml`), '--out', join(scratch, name), '--force']);
   const theirs = time(python, [join(here, 'reference.py'), name, join(out, file), join(scratch, `${name}-ref.csv`)]);
   rows.push({ name, label, ours, theirs, ratio: ours.s / theirs.s });
 }
+rmSync(scratch, { recursive: true, force: true });
 for (const r of rows)
   console.log(
     `(${r.name}) ${r.label}: foldseal ${r.ours.s.toFixed(2)} s (peak RSS ${r.ours.mb.toFixed(0)} MB), ` +

@@ -2,7 +2,7 @@
 import { predictedClasses } from '../metric/types.js';
 import type { ModelKind, ReconcileRule, TieRule } from '../protocol/types.js';
 import { compareUtf8 } from '../util/bytes.js';
-import { csvCell, csvLine } from '../table/csv-write.js';
+import { csvCell, csvLine, numberText } from '../table/csv-write.js';
 import type { NewRows } from '../table/new-rows.js';
 import type { HeldOut } from './held-out.js';
 import type { SavedModel } from './models-file.js';
@@ -78,7 +78,7 @@ export function appliedCsv(
   for (const r of rows) {
     parts.push(
       `${csvCell(r.id)},${labels ? `${csvCell(labels.get(r.id) ?? '')},` : ''}${r.source},${r.predicted === -1 ? '' : csvCell(classes[r.predicted])},${r.agreement},` +
-        `${Array.from(r.values, String).join(',')}\n`,
+        `${Array.from(r.values, numberText).join(',')}\n`,
     );
   }
   return parts.join('');

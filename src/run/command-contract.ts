@@ -3,7 +3,7 @@
  * as pure text: the tables and request a program is given, the per-fold seed, and the check of
  * the probabilities it returns. Running the program is the shell's (src/io/command-model.ts).
  */
-import { csvCells } from '../table/csv-write.js';
+import { csvCells, numberText } from '../table/csv-write.js';
 import { readDelimited, textColumn } from '../table/delimited.js';
 import type { Matrix } from '../table/matrix.js';
 import { sha256Bytes } from '../util/sha256.js';
@@ -30,7 +30,7 @@ export function contractCsv(ids: readonly string[], names: readonly string[], X:
     const cells = [idCells[r]];
     if (labelCells) cells.push(labelCells[r]);
     // The shortest decimal that reads back as the same double, as Python's float() and R's as.numeric parse it.
-    for (let j = 0; j < X.cols; j++) cells.push(String(X.data[r * X.cols + j]));
+    for (let j = 0; j < X.cols; j++) cells.push(numberText(X.data[r * X.cols + j]));
     lines.push(cells.join(','));
   }
   return lines.join('\n') + '\n';

@@ -4,7 +4,7 @@
  */
 import { predictedClasses } from '../metric/types.js';
 import { idOrder } from '../split/key.js';
-import { csvCell, csvCells, csvLine, TextBuilder } from '../table/csv-write.js';
+import { csvCell, csvCells, csvLine, numberText, TextBuilder } from '../table/csv-write.js';
 import type { Table } from '../table/table.js';
 import type { CvResult } from './cross-validate.js';
 
@@ -55,7 +55,7 @@ function* predictionLines(cv: CvResult, table: Table): Generator<string> {
       const fold = testedIn[row];
       if (fold === 0) continue;
       let line = quotedIds[row] + repeat + fold + ',' + quotedClass[table.y[row]] + ',' + quotedClass[predicted[row]];
-      for (let c = 0; c < k; c++) line += ',' + proba[row * k + c];
+      for (let c = 0; c < k; c++) line += ',' + numberText(proba[row * k + c]);
       pending += line + '\n';
       if (pending.length >= 1 << 16) {
         yield pending;
