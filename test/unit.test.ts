@@ -4,6 +4,7 @@
  * reference libraries, the browser) stay files of their own and run side by side.
  */
 import './architecture.part.js';
+import './util/byte-builder.part.js';
 import './protocol/structure.part.js';
 import './reconcile/hand-made.part.js';
 import './manifest/compare.part.js';

@@ -1,7 +1,7 @@
 /** The result manifest: everything a reviewer needs to check a run, as plain JSON. Pure. */
 import { SPLIT_VERSION, type Assignment } from '../split/assignment.js';
 import { idOrder } from '../split/key.js';
-import { TextBuilder } from '../table/csv-write.js';
+import { ByteBuilder } from '../util/byte-builder.js';
 import { CanonicalText } from './canonical.js';
 import type { Table } from '../table/table.js';
 
@@ -44,18 +44,25 @@ export function assignmentTriples(a: Assignment, limit = Number.POSITIVE_INFINIT
   return triples;
 }
 
-/** JSON.stringify(assignmentTriples(a)), written directly: the same text without a small array per row. */
-export function assignmentTriplesJson(a: Assignment): string {
-  const out = new TextBuilder();
-  let sep = '';
-  out.add('[');
+/** JSON.stringify(assignmentTriples(a)) as UTF-8, written directly: the same text without a small array or a string per row. */
+export function assignmentTriplesJson(a: Assignment): Uint8Array {
+  const out = new ByteBuilder(a.ids.length * a.repeats * 20 + 64);
+  let first = true;
+  out.byte(0x5b); // [
   eachTriple(a, (id, r, fold) => {
-    out.add(`${sep}[${JSON.stringify(id)},${r},${fold}]`);
-    sep = ',';
+    if (!first) out.byte(0x2c);
+    first = false;
+    out.byte(0x5b);
+    out.jsonString(id);
+    out.byte(0x2c);
+    out.int(r);
+    out.byte(0x2c);
+    out.int(fold);
+    out.byte(0x5d);
     return true;
   });
-  out.add(']');
-  return out.text();
+  out.byte(0x5d);
+  return out.result();
 }
 
 /**

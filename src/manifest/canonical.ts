@@ -14,19 +14,30 @@ import { TextBuilder } from '../table/csv-write.js';
  * Whoever makes one vouches for its canonical form (tests compare it with the general writer).
  */
 export class CanonicalText {
-  constructor(readonly json: string) {}
+  /** The text, or its UTF-8 bytes. */
+  constructor(readonly json: string | Uint8Array) {}
 }
 
 export function canonicalJson(value: unknown): string {
   const parts: string[] = [];
-  write(value, [], (text) => parts.push(text));
+  write(
+    value,
+    [],
+    (text) => parts.push(text),
+    (bytes) => parts.push(Buffer.from(bytes.buffer, bytes.byteOffset, bytes.length).toString('utf8')),
+  );
   return parts.join('');
 }
 
 /** canonicalJson's UTF-8 bytes, then `after`, written straight into one buffer (a million-row manifest never becomes one string). */
 export function canonicalBytes(value: unknown, after = ''): Uint8Array {
   const out = new TextBuilder(1 << 16);
-  write(value, [], (text) => out.add(text));
+  write(
+    value,
+    [],
+    (text) => out.add(text),
+    (bytes) => out.addBytes(bytes),
+  );
   out.add(after);
   return out.utf8();
 }
@@ -35,10 +46,11 @@ export function canonicalSha256(value: unknown): string {
   return sha256Bytes(canonicalJson(value));
 }
 
-/** The canonical text of `value`, handed to `emit` piece by piece in order. */
-function write(value: unknown, path: (string | number)[], emit: (text: string) => void): void {
+/** The canonical text of `value`, handed to `emit` piece by piece in order (pieces that are bytes already to `emitBytes`). */
+function write(value: unknown, path: (string | number)[], emit: (text: string) => void, emitBytes: (bytes: Uint8Array) => void): void {
   if (value instanceof CanonicalText) {
-    emit(value.json);
+    if (typeof value.json === 'string') emit(value.json);
+    else emitBytes(value.json);
     return;
   }
   if (value === null || typeof value === 'string' || typeof value === 'boolean') {
@@ -61,7 +73,7 @@ function write(value: unknown, path: (string | number)[], emit: (text: string) =
     for (let i = 0; i < value.length; i++) {
       if (i > 0) emit(',');
       path.push(i);
-      write(value[i], path, emit);
+      write(value[i], path, emit, emitBytes);
       path.pop();
     }
     emit(']');
@@ -75,7 +87,7 @@ function write(value: unknown, path: (string | number)[], emit: (text: string) =
     for (let i = 0; i < names.length; i++) {
       emit(`${i > 0 ? ',' : ''}${JSON.stringify(names[i])}:`);
       path.push(names[i]);
-      write(record[names[i]], path, emit);
+      write(record[names[i]], path, emit, emitBytes);
       path.pop();
     }
     emit('}');

@@ -6,6 +6,7 @@
 import { error, type Problem } from '../problems/problem.js';
 import { featureDigests, featureHashes } from '../table/row-digest.js';
 import type { NewRows } from '../table/new-rows.js';
+import { ByteBuilder } from '../util/byte-builder.js';
 
 /** Where the training row of an id is, for the message: a file and line, or a description. */
 export type TrainingPlace = (id: string) => { where: string; file?: string; line?: number };
@@ -93,66 +94,43 @@ export class KnownRowList {
    * then the other keys as inserted. Ids are unique.
    */
   bytes(before = '', after = ''): Uint8Array {
+    const { ids, hashes } = this;
+    const n = ids.length;
     const indices: number[] = [];
-    const others: number[] = [];
     let idChars = 0;
-    for (let k = 0; k < this.ids.length; k++) {
-      (isArrayIndex(this.ids[k]) ? indices : others).push(k);
-      idChars += this.ids[k].length;
+    for (let k = 0; k < n; k++) {
+      if (isArrayIndex(ids[k])) indices.push(k);
+      idChars += ids[k].length;
     }
-    indices.sort((a, b) => Number(this.ids[a]) - Number(this.ids[b]));
+    indices.sort((a, b) => Number(ids[a]) - Number(ids[b]));
+    const isIndex = new Uint8Array(n);
+    for (const k of indices) isIndex[k] = 1;
     // Each member: "id":"16 hex digits" and a comma; ids that need escapes or are not ASCII grow it.
-    let out = Buffer.allocUnsafe(Buffer.byteLength(before) + Buffer.byteLength(after) + idChars + this.ids.length * 22 + 2);
-    let at = out.write(before, 0);
-    const room = (n: number) => {
-      if (at + n <= out.length) return;
-      const grown = Buffer.allocUnsafe(Math.max(out.length * 2, at + n));
-      out.copy(grown, 0, 0, at);
-      out = grown;
-    };
-    out[at++] = 0x7b; // {
+    const out = new ByteBuilder(Buffer.byteLength(before) + Buffer.byteLength(after) + idChars + n * 22 + 2);
+    out.text(before);
+    out.byte(0x7b); // {
     let first = true;
-    for (const list of [indices, others])
-      for (const k of list) {
-        const id = this.ids[k];
-        const escaped = plainAscii(id) ? undefined : JSON.stringify(id);
-        room((escaped === undefined ? id.length + 2 : Buffer.byteLength(escaped)) + 21);
-        if (!first) out[at++] = 0x2c;
-        first = false;
-        if (escaped === undefined) {
-          out[at++] = 0x22;
-          for (let i = 0; i < id.length; i++) out[at++] = id.charCodeAt(i);
-          out[at++] = 0x22;
-        } else at += out.write(escaped, at);
-        out[at++] = 0x3a; // :
-        out[at++] = 0x22;
-        at = hex8(out, at, this.hashes[2 * k]);
-        at = hex8(out, at, this.hashes[2 * k + 1]);
-        out[at++] = 0x22;
-      }
-    room(Buffer.byteLength(after) + 1);
-    out[at++] = 0x7d; // }
-    at += out.write(after, at);
-    return out.subarray(0, at);
+    const member = (k: number) => {
+      if (!first) out.byte(0x2c);
+      first = false;
+      out.jsonString(ids[k]);
+      out.byte(0x3a); // :
+      out.byte(0x22);
+      out.hex8(hashes[2 * k]);
+      out.hex8(hashes[2 * k + 1]);
+      out.byte(0x22);
+    };
+    for (const k of indices) member(k);
+    for (let k = 0; k < n; k++) if (isIndex[k] === 0) member(k);
+    out.byte(0x7d); // }
+    out.text(after);
+    return out.result();
   }
-}
-
-const HEX = Uint8Array.from('0123456789abcdef', (c) => c.charCodeAt(0));
-
-function hex8(out: Uint8Array, at: number, word: number): number {
-  for (let shift = 28; shift >= 0; shift -= 4) out[at++] = HEX[(word >>> shift) & 15];
-  return at;
-}
-
-/** Printable ASCII without a quote or a backslash: JSON writes it as it is. */
-function plainAscii(text: string): boolean {
-  for (let i = 0; i < text.length; i++) {
-    const c = text.charCodeAt(i);
-    if (c < 0x20 || c > 0x7e || c === 0x22 || c === 0x5c) return false;
-  }
-  return true;
 }
 
 function isArrayIndex(key: string): boolean {
+  // Most ids start with a letter: no pattern match for them.
+  const c = key.charCodeAt(0);
+  if (!(c >= 0x30 && c <= 0x39)) return false;
   return /^(?:0|[1-9]\d{0,9})$/.test(key) && Number(key) < 2 ** 32 - 1;
 }

@@ -179,7 +179,9 @@ export function plainGrid(t: PlainTable, helper?: RowHelper): Grid {
 function extractPlain(t: PlainTable, numberCols: readonly number[], textCols: readonly number[]): Extracted | undefined {
   const numbers = new Float64Array(t.rows * numberCols.length);
   const part = extractRows(t, numberCols, textCols, 0, t.rows, numbers);
-  return part && { numbers, failed: part.failed, texts: decodeTexts(t.bytes, [part.spans], textCols.length), inRange: part.outOfRange === 0 };
+  return (
+    part && { numbers, failed: part.failed, texts: decodeTexts(t.bytes, [part.spans], textCols.length), inRange: part.outOfRange === 0 }
+  );
 }
 
 function extractShared(

@@ -55,4 +55,8 @@ t.test('known rows from lists serialize as the object does', async (t) => {
       return Buffer.from(bytes).equals(Buffer.from(`${around}${JSON.stringify(knownRows(ids, m, ['v']))}${around}\n`));
     }),
   );
+  // Ids that escape to six times their length outgrow the first buffer: it grows, the text is the same.
+  const escapes = Array.from({ length: 200 }, (_, i) => '\u0001'.repeat(i + 1));
+  const m = { rows: escapes.length, cols: 1, data: Float64Array.from(escapes, (_, i) => i) };
+  t.equal(KnownRowList.of(escapes, m, ['v']).json(), JSON.stringify(knownRows(escapes, m, ['v'])), 'ids of control characters');
 });
