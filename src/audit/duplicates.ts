@@ -8,6 +8,7 @@ import { note, warning, type Problem } from '../problems/problem.js';
 import { AUDIT_CODE } from './kinds.js';
 import { type AuditInput, listed, plural, repeatsSpanned, rowAt } from './input.js';
 import { AUDIT_THRESHOLDS } from './thresholds.js';
+import { sortFloat64 } from '../util/sort-float64.js';
 
 function sameCell(a: number, b: number): boolean {
   return a === b || (a !== a && b !== b);
@@ -40,10 +41,10 @@ export function exactDuplicateSets(X: Matrix): Int32Array[] {
     }
     hash[r] = h >>> 0;
   }
-  // Sort (hash, row) pairs packed into one exact double (32 + 21 bits < 2^53): a native numeric sort.
+  // Sort (hash, row) pairs packed into one exact double (32 + 21 bits < 2^53): a numeric sort.
   const packed = new Float64Array(rows);
   for (let r = 0; r < rows; r++) packed[r] = hash[r] * 2097152 + r;
-  packed.sort();
+  sortFloat64(packed);
   const order = new Int32Array(rows);
   for (let r = 0; r < rows; r++) order[r] = packed[r] % 2097152;
   const sets: Int32Array[] = [];

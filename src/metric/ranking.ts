@@ -5,8 +5,9 @@
  * macro averages of one-vs-rest values over the classes present in the truth.
  */
 import { metric, type Scored } from './types.js';
+import { sortFloat64 } from '../util/sort-float64.js';
 
-/** Scores of the positive and the negative rows, each sorted ascending (native typed-array sorts). */
+/** Scores of the positive and the negative rows, each sorted ascending (in the native typed-array order). */
 function sortedByClass(score: Float64Array, positive: Uint8Array): { pos: Float64Array; neg: Float64Array } {
   let n1 = 0;
   for (let i = 0; i < positive.length; i++) n1 += positive[i];
@@ -18,7 +19,7 @@ function sortedByClass(score: Float64Array, positive: Uint8Array): { pos: Float6
     if (positive[i]) pos[a++] = score[i];
     else neg[b++] = score[i];
   }
-  return { pos: pos.sort(), neg: neg.sort() };
+  return { pos: sortFloat64(pos), neg: sortFloat64(neg) };
 }
 
 export function aucOf(score: Float64Array, positive: Uint8Array): number | null {

@@ -5,6 +5,7 @@
  */
 import { ShortHasher } from './sha256.js';
 import { compareUtf8 } from '../util/bytes.js';
+import { sortFloat64 } from '../util/sort-float64.js';
 
 const DOMAIN = 'foldseal/split-v1';
 const utf8 = new TextEncoder();
@@ -63,14 +64,14 @@ export function compareKeys(keys: Uint8Array, ids: readonly string[], i: number,
 /** `rows` sorted by key (ascending). */
 export function sortByKey(rows: Int32Array, keys: Uint8Array, ids: readonly string[]): Int32Array {
   // The first 4 key bytes and the row number packed into one double (exact below 2^53 while
-  // rows < 2^21) sort natively; only rows sharing those 4 bytes need the full comparison.
+  // rows < 2^21) sort as numbers; only rows sharing those 4 bytes need the full comparison.
   if (ids.length >= 2 ** 21) {
     const out = Int32Array.from(rows);
     return out.sort((i, j) => compareKeys(keys, ids, i, j));
   }
   const packed = new Float64Array(rows.length);
   for (let k = 0; k < rows.length; k++) packed[k] = keyPrefix32(keys, rows[k]) * 2 ** 21 + rows[k];
-  packed.sort();
+  sortFloat64(packed);
   const out = new Int32Array(rows.length);
   for (let k = 0; k < rows.length; k++) out[k] = packed[k] % 2 ** 21;
   for (let a = 0; a < out.length; ) {
