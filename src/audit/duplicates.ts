@@ -9,6 +9,7 @@ import { AUDIT_CODE } from './kinds.js';
 import { type AuditInput, listed, plural, repeatsSpanned, rowAt } from './input.js';
 import { AUDIT_THRESHOLDS } from './thresholds.js';
 import { sortFloat64 } from '../util/sort-float64.js';
+import { featureHashes } from '../table/row-digest.js';
 
 function sameCell(a: number, b: number): boolean {
   return a === b || (a !== a && b !== b);
@@ -20,33 +21,26 @@ function rowsEqual(X: Matrix, i: number, j: number): boolean {
   return true;
 }
 
-/** Sets of rows (ascending, two or more) with identical feature vectors, ordered by their first row. */
-export function exactDuplicateSets(X: Matrix): Int32Array[] {
-  const { rows, cols, data } = X;
-  const bits = new Uint32Array(data.buffer, data.byteOffset, data.length * 2);
+/**
+ * Sets of rows (ascending, two or more) with identical feature vectors, ordered by their first
+ * row. Candidates are found by the rows' featureHashes (equal rows hash alike: −0 as 0, every NaN
+ * as one), then compared cell by cell.
+ */
+export function exactDuplicateSets(X: Matrix, names: readonly string[], packBelow = 2097152): Int32Array[] {
+  const { rows } = X;
+  const hashes = featureHashes(X, names);
   const hash = new Uint32Array(rows);
-  for (let r = 0; r < rows; r++) {
-    let h = 0x811c9dc5;
-    for (let idx = r * cols, end = idx + cols; idx < end; idx++) {
-      // 0 and −0 are one value; every NaN is one value.
-      const v = data[idx];
-      let lo = bits[2 * idx];
-      let hi = bits[2 * idx + 1];
-      if (v === 0 || v !== v) {
-        lo = 0;
-        hi = v === 0 ? 0 : 0x7ff80000;
-      }
-      h = Math.imul(h ^ lo, 0x01000193);
-      h = Math.imul(h ^ hi, 0x01000193);
-    }
-    hash[r] = h >>> 0;
-  }
-  // Sort (hash, row) pairs packed into one exact double (32 + 21 bits < 2^53): a numeric sort.
-  const packed = new Float64Array(rows);
-  for (let r = 0; r < rows; r++) packed[r] = hash[r] * 2097152 + r;
-  sortFloat64(packed);
-  const order = new Int32Array(rows);
-  for (let r = 0; r < rows; r++) order[r] = packed[r] % 2097152;
+  for (let r = 0; r < rows; r++) hash[r] = hashes[2 * r];
+  let order: Int32Array;
+  if (rows < packBelow) {
+    // (hash, row) pairs packed into one exact double (32 + 21 bits < 2^53) sort as numbers; from
+    // 2^21 rows on, the row would spill into the hash, and a comparison sort takes over.
+    const packed = new Float64Array(rows);
+    for (let r = 0; r < rows; r++) packed[r] = hash[r] * 2097152 + r;
+    sortFloat64(packed);
+    order = new Int32Array(rows);
+    for (let r = 0; r < rows; r++) order[r] = packed[r] % 2097152;
+  } else order = Int32Array.from({ length: rows }, (_, r) => r).sort((a, b) => hash[a] - hash[b] || a - b);
   const sets: Int32Array[] = [];
   for (let s = 0; s < rows; ) {
     let e = s + 1;
@@ -154,7 +148,7 @@ function idsOf(input: AuditInput, rows: ArrayLike<number>): string[] {
 export function duplicateFindings(input: AuditInput, nearBudget: number = AUDIT_THRESHOLDS.nearMaxWork): Problem[] {
   const { table, assignment } = input;
   const out: Problem[] = [];
-  const sets = exactDuplicateSets(table.X);
+  const sets = exactDuplicateSets(table.X, table.featureNames);
   const inSet = new Int32Array(table.X.rows).fill(-1);
   sets.forEach((set, s) => {
     for (const r of set) inSet[r] = s;

@@ -45,22 +45,45 @@ export function rowDigests(table: Table, rows?: readonly number[]): string[] {
   return out;
 }
 
+/**
+ * A table's hashes of every row, made once: models.json's known rows and the audit's duplicate
+ * search both use them. Keyed by the numbers themselves, which a table never changes.
+ */
+const everyRow = new WeakMap<Float64Array, { names: readonly string[]; hashes: Uint32Array }>();
+
 /** The 64-bit hash of each row (or of rows[i] only, in that order): two 32-bit words per row, h1 then h2. */
 export function featureHashes(X: Matrix, names: readonly string[], rows?: readonly number[]): Uint32Array {
-  const order = nameOrder(names);
-  const values = new Float64Array(order.length);
-  const words = new Uint32Array(values.buffer);
+  if (!rows) {
+    const known = everyRow.get(X.data);
+    if (known && known.names.length === names.length && known.names.every((n, j) => n === names[j])) return known.hashes;
+  }
+  const order = Int32Array.from(nameOrder(names));
+  const m = order.length;
+  const { data, cols } = X;
+  // The values' bits, read in place: the low word of each double, then the high word (as a Float64Array's words lie).
+  const bits = new Uint32Array(data.buffer, data.byteOffset, data.length * 2);
   const count = rows ? rows.length : X.rows;
   const out = new Uint32Array(count * 2);
   for (let k = 0; k < count; k++) {
-    const r = rows ? rows[k] : k;
-    canonicalRow(X, r, order, values);
-    let h1 = 0x811c9dc5 ^ order.length;
+    const o = (rows ? rows[k] : k) * cols;
+    let h1 = 0x811c9dc5 ^ m;
     let h2 = 0x9747b28c;
-    for (let i = 0; i < words.length; i++) {
-      const w = words[i];
-      h1 = Math.imul(h1 ^ w, 0x01000193);
-      h2 = Math.imul(h2 ^ w, 0x5bd1e995);
+    for (let j = 0; j < m; j++) {
+      const idx = o + order[j];
+      const v = data[idx];
+      // −0 as 0, every NaN as the one quiet NaN.
+      let lo = 0;
+      let hi = 0;
+      if (v !== v) hi = 0x7ff80000;
+      else if (v !== 0) {
+        lo = bits[2 * idx];
+        hi = bits[2 * idx + 1];
+      }
+      h1 = Math.imul(h1 ^ lo, 0x01000193);
+      h2 = Math.imul(h2 ^ lo, 0x5bd1e995);
+      h2 ^= h2 >>> 15;
+      h1 = Math.imul(h1 ^ hi, 0x01000193);
+      h2 = Math.imul(h2 ^ hi, 0x5bd1e995);
       h2 ^= h2 >>> 15;
     }
     h1 = Math.imul(h1 ^ (h1 >>> 16), 0x85ebca6b);
@@ -68,6 +91,7 @@ export function featureHashes(X: Matrix, names: readonly string[], rows?: readon
     out[2 * k] = h1 >>> 0;
     out[2 * k + 1] = (h2 ^ (h2 >>> 16)) >>> 0;
   }
+  if (!rows) everyRow.set(X.data, { names: [...names], hashes: out });
   return out;
 }
 
