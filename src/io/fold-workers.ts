@@ -70,7 +70,7 @@ export async function crossValidateInWorkers(
   // other strategy comes as jobs from the executor, which the workers run as they are.
   if (threads < 2 || !import.meta.url.endsWith('.js') || strategyFor(p) === 'moments') {
     meanwhile();
-    return crossValidate(p, table, a, hooks);
+    return crossValidate(p, table, a, hooks, plans);
   }
   const parts = partsFor(p, plans.length, threads);
   const jobs = splitJobs(jobsFor(p, table, a, plans), parts);

@@ -21,6 +21,9 @@ const NEW = '.foldseal-new-';
 const OLD = '.foldseal-old-';
 const LIST = 5;
 
+/** What a manifest says about whose folder it is. */
+type Listing = { 'foldseal-manifest'?: unknown; files?: unknown };
+
 type FolderState = { kind: 'absent' | 'empty' | 'ours' } | { kind: 'foreign'; why: string };
 
 /**
@@ -170,17 +173,40 @@ async function isOurReport(path: string): Promise<boolean> {
  * `,"protocol":` is parsed alone. (That sequence cannot occur inside a JSON string, whose quotes
  * are escaped.) Any other manifest, or a prefix without both members, is parsed whole.
  */
-export function manifestListing(text: string): { 'foldseal-manifest'?: unknown; files?: unknown } | null {
+export function manifestListing(text: string): Listing | null {
+  return listingFromHead(text) ?? JSON.parse(text);
+}
+
+/** The members before `"protocol"` when they hold the version and the files (the canonical layout), else undefined. */
+function listingFromHead(text: string): Listing | undefined {
   const cut = text.indexOf(',"protocol":');
-  if (cut > 0) {
-    try {
-      const head = JSON.parse(`${text.slice(0, cut)}}`);
-      if (head && typeof head === 'object' && 'foldseal-manifest' in head && 'files' in head) return head;
-    } catch {
-      // Not the canonical layout: parsed whole below.
-    }
+  if (cut <= 0) return undefined;
+  try {
+    const head = JSON.parse(`${text.slice(0, cut)}}`);
+    if (head && typeof head === 'object' && 'foldseal-manifest' in head && 'files' in head) return head;
+  } catch {
+    // Not the canonical layout: parsed whole.
   }
-  return JSON.parse(text);
+  return undefined;
+}
+
+/**
+ * manifestListing of the file, read only as far as its first 256 KB when the list is there (a
+ * million-row manifest is not read whole, twice, to learn which files it lists).
+ */
+async function readManifestListing(path: string): Promise<Listing | null> {
+  const handle = await open(path, 'r');
+  let text: string;
+  let whole: boolean;
+  try {
+    const head = Buffer.alloc(1 << 18);
+    const { bytesRead } = await handle.read(head, 0, head.length, 0);
+    whole = bytesRead < head.length;
+    text = head.toString('utf8', 0, bytesRead);
+  } finally {
+    await handle.close();
+  }
+  return (whole ? undefined : listingFromHead(text)) ?? manifestListing(whole ? text : await readFile(path, 'utf8'));
 }
 
 /** What is at `dir` now: nothing, an empty folder, a results folder of ours, or something else. */
@@ -196,7 +222,7 @@ async function folderState(dir: string): Promise<FolderState> {
   if (entries.length === 0) return { kind: 'empty' };
   let listed: Set<string>;
   try {
-    const manifest = manifestListing(await readFile(join(dir, 'manifest.json'), 'utf8'));
+    const manifest = await readManifestListing(join(dir, 'manifest.json'));
     if (!manifest || typeof manifest['foldseal-manifest'] !== 'number' || typeof manifest.files !== 'object' || manifest.files === null)
       throw new Error('not ours');
     listed = new Set(['manifest.json', 'manifest.json.sig', ...Object.keys(manifest.files)]);

@@ -31,7 +31,8 @@ export function canonicalJson(value: unknown): string {
 
 /** canonicalJson's UTF-8 bytes, then `after`, written straight into one buffer (a million-row manifest never becomes one string). */
 export function canonicalBytes(value: unknown, after = ''): Uint8Array {
-  const out = new TextBuilder(1 << 16);
+  // Room for the large pieces at once: a buffer that doubled past them would hold up to twice their size.
+  const out = new TextBuilder(spliced(value) + (1 << 16));
   write(
     value,
     [],
@@ -94,6 +95,15 @@ function write(value: unknown, path: (string | number)[], emit: (text: string) =
     return;
   }
   fail(path, typeof value);
+}
+
+/** The bytes of the CanonicalText pieces in `value` (at most, for texts: three per UTF-16 unit). */
+function spliced(value: unknown): number {
+  if (value instanceof CanonicalText) return typeof value.json === 'string' ? value.json.length * 3 : value.json.length;
+  if (value === null || typeof value !== 'object') return 0;
+  let sum = 0;
+  for (const v of Array.isArray(value) ? value : Object.values(value)) if (v !== null && typeof v === 'object') sum += spliced(v);
+  return sum;
 }
 
 /** Only strings, finite numbers, booleans, null, and arrays of those, one level deep. */

@@ -95,9 +95,8 @@ export function planFolds(p: Protocol, table: Table, a: Assignment): FoldPlan[] 
   return plans;
 }
 
-/** Every fold on this thread (the executor decides how); the shell may run the executor's jobs on workers instead. */
-export function crossValidate(p: Protocol, table: Table, a: Assignment, hooks: CvHooks = {}): CvResult {
-  const plans = planFolds(p, table, a);
+/** Every fold on this thread (the executor decides how); the shell may run the executor's jobs on workers instead. `plans`: planFolds, when made already. */
+export function crossValidate(p: Protocol, table: Table, a: Assignment, hooks: CvHooks = {}, plans = planFolds(p, table, a)): CvResult {
   return assembleResult(p, table, a, plans, runAll(p, table, a, plans, hooks.onFold));
 }
 

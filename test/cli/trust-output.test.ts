@@ -76,6 +76,15 @@ t.test('a manifest is read for its version and files from its head, or whole whe
   writeFileSync(join(dir, 'res', 'manifest.json'), reordered);
   t.equal((await cli(['run', 'demo.yaml', '--out', 'res', '--force'], dir)).code, 0);
   t.ok(complete(join(dir, 'res')));
+  // Past the first 256 KB read from the file: the head alone, or the whole file when the head is not it.
+  const big = { ...JSON.parse(readFileSync(join(dir, 'res', 'manifest.json'), 'utf8')), zzz: 'x'.repeat(300_000) };
+  for (const [what, text] of [
+    ['canonical', JSON.stringify(big)],
+    ['reordered', JSON.stringify({ zzz: big.zzz, ...big }, null, 1)],
+  ] as const) {
+    writeFileSync(join(dir, 'res', 'manifest.json'), text);
+    t.equal((await cli(['run', 'demo.yaml', '--out', 'res', '--force'], dir)).code, 0, `a large ${what} manifest is ours`);
+  }
 });
 
 t.test('kill -9 at any moment: the old or the new complete folder, and the next run cleans up', async (t) => {

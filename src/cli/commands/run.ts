@@ -90,6 +90,14 @@ async function finish(
   if (!input || !out || !folder) return 1;
   reportProblems(io, out.cv.warnings, 'text');
   const dir = folder.dir;
+  // The files made already go into the new folder now, and their bytes are let go before the
+  // manifest is built (on a million rows each is tens of megabytes).
+  const early = Object.keys(out.files) as (keyof RunOutput['files'])[];
+  for (const name of early) {
+    const content = out.files[name]!;
+    folder.out.stream(name, [typeof content === 'string' ? Buffer.from(content) : content]);
+    delete (out.files as Partial<RunOutput['files']>)[name];
+  }
   const { bytes } = manifestForRun(input, out, {
     tool: toolInfo(),
     created: new Date().toISOString(),
@@ -101,7 +109,7 @@ async function finish(
     validate: schemaValidator(MANIFEST_SCHEMA),
     textOnly: true,
   });
-  const written: Record<string, string | Uint8Array> = { ...out.files, 'manifest.json': bytes };
+  const written: Record<string, string | Uint8Array> = { 'manifest.json': bytes };
   // An SSH key signs the manifest's bytes in manifest.json.sig, the file `ssh-keygen -Y verify` reads.
   if (key?.kind === 'ssh') {
     const { encodeSshsig, MANIFEST_NAMESPACE, sshsigSignedData } = await import('../../manifest/ssh.js');
@@ -126,7 +134,7 @@ async function finish(
     written['report.html'] = built.html;
   }
   io.out(
-    `wrote ${[...Object.keys(written), 'predictions.csv'].sort().join(', ')} to ` +
+    `wrote ${[...early, ...Object.keys(written), 'predictions.csv'].sort().join(', ')} to ` +
       `${shown(dir)}${key?.kind === 'ssh' ? ` (manifest signed with SSH key ${key.describe})` : key ? ' (manifest signed)' : ''}\n`,
   );
   return 0;
