@@ -52,16 +52,22 @@ export function fitPipeline(
  * `into`: where their copy goes (a buffer of the given length), when not fresh memory.
  */
 export function applyPipeline(p: FittedPipeline, X: Matrix, rows?: Int32Array, into?: (length: number) => Float64Array): Matrix {
-  let current = rows
-    ? p.input
-      ? takeCells(X, rows, Int32Array.from(p.input), into?.(rows.length * p.input.length))
-      : takeRows(X, rows, into?.(rows.length * X.cols))
-    : p.input
-      ? takeCols(X, Int32Array.from(p.input))
-      : X;
+  // A first step that can read the rows straight from X makes their copy itself, in the same pass.
+  const first = rows && !p.input && p.steps.length ? p.steps[0] : undefined;
+  const impl = first && transforms[first.step.step];
+  const fused = impl?.applyRows !== undefined;
+  let current = fused
+    ? impl.applyRows!(first!.params, X, rows!, into?.(rows!.length * X.cols) ?? new Float64Array(rows!.length * X.cols))
+    : rows
+      ? p.input
+        ? takeCells(X, rows, Int32Array.from(p.input), into?.(rows.length * p.input.length))
+        : takeRows(X, rows, into?.(rows.length * X.cols))
+      : p.input
+        ? takeCols(X, Int32Array.from(p.input))
+        : X;
   // A copy made here is this call's own: the steps may write over it.
   let mine = current !== X;
-  for (const s of p.steps) {
+  for (const s of fused ? p.steps.slice(1) : p.steps) {
     const next = transforms[s.step.step].apply(s.params, current, mine);
     mine ||= next.data !== current.data;
     current = next;

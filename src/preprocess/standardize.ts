@@ -88,4 +88,15 @@ export const standardize: TransformImpl<StandardizeParams, Record<string, never>
     for (let r = 0; r < rows; r++) for (let j = 0; j < cols; j++) out[r * cols + j] = (data[r * cols + j] - mean[j]) / scale[j];
     return { rows, cols, data: out };
   },
+  applyRows(p, X, rows, out) {
+    const { cols, data } = X;
+    const mean = Float64Array.from(p.mean);
+    const scale = Float64Array.from(p.scale);
+    for (let i = 0; i < rows.length; i++) {
+      const from = rows[i] * cols;
+      const to = i * cols;
+      for (let j = 0; j < cols; j++) out[to + j] = (data[from + j] - mean[j]) / scale[j];
+    }
+    return { rows: rows.length, cols, data: out };
+  },
 };

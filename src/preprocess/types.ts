@@ -48,6 +48,11 @@ export interface TransformImpl<P = unknown, S extends object = object> {
    * may write its output over it (fresh memory is slow to touch; the arithmetic is the same).
    */
   apply(params: P, X: Matrix, owned?: boolean): Matrix;
+  /**
+   * The step applied to rows `rows` of X only, written into `out` (rows × X's columns): exactly
+   * apply's numbers on a copy of those rows, made in the one pass that copies them.
+   */
+  applyRows?(params: P, X: Matrix, rows: Int32Array, out: Float64Array): Matrix;
   /** The one optional capability: how the step can be fitted faster with identical bits. */
   readonly fast?: ColumnWise<P, S> | Selection<P, S>;
 }
