@@ -3,7 +3,10 @@
 // src/protocol/schema.ts), stamped with the SHA-256 of the schema file it was made from.
 import { createHash } from 'node:crypto';
 import { mkdirSync, readFileSync, readdirSync, writeFileSync } from 'node:fs';
+import Module, { createRequire } from 'node:module';
 import { dirname, join } from 'node:path';
+import { Script } from 'node:vm';
+import { parse } from 'yaml';
 import { fileURLToPath } from 'node:url';
 import { Ajv2020 } from 'ajv/dist/2020.js';
 import standaloneCode from 'ajv/dist/standalone/index.js';
@@ -30,4 +33,14 @@ for (const name of readdirSync(join(root, 'schema'))
   const out = join(root, compiledValidatorPath(name));
   mkdirSync(dirname(out), { recursive: true });
   writeFileSync(out, code);
+  // V8's code cache of the validator once it has checked the shipped protocols (its functions are
+  // compiled as they are first called, and the cache keeps what was compiled): src/io/schemas.ts
+  // loads the code with it when the running V8 accepts it.
+  const script = new Script(Module.wrap(code), { filename: out });
+  const module = { exports: {} };
+  script.runInThisContext()(module.exports, createRequire(out), module, out, dirname(out));
+  if (name === 'protocol.schema.json')
+    for (const file of readdirSync(join(root, 'protocols')).filter((f) => f.endsWith('.yaml')))
+      module.exports.validate(parse(readFileSync(join(root, 'protocols', file), 'utf8')));
+  writeFileSync(out.replace(/\.cjs$/, '.v8cache'), script.createCachedData());
 }

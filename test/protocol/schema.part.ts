@@ -1,10 +1,12 @@
-import { readFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
+import Module from 'node:module';
 import { join } from 'node:path';
+import { Script } from 'node:vm';
 import t from 'tap';
 import { protocolReference } from '../../src/protocol/reference-doc.js';
 import { parse } from 'yaml';
-import { compileValidator, precompiledValidator, readSchema } from '../../src/io/schemas.js';
-import { root } from '../helpers.js';
+import { compileValidator, precompiledValidator, readSchema, requireCached } from '../../src/io/schemas.js';
+import { root, tempDir } from '../helpers.js';
 
 type S = Record<string, any>;
 const schema = readSchema('protocol.schema.json');
@@ -63,6 +65,24 @@ t.test('precompiled validators report exactly what freshly compiled ones do', as
       t.same(JSON.parse(JSON.stringify(built!.errors ?? null)), JSON.parse(JSON.stringify(fresh.errors ?? null)), `${name}: same errors`);
     }
   }
+});
+
+t.test('a module loads the same with its code cache, with a cache V8 refuses, and without one', async (t) => {
+  const code = "const base = require('node:path').basename(__filename);\nmodule.exports = { base, twice: (x) => 2 * x };\n";
+  const dir = tempDir({ 'm.cjs': code });
+  const file = join(dir, 'm.cjs');
+  const load = () => requireCached(file) as { base: string; twice: (x: number) => number };
+  const expect = (what: string) => {
+    const m = load();
+    t.equal(m.base, 'm.cjs', `${what}: its own __filename`);
+    t.equal(m.twice(21), 42, what);
+  };
+  expect('no cache');
+  writeFileSync(join(dir, 'm.v8cache'), 'not a code cache');
+  expect('a cache V8 refuses');
+  const script = new Script(Module.wrap(code), { filename: file });
+  writeFileSync(join(dir, 'm.v8cache'), script.createCachedData());
+  expect('its own cache');
 });
 
 // The registries describe themselves: the schema's model, split-rule, step and metric parts are
