@@ -46,6 +46,41 @@ export function decodeSpan(bytes: Uint8Array, start: number, end: number): strin
   return bufferOver(bytes).toString('latin1', offset + start, offset + end);
 }
 
+/** Values a column decoder keeps, and how long a kept value may be. */
+const KEPT = 16;
+const KEPT_BYTES = 64;
+/** Cells past the kept values, in a column whose values do not repeat (ids), after which it stops looking. */
+const GIVE_UP = 64;
+
+/**
+ * decodeSpan for the cells of one column, in order: a cell that repeats one of the column's first
+ * few distinct values (a label, a group, a batch) gets that value's string again instead of a new
+ * one — a million labels are then two strings, not a million. A column of ever new values (ids)
+ * stops looking after a few dozen cells.
+ */
+export function columnDecoder(): (bytes: Uint8Array, start: number, end: number) => string {
+  const keys: Uint8Array[] = [];
+  const values: string[] = [];
+  let missed = 0;
+  return (bytes, start, end) => {
+    if (missed > GIVE_UP) return decodeSpan(bytes, start, end);
+    const n = end - start;
+    for (let k = 0; k < keys.length; k++) {
+      const key = keys[k];
+      if (key.length !== n) continue;
+      let i = 0;
+      while (i < n && key[i] === bytes[start + i]) i++;
+      if (i === n) return values[k];
+    }
+    const text = decodeSpan(bytes, start, end);
+    if (keys.length < KEPT && n <= KEPT_BYTES) {
+      keys.push(bytes.slice(start, end));
+      values.push(text);
+    } else missed++;
+    return text;
+  };
+}
+
 const views = new WeakMap<ArrayBufferLike, Buffer>();
 
 /** A Buffer over the whole memory behind `bytes` (made once per memory block, no copy). */

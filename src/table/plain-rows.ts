@@ -2,7 +2,7 @@
  * The one pass over a quote-free table's rows (see plain.ts): numbers parsed where they are
  * found, text cells kept as byte spans. Runs on either thread; everything it needs is plain data.
  */
-import { decodeSpan } from './grid.js';
+import { columnDecoder } from './grid.js';
 import { parseNumberBytes } from './number.js';
 import { inSafeRange } from './numeric.js';
 
@@ -124,10 +124,11 @@ export function extractRows(
 export function decodeTexts(bytes: Uint8Array, parts: readonly Int32Array[], textCount: number): string[][] {
   const rows = parts.reduce((sum, p) => sum + p.length / (2 * textCount || 1), 0);
   const texts = Array.from({ length: textCount }, () => new Array<string>(rows));
+  const decode = texts.map(() => columnDecoder());
   let r = 0;
   for (const spans of parts) {
     for (let o = 0; o < spans.length; r++) {
-      for (let k = 0; k < textCount; k++, o += 2) texts[k][r] = decodeSpan(bytes, spans[o], spans[o + 1]);
+      for (let k = 0; k < textCount; k++, o += 2) texts[k][r] = decode[k](bytes, spans[o], spans[o + 1]);
     }
   }
   return texts;

@@ -6,7 +6,7 @@
  * fills a buffer from a file offset. Cells asked for one at a time (the column probe, messages,
  * the audit's other columns) come from a small cache of the last stretch read.
  */
-import { decodeSpan, type Extracted, type Grid } from './grid.js';
+import { columnDecoder, type Extracted, type Grid } from './grid.js';
 import { rowCells, type RowLine } from './plain.js';
 import type { LineIndex } from './line-index.js';
 import { extractRows, type RowBytes, type RowsPart } from './plain-rows.js';
@@ -136,6 +136,7 @@ export function streamedGrid(ix: LineIndex, read: { rows: ReadInto; cells: ReadI
       const claims = { starts, taken: helper ? helper.claims(1) : new Int32Array(1) };
       const upper = helper?.start(numberCols, textCols, claims, numbers);
       const texts = textCols.map(() => new Array<string>(ix.rows));
+      const decode = textCols.map(() => columnDecoder());
       const failed: number[] = [];
       let outOfRange = 0;
       const whole = claimStretches(ix, claims, false, read.rows, (bytes, base, from, to) => {
@@ -145,7 +146,7 @@ export function streamedGrid(ix: LineIndex, read: { rows: ReadInto; cells: ReadI
         outOfRange += part.outOfRange;
         const { spans } = part;
         for (let r = from, o = 0; r < to; r++)
-          for (let k = 0; k < textCols.length; k++, o += 2) texts[k][r] = decodeSpan(bytes, spans[o], spans[o + 1]);
+          for (let k = 0; k < textCols.length; k++, o += 2) texts[k][r] = decode[k](bytes, spans[o], spans[o + 1]);
         return true;
       });
       const other = upper?.();
@@ -155,7 +156,7 @@ export function streamedGrid(ix: LineIndex, read: { rows: ReadInto; cells: ReadI
         outOfRange += other.outOfRange;
         const { spans, arena } = other;
         for (let r = other.from, o = 0; r < ix.rows; r++)
-          for (let k = 0; k < textCols.length; k++, o += 2) texts[k][r] = decodeSpan(arena, spans[o], spans[o + 1]);
+          for (let k = 0; k < textCols.length; k++, o += 2) texts[k][r] = decode[k](arena, spans[o], spans[o + 1]);
       }
       return { numbers, failed, texts, inRange: outOfRange === 0 };
     },

@@ -8,6 +8,7 @@ import { comparable, generatedText } from './generated-file.js';
 import { delimitedGrid, readDelimited } from '../../src/table/delimited.js';
 import { tableFromBytes } from '../../src/table/load.js';
 import { readPlain } from '../../src/table/plain.js';
+import { columnDecoder, decodeSpan } from '../../src/table/grid.js';
 import { buildTable, type DataRoles } from '../../src/table/table.js';
 
 const enc = (s: string) => new TextEncoder().encode(s);
@@ -82,4 +83,40 @@ t.test('files the fast reader leaves to the full one', async (t) => {
   t.equal(readPlain(enc('id,x\ra,1\r'), 0x2c), undefined, 'carriage returns without line feeds');
   t.equal(readPlain(enc('\n\n'), 0x2c), undefined, 'nothing but line breaks');
   t.same(readPlain(enc('\ufeffid\tx\r\na\t1\r\n\r\n'), 0x09)?.header, ['id', 'x'], 'TSV, a BOM and CRLF are fine');
+});
+
+t.test("a column decoder's text is decodeSpan's for every cell, repeated values and ids alike", async (t) => {
+  // Reference: decodeSpan, itself the WHATWG UTF-8 decoder (checked against the full reader above).
+  fc.assert(
+    fc.property(
+      fc.array(fc.oneof(fc.constantFrom('case', 'control', 'é', '', 'x'.repeat(70)), fc.string({ unit: 'binary', maxLength: 12 })), {
+        maxLength: 200,
+      }),
+      (cells) => {
+        const bytes = enc(cells.join('\n'));
+        const decode = columnDecoder();
+        let start = 0;
+        for (const cell of cells) {
+          const end = start + enc(cell).length;
+          if (decode(bytes, start, end) !== decodeSpan(bytes, start, end)) return false;
+          start = end + 1;
+        }
+        return true;
+      },
+    ),
+    { numRuns: 500 },
+  );
+  // Ids (every value new) past the point where the decoder stops keeping values.
+  const ids = Array.from({ length: 300 }, (_, i) => `s${i}`);
+  const bytes = enc(ids.join(','));
+  const decode = columnDecoder();
+  let start = 0;
+  t.same(
+    ids.map((id) => {
+      const text = decode(bytes, start, start + id.length);
+      start += id.length + 1;
+      return text;
+    }),
+    ids,
+  );
 });
