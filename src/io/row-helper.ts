@@ -137,17 +137,17 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
         return part;
       };
     },
-    sha256File(path, identity) {
-      const wait = post({ kind: 'hash-file', path, identity });
-      return () => wait().sha256 as string | undefined;
-    },
     stretchHelper(path, identity, ix, shownAs) {
       const index = { rowStart: ix.rowStart, rowEnd: ix.rowEnd, delimiter: ix.delimiter, cols: ix.cols, rows: ix.rows };
+      let hashed: (() => Record<string, unknown>) | undefined;
       return {
         numbers: (length) => new Float64Array(new SharedArrayBuffer(length * 8)),
         claims: (length) => new Int32Array(new SharedArrayBuffer(length * 4)),
+        // The hash is wanted once the table is built: the other thread takes it after its rows (before their keys).
+        sha256: () => (hashed ?? post({ kind: 'hash-file', path, identity }))().sha256 as string | undefined,
         start(numberCols, textCols, claims, numbers) {
           const wait = post({ kind: 'rows-file', path, identity, index, numberCols, textCols, claims, numbers });
+          hashed = post({ kind: 'hash-file', path, identity });
           keysAfterRows(ix.header, textCols, -1, ix.rows);
           return () => {
             const reply = wait() as { part?: StretchRows; changed?: true };

@@ -35,15 +35,14 @@ function pathReader(path: string, identity: FileIdentity, shownAs: string): Read
 
 /**
  * The lines of the file, read in stretches; undefined when it is not a file for the fast reader
- * (the reading stops where that shows). `hash` is given every byte, in order; `accepted` is
- * called once the first stretch passed (a file with a quoted header goes no further).
+ * (the reading stops where that shows). `hash` is given every byte, in order.
  */
 export function indexLines(
   fd: number,
   size: number,
   delimiter: number,
   shownAs: string,
-  options: { hash?: Hash; accepted?: () => void; limit?: number } = {},
+  options: { hash?: Hash; limit?: number } = {},
 ): LineIndex | undefined {
   const indexer = new LineIndexer(delimiter, size, (n) => new Float64Array(new SharedArrayBuffer(n * 8)));
   const read = fdReader(fd, shownAs);
@@ -59,7 +58,6 @@ export function indexLines(
     }
     if (indexer.refused) break;
     options.hash?.update(buffer.subarray(0, taken));
-    if (at === 0) options.accepted?.();
     at += taken;
   }
   return indexer.done();
@@ -67,9 +65,11 @@ export function indexLines(
 
 /** What the other thread does for a streamed read: hash the file, and parse its share of the rows. */
 export interface StreamTwin {
-  /** SHA-256 of the file, read on the other thread; the function waits for it (undefined: the file changed). */
-  sha256File(path: string, identity: FileIdentity): () => string | undefined;
-  stretchHelper(path: string, identity: FileIdentity, ix: LineIndex, shownAs: string): StretchHelper;
+  /**
+   * The other thread's share of the rows; `sha256` waits for the file's SHA-256, which that thread
+   * reads right after its rows (at once, when it was given none): undefined when the file changed.
+   */
+  stretchHelper(path: string, identity: FileIdentity, ix: LineIndex, shownAs: string): StretchHelper & { sha256(): string | undefined };
 }
 
 export interface StreamedTable {
@@ -94,27 +94,16 @@ export function readStreamed(
     const head = new Uint8Array(Math.min(8, identity.size));
     fdReader(fd, shownAs)(0, head, head.length);
     if (head.length === 0 || SIGNATURES.some(([, magic]) => magic.every((b, i) => head[i] === b))) return undefined;
-    // The other thread hashes the file meanwhile, once its first stretch shows it is one for this reader; alone, the index pass hashes it.
-    let waitHash: (() => string | undefined) | undefined;
+    // Alone, the index pass hashes the file; with another thread, that thread hashes it once it has
+    // parsed its share of the rows (the hash is wanted only after the table is built).
     const here = twin ? undefined : createHash('sha256');
-    const ix = indexLines(fd, identity.size, delimiter, shownAs, {
-      hash: here,
-      accepted: () => {
-        waitHash = twin?.sha256File(path, identity);
-      },
-    });
-    if (!ix) {
-      waitHash?.();
-      return undefined;
-    }
+    const ix = indexLines(fd, identity.size, delimiter, shownAs, { hash: here });
+    if (!ix) return undefined;
     beforeRows();
-    const grid = streamedGrid(
-      ix,
-      { rows: fdReader(fd, shownAs), cells: pathReader(path, identity, shownAs) },
-      twin?.stretchHelper(path, identity, ix, shownAs),
-    );
+    const helper = twin?.stretchHelper(path, identity, ix, shownAs);
+    const grid = streamedGrid(ix, { rows: fdReader(fd, shownAs), cells: pathReader(path, identity, shownAs) }, helper);
     const built = buildTable(grid, roles, shownAs, locate);
-    const sha256 = here ? here.digest('hex') : waitHash!();
+    const sha256 = here ? here.digest('hex') : helper!.sha256();
     if (sha256 === undefined || !sameFile(identityOf(fd), identity)) throw changedWhileRead(shownAs);
     if (built.ragged) return undefined;
     return {

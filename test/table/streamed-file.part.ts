@@ -21,13 +21,14 @@ const roles: DataRoles = { id: 'id', label: 'diagnosis', missing: ['NA'], keepOt
 const { csv } = referenceTable('breast-cancer.csv');
 
 /** The other thread's work done here, with `meddle` run when the hash is asked for. */
-function twinHere(meddle = () => {}): StreamTwin {
+function twinHere(meddle = () => {}, hashed = () => {}): StreamTwin {
   return {
-    sha256File: (path) => () => {
-      meddle();
-      return createHash('sha256').update(readFileSync(path)).digest('hex');
-    },
     stretchHelper: (path, identity, ix, shownAs) => ({
+      sha256: () => {
+        hashed();
+        meddle();
+        return createHash('sha256').update(readFileSync(path)).digest('hex');
+      },
       numbers: (n) => new Float64Array(n),
       claims: (n) => new Int32Array(n),
       start: (numberCols, textCols, claims, numbers) => {
@@ -66,16 +67,13 @@ t.test('files left to the whole-file reader', async (t) => {
   const dir = tempDir({ 'q.csv': 'id,diagnosis,x\n"a",b,1\n', 'r.csv': 'id,diagnosis,x\na,b,1\nc,d\n', 'e.csv': '' });
   writeFileSync(join(dir, 'g.csv'), gzipSync(csv));
   let hashed = 0;
-  const counting: StreamTwin = {
-    ...twinHere(),
-    sha256File: (p, i) => {
-      hashed++;
-      return twinHere().sha256File(p, i);
-    },
-  };
+  const counting = twinHere(
+    () => {},
+    () => hashed++,
+  );
   t.equal(read(join(dir, 'q.csv'), counting), undefined, 'a quote');
   t.equal(read(join(dir, 'r.csv'), counting), undefined, 'ragged rows');
-  t.equal(hashed, 1, 'the ragged file was hashed while its lines were indexed; the quote showed in the first stretch');
+  t.equal(hashed, 1, 'the ragged file was hashed after its rows; the quote showed in the first stretch, before any hash');
   t.equal(read(join(dir, 'g.csv'), counting), undefined, 'gzip');
   t.equal(read(join(dir, 'e.csv'), counting), undefined, 'an empty file');
   t.equal(hashed, 1, 'a compressed or empty file is not hashed twice');
@@ -118,9 +116,9 @@ t.test('the row thread hashes and parses from the file, and refuses another file
   closeSync(opened.fd);
   const thread = startRowThread();
   try {
-    t.equal(thread.sha256File(path, opened.identity)(), createHash('sha256').update(csv).digest('hex'));
+    t.equal(thread.stretchHelper(path, opened.identity, ix, 'bc.csv').sha256(), createHash('sha256').update(csv).digest('hex'));
     const other: FileIdentity = { ...opened.identity, mtimeMs: opened.identity.mtimeMs + 1 };
-    t.equal(thread.sha256File(path, other)(), undefined, 'another modification time: not the file indexed');
+    t.equal(thread.stretchHelper(path, other, ix, 'bc.csv').sha256(), undefined, 'another modification time: not the file indexed');
     const helper = thread.stretchHelper(path, other, ix, 'bc.csv');
     const claims = () => ({ starts: stretchStarts(ix, 1000, helper.claims), taken: helper.claims(1) });
     const wait = helper.start([1], [0], claims(), helper.numbers(ix.rows));
