@@ -84,7 +84,11 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
     return reply as Record<string, unknown>;
   };
   let plan: { idColumn: string; seed: number; repeats: number } | undefined;
-  // Keys the other thread derived for the ids of rows [from, to), all repeats, once its rows parsed.
+  /**
+   * Keys the other thread derives for the ids of rows [from, to), all repeats, once its rows are
+   * parsed: written where they belong in `out` (repeat r's keys of all `to` rows at (r − 1)·to·32),
+   * whose rows [0, from) this thread fills in place when the keys are asked for.
+   */
   let early:
     | { seed: number; from: number; to: number; out: Uint8Array; wait: () => unknown; parsed: boolean; ids?: readonly string[] }
     | undefined;
@@ -96,13 +100,13 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
   const keysAfterRows = (header: readonly string[], textCols: readonly number[], from: number, to: number) => {
     const slot = plan ? textCols.indexOf(header.indexOf(plan.idColumn)) : -1;
     if (!plan || slot < 0) return;
-    const out = new Uint8Array(new SharedArrayBuffer(plan.repeats * (to - Math.max(from, 0)) * 32));
+    const out = new Uint8Array(new SharedArrayBuffer(plan.repeats * to * 32));
     early = {
       seed: plan.seed,
       from,
       to,
       out,
-      wait: post({ kind: 'keys-of-rows', slot, textCount: textCols.length, seed: plan.seed, repeats: plan.repeats, out }),
+      wait: post({ kind: 'keys-of-rows', slot, textCount: textCols.length, seed: plan.seed, repeats: plan.repeats, rows: to, out }),
       parsed: false,
     };
   };
@@ -163,32 +167,32 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
     },
     keysAhead(ids, seed, repeats) {
       const from = ids.length >> 1;
-      const out = new Uint8Array(new SharedArrayBuffer(repeats * (ids.length - from) * 32));
+      const out = new Uint8Array(new SharedArrayBuffer(repeats * ids.length * 32));
       const upper = ids.slice(from);
       early = {
         seed,
         from,
         to: ids.length,
         out,
-        wait: post({ kind: 'keys-of-ids', ids: upper, seed, repeats, out }),
+        wait: post({ kind: 'keys-of-ids', ids: upper, seed, repeats, from, rows: ids.length, out }),
         parsed: true,
         ids: upper,
       };
     },
     keys(ids, seed, repeat) {
-      const out = new Uint8Array(new SharedArrayBuffer(ids.length * 32));
       const same = (e: NonNullable<typeof early>) => e.ids === undefined || e.ids.every((id, i) => id === ids[e.from + i]);
       if (early?.parsed && early.seed === seed && early.to === ids.length && same(early)) {
-        // The ids are the ones both threads just parsed: only the first part is left to derive here.
+        // The ids are the ones both threads just parsed: only the first part is left to derive here, in place.
         const { from, to } = early;
-        out.set(deriveKeys(ids.slice(0, from), seed, repeat));
+        const out = early.out.subarray((repeat - 1) * to * 32, repeat * to * 32);
+        deriveKeys(ids, seed, repeat, { out, at: 0, from: 0, to: from });
         early.wait();
-        out.set(early.out.subarray((repeat - 1) * (to - from) * 32, repeat * (to - from) * 32), from * 32);
         return out;
       }
+      const out = new Uint8Array(new SharedArrayBuffer(ids.length * 32));
       const mid = ids.length >> 1;
       const wait = post({ kind: 'keys', ids: ids.slice(mid), seed, repeat, out: out.subarray(mid * 32) });
-      out.set(deriveKeys(ids.slice(0, mid), seed, repeat));
+      deriveKeys(ids, seed, repeat, { out, at: 0, from: 0, to: mid });
       wait();
       return out;
     },

@@ -27,8 +27,8 @@ type Job = { id: number; done: Int32Array } & (
   | { kind: 'hash'; bytes: Uint8Array }
   | { kind: 'rows'; table: PlainTable; numberCols: number[]; textCols: number[]; from: number; to: number; numbers: Float64Array }
   | { kind: 'keys'; ids: string[]; seed: number; repeat: number; out: Uint8Array }
-  | { kind: 'keys-of-rows'; slot: number; textCount: number; seed: number; repeats: number; out: Uint8Array }
-  | { kind: 'keys-of-ids'; ids: string[]; seed: number; repeats: number; out: Uint8Array }
+  | { kind: 'keys-of-rows'; slot: number; textCount: number; seed: number; repeats: number; rows: number; out: Uint8Array }
+  | { kind: 'keys-of-ids'; ids: string[]; seed: number; repeats: number; from: number; rows: number; out: Uint8Array }
   | ({ kind: 'parquet' } & Parameters<ParquetTwin['parquet']>[0])
   | { kind: 'hash-file'; path: string; identity: FileIdentity }
   | {
@@ -54,8 +54,8 @@ async function parquetShare(job: Extract<Job, { kind: 'parquet' }>): Promise<Num
   return decodeNumberColumns(job.file, job.footer, job.cols, job.slots, job.numbers, job.width, decompress, job.claim);
 }
 
-// The last rows job's table and result, for the keys of the ids it parsed.
-let last: { table: PlainTable; part: RowsPart | undefined } | undefined;
+// The last rows job's table, result and first row, for the keys of the ids it parsed.
+let last: { table: PlainTable; part: RowsPart | undefined; from: number } | undefined;
 
 /**
  * After the read: this thread, already started, fits folds as a fold worker does. Its code is
@@ -117,7 +117,7 @@ async function run(job: Job): Promise<void> {
       else {
         try {
           const part = extractStretches(job.index, job.numberCols, job.textCols, job.claims, job.numbers, fdReader(fd, job.path));
-          last = { table: { bytes: part?.arena } as PlainTable, part };
+          last = { table: { bytes: part?.arena } as PlainTable, part, from: part?.from ?? 0 };
           port.postMessage({ id: job.id, part });
         } catch (e) {
           // The file shrank under the read: that is the main thread's to report.
@@ -129,10 +129,12 @@ async function run(job: Job): Promise<void> {
       }
     } else if (job.kind === 'rows') {
       const part = extractRows(job.table, job.numberCols, job.textCols, job.from, job.to, job.numbers);
-      last = { table: job.table, part };
+      last = { table: job.table, part, from: job.from };
       port.postMessage({ id: job.id, part });
     } else if (job.kind === 'keys-of-ids') {
-      for (let r = 0; r < job.repeats; r++) job.out.set(deriveKeys(job.ids, job.seed, r + 1), r * job.ids.length * 32);
+      // Each repeat's keys where these rows' keys belong among all the rows'.
+      const { ids, out, rows, from } = job;
+      for (let r = 0; r < job.repeats; r++) deriveKeys(ids, job.seed, r + 1, { out, at: (r * rows + from) * 32, from: 0, to: ids.length });
       port.postMessage({ id: job.id });
     } else if (job.kind === 'keys-of-rows') {
       // Ragged rows: nothing was parsed, and the caller does not use these keys.
@@ -140,11 +142,14 @@ async function run(job: Job): Promise<void> {
         const spans = last.part.spans;
         const ids: string[] = [];
         for (let o = job.slot * 2; o < spans.length; o += job.textCount * 2) ids.push(decodeSpan(last.table.bytes, spans[o], spans[o + 1]));
-        for (let r = 0; r < job.repeats; r++) job.out.set(deriveKeys(ids, job.seed, r + 1), r * ids.length * 32);
+        const { out, rows } = job;
+        const from = last.from;
+        for (let r = 0; r < job.repeats; r++)
+          deriveKeys(ids, job.seed, r + 1, { out, at: (r * rows + from) * 32, from: 0, to: ids.length });
       }
       port.postMessage({ id: job.id });
     } else {
-      job.out.set(deriveKeys(job.ids, job.seed, job.repeat));
+      deriveKeys(job.ids, job.seed, job.repeat, { out: job.out, at: 0, from: 0, to: job.ids.length });
       port.postMessage({ id: job.id });
     }
   } catch (e) {

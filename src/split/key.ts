@@ -14,18 +14,34 @@ export function keyMessage(seed: number, repeat: number | string, id: string): B
   return Buffer.concat([Buffer.from(`${DOMAIN}\0${seed}\0${repeat}\0`, 'utf8'), Buffer.from(id, 'utf8')]);
 }
 
-/** 32-byte keys for every id, laid end to end. */
-export function deriveKeys(ids: readonly string[], seed: number, repeat: number | string): Uint8Array {
-  return keysAfterPrefix(utf8.encode(`${DOMAIN}\0${seed}\0${repeat}\0`), ids);
+/**
+ * 32-byte keys for every id, laid end to end; or, given `into`, the keys of ids[from..to) written
+ * into `out` from byte `at` on (a caller filling its share of a shared array in place).
+ */
+export function deriveKeys(
+  ids: readonly string[],
+  seed: number,
+  repeat: number | string,
+  into?: { out: Uint8Array; at: number; from: number; to: number },
+): Uint8Array {
+  return keysAfterPrefix(utf8.encode(`${DOMAIN}\0${seed}\0${repeat}\0`), ids, into);
 }
 
-/** SHA-256(prefix ‖ UTF-8(s)) for every string s, laid end to end (the split keys, and resample-v1's permutation keys). */
-export function keysAfterPrefix(prefix: Uint8Array, ids: readonly string[]): Uint8Array {
-  const out = new Uint8Array(ids.length * 32);
+/** SHA-256(prefix ‖ UTF-8(s)) for every string s, laid end to end (the split keys, and resample-v1's permutation keys); `into` as for deriveKeys. */
+export function keysAfterPrefix(
+  prefix: Uint8Array,
+  ids: readonly string[],
+  { out, at, from, to }: { out: Uint8Array; at: number; from: number; to: number } = {
+    out: new Uint8Array(ids.length * 32),
+    at: 0,
+    from: 0,
+    to: ids.length,
+  },
+): Uint8Array {
   const p = prefix.length;
   const hasher = new ShortHasher();
   hasher.block.set(prefix);
-  for (let i = 0; i < ids.length; i++) {
+  for (let i = from; i < to; i++) {
     const id = ids[i];
     // An id takes at most 3 UTF-8 bytes per UTF-16 unit; ASCII ids are written byte by byte.
     hasher.reserve(p + id.length * 3);
@@ -39,7 +55,7 @@ export function keysAfterPrefix(prefix: Uint8Array, ids: readonly string[]): Uin
       }
       block[length] = code;
     }
-    hasher.digestBlockInto(length, out, i * 32);
+    hasher.digestBlockInto(length, out, at + (i - from) * 32);
   }
   return out;
 }

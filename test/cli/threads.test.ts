@@ -1,6 +1,7 @@
 /** Work on other threads (fold fits, parsing half of a large table) gives byte-identical results to one thread. */
 import { spawnSync } from 'node:child_process';
 import { readFileSync, writeFileSync } from 'node:fs';
+import { createRequire } from 'node:module';
 import { join } from 'node:path';
 import t from 'tap';
 import { bin, cli, root, sha256, tempDir } from '../helpers.js';
@@ -104,6 +105,32 @@ t.test('split keys of many ids derived on two threads equal those from one', asy
     );
   }
 });
+
+t.test(
+  'split keys of the ids of a Parquet table, half derived on the other thread while the table is built, equal those from one',
+  async (t) => {
+    // 12,000 invented rows in a Parquet file (its ids are known before the table is built: the
+    // other thread derives half their keys meanwhile, for every repeat), written by parquet-wasm.
+    const require = createRequire(import.meta.url);
+    const pq = require('parquet-wasm/node');
+    const arrow = require('apache-arrow');
+    const n = 12000;
+    const table = arrow.tableFromArrays({
+      id: Array.from({ length: n }, (_, i) => `r${i + 1}`),
+      label: Array.from({ length: n }, (_, i) => (i % 3 ? 'x' : 'y')),
+      a: Float64Array.from({ length: n }, (_, i) => (i * 7) % 13),
+    });
+    const bytes: Uint8Array = pq.writeParquet(pq.Table.fromIPCStream(arrow.tableToIPC(table, 'stream')));
+    const dir = tempDir({
+      'd.parquet': bytes,
+      'p.yaml':
+        `foldseal: 1\nname: many\ndata: {file: d.parquet, sha256: "${sha256(bytes)}", id: id, label: label}\nsplit: {rule: ` +
+        `stratified-kfold, folds: 4, repeats: 3, seed: 5}\nmodel: {kind: gaussian-nb}\nmetrics: [accuracy]\n`,
+    });
+    for (const threads of ['1', '2']) t.equal((await run(threads, ['folds', 'p.yaml', '--out', `p-${threads}.csv`], dir)).status, 0);
+    t.equal(readFileSync(join(dir, 'p-2.csv'), 'utf8'), readFileSync(join(dir, 'p-1.csv'), 'utf8'), 'assignment CSV identical');
+  },
+);
 
 t.test('a data hash computed on the second thread is checked like one computed here', async (t) => {
   const dir = tempDir({ 'p.yaml': demo.replace(/sha256: "914f[0-9a-f]+"/, `sha256: "${'0'.repeat(64)}"`) });
