@@ -46,7 +46,18 @@ export function assignmentTriples(a: Assignment, limit = Number.POSITIVE_INFINIT
 
 /** JSON.stringify(assignmentTriples(a)) as UTF-8, written directly: the same text without a small array or a string per row. */
 export function assignmentTriplesJson(a: Assignment): Uint8Array {
-  const out = new ByteBuilder(a.ids.length * a.repeats * 20 + 64);
+  const out = new ByteBuilder(triplesSize(a));
+  writeAssignmentTriples(a, out);
+  return out.result();
+}
+
+/** About the length of assignmentTriplesJson(a) (more for long ids). */
+function triplesSize(a: Assignment): number {
+  return a.ids.length * a.repeats * 20 + 64;
+}
+
+/** assignmentTriplesJson(a)'s bytes, written into `out`. */
+function writeAssignmentTriples(a: Assignment, out: ByteBuilder): void {
   let first = true;
   out.byte(0x5b); // [
   eachTriple(a, (id, r, fold) => {
@@ -62,7 +73,6 @@ export function assignmentTriplesJson(a: Assignment): Uint8Array {
     return true;
   });
   out.byte(0x5d);
-  return out.result();
 }
 
 /**
@@ -74,7 +84,10 @@ export function buildManifest(m: ManifestInput, textAssignment = false): Manifes
   for (const c of m.table.classes) counts[c] = 0;
   for (const c of m.table.y) counts[m.table.classes[c]]++;
   const n = m.assignment.ids.length;
-  const triples = textAssignment ? new CanonicalText(assignmentTriplesJson(m.assignment)) : assignmentTriples(m.assignment);
+  // Written straight into the manifest's bytes when those are made (signing and verify take the text).
+  const triples = textAssignment
+    ? new CanonicalText((out) => writeAssignmentTriples(m.assignment, out), triplesSize(m.assignment))
+    : assignmentTriples(m.assignment);
   return {
     'foldseal-manifest': MANIFEST_VERSION,
     tool: m.tool,

@@ -6,7 +6,7 @@
  * signed bytes.
  */
 import { sha256Bytes } from '../util/sha256.js';
-import { TextBuilder } from '../table/csv-write.js';
+import { ByteBuilder } from '../util/byte-builder.js';
 
 /**
  * A value already written as canonical JSON, spliced in as it is: the manifest's assignment of a
@@ -14,8 +14,22 @@ import { TextBuilder } from '../table/csv-write.js';
  * Whoever makes one vouches for its canonical form (tests compare it with the general writer).
  */
 export class CanonicalText {
-  /** The text, or its UTF-8 bytes. */
-  constructor(readonly json: string | Uint8Array) {}
+  /**
+   * The text, or its UTF-8 bytes, or what writes those bytes where they go (then `size`, their
+   * length or about it, lets the buffer be made large enough at once).
+   */
+  constructor(
+    readonly json: string | Uint8Array | ((out: ByteBuilder) => void),
+    readonly size = 0,
+  ) {}
+}
+
+/** A CanonicalText's text or bytes (what a writer writes, into a buffer of its own). */
+function piece(text: CanonicalText): Uint8Array | string {
+  if (typeof text.json !== 'function') return text.json;
+  const out = new ByteBuilder(text.size + 16);
+  text.json(out);
+  return out.result();
 }
 
 export function canonicalJson(value: unknown): string {
@@ -32,15 +46,16 @@ export function canonicalJson(value: unknown): string {
 /** canonicalJson's UTF-8 bytes, then `after`, written straight into one buffer (a million-row manifest never becomes one string). */
 export function canonicalBytes(value: unknown, after = ''): Uint8Array {
   // Room for the large pieces at once: a buffer that doubled past them would hold up to twice their size.
-  const out = new TextBuilder(spliced(value) + (1 << 16));
+  const out = new ByteBuilder(spliced(value) + (1 << 16));
   write(
     value,
     [],
-    (text) => out.add(text),
-    (bytes) => out.addBytes(bytes),
+    (text) => out.text(text),
+    (bytes) => out.append(bytes),
+    (writer) => writer(out),
   );
-  out.add(after);
-  return out.utf8();
+  out.text(after);
+  return out.result();
 }
 
 export function canonicalSha256(value: unknown): string {
@@ -48,10 +63,20 @@ export function canonicalSha256(value: unknown): string {
 }
 
 /** The canonical text of `value`, handed to `emit` piece by piece in order (pieces that are bytes already to `emitBytes`). */
-function write(value: unknown, path: (string | number)[], emit: (text: string) => void, emitBytes: (bytes: Uint8Array) => void): void {
+function write(
+  value: unknown,
+  path: (string | number)[],
+  emit: (text: string) => void,
+  emitBytes: (bytes: Uint8Array) => void,
+  emitWriter?: (writer: (out: ByteBuilder) => void) => void,
+): void {
   if (value instanceof CanonicalText) {
-    if (typeof value.json === 'string') emit(value.json);
-    else emitBytes(value.json);
+    if (typeof value.json === 'function' && emitWriter) emitWriter(value.json);
+    else {
+      const made = piece(value);
+      if (typeof made === 'string') emit(made);
+      else emitBytes(made);
+    }
     return;
   }
   if (value === null || typeof value === 'string' || typeof value === 'boolean') {
@@ -74,7 +99,7 @@ function write(value: unknown, path: (string | number)[], emit: (text: string) =
     for (let i = 0; i < value.length; i++) {
       if (i > 0) emit(',');
       path.push(i);
-      write(value[i], path, emit, emitBytes);
+      write(value[i], path, emit, emitBytes, emitWriter);
       path.pop();
     }
     emit(']');
@@ -88,7 +113,7 @@ function write(value: unknown, path: (string | number)[], emit: (text: string) =
     for (let i = 0; i < names.length; i++) {
       emit(`${i > 0 ? ',' : ''}${JSON.stringify(names[i])}:`);
       path.push(names[i]);
-      write(record[names[i]], path, emit, emitBytes);
+      write(record[names[i]], path, emit, emitBytes, emitWriter);
       path.pop();
     }
     emit('}');
@@ -99,7 +124,8 @@ function write(value: unknown, path: (string | number)[], emit: (text: string) =
 
 /** The bytes of the CanonicalText pieces in `value` (at most, for texts: three per UTF-16 unit). */
 function spliced(value: unknown): number {
-  if (value instanceof CanonicalText) return typeof value.json === 'string' ? value.json.length * 3 : value.json.length;
+  if (value instanceof CanonicalText)
+    return typeof value.json === 'string' ? value.json.length * 3 : typeof value.json === 'function' ? value.size : value.json.length;
   if (value === null || typeof value !== 'object') return 0;
   let sum = 0;
   for (const v of Array.isArray(value) ? value : Object.values(value)) if (v !== null && typeof v === 'object') sum += spliced(v);

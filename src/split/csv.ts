@@ -5,15 +5,18 @@ import type { Assignment } from './assignment.js';
 import { idOrder } from './key.js';
 
 export function assignmentCsv(a: Assignment): string {
-  const bytes = assignmentCsvBytes(a);
-  return Buffer.from(bytes.buffer, bytes.byteOffset, bytes.length).toString('utf8');
+  return Buffer.concat([...assignmentCsvPieces(a, Number.POSITIVE_INFINITY)]).toString('utf8');
 }
 
-/** The file as UTF-8 bytes, written row by row without a string per row (a million-row run hashes it as it is). */
-export function assignmentCsvBytes(a: Assignment): Uint8Array {
+/**
+ * The file as UTF-8 bytes in pieces of about `piece` bytes, written row by row without a string
+ * per row: views of one reused buffer, each valid until the next is asked for (a million-row run
+ * hashes the file without holding it).
+ */
+export function* assignmentCsvPieces(a: Assignment, piece = 1 << 20): Generator<Uint8Array> {
   const order = idOrder(a.ids);
   const n = a.ids.length;
-  const out = new ByteBuilder(n * a.repeats * 14 + 64);
+  const out = new ByteBuilder(Math.min(piece, n * a.repeats * 14) + 4096);
   out.text('id,repeat,fold\n');
   const quoted = csvCells(a.ids);
   for (let r = 1; r <= a.repeats; r++) {
@@ -26,7 +29,11 @@ export function assignmentCsvBytes(a: Assignment): Uint8Array {
       out.byte(0x2c);
       out.int(a.fold[base + row]);
       out.byte(0x0a);
+      if (out.length >= piece) {
+        yield out.result();
+        out.clear();
+      }
     }
   }
-  return out.result();
+  yield out.result();
 }

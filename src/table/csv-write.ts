@@ -66,18 +66,6 @@ export class TextBuilder {
     this.bytes = grown;
   }
 
-  /** UTF-8 bytes spliced in as they are. */
-  addBytes(bytes: Uint8Array): void {
-    this.flush();
-    if (this.length + bytes.length > this.bytes.length) {
-      const grown = Buffer.allocUnsafe(Math.max(this.bytes.length * 2, this.length + bytes.length + (1 << 16)));
-      this.bytes.copy(grown, 0, 0, this.length);
-      this.bytes = grown;
-    }
-    this.bytes.set(bytes, this.length);
-    this.length += bytes.length;
-  }
-
   text(): string {
     this.flush();
     return this.bytes.toString('utf8', 0, this.length);

@@ -102,6 +102,11 @@ export class ByteBuilder {
   result(): Uint8Array {
     return this.bytes.subarray(0, this.at);
   }
+
+  /** Starts over in the same buffer (a view from result() is overwritten from then on). */
+  clear(): void {
+    this.at = 0;
+  }
 }
 
 /** Two hex digits per byte value. */

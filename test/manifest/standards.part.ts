@@ -5,7 +5,7 @@ import { join } from 'node:path';
 import canonicalize from 'canonicalize';
 import fc from 'fast-check';
 import t from 'tap';
-import { canonicalJson, NonJsonValueError } from '../../src/manifest/canonical.js';
+import { canonicalBytes, canonicalJson, CanonicalText, NonJsonValueError } from '../../src/manifest/canonical.js';
 import { rawPublicKey, signingBytes } from '../../src/manifest/sign.js';
 import { tempDir } from '../helpers.js';
 
@@ -92,6 +92,32 @@ t.test('same bytes as the canonicalize package on generated JSON', async (t) => 
   t.throws(() => canonicalJson({ a: [[1, NaN]] }), { message: 'value at /a/0/1 is NaN, which has no JSON form' });
   t.throws(() => canonicalJson({ a: [{ b: undefined }] }), { message: 'value at /a/0/b is undefined, which has no JSON form' });
   t.throws(() => canonicalJson([new Date(0)]), { message: 'value at /0 is object, which has no JSON form' });
+});
+
+t.test('spliced canonical pieces (text, bytes or a writer) give the bytes the whole value gives', async (t) => {
+  // Reference: the canonicalize package on the same value with the piece as plain JSON.
+  fc.assert(
+    fc.property(
+      fc.dictionary(fc.string(), fc.jsonValue()),
+      fc.jsonValue(),
+      fc.constantFrom('text', 'bytes', 'writer'),
+      (outer, inner, kind) => {
+        const text = canonicalize(inner)!;
+        const bytes = Buffer.from(text);
+        const spliced =
+          kind === 'text'
+            ? new CanonicalText(text)
+            : kind === 'bytes'
+              ? new CanonicalText(bytes)
+              : new CanonicalText((out) => out.append(bytes), kind === 'writer' ? bytes.length : 0);
+        const whole = canonicalize({ ...outer, piece: inner })!;
+        const value = { ...outer, piece: spliced };
+        return canonicalJson(value) === whole && Buffer.from(canonicalBytes(value, '\n')).equals(Buffer.from(`${whole}\n`));
+      },
+    ),
+    { numRuns: 1000 },
+  );
+  t.pass('1,000 generated values');
 });
 
 // RFC 8032 §7.1, TEST 1 (the empty message), from the RFC's text.
