@@ -28,6 +28,12 @@ export interface Grid {
   /** `file` when the cell lies in another file than the table's (a sample sheet's cell in a joined grid). */
   position(row: number, col: number): { line: number; col: number; file?: string };
   /**
+   * The first `rows` (at least one) rows' cells of `cols` as number(r, c) gives them, row-major, in one pass (a
+   * fast reader's probe of the column types); undefined when a reader has no such pass or a row
+   * is ragged (the caller then asks cell by cell).
+   */
+  numbersOf?(rows: number, cols: readonly number[]): Float64Array | undefined;
+  /**
    * One pass over the rows. Undefined when a row turns out not to have the header's cell count:
    * only the fast reader can find that this late, and its caller then reads the file with the
    * full reader, which reports the row where it is.

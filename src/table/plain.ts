@@ -172,6 +172,10 @@ export function plainGrid(t: PlainTable, helper?: RowHelper): Grid {
     rows: t.rows,
     rowLine: Int32Array.from({ length: t.rows }, (_, r) => r + 2),
     ...rowCells(line, t.delimiter),
+    numbersOf(rows, cols) {
+      const out = new Float64Array(rows * cols.length);
+      return extractRows(t, cols, [], 0, rows, out) && out;
+    },
     extract: (numberCols, textCols) => (helper ? extractShared(t, numberCols, textCols, helper) : extractPlain(t, numberCols, textCols)),
   };
 }

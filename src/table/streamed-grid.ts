@@ -129,6 +129,13 @@ export function streamedGrid(ix: LineIndex, read: { rows: ReadInto; cells: ReadI
     rows: ix.rows,
     rowLine: Int32Array.from({ length: ix.rows }, (_, r) => r + 2),
     ...rowCells(line, ix.delimiter),
+    numbersOf(rows, cols) {
+      const base = ix.rowStart[0];
+      const bytes = new Uint8Array(ix.rowEnd[rows - 1] - base);
+      read.cells(base, bytes, bytes.length);
+      const out = new Float64Array(rows * cols.length);
+      return extractRows(rowBytes(bytes), cols, [], 0, rows, out, base) && out;
+    },
     extract(numberCols, textCols): Extracted | undefined {
       const width = numberCols.length;
       const numbers = helper ? helper.numbers(ix.rows * width) : new Float64Array(ix.rows * width);

@@ -220,11 +220,14 @@ function columnKinds(t: Grid, cols: readonly number[], missing: Set<string>): ('
   const numbers = new Int32Array(cols.length);
   const seen = new Int32Array(cols.length);
   let open = cols.length;
+  // The first rows in one pass where the reader has one (a cell that is no number is then read as text alone).
+  const head = Math.min(t.rows, TYPE_SAMPLE);
+  const bulk = head > 0 ? t.numbersOf?.(head, cols) : undefined;
   // Row by row, columns left to right: the readers find a row's cells in one pass that way.
   for (let r = 0; r < t.rows && open > 0; r++) {
     for (let k = 0; k < cols.length; k++) {
       if (seen[k] >= TYPE_SAMPLE) continue;
-      const v = t.number(r, cols[k]);
+      const v = bulk && r < head ? bulk[r * cols.length + k] : t.number(r, cols[k]);
       if (v === v) numbers[k]++;
       else {
         const text = t.text(r, cols[k]);
