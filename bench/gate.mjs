@@ -34,9 +34,9 @@ const size = (statSync(join(out, 'foldseal.lock.json')).size / 1e6).toFixed(1);
 const runs = { lock: [], check: [] };
 for (let i = 0; i < 3; i++) for (const c of ['lock', 'check']) runs[c].push(timed([c, '.']));
 console.log(`100,000 rows, 2 repeats: lock file ${size} MB`);
-console.log(`  first lock: ${first.seconds.toFixed(2)} s, peak RSS ${first.mb.toFixed(0)} MB`);
+console.log(`  first lock: ${first.seconds.toFixed(2)} s, peak RSS ${first.mb.toFixed(0)} MiB`);
 for (const c of ['lock', 'check'])
   console.log(
     `  ${c} (lock in place, median of 3): ${median(runs[c].map((r) => r.seconds)).toFixed(2)} s, peak RSS ` +
-      `${median(runs[c].map((r) => r.mb)).toFixed(0)} MB`,
+      `${median(runs[c].map((r) => r.mb)).toFixed(0)} MiB`,
   );

@@ -51,6 +51,6 @@ const median = (xs) => [...xs].sort((a, b) => a - b)[1];
 const f = median(runs.foldseal.map((r) => r.s));
 const r = median(runs.reference.map((x) => x.s));
 console.log(
-  `20,000 × 30, 5-fold, knn k = 15 (median of 3): foldseal ${f.toFixed(2)} s (peak RSS ${median(runs.foldseal.map((x) => x.mb)).toFixed(0)} MB), ` +
-    `reference ${r.toFixed(2)} s (${median(runs.reference.map((x) => x.mb)).toFixed(0)} MB), ratio ${(f / r).toFixed(2)}; max |Δp| ${diff}`,
+  `20,000 × 30, 5-fold, knn k = 15 (median of 3): foldseal ${f.toFixed(2)} s (peak RSS ${median(runs.foldseal.map((x) => x.mb)).toFixed(0)} MiB), ` +
+    `reference ${r.toFixed(2)} s (${median(runs.reference.map((x) => x.mb)).toFixed(0)} MiB), ratio ${(f / r).toFixed(2)}; max |Δp| ${diff}`,
 );

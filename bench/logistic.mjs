@@ -91,10 +91,10 @@ const theirsS = median(theirs);
 const [tight, tightDiff] = ref(1e-10);
 const [exact, exactDiff, exactWhole] = ref(1e-10, 'newton-cholesky');
 console.log(`${rows} × ${features}, ${folds}-fold, standardize + logistic (l2 1); medians of ${runs} alternating runs`);
-console.log(`foldseal run (whole process): ${oursS.toFixed(2)} s (peak RSS ${peakMb.toFixed(0)} MB)`);
+console.log(`foldseal run (whole process): ${oursS.toFixed(2)} s (peak RSS ${peakMb.toFixed(0)} MiB)`);
 console.log(
   `reference fits, lbfgs tol 1e-4 (its default): ${fast[0]} s (${theirsS.toFixed(2)} s as a whole process, peak RSS ` +
-    `${median(theirMb).toFixed(0)} MB), max |Δp| ${fast[1]}`,
+    `${median(theirMb).toFixed(0)} MiB), max |Δp| ${fast[1]}`,
 );
 console.log(`reference fits, lbfgs tol 1e-10: ${tight} s, max |Δp| ${tightDiff}`);
 console.log(

@@ -65,13 +65,13 @@ for (let i = 0; i < runs; i++) for (const ext of kinds) t[ext].push(time(ext));
 const median = (xs) => [...xs].sort((a, b) => a - b)[xs.length >> 1];
 const size = (ext) => (readFileSync(join(out, `t.${ext}`)).length / 1e6).toFixed(1);
 console.log(
-  `100,000 × 50, foldseal validate (median of ${runs}): csv ${median(t.csv).toFixed(2)} s (${size('csv')} MB; peak RSS ${peak.csv.toFixed(0)} MB)`,
+  `100,000 × 50, foldseal validate (median of ${runs}): csv ${median(t.csv).toFixed(2)} s (${size('csv')} MB; peak RSS ${peak.csv.toFixed(0)} MiB)`,
 );
 for (const [ext, what] of [
   ['parquet', 'dictionary pages (the writer default), snappy'],
   ['plain.parquet', 'plain pages, snappy'],
 ])
   console.log(
-    `  parquet, ${what}: ${median(t[ext]).toFixed(2)} s (${size(ext)} MB; peak RSS ${peak[ext].toFixed(0)} MB), ` +
+    `  parquet, ${what}: ${median(t[ext]).toFixed(2)} s (${size(ext)} MB; peak RSS ${peak[ext].toFixed(0)} MiB), ` +
       `ratio parquet / csv ${(median(t[ext]) / median(t.csv)).toFixed(2)}`,
   );

@@ -37,7 +37,7 @@ for (const [name, file, label] of [
   ['a', 'a-100k-x50.csv', '100,000 × 50, stratified 10-fold, gaussian-nb'],
   ['b', 'b-200-x20000.csv', '200 × 20,000, 10 × 5-fold, standardize + top-100 f-test + gaussian-nb'],
   ['c', 'c-1m-x20.csv', '1,000,000 × 20, stratified 5-fold, gaussian-nb'],
-  ['d', 'd-1m-x50.csv', '1,000,000 × 50, stratified 5-fold, gaussian-nb (memory: ≤ 1.5 × the 400 MB matrix + 100 MB = 700 MB)'],
+  ['d', 'd-1m-x50.csv', '1,000,000 × 50, stratified 5-fold, gaussian-nb (memory: ≤ 1.5 × the 400 MB matrix + 100 MB = 700 MB = 667.6 MiB)'],
 ].filter(([name]) => only.length === 0 || only.includes(name))) {
   const ours = time(process.execPath, [bin, 'run', join(out, `${name}.yaml`), '--out', join(scratch, name), '--force']);
   const theirs = time(python, [join(here, 'reference.py'), name, join(out, file), join(scratch, `${name}-ref.csv`)]);
@@ -46,6 +46,6 @@ for (const [name, file, label] of [
 rmSync(scratch, { recursive: true, force: true });
 for (const r of rows)
   console.log(
-    `(${r.name}) ${r.label}: foldseal ${r.ours.s.toFixed(2)} s (peak RSS ${r.ours.mb.toFixed(0)} MB), ` +
-      `reference ${r.theirs.s.toFixed(2)} s (${r.theirs.mb.toFixed(0)} MB), ratio ${r.ratio.toFixed(2)}`,
+    `(${r.name}) ${r.label}: foldseal ${r.ours.s.toFixed(2)} s (peak RSS ${r.ours.mb.toFixed(0)} MiB), ` +
+      `reference ${r.theirs.s.toFixed(2)} s (${r.theirs.mb.toFixed(0)} MiB), ratio ${r.ratio.toFixed(2)}`,
   );
