@@ -126,9 +126,12 @@ export function classCounts(y: Int32Array, classCount: number): Float64Array {
   return c;
 }
 
-/** Turns per-class log scores into probabilities with log-sum-exp; -Infinity scores give exactly 0. */
+/**
+ * Turns per-class log scores into probabilities with log-sum-exp, in place (the scores are the
+ * caller's scratch; each is read before it is written over); -Infinity scores give exactly 0.
+ */
 export function softmaxRows(scores: Float64Array, rows: number, k: number): Float64Array {
-  const out = new Float64Array(rows * k);
+  const out = scores;
   for (let r = 0; r < rows; r++) {
     const o = r * k;
     let max = -Infinity;
