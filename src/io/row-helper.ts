@@ -200,6 +200,8 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
       worker.postMessage({ kind: 'prepare-folds' });
     },
     folds(data, port) {
+      // The split is made by now: the keys derived during the read are not needed any more.
+      early = undefined;
       worker.postMessage({ kind: 'folds', data, port }, [port]);
     },
     async close() {
