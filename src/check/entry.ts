@@ -2,8 +2,7 @@
 import { canonicalSha256 } from '../manifest/canonical.js';
 import { isPinned, type Protocol } from '../protocol/types.js';
 import type { Assignment } from '../split/assignment.js';
-import { assignmentCsv } from '../split/csv.js';
-import { sha256Bytes } from '../util/sha256.js';
+import { assignmentSha256 } from '../split/csv.js';
 import type { LockEntry } from './lock.js';
 
 export function lockEntry(p: Protocol, raw: unknown, dataSha256: string, a: Assignment): LockEntry {
@@ -19,7 +18,7 @@ export function lockEntry(p: Protocol, raw: unknown, dataSha256: string, a: Assi
     name: p.name,
     'protocol-sha256': canonicalSha256(raw),
     'data-sha256': dataSha256,
-    'assignment-sha256': sha256Bytes(assignmentCsv(a)),
+    'assignment-sha256': assignmentSha256(a),
     split: isPinned(s)
       ? { rule: null, seed: null, folds: a.folds, repeats: a.repeats, assign: null, pinned: s.pinned.file }
       : { rule: s.rule, seed: s.seed ?? null, folds: a.folds, repeats: a.repeats, assign: s.assign, pinned: null },

@@ -206,7 +206,8 @@ async function readManifestListing(path: string): Promise<Listing | null> {
   } finally {
     await handle.close();
   }
-  return (whole ? undefined : listingFromHead(text)) ?? manifestListing(whole ? text : await readFile(path, 'utf8'));
+  if (whole) return manifestListing(text);
+  return listingFromHead(text) ?? manifestListing(await readFile(path, 'utf8'));
 }
 
 /** What is at `dir` now: nothing, an empty folder, a results folder of ours, or something else. */

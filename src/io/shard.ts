@@ -9,8 +9,7 @@ import { planFolds } from '../run/cross-validate.js';
 import { runAll } from '../run/executor.js';
 import { permutedScores } from '../run/permutation.js';
 import { decodePart, SHARD_VERSION, unitName, unitsOfShard, workUnits, type ShardPart } from '../run/shards.js';
-import { assignmentCsv } from '../split/csv.js';
-import { sha256Bytes } from '../util/sha256.js';
+import { assignmentSha256 } from '../split/csv.js';
 import type { ValidationReport } from '../protocol/report.js';
 import { asUserError } from '../run/run.js';
 
@@ -19,7 +18,7 @@ export function runIdentity(report: ValidationReport) {
   return {
     'protocol-sha256': canonicalSha256(report.raw),
     'data-sha256': report.dataSha256!,
-    'assignment-sha256': sha256Bytes(assignmentCsv(report.assignment!)),
+    'assignment-sha256': assignmentSha256(report.assignment!),
   };
 }
 

@@ -24,21 +24,19 @@ export class CanonicalText {
   ) {}
 }
 
-/** A CanonicalText's text or bytes (what a writer writes, into a buffer of its own). */
-function piece(text: CanonicalText): Uint8Array | string {
-  if (typeof text.json !== 'function') return text.json;
-  const out = new ByteBuilder(text.size + 16);
-  text.json(out);
-  return out.result();
-}
-
 export function canonicalJson(value: unknown): string {
   const parts: string[] = [];
+  const decoded = (bytes: Uint8Array) => Buffer.from(bytes.buffer, bytes.byteOffset, bytes.length).toString('utf8');
   write(
     value,
     [],
     (text) => parts.push(text),
-    (bytes) => parts.push(Buffer.from(bytes.buffer, bytes.byteOffset, bytes.length).toString('utf8')),
+    (bytes) => parts.push(decoded(bytes)),
+    (writer, size) => {
+      const out = new ByteBuilder(size + 16);
+      writer(out);
+      parts.push(decoded(out.result()));
+    },
   );
   return parts.join('');
 }
@@ -68,15 +66,13 @@ function write(
   path: (string | number)[],
   emit: (text: string) => void,
   emitBytes: (bytes: Uint8Array) => void,
-  emitWriter?: (writer: (out: ByteBuilder) => void) => void,
+  emitWriter: (writer: (out: ByteBuilder) => void, size: number) => void,
 ): void {
   if (value instanceof CanonicalText) {
-    if (typeof value.json === 'function' && emitWriter) emitWriter(value.json);
-    else {
-      const made = piece(value);
-      if (typeof made === 'string') emit(made);
-      else emitBytes(made);
-    }
+    const { json } = value;
+    if (typeof json === 'string') emit(json);
+    else if (typeof json === 'function') emitWriter(json, value.size);
+    else emitBytes(json);
     return;
   }
   if (value === null || typeof value === 'string' || typeof value === 'boolean') {

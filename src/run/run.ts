@@ -8,9 +8,9 @@ import { asWritten, candidates, partsFor, valuesOf } from '../protocol/grid.js';
 import { searchGrid, type FoldSearch } from './nested.js';
 import { runInner, wantsColumns } from './executor.js';
 import type { Assignment } from '../split/assignment.js';
-import { assignmentCsvPieces } from '../split/csv.js';
+import { assignmentSha256 as assignmentHash } from '../split/csv.js';
 import type { Table } from '../table/table.js';
-import { sha256Bytes, sha256Pieces } from '../util/sha256.js';
+import { sha256Bytes } from '../util/sha256.js';
 import { fitOptions, models } from '../model/registry.js';
 import { columnMajor, fitPipelineOnRows } from '../preprocess/by-columns.js';
 import { prunePipeline } from '../preprocess/pipeline.js';
@@ -157,7 +157,7 @@ export function runProtocol(
     'models.json': sha256Bytes(models),
     ...(appliedText === undefined ? {} : { 'applied.csv': sha256Bytes(appliedText) }),
   };
-  const assignmentSha256 = sha256Pieces(assignmentCsvPieces(input.assignment));
+  const assignmentSha256 = assignmentHash(input.assignment);
   const statistics = guardFit(input.protocolFile, () => runStatistics(p, input.table, input.assignment, cv, permuted));
   const results = buildResults({
     statistics,

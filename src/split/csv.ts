@@ -1,11 +1,19 @@
 /** The assignment CSV (`id,repeat,fold`), sorted by repeat then id byte order (spec §6). */
 import { csvCells } from '../table/csv-write.js';
 import { ByteBuilder } from '../util/byte-builder.js';
+import { sha256Pieces } from '../util/sha256.js';
 import type { Assignment } from './assignment.js';
 import { idOrder } from './key.js';
 
 export function assignmentCsv(a: Assignment): string {
-  return Buffer.concat([...assignmentCsvPieces(a, Number.POSITIVE_INFINITY)]).toString('utf8');
+  // Without a piece size, the one piece is the whole file.
+  const [whole] = assignmentCsvPieces(a, Number.POSITIVE_INFINITY);
+  return Buffer.from(whole.buffer, whole.byteOffset, whole.length).toString('utf8');
+}
+
+/** SHA-256 of the assignment CSV (what manifests, lock files and shard parts record), hashed piece by piece. */
+export function assignmentSha256(a: Assignment): string {
+  return sha256Pieces(assignmentCsvPieces(a));
 }
 
 /**
