@@ -85,6 +85,14 @@ t.test('a manifest is read for its version and files from its head, or whole whe
     writeFileSync(join(dir, 'res', 'manifest.json'), text);
     t.equal((await cli(['run', 'demo.yaml', '--out', 'res', '--force'], dir)).code, 0, `a large ${what} manifest is ours`);
   }
+  // Read from its head only, a large manifest still lists what the folder may hold: a file of the
+  // user's beside it is refused, --force or not, and stays.
+  writeFileSync(join(dir, 'res', 'manifest.json'), JSON.stringify(big));
+  writeFileSync(join(dir, 'res', 'notes.txt'), 'mine');
+  const refused = await cli(['run', 'demo.yaml', '--out', 'res', '--force'], dir);
+  t.equal(refused.code, 2);
+  t.match(refused.stderr, 'holds 1 entry foldseal did not write (notes.txt)');
+  t.equal(readFileSync(join(dir, 'res', 'notes.txt'), 'utf8'), 'mine', "the user's file is kept");
 });
 
 t.test('kill -9 at any moment: the old or the new complete folder, and the next run cleans up', async (t) => {
