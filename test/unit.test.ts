@@ -6,6 +6,7 @@
 import './architecture.part.js';
 import './util/byte-builder.part.js';
 import './util/sort-float64.part.js';
+import './util/heap-flags.part.js';
 import './model/apply-rows.part.js';
 import './protocol/structure.part.js';
 import './reconcile/hand-made.part.js';

@@ -20,11 +20,12 @@ export function pairwiseSeparation(score: Float64Array, y: Int32Array, classes: 
     for (let b = a + 1; b < classes; b++) {
       let n = 0;
       for (let i = 0; i < y.length; i++) if ((y[i] === a || y[i] === b) && score[i] === score[i]) n++;
-      const s = new Float64Array(n);
+      // Every row in the pair (two classes, no NaN): the scores as they are (aucOf only reads them).
+      const s = n === y.length ? score : new Float64Array(n);
       const pos = new Uint8Array(n);
       for (let i = 0, k = 0; i < y.length; i++) {
         if ((y[i] === a || y[i] === b) && score[i] === score[i]) {
-          s[k] = score[i];
+          if (s !== score) s[k] = score[i];
           pos[k++] = y[i] === a ? 1 : 0;
         }
       }

@@ -5,6 +5,7 @@
  * results are assembled in plan order, so the output is byte-identical to the serial loop.
  */
 import { availableParallelism } from 'node:os';
+import { heapFlagsForWorker } from './heap-flags.js';
 import { MessageChannel, type MessagePort, Worker } from 'node:worker_threads';
 import type { FoldThreadData } from './fold-jobs.js';
 import type { RowThread } from './row-helper.js';
@@ -107,7 +108,7 @@ export async function crossValidateInWorkers(
   if (fromHelper) helper!.folds(workerData, fromHelper.port2);
   const workers = Array.from(
     { length: fromHelper ? count - 1 : count },
-    () => new Worker(new URL('./fold-worker.js', import.meta.url), { workerData }),
+    () => new Worker(new URL('./fold-worker.js', import.meta.url), { workerData: { ...workerData, ...heapFlagsForWorker() } }),
   );
   const sources: (Worker | MessagePort)[] = fromHelper ? [fromHelper.port1, ...workers] : workers;
   try {

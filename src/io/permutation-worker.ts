@@ -1,4 +1,5 @@
 /** Worker thread entry: permuted scores for the ranges it is sent (see permutation-workers.ts). */
+import './worker-start.js';
 import { parentPort, workerData } from 'node:worker_threads';
 import type { Protocol } from '../protocol/types.js';
 import { permutedScores } from '../run/permutation.js';

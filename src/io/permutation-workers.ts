@@ -5,6 +5,7 @@
  * p-value and the null quantiles) are identical to the serial loop's.
  */
 import { availableParallelism } from 'node:os';
+import { heapFlagsForWorker } from './heap-flags.js';
 import { Worker } from 'node:worker_threads';
 import { fromWorkerError, type WorkerError } from './worker-errors.js';
 import type { Protocol } from '../protocol/types.js';
@@ -69,7 +70,7 @@ export async function permutedScoresInWorkers(
   const workerData = { protocol: p, table, assignment: a };
   const workers = Array.from(
     { length: threads - 1 },
-    () => new Worker(new URL('./permutation-worker.js', import.meta.url), { workerData }),
+    () => new Worker(new URL('./permutation-worker.js', import.meta.url), { workerData: { ...workerData, ...heapFlagsForWorker() } }),
   );
   const finished = new Promise<void>((resolve, reject) => {
     const feed = (w: Worker) => {

@@ -2,7 +2,7 @@
 import { hasErrors } from '../problems/problem.js';
 import { assembleResult, planFolds, type CvHooks } from '../run/cross-validate.js';
 import type { FoldFit } from '../run/fit-fold.js';
-import { asUserError, type PredictionSink, refitRows, runProtocol, type RunInput, type RunOutput } from '../run/run.js';
+import { asUserError, type OutputSink, refitRows, runProtocol, type RunInput, type RunOutput } from '../run/run.js';
 import { crossValidateInWorkers } from './fold-workers.js';
 import type { RowThread } from './row-helper.js';
 import type { Protocol } from '../protocol/types.js';
@@ -49,10 +49,11 @@ export interface ProduceOptions {
   /** Where a command model's program runs and its files lie (default: the protocol's folder). */
   commandFolder?: string;
   /**
-   * Called once the folds are fitted, right before the outputs are made: where predictions.csv
-   * goes as it is made (`run` opens its results folder here, so a protocol that fails leaves no trace).
+   * Called once the folds are fitted, right before the outputs are made: where predictions.csv and
+   * models.json go as they are made (`run` opens its results folder here, so a protocol that fails
+   * leaves no trace).
    */
-  predictionSink?: (input: RunInput) => Promise<PredictionSink>;
+  outputSink?: (input: RunInput) => Promise<OutputSink>;
 }
 
 export async function produceRun(protocolPath: string, options: ProduceOptions = {}): Promise<Produced> {
@@ -102,7 +103,7 @@ async function produce(protocolPath: string, options: ProduceOptions, kept: { th
   if (input.protocol.model.kind === 'command') {
     const external = await runCommandModel(protocolPath, report, input, options);
     input.external = external.external;
-    const out = runProtocol(input, options.hooks, external.cv, undefined, await options.predictionSink?.(input));
+    const out = runProtocol(input, options.hooks, external.cv, undefined, await options.outputSink?.(input));
     return { report, input, out, audit };
   }
   const cv = merged
@@ -117,7 +118,7 @@ async function produce(protocolPath: string, options: ProduceOptions, kept: { th
     : await permutedScoresInWorkers(input.protocol, input.table, input.assignment, options.onPermutation).catch((e: unknown) => {
         throw asUserError(e, input.protocolFile);
       });
-  const out = runProtocol(input, options.hooks, cv, permuted, await options.predictionSink?.(input));
+  const out = runProtocol(input, options.hooks, cv, permuted, await options.outputSink?.(input));
   return { report, input, out, audit };
 }
 

@@ -4,6 +4,7 @@
  * thread waits for it synchronously (Atomics.wait), so the pure table builder stays synchronous.
  */
 import { availableParallelism } from 'node:os';
+import { heapFlagsForWorker } from './heap-flags.js';
 import { MessageChannel, type MessagePort, receiveMessageOnPort, Worker } from 'node:worker_threads';
 import { forcedThreads } from './threads.js';
 import { deriveKeys } from '../split/key.js';
@@ -60,7 +61,7 @@ export function rowThreadsAvailable(size: number, parquet = false): boolean {
 export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
   const { port1, port2 } = new MessageChannel();
   const worker = new Worker(new URL('./row-worker.js', import.meta.url), {
-    workerData: { port: port2, parquet: options.parquet === true },
+    workerData: { port: port2, parquet: options.parquet === true, ...heapFlagsForWorker() },
     transferList: [port2],
   });
   // Jobs run in order and each answers once, errors included; answers are matched by id.
@@ -142,7 +143,10 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
       };
     },
     stretchHelper(path, identity, ix, shownAs) {
-      const index = { rowStart: ix.rowStart, rowEnd: ix.rowEnd, delimiter: ix.delimiter, cols: ix.cols, rows: ix.rows };
+      // The line index is handed on once and not held here: V8's call feedback can keep these
+      // closures (and what they hold) alive for the whole process.
+      const { header, rows } = ix;
+      let index: object | undefined = { rowStart: ix.rowStart, rowEnd: ix.rowEnd, delimiter: ix.delimiter, cols: ix.cols, rows };
       let hashed: (() => Record<string, unknown>) | undefined;
       return {
         numbers: (length) => new Float64Array(new SharedArrayBuffer(length * 8)),
@@ -151,8 +155,9 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
         sha256: () => (hashed ?? post({ kind: 'hash-file', path, identity }))().sha256 as string | undefined,
         start(numberCols, textCols, claims, numbers) {
           const wait = post({ kind: 'rows-file', path, identity, index, numberCols, textCols, claims, numbers });
+          index = undefined;
           hashed = post({ kind: 'hash-file', path, identity });
-          keysAfterRows(ix.header, textCols, -1, ix.rows);
+          keysAfterRows(header, textCols, -1, rows);
           return () => {
             const reply = wait() as { part?: StretchRows; changed?: true };
             if (reply.changed) throw changedWhileRead(shownAs);
@@ -205,6 +210,9 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
       worker.postMessage({ kind: 'folds', data, port }, [port]);
     },
     async close() {
+      // Nothing this thread shared (keys, the read's plan) outlives it.
+      early = undefined;
+      plan = undefined;
       port1.close();
       await worker.terminate();
     },

@@ -2,6 +2,7 @@
  * Worker thread entry: hashes the file, parses the rows, decodes a share of a Parquet file's
  * numeric columns, or derives the split keys it is sent (see row-helper.ts).
  */
+import './worker-start.js';
 import { createHash } from 'node:crypto';
 import { workerData, parentPort, type MessagePort } from 'node:worker_threads';
 import { deriveKeys } from '../split/key.js';

@@ -88,12 +88,21 @@ export class KnownRowList {
     return Buffer.from(this.bytes()).toString('utf8');
   }
 
-  /**
-   * `before`, the object's JSON, then `after`, as UTF-8 in one buffer. Keys come in a JavaScript
-   * object's own order — array indices ("0", "17"; at most 2³² − 2, no leading zero) ascending,
-   * then the other keys as inserted. Ids are unique.
-   */
+  /** `before`, the object's JSON, then `after`, as UTF-8 in one buffer. */
   bytes(before = '', after = ''): Uint8Array {
+    // Without a piece size, the one piece is the whole text.
+    const [whole] = this.pieces(before, after, Number.POSITIVE_INFINITY);
+    return whole;
+  }
+
+  /**
+   * `before`, the object's JSON, then `after`, as UTF-8 in pieces of about `piece` bytes: views of
+   * one reused buffer, each valid until the next is asked for (a million known rows are written
+   * to their file without being held whole). Keys come in a JavaScript object's own order — array
+   * indices ("0", "17"; at most 2³² − 2, no leading zero) ascending, then the other keys as
+   * inserted. Ids are unique.
+   */
+  *pieces(before = '', after = '', piece = 1 << 20): Generator<Uint8Array> {
     const { ids, hashes } = this;
     const n = ids.length;
     const indices: number[] = [];
@@ -106,7 +115,8 @@ export class KnownRowList {
     const isIndex = new Uint8Array(n);
     for (const k of indices) isIndex[k] = 1;
     // Each member: "id":"16 hex digits" and a comma; ids that need escapes or are not ASCII grow it.
-    const out = new ByteBuilder(Buffer.byteLength(before) + Buffer.byteLength(after) + idChars + n * 22 + 2);
+    const whole = Buffer.byteLength(before) + Buffer.byteLength(after) + idChars + n * 22 + 2;
+    const out = new ByteBuilder(Math.min(whole, piece + 4096));
     out.text(before);
     out.byte(0x7b); // {
     let first = true;
@@ -121,10 +131,16 @@ export class KnownRowList {
       out.byte(0x22);
     };
     for (const k of indices) member(k);
-    for (let k = 0; k < n; k++) if (isIndex[k] === 0) member(k);
+    for (let k = 0; k < n; k++) {
+      if (isIndex[k] === 0) member(k);
+      if (out.length >= piece) {
+        yield out.result();
+        out.clear();
+      }
+    }
     out.byte(0x7d); // }
     out.text(after);
-    return out.result();
+    yield out.result();
   }
 }
 

@@ -56,13 +56,24 @@ export function modelsJson(m: ModelsFile): string {
 
 /** models.json as UTF-8: a run's million known rows go straight into the bytes (no text in between). */
 export function modelsJsonBytes(m: ModelsFile): Uint8Array {
+  // Without a piece size, the one piece is the whole file.
+  const [whole] = modelsJsonPieces(m, Number.POSITIVE_INFINITY);
+  return whole;
+}
+
+/**
+ * models.json as UTF-8 in pieces of about `piece` bytes, each valid until the next is asked for:
+ * a run's million known rows are written to the file without the file being held whole.
+ */
+export function* modelsJsonPieces(m: ModelsFile, piece = 1 << 20): Generator<Uint8Array> {
   const known = m['known-rows'];
   const keys = Object.keys(m);
-  if (!(known instanceof KnownRowList)) return Buffer.from(JSON.stringify(m) + '\n');
+  if (!(known instanceof KnownRowList)) return yield Buffer.from(JSON.stringify(m) + '\n');
   // The list's text is spliced in where JSON.stringify would have put the object: last.
-  if (keys[keys.length - 1] !== 'known-rows') return Buffer.from(JSON.stringify({ ...m, 'known-rows': JSON.parse(known.json()) }) + '\n');
+  if (keys[keys.length - 1] !== 'known-rows')
+    return yield Buffer.from(JSON.stringify({ ...m, 'known-rows': JSON.parse(known.json()) }) + '\n');
   const { 'known-rows': _, ...rest } = m;
-  return known.bytes(`${JSON.stringify(rest).slice(0, -1)},"known-rows":`, '}\n');
+  yield* known.pieces(`${JSON.stringify(rest).slice(0, -1)},"known-rows":`, '}\n', piece);
 }
 
 /** 1 for each input feature that some model the rule uses reads (all of them for a model whose pipeline is not pruned). */

@@ -15,7 +15,7 @@ import { models } from '../model/registry.js';
 import { FitError } from '../model/types.js';
 import { positiveClass, testsFoldOneOnly, type MetricName, type Protocol } from '../protocol/types.js';
 import { candidates, valuesOf } from '../protocol/grid.js';
-import { foldRows, type Assignment } from '../split/assignment.js';
+import { lazyFoldRows, type Assignment } from '../split/assignment.js';
 import { idOrder } from '../split/key.js';
 import { takeInt } from '../table/matrix.js';
 import type { Table } from '../table/table.js';
@@ -81,8 +81,8 @@ export interface CvHooks {
 export interface FoldPlan {
   repeat: number;
   fold: number;
-  /** Row indices in the split spec's id order. */
-  train: Int32Array;
+  /** Row indices in the split spec's id order (planFolds lists the training rows when they are first read). */
+  readonly train: Int32Array;
   test: Int32Array;
 }
 
@@ -91,7 +91,17 @@ export function planFolds(p: Protocol, table: Table, a: Assignment): FoldPlan[] 
   const order = idOrder(table.ids);
   const plans: FoldPlan[] = [];
   for (let r = 1; r <= a.repeats; r++)
-    for (const f of evaluatedFolds(p, a)) plans.push({ repeat: r, fold: f, ...foldRows(a, r, f, order) });
+    for (const f of evaluatedFolds(p, a)) {
+      const rows = lazyFoldRows(a, r, f, order);
+      plans.push({
+        repeat: r,
+        fold: f,
+        test: rows.test,
+        get train() {
+          return rows.train;
+        },
+      });
+    }
   return plans;
 }
 
@@ -112,7 +122,12 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
   const warnings: Problem[] = [];
   const oof: Float64Array[] = Array.from({ length: a.repeats }, () => new Float64Array(n * k).fill(NaN));
   const testedIn: Int32Array[] = Array.from({ length: a.repeats }, () => new Int32Array(n));
-  plans.forEach(({ repeat: r, fold: f, train, test }, index) => {
+  // Every row's class, for the training parts' class counts: a training part is every row of its repeat but the test part.
+  const counts = new Array<number>(k).fill(0);
+  for (const c of table.y) counts[c]++;
+  // The plan's training rows are not read here (a moments fit never lists them); a model that keeps its rows gets them.
+  plans.forEach((plan, index) => {
+    const { repeat: r, fold: f, test } = plan;
     const { pipeline, model: params, proba: foldProba } = fits[index];
     const impl = models[p.model.kind];
     for (const note of impl.capabilities?.notes?.(params) ?? [])
@@ -130,8 +145,10 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
     }
     const proba = oof[r - 1];
     const tested = testedIn[r - 1];
-    const trainCounts = new Array<number>(k).fill(0);
-    for (let i = 0; i < train.length; i++) trainCounts[table.y[train[i]]]++;
+    const yTest = takeInt(table.y, test);
+    const testClassCounts = new Array<number>(k).fill(0);
+    for (let i = 0; i < yTest.length; i++) testClassCounts[yTest[i]]++;
+    const trainCounts = counts.map((c, cls) => c - testClassCounts[cls]);
     trainCounts.forEach((c, cls) => {
       if (c === 0)
         warnings.push(
@@ -142,7 +159,6 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
           ),
         );
     });
-    const yTest = takeInt(table.y, test);
     for (let i = 0; i < test.length; i++) {
       const to = test[i] * k;
       for (let c = 0; c < k; c++) proba[to + c] = foldProba[i * k + c];
@@ -152,12 +168,10 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
     const values: Record<string, number | null> = {};
     for (const m of p.metrics) values[m] = metricFns[m].value(s);
     const majority = trainCounts.indexOf(Math.max(...trainCounts));
-    const testClassCounts = new Array<number>(k).fill(0);
-    for (let i = 0; i < yTest.length; i++) testClassCounts[yTest[i]]++;
     folds.push({
       repeat: r,
       fold: f,
-      trainRows: train.length,
+      trainRows: n - test.length,
       testRows: test.length,
       testClassCounts,
       metrics: values,
@@ -171,7 +185,7 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
       pipeline,
       model: params,
       ...(search ? { chosen: valuesOf(p.grid, grid[search.chosen]) } : {}),
-      ...(impl.capabilities?.keepsRows ? { train } : {}),
+      ...(impl.capabilities?.keepsRows ? { train: plan.train } : {}),
     });
   });
   const summary: Record<string, MetricSummary> = {};
@@ -188,8 +202,6 @@ export function assembleResult(p: Protocol, table: Table, a: Assignment, plans: 
         ),
       );
   }
-  const counts = new Array<number>(k).fill(0);
-  for (const c of table.y) counts[c]++;
   const pooledBaseline = meanOf(
     oof.map((_, r) => {
       let hit = 0;
@@ -237,13 +249,8 @@ function pooled(
   const k = table.classes.length;
   return oof.map((proba, r) => {
     const tested = testedIn[r];
-    const s = scoredRows(
-      table.y,
-      proba,
-      k,
-      positive,
-      order.filter((row) => tested[row] > 0),
-    );
+    // Every row tested once (k-fold): the id order itself, without a copy.
+    const s = scoredRows(table.y, proba, k, positive, tested.every((f) => f > 0) ? order : order.filter((row) => tested[row] > 0));
     const out: Record<string, number | null> = {};
     for (const m of names) out[m] = metricFns[m].value(s);
     return out;

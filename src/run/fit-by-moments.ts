@@ -163,7 +163,8 @@ function predictTogether(
   );
   at = 0;
   return fitted.map((f, i) => {
-    const part = proba.slice(at * k, (at + plans[i].test.length) * k);
+    // Views of the one array (fold fits made here are never posted to another thread).
+    const part = proba.subarray(at * k, (at + plans[i].test.length) * k);
     at += plans[i].test.length;
     return { ...f, proba: part };
   });

@@ -19,7 +19,7 @@ import type { GivenProbabilities } from '../reconcile/reconcile.js';
 import { heldOutFromOof } from '../reconcile/held-out.js';
 import { KnownRowList } from '../reconcile/known-ids.js';
 import { keepsRows, referenced } from '../reconcile/training-rows.js';
-import { MODELS_VERSION, modelsJsonBytes, type ModelsFile, type SavedModel } from '../reconcile/models-file.js';
+import { MODELS_VERSION, modelsJsonBytes, modelsJsonPieces, type ModelsFile, type SavedModel } from '../reconcile/models-file.js';
 import { idOrder } from '../split/key.js';
 import { takeInt } from '../table/matrix.js';
 import type { NewRows } from '../table/new-rows.js';
@@ -57,16 +57,22 @@ export interface RunOutput {
   newRowScores?: NewRowScores;
   results: Record<string, unknown>;
   assignmentSha256: string;
-  /** The other files by name: models.json as bytes (a million known rows go straight into them), the rest as text. */
-  files: { 'models.json': Uint8Array; 'results.json': string; 'applied.csv'?: string };
+  /**
+   * The other files by name: models.json as bytes (a million known rows go straight into them;
+   * absent when a sink took it), the rest as text.
+   */
+  files: { 'models.json'?: Uint8Array; 'results.json': string; 'applied.csv'?: string };
   /** predictions.csv, as bytes: the largest file, hashed and written without a text copy (absent when a sink took it). */
   predictions?: Uint8Array;
   /** SHA-256 of predictions.csv and of every file in `files`. */
   digests: Record<string, string>;
 }
 
-/** Takes predictions.csv piece by piece as it is made (each piece valid only until the next) and returns its SHA-256. */
-export type PredictionSink = (pieces: Iterable<Uint8Array>) => string;
+/**
+ * Takes a results file (predictions.csv, models.json) piece by piece as it is made (each piece
+ * valid only until the next) and returns its SHA-256.
+ */
+export type OutputSink = (name: 'predictions.csv' | 'models.json', pieces: Iterable<Uint8Array>) => string;
 
 /**
  * `fitted` is a cross-validation already done elsewhere (on worker threads), `permuted` the
@@ -77,12 +83,12 @@ export function runProtocol(
   hooks: CvHooks = {},
   fitted?: CvResult,
   permuted?: Float64Array,
-  sink?: PredictionSink,
+  sink?: OutputSink,
 ): RunOutput {
   const cv: CvResult = fitted ?? guardFit(input.protocolFile, () => crossValidate(input.protocol, input.table, input.assignment, hooks));
   // Written as it is made when the shell takes it (a million lines never held whole), else kept.
   const predictions = sink ? undefined : predictionsCsv(cv, input.table);
-  const predictionsSha256 = sink ? sink(predictionsPieces(cv, input.table)) : sha256Bytes(predictions!);
+  const predictionsSha256 = sink ? sink('predictions.csv', predictionsPieces(cv, input.table)) : sha256Bytes(predictions!);
   const p = input.protocol;
   const protocolSha256 = canonicalSha256(input.raw);
   const refitted =
@@ -119,7 +125,9 @@ export function runProtocol(
     refit: refit && savedModel(p.model.kind, refit, input.table.ids.length),
     'known-rows': KnownRowList.of(input.table.ids, input.table.X, input.table.featureNames),
   };
-  const models = modelsJsonBytes(saved);
+  // Streamed like predictions.csv when the shell takes it: a million known rows are some 30 MB.
+  const models = sink ? undefined : modelsJsonBytes(saved);
+  const modelsSha256 = sink ? sink('models.json', modelsJsonPieces(saved)) : sha256Bytes(models!);
   let appliedText: string | undefined;
   let applied: AppliedRow[] | undefined;
   let newRowScores: NewRowScores | undefined;
@@ -154,7 +162,7 @@ export function runProtocol(
   }
   const digests: Record<string, string> = {
     'predictions.csv': predictionsSha256,
-    'models.json': sha256Bytes(models),
+    'models.json': modelsSha256,
     ...(appliedText === undefined ? {} : { 'applied.csv': sha256Bytes(appliedText) }),
   };
   const assignmentSha256 = assignmentHash(input.assignment);
@@ -176,7 +184,7 @@ export function runProtocol(
     warnings: [...input.warnings, ...cv.warnings],
   });
   const files: RunOutput['files'] = {
-    'models.json': models,
+    ...(models ? { 'models.json': models } : {}),
     ...(appliedText === undefined ? {} : { 'applied.csv': appliedText }),
     'results.json': JSON.stringify(results, null, 2) + '\n',
   };

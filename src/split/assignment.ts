@@ -13,20 +13,37 @@ export interface Assignment {
 
 /** Rows of one repeat whose fold equals / differs from `fold`, in the given row order. */
 export function foldRows(a: Assignment, repeat: number, fold: number, order: Int32Array): { test: Int32Array; train: Int32Array } {
+  const rows = lazyFoldRows(a, repeat, fold, order);
+  return { test: rows.test, train: rows.train };
+}
+
+/**
+ * foldRows, with the training rows listed only when first read: a model fitted from class
+ * moments never reads them (a million rows' five folds of training rows are 15 MB).
+ */
+export function lazyFoldRows(
+  a: Assignment,
+  repeat: number,
+  fold: number,
+  order: Int32Array,
+): { test: Int32Array; readonly train: Int32Array } {
   const n = a.ids.length;
   const base = (repeat - 1) * n;
   let t = 0;
   for (let i = 0; i < n; i++) if (a.fold[base + i] === fold) t++;
   const test = new Int32Array(t);
-  const train = new Int32Array(n - t);
-  let ti = 0;
-  let ri = 0;
-  for (let k = 0; k < n; k++) {
-    const row = order[k];
-    if (a.fold[base + row] === fold) test[ti++] = row;
-    else train[ri++] = row;
-  }
-  return { test, train };
+  for (let k = 0, ti = 0; k < n; k++) if (a.fold[base + order[k]] === fold) test[ti++] = order[k];
+  let train: Int32Array | undefined;
+  return {
+    test,
+    get train() {
+      if (!train) {
+        train = new Int32Array(n - t);
+        for (let k = 0, ri = 0; k < n; k++) if (a.fold[base + order[k]] !== fold) train[ri++] = order[k];
+      }
+      return train;
+    },
+  };
 }
 
 /** (repeat, fold) pairs with no row: spec §8 rejects such an assignment (stable mode can draw one). */

@@ -37,6 +37,8 @@ export function sortFloat64(a: Float64Array, nativeBelow = NATIVE_BELOW): Float6
   return a;
 }
 
+let spare = new Uint32Array(0);
+
 function radix(a: Float64Array): void {
   const n = a.length;
   // Keys as (hi, lo) words, flipped to unsigned order once; sorted with the numbers, turned back at the end.
@@ -48,7 +50,11 @@ function radix(a: Float64Array): void {
       keys[2 * i] = ~keys[2 * i];
     } else keys[2 * i + 1] = hi | 0x80000000;
   }
-  let other: Uint32Array = new Uint32Array(n * 2);
+  // The second buffer is kept for the next sort on this thread: a table's sorts (split keys, row
+  // hashes, scores) are of like lengths, and a new one each time left up to 8 MB of garbage per
+  // million numbers for the collector to find.
+  if (spare.length < n * 2) spare = new Uint32Array(n * 2);
+  let other: Uint32Array = spare.subarray(0, n * 2);
   // Every pass's digit counts in one read: 64 bits in six digits of 11 (bits 0–10, …, 55–63).
   const counts = new Int32Array(PASSES * BUCKETS);
   for (let i = 0; i < n; i++) {

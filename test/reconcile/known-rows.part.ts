@@ -4,7 +4,7 @@
 import fc from 'fast-check';
 import t from 'tap';
 import { KnownRowList, knownRows } from '../../src/reconcile/known-ids.js';
-import { modelsJson, type ModelsFile } from '../../src/reconcile/models-file.js';
+import { modelsJson, modelsJsonBytes, modelsJsonPieces, type ModelsFile } from '../../src/reconcile/models-file.js';
 
 const tricky = [
   'b',
@@ -53,6 +53,19 @@ t.test('known rows from lists serialize as the object does', async (t) => {
       const m = { rows: ids.length, cols: 1, data: Float64Array.from(ids, (_, i) => i / 3) };
       const bytes = KnownRowList.of(ids, m, ['v']).bytes(around, `${around}\n`);
       return Buffer.from(bytes).equals(Buffer.from(`${around}${JSON.stringify(knownRows(ids, m, ['v']))}${around}\n`));
+    }),
+  );
+  // In pieces of any size (each a view valid until the next), joined: the same bytes.
+  fc.assert(
+    fc.property(fc.uniqueArray(fc.string({ unit: 'binary' }), { maxLength: 30 }), fc.integer({ min: 1, max: 64 }), (ids, piece) => {
+      const m = { rows: ids.length, cols: 1, data: Float64Array.from(ids, (_, i) => i / 7) };
+      const file = { 'foldseal-models': 2, folds: [], 'known-rows': KnownRowList.of(ids, m, ['v']) } as unknown as ModelsFile;
+      // Each piece copied as it comes (the next one overwrites it).
+      const joined = Buffer.concat(Array.from(modelsJsonPieces(file, piece), (b) => Buffer.from(b)));
+      return (
+        joined.equals(Buffer.from(modelsJsonBytes(file))) &&
+        joined.toString('utf8') === modelsJson({ ...file, 'known-rows': knownRows(ids, m, ['v']) })
+      );
     }),
   );
   // Ids that escape to six times their length outgrow the first buffer: it grows, the text is the same.

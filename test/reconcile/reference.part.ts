@@ -39,7 +39,7 @@ t.test('applied.csv probabilities equal the mean of the reference fold models', 
 
 t.test('the vote counts equal those of the reference fold models', async (t) => {
   const { out } = await runCase(referenceCases().find((c) => c.name === name)!);
-  t.equal(JSON.parse(Buffer.from(out.files['models.json']).toString('utf8')).folds.length, 8, '4 folds × 2 repeats saved');
+  t.equal(JSON.parse(Buffer.from(out.files['models.json']!).toString('utf8')).folds.length, 8, '4 folds × 2 repeats saved');
   for (const r of out.applied!.filter((row) => row.source === 'folds')) {
     const counts = [0, 0];
     for (const top of r.tops) counts[top]++;

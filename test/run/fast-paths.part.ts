@@ -12,10 +12,10 @@ import { classMoments, mergeMoments, partMoments } from '../../src/model/class-m
 import { columnMajor, fitPipelineOnRows } from '../../src/preprocess/by-columns.js';
 import { fitPipeline } from '../../src/preprocess/pipeline.js';
 import type { PreprocessStep, Protocol } from '../../src/protocol/types.js';
-import { planFolds } from '../../src/run/cross-validate.js';
+import { assembleResult, planFolds } from '../../src/run/cross-validate.js';
 import { fitByMoments, canFitByMoments } from '../../src/run/fit-by-moments.js';
 import { fitFold } from '../../src/run/fit-fold.js';
-import type { Assignment } from '../../src/split/assignment.js';
+import { foldRows, type Assignment } from '../../src/split/assignment.js';
 import { takeInt, takeRows, type Matrix } from '../../src/table/matrix.js';
 import type { Table } from '../../src/table/table.js';
 
@@ -116,6 +116,51 @@ t.test('fold fits from merged moments equal fits on the training rows', async (t
     canFitByMoments({ preprocess: [{ step: 'log2p' }], model: { kind: 'gaussian-nb', options: {} } } as unknown as Protocol),
     'a step without moments takes the row path',
   );
+});
+
+t.test('a moments fit and its scores never list the training rows, and count them as the listed rows do', async (t) => {
+  const p = {
+    name: 'iris',
+    data: {},
+    preprocess: [],
+    model: { kind: 'gaussian-nb', options: {} },
+    metrics: ['accuracy'],
+    split: { rule: 'kfold' },
+    grid: [],
+  };
+  const a = assignment(irisTable, 5, 2);
+  const plans = planFolds(p as unknown as Protocol, irisTable, a);
+  let read = 0;
+  const watched = plans.map((plan) => ({
+    repeat: plan.repeat,
+    fold: plan.fold,
+    test: plan.test,
+    get train() {
+      read++;
+      return plan.train;
+    },
+  }));
+  const cv = assembleResult(p as unknown as Protocol, irisTable, a, watched, fitByMoments(p as unknown as Protocol, irisTable, a, watched));
+  t.equal(read, 0, 'no plan listed its training rows');
+  plans.forEach((plan, i) => {
+    const listed = foldRows(
+      a,
+      plan.repeat,
+      plan.fold,
+      new Int32Array(plan.train.length + plan.test.length).map((_, r) => r),
+    );
+    t.same(
+      [...plan.train].sort((x, y) => x - y),
+      [...listed.train],
+      `repeat ${plan.repeat} fold ${plan.fold}: the training rows, once listed`,
+    );
+    t.equal(plan.train, plan.train, 'listed once');
+    t.equal(cv.folds[i].trainRows, plan.train.length, 'training rows counted');
+    // The baseline predicts the training part's largest class, counted from the listed rows.
+    const counts = irisClasses.map((_, c) => plan.train.filter((r) => irisTable.y[r] === c).length);
+    const majority = counts.indexOf(Math.max(...counts));
+    t.equal(cv.folds[i].baselineAccuracy, cv.folds[i].testClassCounts[majority] / plan.test.length, 'baseline from the training counts');
+  });
 });
 
 const stepsCases: PreprocessStep[][] = [

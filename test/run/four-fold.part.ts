@@ -36,6 +36,32 @@ t.test('mean of per-fold accuracies in a hand-made 4-fold example', async (t) =>
     assignment: r.assignment!,
     warnings: [],
   });
+  // A sink takes predictions.csv and models.json piece by piece: the same bytes and digests, and neither is kept.
+  const taken: Record<string, Buffer[]> = {};
+  const streamed = runProtocol(
+    {
+      protocol: r.protocol!,
+      raw: r.raw,
+      protocolFile: 'p.yaml',
+      table: r.table!,
+      dataSha256: r.dataSha256!,
+      assignment: r.assignment!,
+      warnings: [],
+    },
+    {},
+    undefined,
+    undefined,
+    (name, pieces) => {
+      taken[name] = Array.from(pieces, (b) => Buffer.from(b));
+      return sha256(Buffer.concat(taken[name]));
+    },
+  );
+  t.same(Object.keys(taken).sort(), ['models.json', 'predictions.csv'], 'both files went to the sink');
+  t.ok(Buffer.concat(taken['predictions.csv']).equals(Buffer.from(out.predictions!)), 'predictions.csv: same bytes');
+  t.ok(Buffer.concat(taken['models.json']).equals(Buffer.from(out.files['models.json']!)), 'models.json: same bytes');
+  t.same(streamed.digests, out.digests, 'same digests');
+  t.equal(streamed.files['models.json'], undefined, 'models.json not kept');
+  t.equal(streamed.predictions, undefined, 'predictions.csv not kept');
   t.same(
     out.cv.folds.map((f) => f.metrics.accuracy),
     [0.5, 0.5, 0, 1],

@@ -44,7 +44,7 @@ async function runOn(file: string, text: string, rule: string) {
   delete results.protocol.sha256;
   // models.json records the protocol hash (which includes the data hash); everything else must agree.
   delete results.files['models.json'];
-  const models = JSON.parse(Buffer.from(out.files['models.json']).toString('utf8'));
+  const models = JSON.parse(Buffer.from(out.files['models.json']!).toString('utf8'));
   delete models['protocol-sha256'];
   return { folds: assignmentCsv(r.assignment!), predictions: Buffer.from(out.predictions!).toString('utf8'), results, models };
 }

@@ -47,13 +47,13 @@ export async function runCommand(args: RunArgs, io: CommandIo, merged?: ProduceO
       lastShown = now;
     }
   };
-  // The results folder is opened once the folds are fitted, and predictions.csv written into it as it is made.
+  // The results folder is opened once the folds are fitted, and predictions.csv and models.json written into it as they are made.
   let folder: { dir: string; out: OutputDir } | undefined;
   const produced = await produceRun(args.protocol, {
-    predictionSink: async (input) => {
+    outputSink: async (input) => {
       const dir = resolve(args.out ?? `results/${input.protocol.name}`);
       folder = { dir, out: await openOutputDir(dir, Boolean(args.force), shown(dir)) };
-      return (pieces) => folder!.out.stream('predictions.csv', pieces);
+      return (name, pieces) => folder!.out.stream(name, pieces);
     },
     merged,
     audit: true,
@@ -134,7 +134,7 @@ async function finish(
     written['report.html'] = built.html;
   }
   io.out(
-    `wrote ${[...early, ...Object.keys(written), 'predictions.csv'].sort().join(', ')} to ` +
+    `wrote ${[...early, ...Object.keys(written), 'predictions.csv', 'models.json'].sort().join(', ')} to ` +
       `${shown(dir)}${key?.kind === 'ssh' ? ` (manifest signed with SSH key ${key.describe})` : key ? ' (manifest signed)' : ''}\n`,
   );
   return 0;
