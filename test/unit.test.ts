@@ -9,6 +9,7 @@ import './util/sort-float64.part.js';
 import './util/heap-flags.part.js';
 import './model/apply-rows.part.js';
 import './protocol/structure.part.js';
+import './protocol/data-file-guess.part.js';
 import './reconcile/hand-made.part.js';
 import './manifest/compare.part.js';
 import './check/lock.part.js';

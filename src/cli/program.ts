@@ -122,9 +122,16 @@ export function buildProgram(io: CommandIo, done: (code: ExitCode) => void): Com
         'renamed at the end, so it is never half-written.\n--force replaces only a folder foldseal wrote (its manifest and the ' +
         'files it lists); any other non-empty folder is refused.',
     )
-    .action(async (protocol: string, o: Omit<RunArgs, 'protocol'>) =>
-      done(await (await import('./commands/run.js')).runCommand({ protocol, ...o }, io)),
-    );
+    .action(async (protocol: string, o: Omit<RunArgs, 'protocol'>) => {
+      // A large table's second thread starts now, while the run's modules load.
+      const early = await import('../io/early-row-thread.js');
+      if (o.shard === undefined) early.startEarlyRowThread(protocol, Boolean(o.allowOutside));
+      try {
+        done(await (await import('./commands/run.js')).runCommand({ protocol, ...o }, io));
+      } finally {
+        await early.closeEarlyRowThread();
+      }
+    });
 
   resultsFolderOptions(
     program

@@ -43,6 +43,8 @@ export interface RowThread extends RowHelper, ParquetTwin, StreamTwin {
   prepareFolds(): void;
   /** The other thread fits fold jobs as a fold worker does, its fits and errors posted to `port`. */
   folds(data: FoldThreadData, port: MessagePort): void;
+  /** Whether the thread keeps the process alive (a thread started early, not yet taken, does not). */
+  hold(keep: boolean): void;
   close(): Promise<void>;
 }
 
@@ -208,6 +210,10 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
       // The split is made by now: the keys derived during the read are not needed any more.
       early = undefined;
       worker.postMessage({ kind: 'folds', data, port }, [port]);
+    },
+    hold(keep) {
+      if (keep) worker.ref();
+      else worker.unref();
     },
     async close() {
       // Nothing this thread shared (keys, the read's plan) outlives it.

@@ -22,6 +22,7 @@ import { fileProblem, readBytes, readRegularText } from './files.js';
 import { knownIdProblems, knownRows } from '../reconcile/known-ids.js';
 import { outsideProblem, protocolPolicy, type PathPolicy } from './path-policy.js';
 import { rowThreadsAvailable, startRowThread, type RowThread } from './row-helper.js';
+import { takeEarlyRowThread } from './early-row-thread.js';
 
 export type { ValidationReport } from '../protocol/report.js';
 
@@ -123,7 +124,10 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
     () => 0,
   );
   const parquet = size > 0 && (await startsLikeParquet(paths.data));
-  const rowThread = rowThreadsAvailable(size, parquet) ? startRowThread({ parquet }) : undefined;
+  // `run` may have started it already, for this file (early-row-thread.ts).
+  const early = await takeEarlyRowThread(paths.data, parquet);
+  const rowThread = rowThreadsAvailable(size, parquet) ? (early ?? startRowThread({ parquet })) : undefined;
+  if (!rowThread) await early?.close();
   // A thread kept for the folds loads their code now, while this one reads the file.
   const kept = rowThread !== undefined && options.keepThread?.(rowThread, p) === true;
   if (kept) rowThread.prepareFolds();

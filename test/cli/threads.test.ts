@@ -140,3 +140,42 @@ t.test('a data hash computed on the second thread is checked like one computed h
   t.match(one.stdout + one.stderr, '914fdee0');
   t.equal(two.stdout + two.stderr, one.stdout + one.stderr, 'same report');
 });
+
+t.test('the row thread run starts early is taken for its own data file only, and closed otherwise', async (t) => {
+  const { closeEarlyRowThread, startEarlyRowThread, takeEarlyRowThread } = await import('../../src/io/early-row-thread.js');
+  const before = process.env.FOLDSEAL_THREADS;
+  process.env.FOLDSEAL_THREADS = '2';
+  t.teardown(() => {
+    if (before === undefined) delete process.env.FOLDSEAL_THREADS;
+    else process.env.FOLDSEAL_THREADS = before;
+  });
+  const dir = tempDir({ 'd.csv': 'id,x,y\na,1,p\n', 'p.yaml': 'foldseal: 1\ndata: {file: d.csv, id: id, label: y}\n' });
+  const data = join(dir, 'd.csv');
+  startEarlyRowThread(join(dir, 'p.yaml'), false);
+  const taken = await takeEarlyRowThread(data, false);
+  t.ok(taken, 'taken for its file');
+  t.equal(
+    taken!.sha256(new TextEncoder().encode('abc'))(),
+    'ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad',
+    'and it works (FIPS 180-2 "abc")',
+  );
+  await taken!.close();
+  t.equal(await takeEarlyRowThread(data, false), undefined, 'taken once');
+  startEarlyRowThread(join(dir, 'p.yaml'), false);
+  t.equal(await takeEarlyRowThread(join(dir, 'other.csv'), false), undefined, 'another file: not taken (and closed)');
+  startEarlyRowThread(join(dir, 'p.yaml'), false);
+  t.equal(await takeEarlyRowThread(data, true), undefined, 'read as Parquet after all: not taken');
+  startEarlyRowThread(join(dir, 'p.yaml'), false);
+  await closeEarlyRowThread();
+  t.equal(await takeEarlyRowThread(data, false), undefined, 'closed when nobody took it');
+  // A data file outside the protocol's folder: nothing is started without --allow-outside.
+  const outside = tempDir({ 'p.yaml': `foldseal: 1\ndata: {file: ${data}, id: id, label: y}\n` });
+  startEarlyRowThread(join(outside, 'p.yaml'), false);
+  t.equal(await takeEarlyRowThread(data, false), undefined, 'outside the folder: none');
+  startEarlyRowThread(join(outside, 'p.yaml'), true);
+  const allowed = await takeEarlyRowThread(data, false);
+  t.ok(allowed, 'with --allow-outside: started');
+  await allowed?.close();
+  startEarlyRowThread(join(dir, 'missing.yaml'), false);
+  t.equal(await takeEarlyRowThread(data, false), undefined, 'an unreadable protocol: none');
+});

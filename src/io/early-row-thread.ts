@@ -1,0 +1,53 @@
+/**
+ * The row thread of `run`, started before the command loads its modules (some 150 ms), so that
+ * it is ready when the data file is read. Started only when a quick look at the protocol
+ * (dataFileGuess) finds a data file the protocol may read (the same path policy) that is large
+ * enough for two threads; no byte of the data is read here. validateProtocol takes the thread
+ * over when it reads that same file, and closes it otherwise; the command closes one never taken.
+ * A wrong guess costs a thread's start-up, never a result.
+ */
+import { readFileSync, statSync } from 'node:fs';
+import { dirname, resolve } from 'node:path';
+import { dataFileGuess } from '../protocol/data-file-guess.js';
+import { outsideProblem, protocolPolicy } from './path-policy.js';
+import { type RowThread, rowThreadsAvailable, startRowThread } from './row-helper.js';
+
+let early: { path: string; parquet: boolean; thread: RowThread } | undefined;
+
+export function startEarlyRowThread(protocolPath: string, allowOutside: boolean): void {
+  try {
+    const file = dataFileGuess(readFileSync(protocolPath, 'utf8'));
+    if (file === undefined) return;
+    const path = resolve(dirname(resolve(protocolPath)), file);
+    if (outsideProblem(path, protocolPolicy(protocolPath, allowOutside), file, 'data file', {})) return;
+    // The extension stands in for the magic bytes here (validateProtocol reads those).
+    const parquet = /\.parquet$/i.test(path);
+    if (!rowThreadsAvailable(statSync(path).size, parquet)) return;
+    const thread = startRowThread({ parquet });
+    // Not taken yet: it does not keep the process alive on its own.
+    thread.hold(false);
+    early = { path, parquet, thread };
+  } catch {
+    // Anything unusual (no such file, an unreadable protocol) is validateProtocol's to report.
+  }
+}
+
+/** The early thread when it was started for this file as read (else it is closed, and undefined). */
+export async function takeEarlyRowThread(path: string, parquet: boolean): Promise<RowThread | undefined> {
+  const e = early;
+  early = undefined;
+  if (e === undefined) return undefined;
+  if (e.path === path && e.parquet === parquet) {
+    e.thread.hold(true);
+    return e.thread;
+  }
+  await e.thread.close();
+  return undefined;
+}
+
+/** Closes an early thread nobody took (a protocol that failed before its data was read). */
+export async function closeEarlyRowThread(): Promise<void> {
+  const e = early;
+  early = undefined;
+  await e?.thread.close();
+}
