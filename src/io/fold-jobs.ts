@@ -5,6 +5,7 @@
  * (row-worker.ts), both as plain data in, messages out.
  */
 import { runJob, type ExecData, type FoldJob } from '../run/executor.js';
+import { fitByMoments } from '../run/fit-by-moments.js';
 import { toWorkerError } from './worker-errors.js';
 
 /** What a fold thread receives: the protocol's parts, the table's numbers in shared memory, the jobs and the counter. */
@@ -23,6 +24,12 @@ export interface FoldThreadData {
   /** Every job, and the shared counter (one Int32) each thread claims the next job's index from. */
   jobs: FoldJob[];
   claim: SharedArrayBuffer;
+  /**
+   * Instead of jobs: every fold of a protocol fitted from class moments, at once (run/fit-by-moments.ts),
+   * posted as one message { fits } with their probabilities in one buffer. The rows in id order
+   * stand in for the ids; the plans carry their test rows only (moment fits never read the training rows).
+   */
+  moments?: { fold: Int32Array; folds: number; order: Int32Array; plans: { repeat: number; fold: number; test: Int32Array }[] };
 }
 
 export function fitClaimedJobs(w: FoldThreadData, post: (message: unknown, transfer: ArrayBuffer[]) => void): void {
@@ -35,6 +42,10 @@ export function fitClaimedJobs(w: FoldThreadData, post: (message: unknown, trans
     ids: w.ids,
     groups: w.groups,
   };
+  if (w.moments) {
+    fitMoments(w, table, w.moments, post);
+    return;
+  }
   const claim = new Int32Array(w.claim);
   for (let i = Atomics.add(claim, 0, 1); i < w.jobs.length; i = Atomics.add(claim, 0, 1)) {
     const job = w.jobs[i];
@@ -47,5 +58,27 @@ export function fitClaimedJobs(w: FoldThreadData, post: (message: unknown, trans
       post({ index: job.index, error: toWorkerError(e) }, []);
       return;
     }
+  }
+}
+
+function fitMoments(
+  w: FoldThreadData,
+  table: ExecData,
+  m: NonNullable<FoldThreadData['moments']>,
+  post: (message: unknown, transfer: ArrayBuffer[]) => void,
+): void {
+  const plans = m.plans.map((plan) => ({
+    ...plan,
+    get train(): Int32Array {
+      /* c8 ignore next -- a moment fit that read its training rows would be a bug in foldseal */
+      throw new Error('foldseal: a moment fit asked for training rows it was not sent');
+    },
+  }));
+  try {
+    const fits = fitByMoments(w.protocol, { ...table, order: m.order }, m, plans);
+    // Each fit's probabilities are a view of one array: it goes across once.
+    post({ index: 0, fits }, fits.length ? [fits[0].proba.buffer as ArrayBuffer] : []);
+  } catch (e) {
+    post({ index: 0, error: toWorkerError(e) }, []);
   }
 }

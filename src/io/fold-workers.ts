@@ -15,7 +15,8 @@ import type { ModelKind, Protocol } from '../protocol/types.js';
 import { models } from '../model/registry.js';
 import type { Assignment } from '../split/assignment.js';
 import type { Table } from '../table/table.js';
-import { assembleResult, atFold, crossValidate, planFolds, type CvHooks, type CvResult } from '../run/cross-validate.js';
+import { assembleResult, atFold, crossValidate, type FoldPlan, planFolds, type CvHooks, type CvResult } from '../run/cross-validate.js';
+import { idOrder } from '../split/key.js';
 import type { FoldFit } from '../run/fit-fold.js';
 import { type ExecData, jobsFor, joinParts, partsFor, runJob, splitJobs, strategyFor, wantsColumns } from '../run/executor.js';
 import { columnMajor } from '../preprocess/by-columns.js';
@@ -66,6 +67,8 @@ export async function crossValidateInWorkers(
   { here = true, helper }: { here?: boolean; helper?: RowThread } = {},
 ): Promise<CvResult> {
   const plans = planFolds(p, table, a);
+  // Fits from class moments go to the thread that helped read the table, all at once, while this one does its own work.
+  if (helper && strategyFor(p) === 'moments') return momentsOnHelper(p, table, a, plans, hooks, meanwhile, helper);
   const threads = threadCount(table, plans.length, p.tune ? candidates(p.grid).length * innerFits(p.tune.split) : 1, p.model.kind);
   // Fits from class moments cost little per fold: no thread pays for its start-up there. Every
   // other strategy comes as jobs from the executor, which the workers run as they are.
@@ -154,4 +157,55 @@ export async function crossValidateInWorkers(
     await Promise.all(workers.map((w) => w.terminate()));
   }
   return assembleResult(p, table, a, plans, joinParts(fits, parts));
+}
+
+/**
+ * Every fold of a protocol fitted from class moments, on the thread that helped read the table
+ * (its fold code loaded meanwhile), while this thread does `meanwhile` (the audit): the same
+ * fitByMoments on the same numbers, so the same bits as here.
+ */
+async function momentsOnHelper(
+  p: Protocol,
+  table: Table,
+  a: Assignment,
+  plans: readonly FoldPlan[],
+  hooks: CvHooks,
+  meanwhile: () => void,
+  helper: RowThread,
+): Promise<CvResult> {
+  const y = new SharedArrayBuffer(table.y.byteLength);
+  new Int32Array(y).set(table.y);
+  const data: FoldThreadData = {
+    protocol: { preprocess: p.preprocess, model: p.model, data: p.data },
+    rows: table.X.rows,
+    cols: table.X.cols,
+    data: sharedCopy(table.X.data),
+    y,
+    classes: table.classes,
+    featureNames: table.featureNames,
+    ids: [],
+    jobs: [],
+    claim: new SharedArrayBuffer(4),
+    moments: {
+      fold: a.fold,
+      folds: a.folds,
+      order: idOrder(table.ids),
+      plans: plans.map(({ repeat, fold, test }) => ({ repeat, fold, test })),
+    },
+  };
+  const channel = new MessageChannel();
+  try {
+    const fitted = new Promise<FoldFit[]>((resolve, reject) => {
+      channel.port1.once('message', (m: { fits?: FoldFit[]; error?: WorkerError }) =>
+        m.error ? reject(fromWorkerError(m.error)) : resolve(m.fits!),
+      );
+    });
+    helper.folds(data, channel.port2);
+    meanwhile();
+    const fits = await fitted;
+    hooks.onFold?.(plans.length, plans.length);
+    return assembleResult(p, table, a, plans, fits);
+  } finally {
+    channel.port1.close();
+  }
 }

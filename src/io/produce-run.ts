@@ -20,6 +20,14 @@ import type { GivenProbabilities } from '../reconcile/reconcile.js';
 import type { SavedModel } from '../reconcile/models-file.js';
 import type { CommandContext } from './command-model.js';
 
+/**
+ * The largest data file whose moment fits go to the thread that read it. The thread kept alive
+ * holds its heap and makes the fits' arrays in its own memory: measured on 1,000,000 × 50
+ * (388 MB), 0.4 s faster but 60 MiB more at the peak, which matters more there; on 100,000 × 50
+ * (39 MB) about 30 ms faster.
+ */
+export const MOMENTS_HELPER_BYTES = 64 * 1024 * 1024;
+
 export interface Produced {
   report: ValidationReport;
   input?: RunInput;
@@ -67,8 +75,11 @@ export async function produceRun(protocolPath: string, options: ProduceOptions =
 }
 
 async function produce(protocolPath: string, options: ProduceOptions, kept: { thread?: RowThread }): Promise<Produced> {
-  const keepThread = (thread: RowThread, p: Protocol) => {
-    if (p.model.kind === 'command' || strategyFor(p) === 'moments') return false;
+  const keepThread = (thread: RowThread, p: Protocol, size: number) => {
+    if (p.model.kind === 'command') return false;
+    // Fits from class moments are quick: worth the thread only beside the audit, which this thread
+    // runs meanwhile, and on a table whose memory is not the constraint (see MOMENTS_HELPER_BYTES).
+    if (strategyFor(p) === 'moments' && (!options.audit || size > MOMENTS_HELPER_BYTES)) return false;
     kept.thread = thread;
     return true;
   };

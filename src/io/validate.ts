@@ -76,7 +76,7 @@ export interface ValidateOptions {
    * of it being stopped after the read (run fits folds on it; it loads that code while the file
    * is read), and the taker closes it.
    */
-  keepThread?: (thread: RowThread, p: Protocol) => boolean;
+  keepThread?: (thread: RowThread, p: Protocol, size: number) => boolean;
 }
 
 export async function validateProtocol(path: string, options: ValidateOptions = {}): Promise<ValidationReport> {
@@ -129,7 +129,7 @@ export async function validateProtocol(path: string, options: ValidateOptions = 
   const rowThread = rowThreadsAvailable(size, parquet) ? (early ?? startRowThread({ parquet })) : undefined;
   if (!rowThread) await early?.close();
   // A thread kept for the folds loads their code now, while this one reads the file.
-  const kept = rowThread !== undefined && options.keepThread?.(rowThread, p) === true;
+  const kept = rowThread !== undefined && options.keepThread?.(rowThread, p, size) === true;
   if (kept) rowThread.prepareFolds();
   try {
     return await validateWithData({ ...parsed, protocol: p, source }, paths, at, rowThread, Boolean(options.describe), size);

@@ -22,6 +22,9 @@ import type { FoldPlan } from './cross-validate.js';
 
 type Parts = Pick<Protocol, 'preprocess' | 'model'>;
 
+/** The table as moment fits read it: `order`, the rows in id order, when the ids themselves are not at hand (another thread). */
+export type MomentData = FoldData & { ids: readonly string[]; order?: Int32Array };
+
 /** Worth it when something is learned from moments: a pipeline of moment steps, or a moment model. */
 export function canFitByMoments(p: Parts): boolean {
   const steps = p.preprocess.every((s) => momentsOf(transforms[s.step]));
@@ -45,17 +48,17 @@ export function newMomentMemo(): MomentMemo {
 /** The pipelines of every plan, fitted from merged class moments; `modelFromMoments` also fits a moment model from the same moments. */
 export function momentPipelines(
   p: Parts,
-  d: FoldData & { ids: readonly string[] },
-  a: Assignment,
+  d: MomentData,
+  a: Pick<Assignment, 'fold' | 'folds'>,
   plans: readonly FoldPlan[],
   memo: MomentMemo = newMomentMemo(),
 ): { pipeline: FittedPipeline; model?: unknown }[] {
   const impl = models[p.model.kind];
   const k = d.classes.length;
   const options = fitOptions(p.model.kind, p.model.options, d.classes);
-  const order = idOrder(d.ids);
+  const order = d.order ?? idOrder(d.ids);
   const perRepeat = memo.blocks;
-  const n = d.ids.length;
+  const n = d.X.rows;
   const blocksOf = (repeat: number) => {
     let blocks = perRepeat.get(repeat);
     if (!blocks) {
@@ -110,8 +113,8 @@ export function momentPipelines(
 
 export function fitByMoments(
   p: Parts,
-  d: FoldData & { ids: readonly string[] },
-  a: Assignment,
+  d: MomentData,
+  a: Pick<Assignment, 'fold' | 'folds'>,
   plans: readonly FoldPlan[],
   memo?: MomentMemo,
 ): FoldFit[] {

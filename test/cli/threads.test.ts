@@ -179,3 +179,28 @@ t.test('the row thread run starts early is taken for its own data file only, and
   startEarlyRowThread(join(dir, 'missing.yaml'), false);
   t.equal(await takeEarlyRowThread(data, false), undefined, 'an unreadable protocol: none');
 });
+
+t.test('fits from class moments on the thread that read the table: the same files as one thread, and the same fit error', async (t) => {
+  // standardize, select and gaussian-nb all fit from class moments: with two threads they go to the row thread while this one audits.
+  const dir = tempDir({ 'p.yaml': demo });
+  const two = await run('2', ['run', 'p.yaml', '--out', 'res-2'], dir);
+  t.equal(two.status, 0, two.stderr);
+  const one = await run('1', ['run', 'p.yaml', '--out', 'res-1'], dir);
+  t.equal(one.status, 0, one.stderr);
+  for (const f of ['predictions.csv', 'results.json', 'models.json', 'applied.csv'])
+    t.equal(readFileSync(join(dir, 'res-2', f), 'utf8'), readFileSync(join(dir, 'res-1', f), 'utf8'), f);
+  // Every feature constant within its class: shrunken-centroid fails in its first fold, on either thread.
+  const rows = Array.from({ length: 40 }, (_, i) => `r${i},${i % 2},${i % 2 ? 'p' : 'q'}`).join('\n');
+  const data = `id,x,y\n${rows}\n`;
+  const failing = tempDir({
+    'd.csv': data,
+    'p.yaml':
+      `foldseal: 1\nname: constant\ndata: {file: d.csv, sha256: "${sha256(data)}", id: id, label: y}\n` +
+      'split: {rule: stratified-kfold, folds: 4, seed: 1}\nmodel: {kind: shrunken-centroid}\nmetrics: [accuracy]\n',
+  });
+  const errTwo = await run('2', ['run', 'p.yaml', '--out', 'res'], failing);
+  const errOne = await run('1', ['run', 'p.yaml', '--out', 'res'], failing);
+  t.equal(errTwo.status, 1, errTwo.stderr);
+  t.match(errTwo.stderr, 'every feature is constant within classes');
+  t.equal(errTwo.stderr, errOne.stderr, 'the same error');
+});
