@@ -2,13 +2,15 @@
  * The row thread of `run`, started before the command loads its modules (some 150 ms), so that
  * it is ready when the data file is read. Started only when a quick look at the protocol
  * (dataFileGuess) finds a data file the protocol may read (the same path policy) that is large
- * enough for two threads; no byte of the data is read here. validateProtocol takes the thread
+ * enough for two threads. That thread indexes the file's lines and hashes it meanwhile (the same
+ * path policy holds: nothing is read that the run would not read). validateProtocol takes the thread
  * over when it reads that same file, and closes it otherwise; the command closes one never taken.
  * A wrong guess costs a thread's start-up, never a result.
  */
 import { readFileSync, statSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
 import { dataFileGuess } from '../protocol/data-file-guess.js';
+import { delimiterFor } from '../table/delimiter.js';
 import { outsideProblem, protocolPolicy } from './path-policy.js';
 import { type RowThread, rowThreadsAvailable, startRowThread } from './row-helper.js';
 
@@ -24,6 +26,8 @@ export function startEarlyRowThread(protocolPath: string, allowOutside: boolean)
     const parquet = /\.parquet$/i.test(path);
     if (!rowThreadsAvailable(statSync(path).size, parquet)) return;
     const thread = startRowThread({ parquet });
+    // A plain table's lines are indexed and the file hashed at once, while this thread loads the run's code.
+    if (!parquet) thread.indexEarly(path, delimiterFor(path));
     // Not taken yet: it does not keep the process alive on its own.
     thread.hold(false);
     early = { path, parquet, thread };

@@ -8,7 +8,8 @@ import { heapFlagsForWorker } from './heap-flags.js';
 import { MessageChannel, type MessagePort, receiveMessageOnPort, Worker } from 'node:worker_threads';
 import { forcedThreads } from './threads.js';
 import { deriveKeys } from '../split/key.js';
-import { changedWhileRead } from './file-identity.js';
+import { changedWhileRead, type FileIdentity, sameFile } from './file-identity.js';
+import type { LineIndex } from '../table/line-index.js';
 import type { RowHelper, RowsPart } from '../table/plain.js';
 import type { ParquetTwin } from './parquet.js';
 import type { NumberColumnsDone } from './parquet-pages.js';
@@ -43,6 +44,12 @@ export interface RowThread extends RowHelper, ParquetTwin, StreamTwin {
   prepareFolds(): void;
   /** The other thread fits fold jobs as a fold worker does, its fits and errors posted to `port`. */
   folds(data: FoldThreadData, port: MessagePort): void;
+  /**
+   * Before the protocol is read (early-row-thread.ts): the other thread indexes the lines of this
+   * file, as the streamed read would with this delimiter, and hashes it meanwhile.
+   */
+  indexEarly(path: string, delimiter: number): void;
+  indexed: NonNullable<StreamTwin['indexed']>;
   /** Whether the thread keeps the process alive (a thread started early, not yet taken, does not). */
   hold(keep: boolean): void;
   close(): Promise<void>;
@@ -87,6 +94,7 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
     return reply as Record<string, unknown>;
   };
   let plan: { idColumn: string; seed: number; repeats: number } | undefined;
+  let earlyIndex: { path: string; delimiter: number; wait: () => Record<string, unknown> } | undefined;
   /**
    * Keys the other thread derives for the ids of rows [from, to), all repeats, once its rows are
    * parsed: written where they belong in `out` (repeat r's keys of all `to` rows at (r − 1)·to·32),
@@ -118,6 +126,17 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
     expectKeys(p) {
       plan = p;
     },
+    indexEarly(path, delimiter) {
+      earlyIndex = { path, delimiter, wait: post({ kind: 'index-file', path, delimiter }) };
+    },
+    indexed(path, identity, delimiter) {
+      const e = earlyIndex;
+      earlyIndex = undefined;
+      if (e === undefined || e.path !== path || e.delimiter !== delimiter) return undefined;
+      const r = e.wait() as { identity?: FileIdentity; index?: LineIndex; sha256?: string };
+      // The same file as this thread opened (device, inode, size, modification time), else not used.
+      return r.index && r.identity && sameFile(r.identity, identity) ? { ix: r.index, sha256: r.sha256! } : undefined;
+    },
     sha256(bytes) {
       const wait = post({ kind: 'hash', bytes });
       return () => wait().sha256 as string;
@@ -144,21 +163,21 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
         return part;
       };
     },
-    stretchHelper(path, identity, ix, shownAs) {
+    stretchHelper(path, identity, ix, shownAs, hashed) {
       // The line index is handed on once and not held here: V8's call feedback can keep these
       // closures (and what they hold) alive for the whole process.
       const { header, rows } = ix;
       let index: object | undefined = { rowStart: ix.rowStart, rowEnd: ix.rowEnd, delimiter: ix.delimiter, cols: ix.cols, rows };
-      let hashed: (() => Record<string, unknown>) | undefined;
+      let hashing: (() => Record<string, unknown>) | undefined;
       return {
         numbers: (length) => new Float64Array(new SharedArrayBuffer(length * 8)),
         claims: (length) => new Int32Array(new SharedArrayBuffer(length * 4)),
         // The hash is wanted once the table is built: the other thread takes it after its rows (before their keys).
-        sha256: () => (hashed ?? post({ kind: 'hash-file', path, identity }))().sha256 as string | undefined,
+        sha256: () => hashed ?? ((hashing ?? post({ kind: 'hash-file', path, identity }))().sha256 as string | undefined),
         start(numberCols, textCols, claims, numbers) {
           const wait = post({ kind: 'rows-file', path, identity, index, numberCols, textCols, claims, numbers });
           index = undefined;
-          hashed = post({ kind: 'hash-file', path, identity });
+          if (hashed === undefined) hashing = post({ kind: 'hash-file', path, identity });
           keysAfterRows(header, textCols, -1, rows);
           return () => {
             const reply = wait() as { part?: StretchRows; changed?: true };
@@ -219,6 +238,7 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
       // Nothing this thread shared (keys, the read's plan) outlives it.
       early = undefined;
       plan = undefined;
+      earlyIndex = undefined;
       port1.close();
       await worker.terminate();
     },

@@ -14,7 +14,9 @@ import type { NumberColumnsDone } from './parquet-pages.js';
 import type { FoldThreadData } from './fold-jobs.js';
 import { closeSync } from 'node:fs';
 import { FoldsealError } from '../problems/problem.js';
-import { fdReader, openedAgain, type FileIdentity } from './file-identity.js';
+import { fdReader, openedAgain, openIdentified, type FileIdentity } from './file-identity.js';
+import { indexLines } from './index-lines.js';
+import { SIGNATURES } from '../table/content-check.js';
 import type { LineIndex } from '../table/line-index.js';
 import { extractStretches, STRETCH, type StretchClaims } from '../table/streamed-grid.js';
 
@@ -32,6 +34,7 @@ type Job = { id: number; done: Int32Array } & (
   | { kind: 'keys-of-ids'; ids: string[]; seed: number; repeats: number; from: number; rows: number; out: Uint8Array }
   | ({ kind: 'parquet' } & Parameters<ParquetTwin['parquet']>[0])
   | { kind: 'hash-file'; path: string; identity: FileIdentity }
+  | { kind: 'index-file'; path: string; delimiter: number }
   | {
       kind: 'rows-file';
       path: string;
@@ -107,11 +110,35 @@ function fileSha256(path: string, identity: FileIdentity): string | undefined {
   }
 }
 
+/**
+ * The line index and SHA-256 of a file, made before the protocol is read (as streamed-read.ts
+ * would make them with this delimiter): nothing for a file the fast reader would not take.
+ */
+function indexEarly(path: string, delimiter: number): { identity?: FileIdentity; index?: LineIndex; sha256?: string } {
+  const opened = openIdentified(path);
+  if (!opened) return {};
+  const { fd, identity } = opened;
+  try {
+    const head = new Uint8Array(Math.min(8, identity.size));
+    fdReader(fd, path)(0, head, head.length);
+    if (head.length === 0 || SIGNATURES.some(([, magic]) => magic.every((b, i) => head[i] === b))) return {};
+    const hash = createHash('sha256');
+    const index = indexLines(fd, identity.size, delimiter, path, { hash });
+    return index ? { identity, index, sha256: hash.digest('hex') } : {};
+  } catch {
+    // A file that shrank under the read: the main thread reads it again and reports it.
+    return {};
+  } finally {
+    closeSync(fd);
+  }
+}
+
 async function run(job: Job): Promise<void> {
   try {
     if (job.kind === 'parquet') port.postMessage({ id: job.id, ...(await parquetShare(job)) });
     else if (job.kind === 'hash') port.postMessage({ id: job.id, sha256: createHash('sha256').update(job.bytes).digest('hex') });
     else if (job.kind === 'hash-file') port.postMessage({ id: job.id, sha256: fileSha256(job.path, job.identity) });
+    else if (job.kind === 'index-file') port.postMessage({ id: job.id, ...indexEarly(job.path, job.delimiter) });
     else if (job.kind === 'rows-file') {
       const fd = openedAgain(job.path, job.identity);
       if (fd === undefined) port.postMessage({ id: job.id, changed: true });

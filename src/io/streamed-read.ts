@@ -15,7 +15,9 @@ import type { Problem } from '../problems/problem.js';
 import { changedWhileRead, fdReader, type FileIdentity, identityOf, openIdentified, reopen, sameFile } from './file-identity.js';
 import { describe as describeColumns, type Described } from '../table/covariates.js';
 import { SIGNATURES } from '../table/content-check.js';
-import { LineIndexer, type LineIndex } from '../table/line-index.js';
+import type { LineIndex } from '../table/line-index.js';
+import { indexLines } from './index-lines.js';
+export { indexLines } from './index-lines.js';
 import { STRETCH, streamedGrid, type ReadInto, type StretchHelper } from '../table/streamed-grid.js';
 
 export type { FileIdentity } from './file-identity.js';
@@ -33,43 +35,22 @@ function pathReader(path: string, identity: FileIdentity, shownAs: string): Read
   };
 }
 
-/**
- * The lines of the file, read in stretches; undefined when it is not a file for the fast reader
- * (the reading stops where that shows). `hash` is given every byte, in order.
- */
-export function indexLines(
-  fd: number,
-  size: number,
-  delimiter: number,
-  shownAs: string,
-  options: { hash?: Hash; limit?: number } = {},
-): LineIndex | undefined {
-  const indexer = new LineIndexer(delimiter, size, (n) => new Float64Array(new SharedArrayBuffer(n * 8)));
-  const read = fdReader(fd, shownAs);
-  let buffer = new Uint8Array(Math.min(options.limit ?? STRETCH, Math.max(size, 1)));
-  for (let at = 0; at < size && !indexer.refused; ) {
-    const length = Math.min(buffer.length, size - at);
-    read(at, buffer, length);
-    const taken = indexer.take(buffer.subarray(0, length), at, at + length === size);
-    // No line ends within the stretch: a longer one.
-    if (taken === 0) {
-      buffer = new Uint8Array(buffer.length * 2);
-      continue;
-    }
-    if (indexer.refused) break;
-    options.hash?.update(buffer.subarray(0, taken));
-    at += taken;
-  }
-  return indexer.done();
-}
-
 /** What the other thread does for a streamed read: hash the file, and parse its share of the rows. */
 export interface StreamTwin {
   /**
    * The other thread's share of the rows; `sha256` waits for the file's SHA-256, which that thread
    * reads right after its rows (at once, when it was given none): undefined when the file changed.
    */
-  stretchHelper(path: string, identity: FileIdentity, ix: LineIndex, shownAs: string): StretchHelper & { sha256(): string | undefined };
+  stretchHelper(
+    path: string,
+    identity: FileIdentity,
+    ix: LineIndex,
+    shownAs: string,
+    /** The file's SHA-256, when it is known already (then the other thread does not read the file again for it). */
+    hashed?: string,
+  ): StretchHelper & { sha256(): string | undefined };
+  /** The line index and SHA-256 the other thread made of this very file before the protocol was read (RowThread.indexEarly), if it did. */
+  indexed?(path: string, identity: FileIdentity, delimiter: number): { ix: LineIndex; sha256: string } | undefined;
 }
 
 export interface StreamedTable {
@@ -96,11 +77,13 @@ export function readStreamed(
     if (head.length === 0 || SIGNATURES.some(([, magic]) => magic.every((b, i) => head[i] === b))) return undefined;
     // Alone, the index pass hashes the file; with another thread, that thread hashes it once it has
     // parsed its share of the rows (the hash is wanted only after the table is built).
+    // The other thread may have indexed and hashed it already, started before the protocol was read.
+    const early = twin?.indexed?.(path, identity, delimiter);
     const here = twin ? undefined : createHash('sha256');
-    const ix = indexLines(fd, identity.size, delimiter, shownAs, { hash: here });
+    const ix = early?.ix ?? indexLines(fd, identity.size, delimiter, shownAs, { hash: here });
     if (!ix) return undefined;
     beforeRows();
-    const helper = twin?.stretchHelper(path, identity, ix, shownAs);
+    const helper = twin?.stretchHelper(path, identity, ix, shownAs, early?.sha256);
     const grid = streamedGrid(ix, { rows: fdReader(fd, shownAs), cells: pathReader(path, identity, shownAs) }, helper);
     const built = buildTable(grid, roles, shownAs, locate);
     const sha256 = here ? here.digest('hex') : helper!.sha256();

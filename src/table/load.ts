@@ -10,10 +10,9 @@ import type { Grid } from './grid.js';
 import { columnsGrid, type ColumnTable } from './columns.js';
 import { describe, type Described } from './covariates.js';
 
-export function delimiterFor(file: string, format?: 'csv' | 'tsv'): number {
-  const f = format ?? (/\.(tsv|tab)(\.gz)?$/i.test(file) ? 'tsv' : 'csv');
-  return f === 'tsv' ? 0x09 : 0x2c;
-}
+import { delimiterFor } from './delimiter.js';
+
+export { delimiterFor };
 
 export function tableFromBytes(
   bytes: Uint8Array,

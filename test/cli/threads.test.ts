@@ -204,3 +204,43 @@ t.test('fits from class moments on the thread that read the table: the same file
   t.match(errTwo.stderr, 'every feature is constant within classes');
   t.equal(errTwo.stderr, errOne.stderr, 'the same error');
 });
+
+t.test('the line index the row thread makes early is used only for the very file, with its delimiter', async (t) => {
+  const { startRowThread } = await import('../../src/io/row-helper.js');
+  const { openIdentified } = await import('../../src/io/file-identity.js');
+  const { closeSync, appendFileSync } = await import('node:fs');
+  const { gzipSync } = await import('node:zlib');
+  const text = 'id,x,y\na,1,p\nb,2,q\nc,3,p\n';
+  const dir = tempDir({ 'd.csv': text, 'z.csv.gz': '' });
+  writeFileSync(join(dir, 'z.csv.gz'), gzipSync(text));
+  const path = join(dir, 'd.csv');
+  const identity = (p: string) => {
+    const o = openIdentified(p)!;
+    closeSync(o.fd);
+    return o.identity;
+  };
+  const thread = startRowThread();
+  t.teardown(() => thread.close());
+  thread.indexEarly(path, 0x2c);
+  const got = thread.indexed(path, identity(path), 0x2c);
+  t.equal(got?.ix.rows, 3, 'the rows');
+  t.same(got?.ix.header, ['id', 'x', 'y'], 'the header');
+  t.equal(got?.sha256, sha256(text), 'the SHA-256 of the whole file');
+  t.equal(thread.indexed(path, identity(path), 0x2c), undefined, 'taken once');
+  thread.indexEarly(path, 0x2c);
+  t.equal(thread.indexed(path, identity(path), 0x09), undefined, 'another delimiter: not used');
+  thread.indexEarly(path, 0x2c);
+  t.equal(thread.indexed(join(dir, 'other.csv'), identity(path), 0x2c), undefined, 'another file: not used');
+  thread.indexEarly(join(dir, 'z.csv.gz'), 0x2c);
+  t.equal(thread.indexed(join(dir, 'z.csv.gz'), identity(join(dir, 'z.csv.gz')), 0x2c), undefined, 'a compressed file: no index');
+  thread.indexEarly(join(dir, 'missing.csv'), 0x2c);
+  t.equal(thread.indexed(join(dir, 'missing.csv'), identity(path), 0x2c), undefined, 'no such file: no index');
+  // Changed after it was indexed: its identity (size, modification time) is not the same any more.
+  thread.indexEarly(path, 0x2c);
+  const before = identity(path);
+  await new Promise((r) => setTimeout(r, 20));
+  appendFileSync(path, 'd,4,q\n');
+  t.equal(thread.indexed(path, identity(path), 0x2c), undefined, 'a file changed since: not used');
+  thread.indexEarly(path, 0x2c);
+  t.equal(thread.indexed(path, before, 0x2c), undefined, 'nor under its old identity');
+});
