@@ -13,6 +13,7 @@ export interface FoldThreadData {
   protocol: Parameters<typeof runJob>[0];
   rows: number;
   cols: number;
+  /** rows × cols numbers from its start (the memory may run on past them). */
   data: SharedArrayBuffer;
   columns?: SharedArrayBuffer;
   y: SharedArrayBuffer;
@@ -34,7 +35,7 @@ export interface FoldThreadData {
 
 export function fitClaimedJobs(w: FoldThreadData, post: (message: unknown, transfer: ArrayBuffer[]) => void): void {
   const table: ExecData = {
-    X: { rows: w.rows, cols: w.cols, data: new Float64Array(w.data) },
+    X: { rows: w.rows, cols: w.cols, data: new Float64Array(w.data, 0, w.rows * w.cols) },
     y: new Int32Array(w.y),
     classes: w.classes,
     featureNames: w.featureNames,

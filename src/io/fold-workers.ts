@@ -41,10 +41,13 @@ export function threadCount(table: Table, folds: number, weight = 1, kind?: Mode
   return Math.max(1, Math.min(availableParallelism(), folds, 8));
 }
 
-/** The numbers in shared memory: the array itself when it already is (a table parsed on two threads), else a copy. */
+/**
+ * The numbers in shared memory: the array's own when it already is (a table parsed on two threads;
+ * the memory may run on past the array, the threads read rows × cols), else a copy.
+ */
 function sharedCopy(a: Float64Array): SharedArrayBuffer {
   const b = a.buffer;
-  if (b instanceof SharedArrayBuffer && a.byteOffset === 0 && a.byteLength === b.byteLength) return b;
+  if (b instanceof SharedArrayBuffer && a.byteOffset === 0) return b;
   const copy = new SharedArrayBuffer(a.byteLength);
   new Float64Array(copy).set(a);
   return copy;

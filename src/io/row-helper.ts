@@ -46,7 +46,7 @@ export interface RowThread extends RowHelper, ParquetTwin, StreamTwin {
   folds(data: FoldThreadData, port: MessagePort): void;
   /**
    * Before the protocol is read (early-row-thread.ts): the other thread indexes the lines of this
-   * file, as the streamed read would with this delimiter, and hashes it meanwhile.
+   * file, as the streamed read would with this delimiter, and makes room for its numbers.
    */
   indexEarly(path: string, delimiter: number): void;
   indexed: NonNullable<StreamTwin['indexed']>;
@@ -94,7 +94,7 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
     return reply as Record<string, unknown>;
   };
   let plan: { idColumn: string; seed: number; repeats: number } | undefined;
-  let earlyIndex: { path: string; delimiter: number; wait: () => Record<string, unknown> } | undefined;
+  let earlyIndex: { path: string; delimiter: number; stop: Int32Array; wait: () => Record<string, unknown> } | undefined;
   /**
    * Keys the other thread derives for the ids of rows [from, to), all repeats, once its rows are
    * parsed: written where they belong in `out` (repeat r's keys of all `to` rows at (r − 1)·to·32),
@@ -127,15 +127,19 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
       plan = p;
     },
     indexEarly(path, delimiter) {
-      earlyIndex = { path, delimiter, wait: post({ kind: 'index-file', path, delimiter }) };
+      const stop = new Int32Array(new SharedArrayBuffer(4));
+      earlyIndex = { path, delimiter, stop, wait: post({ kind: 'index-file', path, delimiter, stop }) };
     },
     indexed(path, identity, delimiter) {
       const e = earlyIndex;
       earlyIndex = undefined;
-      if (e === undefined || e.path !== path || e.delimiter !== delimiter) return undefined;
-      const r = e.wait() as { identity?: FileIdentity; index?: LineIndex; sha256?: string };
+      if (e === undefined) return undefined;
+      // The other thread stops touching the numbers' pages: the rows are wanted now.
+      Atomics.store(e.stop, 0, 1);
+      if (e.path !== path || e.delimiter !== delimiter) return undefined;
+      const r = e.wait() as { identity?: FileIdentity; index?: LineIndex; numbers?: SharedArrayBuffer };
       // The same file as this thread opened (device, inode, size, modification time), else not used.
-      return r.index && r.identity && sameFile(r.identity, identity) ? { ix: r.index, sha256: r.sha256! } : undefined;
+      return r.index && r.identity && sameFile(r.identity, identity) ? { ix: r.index, numbers: r.numbers } : undefined;
     },
     sha256(bytes) {
       const wait = post({ kind: 'hash', bytes });
@@ -163,21 +167,22 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
         return part;
       };
     },
-    stretchHelper(path, identity, ix, shownAs, hashed) {
+    stretchHelper(path, identity, ix, shownAs, room) {
       // The line index is handed on once and not held here: V8's call feedback can keep these
       // closures (and what they hold) alive for the whole process.
       const { header, rows } = ix;
       let index: object | undefined = { rowStart: ix.rowStart, rowEnd: ix.rowEnd, delimiter: ix.delimiter, cols: ix.cols, rows };
-      let hashing: (() => Record<string, unknown>) | undefined;
+      let hashed: (() => Record<string, unknown>) | undefined;
       return {
-        numbers: (length) => new Float64Array(new SharedArrayBuffer(length * 8)),
+        numbers: (length) =>
+          room && room.byteLength >= length * 8 ? new Float64Array(room, 0, length) : new Float64Array(new SharedArrayBuffer(length * 8)),
         claims: (length) => new Int32Array(new SharedArrayBuffer(length * 4)),
         // The hash is wanted once the table is built: the other thread takes it after its rows (before their keys).
-        sha256: () => hashed ?? ((hashing ?? post({ kind: 'hash-file', path, identity }))().sha256 as string | undefined),
+        sha256: () => (hashed ?? post({ kind: 'hash-file', path, identity }))().sha256 as string | undefined,
         start(numberCols, textCols, claims, numbers) {
           const wait = post({ kind: 'rows-file', path, identity, index, numberCols, textCols, claims, numbers });
           index = undefined;
-          if (hashed === undefined) hashing = post({ kind: 'hash-file', path, identity });
+          hashed = post({ kind: 'hash-file', path, identity });
           keysAfterRows(header, textCols, -1, rows);
           return () => {
             const reply = wait() as { part?: StretchRows; changed?: true };

@@ -34,7 +34,7 @@ type Job = { id: number; done: Int32Array } & (
   | { kind: 'keys-of-ids'; ids: string[]; seed: number; repeats: number; from: number; rows: number; out: Uint8Array }
   | ({ kind: 'parquet' } & Parameters<ParquetTwin['parquet']>[0])
   | { kind: 'hash-file'; path: string; identity: FileIdentity }
-  | { kind: 'index-file'; path: string; delimiter: number }
+  | { kind: 'index-file'; path: string; delimiter: number; stop: Int32Array }
   | {
       kind: 'rows-file';
       path: string;
@@ -111,10 +111,14 @@ function fileSha256(path: string, identity: FileIdentity): string | undefined {
 }
 
 /**
- * The line index and SHA-256 of a file, made before the protocol is read (as streamed-read.ts
- * would make them with this delimiter): nothing for a file the fast reader would not take.
+ * The line index of a file, made before the protocol is read (as streamed-read.ts would make it
+ * with this delimiter), and room for its numbers: nothing for a file the fast reader would not take.
  */
-function indexEarly(path: string, delimiter: number): { identity?: FileIdentity; index?: LineIndex; sha256?: string } {
+function indexEarly(
+  path: string,
+  delimiter: number,
+  stop: Int32Array,
+): { identity?: FileIdentity; index?: LineIndex; numbers?: SharedArrayBuffer } {
   const opened = openIdentified(path);
   if (!opened) return {};
   const { fd, identity } = opened;
@@ -122,9 +126,9 @@ function indexEarly(path: string, delimiter: number): { identity?: FileIdentity;
     const head = new Uint8Array(Math.min(8, identity.size));
     fdReader(fd, path)(0, head, head.length);
     if (head.length === 0 || SIGNATURES.some(([, magic]) => magic.every((b, i) => head[i] === b))) return {};
-    const hash = createHash('sha256');
-    const index = indexLines(fd, identity.size, delimiter, path, { hash });
-    return index ? { identity, index, sha256: hash.digest('hex') } : {};
+    // Not hashed here: the hash is wanted only once the table is built, and is taken after this thread's rows.
+    const index = indexLines(fd, identity.size, delimiter, path);
+    return index ? { identity, index, numbers: touchedNumbers(index, stop) } : {};
   } catch {
     // A file that shrank under the read: the main thread reads it again and reports it.
     return {};
@@ -133,12 +137,31 @@ function indexEarly(path: string, delimiter: number): { identity?: FileIdentity;
   }
 }
 
+/**
+ * Room for the table's numbers, its pages touched while the main thread still loads its code:
+ * a new page costs the kernel a fault on first write (some 3 ms per MB here), and faults of two
+ * threads into one array wait for each other. Room for every column but one (the label is never a
+ * feature); touched up to every column but two (an id and the label), and only until the main
+ * thread asks for the index (`stop`): what is left is touched as the rows are parsed.
+ */
+function touchedNumbers(ix: LineIndex, stop: Int32Array): SharedArrayBuffer | undefined {
+  if (ix.cols < 3 || ix.rows === 0) return undefined;
+  const room = new SharedArrayBuffer(ix.rows * (ix.cols - 1) * 8);
+  const bytes = new Uint8Array(room);
+  const touch = ix.rows * (ix.cols - 2) * 8;
+  for (let at = 0; at < touch && Atomics.load(stop, 0) === 0; at += 1 << 20) {
+    const end = Math.min(touch, at + (1 << 20));
+    for (let page = at; page < end; page += 4096) bytes[page] = 0;
+  }
+  return room;
+}
+
 async function run(job: Job): Promise<void> {
   try {
     if (job.kind === 'parquet') port.postMessage({ id: job.id, ...(await parquetShare(job)) });
     else if (job.kind === 'hash') port.postMessage({ id: job.id, sha256: createHash('sha256').update(job.bytes).digest('hex') });
     else if (job.kind === 'hash-file') port.postMessage({ id: job.id, sha256: fileSha256(job.path, job.identity) });
-    else if (job.kind === 'index-file') port.postMessage({ id: job.id, ...indexEarly(job.path, job.delimiter) });
+    else if (job.kind === 'index-file') port.postMessage({ id: job.id, ...indexEarly(job.path, job.delimiter, job.stop) });
     else if (job.kind === 'rows-file') {
       const fd = openedAgain(job.path, job.identity);
       if (fd === undefined) port.postMessage({ id: job.id, changed: true });

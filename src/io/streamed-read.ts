@@ -46,11 +46,14 @@ export interface StreamTwin {
     identity: FileIdentity,
     ix: LineIndex,
     shownAs: string,
-    /** The file's SHA-256, when it is known already (then the other thread does not read the file again for it). */
-    hashed?: string,
+    /** Room for the numbers made already (its first part at least): used when it is large enough. */
+    room?: SharedArrayBuffer,
   ): StretchHelper & { sha256(): string | undefined };
-  /** The line index and SHA-256 the other thread made of this very file before the protocol was read (RowThread.indexEarly), if it did. */
-  indexed?(path: string, identity: FileIdentity, delimiter: number): { ix: LineIndex; sha256: string } | undefined;
+  /**
+   * The line index the other thread made of this very file before the protocol was read
+   * (RowThread.indexEarly), and room for its numbers, if it did.
+   */
+  indexed?(path: string, identity: FileIdentity, delimiter: number): { ix: LineIndex; numbers?: SharedArrayBuffer } | undefined;
 }
 
 export interface StreamedTable {
@@ -77,13 +80,13 @@ export function readStreamed(
     if (head.length === 0 || SIGNATURES.some(([, magic]) => magic.every((b, i) => head[i] === b))) return undefined;
     // Alone, the index pass hashes the file; with another thread, that thread hashes it once it has
     // parsed its share of the rows (the hash is wanted only after the table is built).
-    // The other thread may have indexed and hashed it already, started before the protocol was read.
+    // The other thread may have indexed it already, started before the protocol was read.
     const early = twin?.indexed?.(path, identity, delimiter);
     const here = twin ? undefined : createHash('sha256');
     const ix = early?.ix ?? indexLines(fd, identity.size, delimiter, shownAs, { hash: here });
     if (!ix) return undefined;
     beforeRows();
-    const helper = twin?.stretchHelper(path, identity, ix, shownAs, early?.sha256);
+    const helper = twin?.stretchHelper(path, identity, ix, shownAs, early?.numbers);
     const grid = streamedGrid(ix, { rows: fdReader(fd, shownAs), cells: pathReader(path, identity, shownAs) }, helper);
     const built = buildTable(grid, roles, shownAs, locate);
     const sha256 = here ? here.digest('hex') : helper!.sha256();
