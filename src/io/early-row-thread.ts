@@ -9,7 +9,7 @@
  */
 import { readFileSync, statSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
-import { dataFileGuess } from '../protocol/data-file-guess.js';
+import { dataSectionGuess } from '../protocol/data-file-guess.js';
 import { delimiterFor } from '../table/delimiter.js';
 import { outsideProblem, protocolPolicy } from './path-policy.js';
 import { type RowThread, rowThreadsAvailable, startRowThread } from './row-helper.js';
@@ -18,16 +18,17 @@ let early: { path: string; parquet: boolean; thread: RowThread } | undefined;
 
 export function startEarlyRowThread(protocolPath: string, allowOutside: boolean): void {
   try {
-    const file = dataFileGuess(readFileSync(protocolPath, 'utf8'));
-    if (file === undefined) return;
+    const guess = dataSectionGuess(readFileSync(protocolPath, 'utf8'));
+    if (guess === undefined) return;
+    const { file } = guess;
     const path = resolve(dirname(resolve(protocolPath)), file);
     if (outsideProblem(path, protocolPolicy(protocolPath, allowOutside), file, 'data file', {})) return;
     // The extension stands in for the magic bytes here (validateProtocol reads those).
     const parquet = /\.parquet$/i.test(path);
     if (!rowThreadsAvailable(statSync(path).size, parquet)) return;
     const thread = startRowThread({ parquet });
-    // A plain table's lines are indexed and the file hashed at once, while this thread loads the run's code.
-    if (!parquet) thread.indexEarly(path, delimiterFor(path));
+    // A plain table read in stretches: its lines are indexed at once, while this thread loads the run's code.
+    if (!parquet && guess.plain) thread.indexEarly(path, delimiterFor(path));
     // Not taken yet: it does not keep the process alive on its own.
     thread.hold(false);
     early = { path, parquet, thread };
@@ -43,6 +44,9 @@ export async function takeEarlyRowThread(path: string, parquet: boolean): Promis
   if (e === undefined) return undefined;
   if (e.path === path && e.parquet === parquet) {
     e.thread.hold(true);
+    // The file is about to be read: the thread stops making room for the numbers (a read that
+    // does not take its index would otherwise wait behind that).
+    e.thread.indexWanted();
     return e.thread;
   }
   await e.thread.close();

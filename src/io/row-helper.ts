@@ -50,6 +50,8 @@ export interface RowThread extends RowHelper, ParquetTwin, StreamTwin {
    */
   indexEarly(path: string, delimiter: number): void;
   indexed: NonNullable<StreamTwin['indexed']>;
+  /** The early index is wanted soon (or not at all): the other thread stops touching the room for the numbers. */
+  indexWanted(): void;
   /** Whether the thread keeps the process alive (a thread started early, not yet taken, does not). */
   hold(keep: boolean): void;
   close(): Promise<void>;
@@ -129,6 +131,9 @@ export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
     indexEarly(path, delimiter) {
       const stop = new Int32Array(new SharedArrayBuffer(4));
       earlyIndex = { path, delimiter, stop, wait: post({ kind: 'index-file', path, delimiter, stop }) };
+    },
+    indexWanted() {
+      if (earlyIndex) Atomics.store(earlyIndex.stop, 0, 1);
     },
     indexed(path, identity, delimiter) {
       const e = earlyIndex;

@@ -5,6 +5,15 @@
  * starting work early: the protocol is parsed and checked as always. Pure.
  */
 export function dataFileGuess(text: string): string | undefined {
+  return dataSectionGuess(text)?.file;
+}
+
+/**
+ * dataFileGuess, and whether the data mapping looks like a plain samples-in-rows table read as it
+ * is: none of `samples`, `where`, `classes`, nor a `layout` other than samples-in-rows (those are
+ * read whole, never in stretches).
+ */
+export function dataSectionGuess(text: string): { file: string; plain: boolean } | undefined {
   const lines = text.split(/\r?\n/);
   const start = lines.findIndex((line) => /^data\s*:/.test(line));
   if (start < 0) return undefined;
@@ -15,5 +24,9 @@ export function dataFileGuess(text: string): string | undefined {
   const match = /(?:^|[\s{,])file\s*:\s*(?:"([^"\\\n]+)"|'([^'\n]+)'|([^\s,{}[\]#"'][^\s,{}[\]#]*))/.exec(
     section.slice(section.indexOf(':') + 1),
   );
-  return match ? (match[1] ?? match[2] ?? match[3]) : undefined;
+  if (!match) return undefined;
+  const body = section.slice(section.indexOf(':') + 1);
+  const layout = /(?:^|[\s{,])layout\s*:\s*["']?([\w-]+)/.exec(body)?.[1];
+  const plain = !/(?:^|[\s{,])(?:samples|where|classes)\s*:/.test(body) && (layout === undefined || layout === 'samples-in-rows');
+  return { file: match[1] ?? match[2] ?? match[3], plain };
 }

@@ -3,7 +3,7 @@
 // or nothing.
 import t from 'tap';
 import { parse } from 'yaml';
-import { dataFileGuess } from '../../src/protocol/data-file-guess.js';
+import { dataFileGuess, dataSectionGuess } from '../../src/protocol/data-file-guess.js';
 
 const texts = [
   'foldseal: 1\nname: a\ndata: {file: a-100k-x50.csv, sha256: "ab", id: id, label: class}\nsplit: {rule: kfold}\n',
@@ -25,4 +25,14 @@ t.test('no guess where the text does not show one', async (t) => {
   t.equal(dataFileGuess('data:\n  id: id\nsplit:\n  pinned: {file: folds.csv}\n'), undefined, "another mapping's file is not the data's");
   t.equal(dataFileGuess('data: {file: }\n'), undefined, 'an empty value');
   t.equal(dataFileGuess('data: {file: "esc\\"aped.csv"}\n'), undefined, 'a quoted name with escapes is left to the YAML library');
+});
+
+t.test('a data mapping read whole is told apart from a plain table read in stretches', async (t) => {
+  t.equal(dataSectionGuess(texts[0])?.plain, true, 'flow style, roles only');
+  t.equal(dataSectionGuess(texts[1])?.plain, true, 'block style, roles only');
+  t.equal(dataSectionGuess('data: {file: d.csv, layout: samples-in-rows}\n')?.plain, true, 'the default layout named');
+  t.equal(dataSectionGuess(texts[5])?.plain, false, 'features in rows');
+  t.equal(dataSectionGuess('data:\n  file: m.tsv\n  samples: {file: s.csv, id: id}\n')?.plain, false, 'a sample sheet');
+  t.equal(dataSectionGuess('data: {file: d.csv, where: {site: [a]}}\n')?.plain, false, 'a row filter');
+  t.equal(dataSectionGuess('data: {file: d.csv, classes: {x: [a, b], y: [c]}}\n')?.plain, false, 'a class map');
 });
