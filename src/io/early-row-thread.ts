@@ -7,7 +7,7 @@
  * over when it reads that same file, and closes it otherwise; the command closes one never taken.
  * A wrong guess costs a thread's start-up, never a result.
  */
-import { readFileSync, statSync } from 'node:fs';
+import { closeSync, openSync, readSync, statSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
 import { dataSectionGuess } from '../protocol/data-file-guess.js';
 import { delimiterFor } from '../table/delimiter.js';
@@ -18,7 +18,7 @@ let early: { path: string; parquet: boolean; thread: RowThread } | undefined;
 
 export function startEarlyRowThread(protocolPath: string, allowOutside: boolean): void {
   try {
-    const guess = dataSectionGuess(readFileSync(protocolPath, 'utf8'));
+    const guess = dataSectionGuess(protocolHead(protocolPath));
     if (guess === undefined) return;
     const { file } = guess;
     const path = resolve(dirname(resolve(protocolPath)), file);
@@ -34,6 +34,17 @@ export function startEarlyRowThread(protocolPath: string, allowOutside: boolean)
     early = { path, parquet, thread };
   } catch {
     // Anything unusual (no such file, an unreadable protocol) is validateProtocol's to report.
+  }
+}
+
+/** The protocol's first 64 KB, enough for any data mapping (a data file named as the protocol by mistake is not read whole here). */
+function protocolHead(path: string): string {
+  const fd = openSync(path, 'r');
+  try {
+    const head = Buffer.alloc(1 << 16);
+    return head.toString('utf8', 0, readSync(fd, head, 0, head.length, 0));
+  } finally {
+    closeSync(fd);
   }
 }
 
