@@ -27,7 +27,7 @@ t.test('mean of per-fold accuracies in a hand-made 4-fold example', async (t) =>
   });
   const r = await validateProtocol(join(dir, 'p.yaml'));
   t.same(r.problems, []);
-  const out = runProtocol({
+  const input = {
     protocol: r.protocol!,
     raw: r.raw,
     protocolFile: 'p.yaml',
@@ -35,27 +35,14 @@ t.test('mean of per-fold accuracies in a hand-made 4-fold example', async (t) =>
     dataSha256: r.dataSha256!,
     assignment: r.assignment!,
     warnings: [],
-  });
+  };
+  const out = runProtocol(input);
   // A sink takes predictions.csv and models.json piece by piece: the same bytes and digests, and neither is kept.
   const taken: Record<string, Buffer[]> = {};
-  const streamed = runProtocol(
-    {
-      protocol: r.protocol!,
-      raw: r.raw,
-      protocolFile: 'p.yaml',
-      table: r.table!,
-      dataSha256: r.dataSha256!,
-      assignment: r.assignment!,
-      warnings: [],
-    },
-    {},
-    undefined,
-    undefined,
-    (name, pieces) => {
-      taken[name] = Array.from(pieces, (b) => Buffer.from(b));
-      return sha256(Buffer.concat(taken[name]));
-    },
-  );
+  const streamed = runProtocol(input, {}, undefined, undefined, (name, pieces) => {
+    taken[name] = Array.from(pieces, (b) => Buffer.from(b));
+    return sha256(Buffer.concat(taken[name]));
+  });
   t.same(Object.keys(taken).sort(), ['models.json', 'predictions.csv'], 'both files went to the sink');
   t.ok(Buffer.concat(taken['predictions.csv']).equals(Buffer.from(out.predictions!)), 'predictions.csv: same bytes');
   t.ok(Buffer.concat(taken['models.json']).equals(Buffer.from(out.files['models.json']!)), 'models.json: same bytes');
