@@ -14,6 +14,7 @@ import './reconcile/hand-made.part.js';
 import './manifest/compare.part.js';
 import './check/lock.part.js';
 import './run/four-fold.part.js';
+import './run/predictions.part.js';
 import './metric/identities.part.js';
 import './stats/references.part.js';
 import './split/properties.part.js';
