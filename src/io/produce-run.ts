@@ -14,6 +14,7 @@ import { lockedRepoProblems } from './repo-guard.js';
 import { auditReport } from './audit-protocol.js';
 import type { AuditResult } from '../audit/audit.js';
 import { dirname, resolve } from 'node:path';
+import { assignmentSha256 } from '../split/csv.js';
 import { error, FoldsealError } from '../problems/problem.js';
 import { locate } from '../protocol/document.js';
 import type { GivenProbabilities } from '../reconcile/reconcile.js';
@@ -108,6 +109,8 @@ async function produce(protocolPath: string, options: ProduceOptions, kept: { th
   const runAudit = () => {
     audit = options.audit ? auditReport(report, { quick: true }) : undefined;
     report.described = undefined;
+    // Wanted by the outputs, and ready now: taken while the folds are fitted elsewhere.
+    assignmentSha256(input.assignment);
   };
   const merged = options.merged;
   if (merged || input.protocol.model.kind === 'command') runAudit();

@@ -11,10 +11,21 @@ export function assignmentCsv(a: Assignment): string {
   return Buffer.from(whole.buffer, whole.byteOffset, whole.length).toString('utf8');
 }
 
-/** SHA-256 of the assignment CSV (what manifests, lock files and shard parts record), hashed piece by piece. */
+/**
+ * SHA-256 of the assignment CSV (what manifests, lock files and shard parts record), hashed piece
+ * by piece; kept per assignment (which never changes once made), so a run may take it early,
+ * while it waits for its folds.
+ */
 export function assignmentSha256(a: Assignment): string {
-  return sha256Pieces(assignmentCsvPieces(a));
+  let hash = hashes.get(a);
+  if (hash === undefined) {
+    hash = sha256Pieces(assignmentCsvPieces(a));
+    hashes.set(a, hash);
+  }
+  return hash;
 }
+
+const hashes = new WeakMap<Assignment, string>();
 
 /**
  * The file as UTF-8 bytes in pieces of about `piece` bytes, written row by row without a string
