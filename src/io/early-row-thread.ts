@@ -1,7 +1,7 @@
 /**
  * The row thread of `run`, started before the command loads its modules (some 150 ms), so that
  * it is ready when the data file is read. Started only when a quick look at the protocol
- * (dataFileGuess) finds a data file the protocol may read (the same path policy) that is large
+ * (dataSectionGuess) finds a data file the protocol may read (the same path policy) that is large
  * enough for two threads. That thread indexes the file's lines meanwhile and makes room for its
  * numbers (the same path policy holds: nothing is read that the run would not read). validateProtocol takes the thread
  * over when it reads that same file, and closes it otherwise; the command closes one never taken.

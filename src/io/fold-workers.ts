@@ -41,6 +41,20 @@ export function threadCount(table: Table, folds: number, weight = 1, kind?: Mode
   return Math.max(1, Math.min(availableParallelism(), folds, 8));
 }
 
+/** What every fold thread reads of the table: its numbers and classes in shared memory, and its names. */
+function sharedTable(table: Table): Pick<FoldThreadData, 'rows' | 'cols' | 'data' | 'y' | 'classes' | 'featureNames'> {
+  const y = new SharedArrayBuffer(table.y.byteLength);
+  new Int32Array(y).set(table.y);
+  return {
+    rows: table.X.rows,
+    cols: table.X.cols,
+    data: sharedCopy(table.X.data),
+    y,
+    classes: table.classes,
+    featureNames: table.featureNames,
+  };
+}
+
 /**
  * The numbers in shared memory: the array's own when it already is (a table parsed on two threads;
  * the memory may run on past the array, the threads read rows × cols), else a copy.
@@ -81,9 +95,6 @@ export async function crossValidateInWorkers(
   }
   const parts = partsFor(p, plans.length, threads);
   const jobs = splitJobs(jobsFor(p, table, a, plans), parts);
-  const data = sharedCopy(table.X.data);
-  const y = new SharedArrayBuffer(table.y.byteLength);
-  new Int32Array(y).set(table.y);
   let columns: SharedArrayBuffer | undefined;
   if (wantsColumns(p)) {
     columns = new SharedArrayBuffer(table.X.data.byteLength);
@@ -94,13 +105,8 @@ export async function crossValidateInWorkers(
   const claim = new Int32Array(new SharedArrayBuffer(4));
   const workerData: FoldThreadData = {
     protocol: { preprocess: p.preprocess, model: p.model, grid: p.grid, tune: p.tune, data: p.data },
-    rows: table.X.rows,
-    cols: table.X.cols,
-    data,
+    ...sharedTable(table),
     columns,
-    y,
-    classes: table.classes,
-    featureNames: table.featureNames,
     ids: p.tune ? table.ids : [],
     groups: p.tune ? table.groups : undefined,
     jobs,
@@ -176,16 +182,9 @@ async function momentsOnHelper(
   meanwhile: () => void,
   helper: RowThread,
 ): Promise<CvResult> {
-  const y = new SharedArrayBuffer(table.y.byteLength);
-  new Int32Array(y).set(table.y);
   const data: FoldThreadData = {
     protocol: { preprocess: p.preprocess, model: p.model, data: p.data },
-    rows: table.X.rows,
-    cols: table.X.cols,
-    data: sharedCopy(table.X.data),
-    y,
-    classes: table.classes,
-    featureNames: table.featureNames,
+    ...sharedTable(table),
     ids: [],
     jobs: [],
     claim: new SharedArrayBuffer(4),

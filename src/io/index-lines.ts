@@ -2,7 +2,15 @@
 import type { Hash } from 'node:crypto';
 import { LineIndexer, type LineIndex } from '../table/line-index.js';
 import { STRETCH } from '../table/streamed-grid.js';
+import { SIGNATURES } from '../table/content-check.js';
 import { fdReader } from './file-identity.js';
+
+/** Whether the file may be read in stretches: not empty, and no compressed or binary signature at its start (those are read whole, decoded or reported). */
+export function plainFileHead(fd: number, size: number, shownAs: string): boolean {
+  const head = new Uint8Array(Math.min(8, size));
+  fdReader(fd, shownAs)(0, head, head.length);
+  return head.length > 0 && !SIGNATURES.some(([, magic]) => magic.every((b, i) => head[i] === b));
+}
 
 /**
  * The lines of the file, read in stretches; undefined when it is not a file for the fast reader

@@ -15,8 +15,7 @@ import type { FoldThreadData } from './fold-jobs.js';
 import { closeSync } from 'node:fs';
 import { FoldsealError } from '../problems/problem.js';
 import { fdReader, openedAgain, openIdentified, type FileIdentity } from './file-identity.js';
-import { indexLines } from './index-lines.js';
-import { SIGNATURES } from '../table/content-check.js';
+import { indexLines, plainFileHead } from './index-lines.js';
 import type { LineIndex } from '../table/line-index.js';
 import { extractStretches, STRETCH, type StretchClaims } from '../table/streamed-grid.js';
 
@@ -123,9 +122,7 @@ function indexEarly(
   if (!opened) return {};
   const { fd, identity } = opened;
   try {
-    const head = new Uint8Array(Math.min(8, identity.size));
-    fdReader(fd, path)(0, head, head.length);
-    if (head.length === 0 || SIGNATURES.some(([, magic]) => magic.every((b, i) => head[i] === b))) return {};
+    if (!plainFileHead(fd, identity.size, path)) return {};
     // Not hashed here: the hash is wanted only once the table is built, and is taken after this thread's rows.
     const index = indexLines(fd, identity.size, delimiter, path);
     return index ? { identity, index, numbers: touchedNumbers(index, stop) } : {};

@@ -14,9 +14,8 @@ import { closeSync } from 'node:fs';
 import type { Problem } from '../problems/problem.js';
 import { changedWhileRead, fdReader, type FileIdentity, identityOf, openIdentified, reopen, sameFile } from './file-identity.js';
 import { describe as describeColumns, type Described } from '../table/covariates.js';
-import { SIGNATURES } from '../table/content-check.js';
 import type { LineIndex } from '../table/line-index.js';
-import { indexLines } from './index-lines.js';
+import { indexLines, plainFileHead } from './index-lines.js';
 export { indexLines } from './index-lines.js';
 import { STRETCH, streamedGrid, type ReadInto, type StretchHelper } from '../table/streamed-grid.js';
 
@@ -75,9 +74,7 @@ export function readStreamed(
   const { fd, identity } = opened;
   try {
     // A compressed or binary file is read whole (and decoded or reported): not worth hashing twice.
-    const head = new Uint8Array(Math.min(8, identity.size));
-    fdReader(fd, shownAs)(0, head, head.length);
-    if (head.length === 0 || SIGNATURES.some(([, magic]) => magic.every((b, i) => head[i] === b))) return undefined;
+    if (!plainFileHead(fd, identity.size, shownAs)) return undefined;
     // Alone, the index pass hashes the file; with another thread, that thread hashes it once it has
     // parsed its share of the rows (the hash is wanted only after the table is built).
     // The other thread may have indexed it already, started before the protocol was read.

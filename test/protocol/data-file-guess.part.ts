@@ -3,7 +3,9 @@
 // or nothing.
 import t from 'tap';
 import { parse } from 'yaml';
-import { dataFileGuess, dataSectionGuess } from '../../src/protocol/data-file-guess.js';
+import { dataSectionGuess } from '../../src/protocol/data-file-guess.js';
+
+const dataFileGuess = (text: string) => dataSectionGuess(text)?.file;
 
 const texts = [
   'foldseal: 1\nname: a\ndata: {file: a-100k-x50.csv, sha256: "ab", id: id, label: class}\nsplit: {rule: kfold}\n',
