@@ -11,6 +11,10 @@ import { fileURLToPath } from 'node:url';
 import { Ajv2020 } from 'ajv/dist/2020.js';
 import standaloneCode from 'ajv/dist/standalone/index.js';
 import { AJV_OPTIONS, compiledValidatorPath } from '../dist/src/protocol/schema-options.js';
+import { CLI_HEAP_FLAGS, useHeapFlags } from '../dist/src/io/heap-flags.js';
+
+// V8 accepts a code cache only under the flags it was made with: the command line's.
+useHeapFlags(CLI_HEAP_FLAGS);
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
 for (const name of readdirSync(join(root, 'schema'))

@@ -2,13 +2,9 @@
 /** The only place that reads argv and calls process.exit. */
 import { processIo } from './io.js';
 import { invoke } from './invoke.js';
-import { useHeapFlags } from '../io/heap-flags.js';
+import { CLI_HEAP_FLAGS, useHeapFlags } from '../io/heap-flags.js';
 
-// A run's numbers live in typed arrays outside V8's heap, and what the heap holds of a table (ids,
-// labels) lives as long as the run. V8's young generation, which otherwise grows to 3 × 16 MB while
-// such a table is read, then only adds to the peak memory (some 30 MB on a million rows), and a
-// table of 100,000 rows reads no slower without it: it keeps its starting size.
-useHeapFlags('--semi-space-growth-factor=1');
+useHeapFlags(CLI_HEAP_FLAGS);
 
 /** Resolves once everything written to the stream so far has been handed to the system (a pipe may drain slowly). */
 function flushed(stream: NodeJS.WriteStream): Promise<void> {

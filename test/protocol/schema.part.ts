@@ -1,3 +1,4 @@
+import { spawnSync } from 'node:child_process';
 import { readFileSync, writeFileSync } from 'node:fs';
 import Module from 'node:module';
 import { join } from 'node:path';
@@ -83,6 +84,27 @@ t.test('a module loads the same with its code cache, with a cache V8 refuses, an
   const script = new Script(Module.wrap(code), { filename: file });
   writeFileSync(join(dir, 'm.v8cache'), script.createCachedData());
   expect('its own cache');
+});
+
+// V8 takes a code cache only under the flags it was made with; the command line sets its heap
+// flags first thing, so the build makes the validators' caches under the same ones. A cache made
+// under other flags is silently compiled afresh, which this catches (it once cost every run ~20 ms).
+t.test("the build's validator caches are accepted under the command line's flags", async (t) => {
+  const flags = new URL('../../src/io/heap-flags.js', import.meta.url).href;
+  for (const name of ['protocol', 'manifest']) {
+    const file = join(root, 'dist', 'validators', `${name}.schema.cjs`);
+    const script = [
+      `import { CLI_HEAP_FLAGS, useHeapFlags } from ${JSON.stringify(flags)};`,
+      "import { readFileSync } from 'node:fs'; import Module from 'node:module'; import { Script } from 'node:vm';",
+      'useHeapFlags(CLI_HEAP_FLAGS);',
+      `const file = ${JSON.stringify(file)};`,
+      "const s = new Script(Module.wrap(readFileSync(file, 'utf8')), { filename: file, cachedData: readFileSync(file.replace(/\\.cjs$/, '.v8cache')) });",
+      'console.log(s.cachedDataRejected);',
+    ].join('\n');
+    const r = spawnSync(process.execPath, ['--input-type=module', '-e', script], { encoding: 'utf8' });
+    t.equal(r.stderr, '', `${name}: no error`);
+    t.equal(r.stdout.trim(), 'false', `${name}: the cache is not rejected`);
+  }
 });
 
 // The registries describe themselves: the schema's model, split-rule, step and metric parts are
