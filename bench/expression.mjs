@@ -13,7 +13,8 @@ import { seededRandom } from '../scripts/seeded-random.mjs';
 const here = new URL('.', import.meta.url).pathname;
 const out = join(here, 'out', 'expression');
 mkdirSync(out, { recursive: true });
-const bin = join(here, '..', 'dist', 'src', 'cli', 'main.js');
+// The launcher users run (package.json's bin).
+const bin = join(here, '..', 'bin', 'foldseal.cjs');
 const probes = 12_625;
 const samples = 128;
 const rand = seededRandom(128);

@@ -11,7 +11,8 @@ const out = join(here, 'out', 'gate');
 rmSync(out, { recursive: true, force: true });
 mkdirSync(out, { recursive: true });
 execFileSync('git', ['init', '-q', out]);
-const bin = join(here, '..', 'dist', 'src', 'cli', 'main.js');
+// The launcher users run (package.json's bin).
+const bin = join(here, '..', 'bin', 'foldseal.cjs');
 const lines = ['id,label,a,b,c'];
 for (let i = 0; i < 100_000; i++) lines.push(`r${i},${i % 3 ? 'x' : 'y'},${i % 97},${(i * 7) % 13},${(i * 11) % 17}`);
 writeFileSync(join(out, 'd.csv'), lines.join('\n') + '\n');

@@ -10,7 +10,8 @@ import { seededRandom } from '../scripts/seeded-random.mjs';
 const here = new URL('.', import.meta.url).pathname;
 const out = join(here, 'out', 'knn');
 mkdirSync(out, { recursive: true });
-const bin = join(here, '..', 'dist', 'src', 'cli', 'main.js');
+// The launcher users run (package.json's bin).
+const bin = join(here, '..', 'bin', 'foldseal.cjs');
 const rand = seededRandom(21);
 const normal = () => Math.sqrt(-2 * Math.log(1 - rand())) * Math.cos(2 * Math.PI * rand());
 const lines = ['id,label,' + Array.from({ length: 30 }, (_, j) => `f${j}`).join(',')];

@@ -37,7 +37,8 @@ writeFileSync(
     `stratified-kfold, folds: ${folds}, seed: 1}\npreprocess: [standardize]\nmodel: {kind: logistic, options: {l2: 1}}\nmetrics: ` +
     `[accuracy, roc-auc, log-loss]\n`,
 );
-const bin = join(here, '..', 'dist', 'src', 'cli', 'main.js');
+// The launcher users run (package.json's bin).
+const bin = join(here, '..', 'bin', 'foldseal.cjs');
 const median = (xs) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 const foldseal = () => {
   const t0 = performance.now();

@@ -15,7 +15,8 @@ import { seededRandom } from '../scripts/seeded-random.mjs';
 const here = new URL('.', import.meta.url).pathname;
 const out = join(here, 'out', 'nested');
 mkdirSync(out, { recursive: true });
-const bin = join(here, '..', 'dist', 'src', 'cli', 'main.js');
+// The launcher users run (package.json's bin).
+const bin = join(here, '..', 'bin', 'foldseal.cjs');
 const python = '/usr/bin/python3';
 const tops = [10, 50, 100, 500];
 const floors = [1e-9, 1e-6, 1e-3];

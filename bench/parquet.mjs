@@ -16,7 +16,8 @@ const arrow = require('apache-arrow');
 const here = new URL('.', import.meta.url).pathname;
 const out = join(here, 'out', 'parquet');
 mkdirSync(out, { recursive: true });
-const bin = join(here, '..', 'dist', 'src', 'cli', 'main.js');
+// The launcher users run (package.json's bin).
+const bin = join(here, '..', 'bin', 'foldseal.cjs');
 
 const rows = 100_000;
 const cols = 50;

@@ -14,7 +14,8 @@ import { seededRandom } from '../scripts/seeded-random.mjs';
 const here = new URL('.', import.meta.url).pathname;
 const out = join(here, 'out', 'permutation');
 mkdirSync(out, { recursive: true });
-const bin = join(here, '..', 'dist', 'src', 'cli', 'main.js');
+// The launcher users run (package.json's bin).
+const bin = join(here, '..', 'bin', 'foldseal.cjs');
 const python = '/usr/bin/python3';
 const permutations = 1000;
 

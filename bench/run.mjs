@@ -12,7 +12,8 @@ const here = new URL('.', import.meta.url).pathname;
 const out = join(here, 'out');
 if (!existsSync(join(out, 'c.yaml'))) execFileSync(process.execPath, [join(here, 'generate.mjs')], { stdio: 'inherit' });
 if (!existsSync(join(out, 'd.yaml'))) execFileSync(process.execPath, [join(here, 'generate.mjs'), 'd'], { stdio: 'inherit' });
-const bin = join(here, '..', 'dist', 'src', 'cli', 'main.js');
+// The launcher users run (package.json's bin).
+const bin = join(here, '..', 'bin', 'foldseal.cjs');
 const python = '/usr/bin/python3';
 
 /** Best wall time of 3 whole-process runs, and the peak resident set of the best run (GNU time's %M). */

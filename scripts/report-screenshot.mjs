@@ -10,7 +10,7 @@ import { chromium } from 'playwright-core';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
 const out = join(mkdtempSync(join(tmpdir(), 'foldseal-shot-')), 'demo');
-const run = spawnSync(process.execPath, [join(root, 'dist/src/cli/main.js'), 'run', 'protocols/demo.yaml', '--out', out, '--report'], {
+const run = spawnSync(process.execPath, [join(root, 'bin', 'foldseal.cjs'), 'run', 'protocols/demo.yaml', '--out', out, '--report'], {
   cwd: root,
   stdio: 'inherit',
 });

@@ -4,7 +4,7 @@ import { createHash } from 'node:crypto';
 import { existsSync, mkdtempSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import type { Test } from 'tap';
 import { tmpdir } from 'node:os';
-import { dirname, join } from 'node:path';
+import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { invoke } from '../src/cli/invoke.js';
 
@@ -20,7 +20,17 @@ function packageFolder(from: string): string {
   }
   return dir;
 }
-export const bin = join(root, 'dist', 'src', 'cli', 'main.js');
+/**
+ * The command line the tests spawn: the modules of dist/src, whose coverage maps back to src/.
+ * FOLDSEAL_TEST_BIN names another entry (`npm run test:shipped` runs the spawning tests again
+ * through the launcher users run, bin/foldseal.cjs, which loads the bundle of dist/bin).
+ */
+export const bin = process.env.FOLDSEAL_TEST_BIN
+  ? resolve(root, process.env.FOLDSEAL_TEST_BIN)
+  : join(root, 'dist', 'src', 'cli', 'main.js');
+
+/** The launcher `npm install` puts on the PATH (package.json's bin). */
+export const shipped = join(root, 'bin', 'foldseal.cjs');
 
 export function sha256(text: string | Uint8Array): string {
   return createHash('sha256').update(text).digest('hex');

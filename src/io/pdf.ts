@@ -6,6 +6,7 @@
 import { existsSync } from 'node:fs';
 import { pathToFileURL } from 'node:url';
 import { error, FoldsealError } from '../problems/problem.js';
+import { importPackage } from './import-package.js';
 
 /** Refuses before anything is written when --pdf cannot work. */
 export function checkBrowser(browserPath: string): void {
@@ -22,7 +23,7 @@ export async function printPdf(htmlPath: string, browserPath: string): Promise<U
   checkBrowser(browserPath);
   let chromium: { launch(o: object): Promise<any> };
   try {
-    ({ chromium } = (await import('playwright-core')) as any);
+    ({ chromium } = await importPackage<any>('playwright-core'));
   } catch {
     throw new FoldsealError(
       error('bad-option', '--pdf needs the playwright-core package, which is not installed', { hint: 'npm install playwright-core' }),

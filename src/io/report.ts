@@ -18,6 +18,7 @@ import { sha256Bytes } from '../util/sha256.js';
 import { readInput, readRecorded, readResults } from './results-dir.js';
 import { MANIFEST_SCHEMA, schemaValidator } from './schemas.js';
 import { shown } from './validate.js';
+import { importPackage } from './import-package.js';
 
 export interface Report {
   html: string;
@@ -26,7 +27,10 @@ export interface Report {
 
 /** SVG text of a Vega-Lite specification, rendered headless (no canvas, no network: the data are inline). */
 export async function renderSvg(spec: Record<string, unknown>): Promise<string> {
-  const [vega, vl] = await Promise.all([import('vega'), import('vega-lite')]);
+  const [vega, vl] = await Promise.all([
+    importPackage<typeof import('vega')>('vega'),
+    importPackage<typeof import('vega-lite')>('vega-lite'),
+  ]);
   const view = new vega.View(vega.parse(vl.compile(spec as never).spec), { renderer: 'none', loader: vega.loader({ mode: 'file' }) });
   try {
     return await view.toSVG();

@@ -9,7 +9,7 @@
  * must find the same file — device, inode, size and modification time as at the first — or the
  * read stops with `data-changed-while-read`: the hash and the rows must come from one file.
  */
-import { createHash, type Hash } from 'node:crypto';
+import { createHash } from 'node:crypto';
 import { closeSync } from 'node:fs';
 import type { Problem } from '../problems/problem.js';
 import { changedWhileRead, fdReader, type FileIdentity, identityOf, openIdentified, reopen, sameFile } from './file-identity.js';
@@ -17,7 +17,7 @@ import { describe as describeColumns, type Described } from '../table/covariates
 import type { LineIndex } from '../table/line-index.js';
 import { indexLines, plainFileHead } from './index-lines.js';
 export { indexLines } from './index-lines.js';
-import { STRETCH, streamedGrid, type ReadInto, type StretchHelper } from '../table/streamed-grid.js';
+import { streamedGrid, type ReadInto, type StretchHelper } from '../table/streamed-grid.js';
 
 export type { FileIdentity } from './file-identity.js';
 import { buildTable, type DataRoles, type RolePaths, type TableResult } from '../table/table.js';

@@ -127,8 +127,11 @@ function metricsText(r: any): string {
   let out =
     `Metrics are reported as the mean over the ${count(folds, 'test fold')} and pooled over all out-of-fold predictions of each repeat: ` +
     `${parts.join('; ')}. Always predicting the training part's most common class gave an accuracy of ${fmt(r.baseline['accuracy-mean'])}.`;
-  if (st)
-    out += ` Intervals are at the ${level} level (stratified bootstrap with ${st.bootstrap.replicates} replicates, seed ${st.bootstrap.seed}; ${st.version} resampling rule).`;
+  // A statistics section may ask for a permutation test alone: no bootstrap, intervals over the folds only.
+  const source = st?.bootstrap
+    ? `stratified bootstrap with ${st.bootstrap.replicates} replicates, seed ${st.bootstrap.seed}`
+    : 'over the folds only, without a bootstrap';
+  if (st) out += ` Intervals are at the ${level} level (${source}; ${st.version} resampling rule).`;
   const perm = st?.permutation;
   if (perm)
     out +=

@@ -170,4 +170,13 @@ t.test('three classes, intervals and a permutation test: curves one class agains
   t.match(html, 'setosa vs rest');
   t.match(html, 'pooled 95 % BCa');
   t.match(html, '<strong>p = ');
+  // A permutation test alone (no bootstrap): the methods say the intervals come from the folds only.
+  // (The report once failed here with an internal error, found by running it through the launcher.)
+  writeFileSync(join(d, 'q.yaml'), p.replace('  bootstrap: {replicates: 200, seed: 4}\n', ''));
+  const alone = await cli(['run', 'q.yaml', '--out', 'res-q', '--report'], d);
+  t.equal(alone.code, 0, alone.stderr);
+  const without = (await cli(['report', 'res-q', '--methods'], d)).stdout;
+  t.match(without, 'Intervals are at the 95 % level (over the folds only, without a bootstrap; resample-v1 resampling rule).');
+  t.match(without, 'A permutation test (19 permutations of the labels, seed 5');
+  t.notMatch(without, 'BCa');
 });
