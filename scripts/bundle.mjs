@@ -11,6 +11,7 @@ import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { buildSync } from 'esbuild';
 import { CLI_HEAP_FLAGS } from '../dist/src/io/heap-flags.js';
+import { SHARED_PARQUET_BYTES, SHARED_READ_BYTES } from '../dist/src/io/row-helper.js';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
 const out = join(root, 'dist', 'bin');
@@ -39,7 +40,11 @@ writeFileSync(join(out, 'package.json'), '{ "type": "commonjs" }\n');
 // The launcher wraps cli.js in a function, where a `#!` line is not allowed (the line stays, empty).
 const cli = join(out, 'cli.js');
 writeFileSync(cli, readFileSync(cli, 'utf8').replace(/^#!.*/, ''));
-writeFileSync(join(out, 'cli.v8flags'), CLI_HEAP_FLAGS);
+// What bin/foldseal.cjs needs of the program's settings before it loads it.
+writeFileSync(
+  join(out, 'launch.json'),
+  `${JSON.stringify({ v8Flags: CLI_HEAP_FLAGS, twoThreadBytes: SHARED_READ_BYTES, twoThreadParquetBytes: SHARED_PARQUET_BYTES }, null, 2)}\n`,
+);
 
 // The code cache: the bundle run once on the demo protocol, to a scratch folder.
 const scratch = mkdtempSync(join(tmpdir(), 'foldseal-bundle-'));

@@ -5,14 +5,15 @@
  * enough for two threads. That thread indexes the file's lines meanwhile and makes room for its
  * numbers (the same path policy holds: nothing is read that the run would not read). validateProtocol takes the thread
  * over when it reads that same file, and closes it otherwise; the command closes one never taken.
- * A wrong guess costs a thread's start-up, never a result.
+ * A wrong guess costs a thread's start-up, never a result. The launcher (bin/foldseal.cjs) may
+ * have started the thread already, before loading the program: it is taken over here, or closed.
  */
 import { closeSync, openSync, readSync, statSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
 import { dataSectionGuess } from '../protocol/data-file-guess.js';
 import { delimiterFor } from '../table/delimiter.js';
 import { outsideProblem, protocolPolicy } from './path-policy.js';
-import { type RowThread, rowThreadsAvailable, startRowThread } from './row-helper.js';
+import { dropPrestartedRowThread, type RowThread, rowThreadsAvailable, startRowThread } from './row-helper.js';
 
 let early: { path: string; parquet: boolean; thread: RowThread } | undefined;
 
@@ -26,6 +27,7 @@ export function startEarlyRowThread(protocolPath: string, allowOutside: boolean)
     // The extension stands in for the magic bytes here (validateProtocol reads those).
     const parquet = /\.parquet$/i.test(path);
     if (!rowThreadsAvailable(statSync(path).size, parquet)) return;
+    // The launcher's thread, when it started one (row-helper.ts), else a new one.
     const thread = startRowThread({ parquet });
     // A plain table read in stretches: its lines are indexed at once, while this thread loads the run's code.
     if (!parquet && guess.plain) thread.indexEarly(path, delimiterFor(path));
@@ -34,6 +36,9 @@ export function startEarlyRowThread(protocolPath: string, allowOutside: boolean)
     early = { path, parquet, thread };
   } catch {
     // Anything unusual (no such file, an unreadable protocol) is validateProtocol's to report.
+  } finally {
+    // A thread the launcher started and this run does not take goes now (nothing waits for it).
+    void dropPrestartedRowThread();
   }
 }
 
@@ -68,5 +73,5 @@ export async function takeEarlyRowThread(path: string, parquet: boolean): Promis
 export async function closeEarlyRowThread(): Promise<void> {
   const e = early;
   early = undefined;
-  await e?.thread.close();
+  await Promise.all([e?.thread.close(), dropPrestartedRowThread()]);
 }

@@ -25,6 +25,15 @@ import type { StretchRows } from '../table/streamed-grid.js';
 export const SHARED_READ_BYTES = 24 * 1024 * 1024;
 export const SHARED_PARQUET_BYTES = 8 * 1024 * 1024;
 
+function launch(parquet: boolean): Prestarted {
+  const { port1, port2 } = new MessageChannel();
+  const worker = new Worker(new URL('./row-worker.js', import.meta.url), {
+    workerData: { port: port2, parquet, ...heapFlagsForWorker() },
+    transferList: [port2],
+  });
+  return { worker, port: port1 };
+}
+
 export interface RowThread extends RowHelper, ParquetTwin, StreamTwin {
   /** Starts SHA-256 of bytes on the other thread; the returned function waits for the hex digest. */
   sha256(bytes: Uint8Array): () => string;
@@ -68,13 +77,31 @@ export function rowThreadsAvailable(size: number, parquet = false): boolean {
   return size >= (parquet ? SHARED_PARQUET_BYTES : SHARED_READ_BYTES) && availableParallelism() >= 2;
 }
 
+/**
+ * Where bin/foldseal.cjs leaves the row thread it starts for `run` before it loads the program (a
+ * worker takes 60–100 ms to start; it spends them while the program loads): the worker, on
+ * row-worker.js with the command line's heap flags, and this end of its channel.
+ */
+const PRESTARTED = Symbol.for('foldseal.rowThread');
+type Prestarted = { worker: Worker; port: MessagePort };
+
+function takePrestarted(): Prestarted | undefined {
+  const g = globalThis as Record<symbol, Prestarted | undefined>;
+  const p = g[PRESTARTED];
+  g[PRESTARTED] = undefined;
+  return p;
+}
+
+/** Closes the launcher's row thread when the run will not use it (a small table, a wrong guess). */
+export async function dropPrestartedRowThread(): Promise<void> {
+  const p = takePrestarted();
+  p?.port.close();
+  await p?.worker.terminate();
+}
+
 /** Started early (before the file is read) so the worker is loaded by the time rows are parsed. */
 export function startRowThread(options: { parquet?: boolean } = {}): RowThread {
-  const { port1, port2 } = new MessageChannel();
-  const worker = new Worker(new URL('./row-worker.js', import.meta.url), {
-    workerData: { port: port2, parquet: options.parquet === true, ...heapFlagsForWorker() },
-    transferList: [port2],
-  });
+  const { worker, port: port1 } = takePrestarted() ?? launch(options.parquet === true);
   // Jobs run in order and each answers once, errors included; answers are matched by id.
   let nextId = 0;
   const answers = new Map<number, Record<string, unknown>>();

@@ -7,10 +7,12 @@
  * `npm run test:shipped` runs every spawning test through the launcher as well.
  */
 import { spawnSync } from 'node:child_process';
-import { copyFileSync, existsSync, mkdirSync, readFileSync, symlinkSync } from 'node:fs';
+import { copyFileSync, existsSync, mkdirSync, readFileSync, symlinkSync, truncateSync, writeFileSync } from 'node:fs';
+import { createRequire } from 'node:module';
 import { join } from 'node:path';
 import t from 'tap';
 import { CLI_HEAP_FLAGS } from '../../src/io/heap-flags.js';
+import { SHARED_PARQUET_BYTES, SHARED_READ_BYTES } from '../../src/io/row-helper.js';
 import { root, shipped, tempDir } from '../helpers.js';
 
 const modules = join(root, 'dist', 'src', 'cli', 'main.js');
@@ -39,12 +41,16 @@ const onWorkers = demo
 t.test('the build made the bundle, its flags and a code cache V8 takes under them', async (t) => {
   for (const f of ['cli.js', 'row-worker.js', 'fold-worker.js', 'permutation-worker.js', 'cli.v8cache', 'package.json'])
     t.ok(existsSync(join(bundleDir, f)), f);
-  t.equal(readFileSync(join(bundleDir, 'cli.v8flags'), 'utf8'), CLI_HEAP_FLAGS, "the command line's own heap flags");
+  t.same(
+    JSON.parse(readFileSync(join(bundleDir, 'launch.json'), 'utf8')),
+    { v8Flags: CLI_HEAP_FLAGS, twoThreadBytes: SHARED_READ_BYTES, twoThreadParquetBytes: SHARED_PARQUET_BYTES },
+    "the command line's own heap flags and the sizes a table is read on two threads from",
+  );
   t.notMatch(readFileSync(join(bundleDir, 'cli.js'), 'utf8').slice(0, 2), '#!', 'no #! line (the launcher wraps the file in a function)');
   const check = [
     "const { readFileSync } = require('node:fs'); const Module = require('node:module'); const { Script } = require('node:vm');",
     `const dir = ${JSON.stringify(bundleDir)};`,
-    "require('node:v8').setFlagsFromString(readFileSync(dir + '/cli.v8flags', 'utf8'));",
+    "require('node:v8').setFlagsFromString(JSON.parse(readFileSync(dir + '/launch.json', 'utf8')).v8Flags);",
     "const s = new Script(Module.wrap(readFileSync(dir + '/cli.js', 'utf8')), { filename: dir + '/cli.js', cachedData: readFileSync(dir + '/cli.v8cache') });",
     'console.log(s.cachedDataRejected);',
   ].join('\n');
@@ -93,4 +99,36 @@ t.test('without the bundle (a build by tsc alone) the launcher runs the modules'
   const r = spawn(join(dir, 'bin', 'foldseal.cjs'), ['--version'], dir);
   t.equal(r.status, 0, r.stderr);
   t.equal(r.stdout.trim(), JSON.parse(readFileSync(join(root, 'package.json'), 'utf8')).version);
+});
+
+t.test("the launcher starts `run`'s row thread early only for a protocol naming a large file in its own folder", async (t) => {
+  const { namesLargeFile } = createRequire(import.meta.url)(shipped) as { namesLargeFile: (p: string, l: object) => boolean };
+  const launch = { twoThreadBytes: 1000, twoThreadParquetBytes: 100 };
+  const dir = tempDir({ 'small.csv': 'id,x\n', 'sub/p.yaml': '' });
+  // Sparse files: the sizes count, not the bytes.
+  for (const [name, size] of [
+    ['big.csv', 1000],
+    ['mid.parquet', 500],
+    ['sub/big.tsv', 5000],
+  ] as const) {
+    writeFileSync(join(dir, name), '');
+    truncateSync(join(dir, name), size);
+  }
+  const says = (text: string, where = 'p.yaml') => {
+    writeFileSync(join(dir, where), text);
+    return namesLargeFile(join(dir, where), launch);
+  };
+  t.equal(says('data: {file: big.csv, id: id}\n'), true, 'flow mapping');
+  t.equal(says('data:\n  file: "big.csv"\n'), true, 'block mapping, quoted');
+  t.equal(
+    says('data: {file: small.csv}\nreconcile: {new-rows: {file: mid.parquet}}\n'),
+    true,
+    'any file; a Parquet file from its own size',
+  );
+  t.equal(says('data: {file: small.csv}\n'), false, 'a small file');
+  t.equal(says('data: {file: ../big.csv}\n', 'sub/p.yaml'), false, 'not outside its folder');
+  t.equal(says(`data: {file: ${join(dir, 'big.csv')}}\n`), false, 'not an absolute path');
+  t.equal(says('data: {file: sub/big.tsv}\n'), true, 'a subfolder');
+  t.equal(says('data: {file: nowhere.csv}\n'), false, 'no such file');
+  t.equal(namesLargeFile(join(dir, 'no-protocol.yaml'), launch), false, 'no such protocol');
 });

@@ -5,6 +5,7 @@
  */
 import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
+import { MessageChannel, Worker } from 'node:worker_threads';
 import t from 'tap';
 import { cli, root, sha256, tempDir } from '../helpers.js';
 
@@ -54,6 +55,52 @@ t.test('the row thread run starts early is taken for its own data file only, and
   await allowed?.close();
   startEarlyRowThread(join(dir, 'missing.yaml'), false);
   t.equal(await takeEarlyRowThread(data, false), undefined, 'an unreadable protocol: none');
+});
+
+t.test('a row thread the launcher started is taken over when the run wants one, and closed when it does not', async (t) => {
+  const { closeEarlyRowThread, startEarlyRowThread, takeEarlyRowThread } = await import('../../src/io/early-row-thread.js');
+  const slot = Symbol.for('foldseal.rowThread');
+  const g = globalThis as Record<symbol, unknown>;
+  // As bin/foldseal.cjs starts it (on the bundle's row-worker.js there; on the modules' here).
+  const prestart = () => {
+    const { port1, port2 } = new MessageChannel();
+    const worker = new Worker(new URL('../../src/io/row-worker.js', import.meta.url), {
+      workerData: { port: port2, parquet: false },
+      transferList: [port2],
+    });
+    worker.unref();
+    g[slot] = { worker, port: port1 };
+    return new Promise<void>((resolve) => worker.once('exit', () => resolve()));
+  };
+  const before = process.env.FOLDSEAL_THREADS;
+  t.teardown(() => {
+    if (before === undefined) delete process.env.FOLDSEAL_THREADS;
+    else process.env.FOLDSEAL_THREADS = before;
+  });
+  const dir = tempDir({ 'd.csv': 'id,x,y\na,1,p\n', 'p.yaml': 'foldseal: 1\ndata: {file: d.csv, id: id, label: y}\n' });
+  process.env.FOLDSEAL_THREADS = '2';
+  const exited = prestart();
+  startEarlyRowThread(join(dir, 'p.yaml'), false);
+  t.equal(g[slot], undefined, 'taken from where the launcher left it');
+  const taken = await takeEarlyRowThread(join(dir, 'd.csv'), false);
+  t.equal(
+    taken!.sha256(new TextEncoder().encode('abc'))(),
+    'ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad',
+    'the launcher\'s thread does the work (FIPS 180-2 "abc")',
+  );
+  await taken!.close();
+  await exited;
+  // One thread wanted (or a small table): the launcher's thread is closed at once.
+  process.env.FOLDSEAL_THREADS = '1';
+  const closed = prestart();
+  startEarlyRowThread(join(dir, 'p.yaml'), false);
+  await closed;
+  t.equal(g[slot], undefined, 'not wanted: closed');
+  // A run that ends before it looks at its data closes it too.
+  const atEnd = prestart();
+  await closeEarlyRowThread();
+  await atEnd;
+  t.pass('closed with the early thread');
 });
 
 t.test('fits from class moments on the thread that read the table: the same files as one thread, and the same fit error', async (t) => {
