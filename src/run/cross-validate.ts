@@ -15,7 +15,7 @@ import { models } from '../model/registry.js';
 import { FitError } from '../model/types.js';
 import { positiveClass, testsFoldOneOnly, type MetricName, type Protocol } from '../protocol/types.js';
 import { candidates, valuesOf } from '../protocol/grid.js';
-import { lazyFoldRows, type Assignment } from '../split/assignment.js';
+import { lazyRepeatRows, type Assignment } from '../split/assignment.js';
 import { idOrder } from '../split/key.js';
 import { takeInt } from '../table/matrix.js';
 import type { Table } from '../table/table.js';
@@ -90,9 +90,10 @@ export interface FoldPlan {
 export function planFolds(p: Protocol, table: Table, a: Assignment): FoldPlan[] {
   const order = idOrder(table.ids);
   const plans: FoldPlan[] = [];
-  for (let r = 1; r <= a.repeats; r++)
+  for (let r = 1; r <= a.repeats; r++) {
+    const folds = lazyRepeatRows(a, r, order);
     for (const f of evaluatedFolds(p, a)) {
-      const rows = lazyFoldRows(a, r, f, order);
+      const rows = folds[f - 1];
       plans.push({
         repeat: r,
         fold: f,
@@ -102,6 +103,7 @@ export function planFolds(p: Protocol, table: Table, a: Assignment): FoldPlan[] 
         },
       });
     }
+  }
   return plans;
 }
 

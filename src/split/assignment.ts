@@ -27,23 +27,39 @@ export function lazyFoldRows(
   fold: number,
   order: Int32Array,
 ): { test: Int32Array; readonly train: Int32Array } {
+  return lazyRepeatRows(a, repeat, order)[fold - 1];
+}
+
+/**
+ * lazyFoldRows of every fold of one repeat (index fold − 1), their test rows found in one pass
+ * over the rows (a pass per fold was some 10 ms of a 100,000-row run of 10 folds).
+ */
+export function lazyRepeatRows(a: Assignment, repeat: number, order: Int32Array): { test: Int32Array; readonly train: Int32Array }[] {
   const n = a.ids.length;
   const base = (repeat - 1) * n;
-  let t = 0;
-  for (let i = 0; i < n; i++) if (a.fold[base + i] === fold) t++;
-  const test = new Int32Array(t);
-  for (let k = 0, ti = 0; k < n; k++) if (a.fold[base + order[k]] === fold) test[ti++] = order[k];
-  let train: Int32Array | undefined;
-  return {
-    test,
-    get train() {
-      if (!train) {
-        train = new Int32Array(n - t);
-        for (let k = 0, ri = 0; k < n; k++) if (a.fold[base + order[k]] !== fold) train[ri++] = order[k];
-      }
-      return train;
-    },
-  };
+  const counts = new Int32Array(a.folds + 1);
+  for (let i = 0; i < n; i++) counts[a.fold[base + i]]++;
+  const tests = Array.from({ length: a.folds }, (_, f) => new Int32Array(counts[f + 1]));
+  const filled = new Int32Array(a.folds + 1);
+  for (let k = 0; k < n; k++) {
+    const row = order[k];
+    const f = a.fold[base + row];
+    tests[f - 1][filled[f]++] = row;
+  }
+  return tests.map((test, f) => {
+    const fold = f + 1;
+    let train: Int32Array | undefined;
+    return {
+      test,
+      get train() {
+        if (!train) {
+          train = new Int32Array(n - test.length);
+          for (let k = 0, ri = 0; k < n; k++) if (a.fold[base + order[k]] !== fold) train[ri++] = order[k];
+        }
+        return train;
+      },
+    };
+  });
 }
 
 /** (repeat, fold) pairs with no row: spec §8 rejects such an assignment (stable mode can draw one). */
