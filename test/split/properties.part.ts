@@ -158,3 +158,33 @@ t.test('repeats are independent draws: with 3 repeats of 40 rows the repeats are
   t.not(a.fold.subarray(0, 40).join(), a.fold.subarray(40, 80).join());
   t.not(a.fold.subarray(40, 80).join(), a.fold.subarray(80, 120).join());
 });
+
+// The plans' rows: every fold's test rows of a repeat, made in one pass, are the rows of that fold
+// in the given order, and its training rows the rest (checked against a filter per fold).
+t.test('every fold of a repeat in one pass: the same rows as one filter per fold', async (t) => {
+  const { lazyRepeatRows, SPLIT_VERSION } = await import('../../src/split/assignment.js');
+  fc.assert(
+    fc.property(
+      fc.integer({ min: 1, max: 40 }),
+      fc.integer({ min: 2, max: 6 }),
+      fc.integer({ min: 1, max: 3 }),
+      fc.integer({ min: 0, max: 1e6 }),
+      (n, folds, repeats, seed) => {
+        let s = seed;
+        const next = () => (s = (s * 1103515245 + 12345) % 2147483648);
+        const fold = Int32Array.from({ length: n * repeats }, () => 1 + (next() % folds));
+        const order = Int32Array.from({ length: n }, (_, i) => i).sort((a, b) => ((a * 7919 + seed) % n) - ((b * 7919 + seed) % n) || a - b);
+        const a = { version: SPLIT_VERSION as typeof SPLIT_VERSION, ids: Array.from({ length: n }, (_, i) => `r${i}`), repeats, folds, fold };
+        for (let r = 1; r <= repeats; r++) {
+          const all = lazyRepeatRows(a, r, order);
+          for (let f = 1; f <= folds; f++) {
+            const inFold = (row: number) => fold[(r - 1) * n + row] === f;
+            if (String([...all[f - 1].test]) !== String([...order].filter(inFold))) return false;
+            if (String([...all[f - 1].train]) !== String([...order].filter((row) => !inFold(row)))) return false;
+          }
+        }
+        return true;
+      },
+    ),
+  );
+});
