@@ -161,7 +161,7 @@ t.test('repeats are independent draws: with 3 repeats of 40 rows the repeats are
 
 // The plans' rows: every fold's test rows of a repeat, made in one pass, are the rows of that fold
 // in the given order, and its training rows the rest (checked against a filter per fold).
-t.test('every fold of a repeat in one pass: the same rows as one filter per fold', async (t) => {
+t.test('every fold of a repeat in one pass: the same rows as one filter per fold', async () => {
   const { lazyRepeatRows, SPLIT_VERSION } = await import('../../src/split/assignment.js');
   fc.assert(
     fc.property(
@@ -173,8 +173,16 @@ t.test('every fold of a repeat in one pass: the same rows as one filter per fold
         let s = seed;
         const next = () => (s = (s * 1103515245 + 12345) % 2147483648);
         const fold = Int32Array.from({ length: n * repeats }, () => 1 + (next() % folds));
-        const order = Int32Array.from({ length: n }, (_, i) => i).sort((a, b) => ((a * 7919 + seed) % n) - ((b * 7919 + seed) % n) || a - b);
-        const a = { version: SPLIT_VERSION as typeof SPLIT_VERSION, ids: Array.from({ length: n }, (_, i) => `r${i}`), repeats, folds, fold };
+        const order = Int32Array.from({ length: n }, (_, i) => i).sort(
+          (a, b) => ((a * 7919 + seed) % n) - ((b * 7919 + seed) % n) || a - b,
+        );
+        const a = {
+          version: SPLIT_VERSION as typeof SPLIT_VERSION,
+          ids: Array.from({ length: n }, (_, i) => `r${i}`),
+          repeats,
+          folds,
+          fold,
+        };
         for (let r = 1; r <= repeats; r++) {
           const all = lazyRepeatRows(a, r, order);
           for (let f = 1; f <= folds; f++) {
