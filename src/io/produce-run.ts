@@ -20,6 +20,7 @@ import { locate } from '../protocol/document.js';
 import type { GivenProbabilities } from '../reconcile/reconcile.js';
 import type { SavedModel } from '../reconcile/models-file.js';
 import type { CommandContext } from './command-model.js';
+import { collectGarbage } from './heap-flags.js';
 
 /**
  * The largest data file whose moment fits go to the thread that read it. The thread kept alive
@@ -106,11 +107,14 @@ async function produce(protocolPath: string, options: ProduceOptions, kept: { th
   // of the file's other columns (which keeps the file's bytes to place cells) can go. With fold
   // workers it runs while they start up and fit.
   let audit: AuditResult | undefined;
+  // Between phases that leave tens of MB of dead typed arrays, on a large table (heap-flags.ts).
+  const cells = input.table.X.rows * input.table.X.cols;
   const runAudit = () => {
     audit = options.audit ? auditReport(report, { quick: true }) : undefined;
     report.described = undefined;
     // Wanted by the outputs, and ready now: taken while the folds are fitted elsewhere.
     assignmentSha256(input.assignment);
+    collectGarbage(cells);
   };
   const merged = options.merged;
   if (merged || input.protocol.model.kind === 'command') runAudit();
