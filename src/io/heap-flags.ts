@@ -34,8 +34,9 @@ export function heapFlagsForWorker(): { heapFlags?: string } {
  * Cells (rows × features) from which a run collects its garbage between phases. A typed array's
  * memory goes back only when V8 collects its object, which it does once some 64 MB of such
  * memory has piled up since the last full collection: on 1,000,000 × 50 the peak resident set
- * moved by that much from run to run (639–676 MiB), with the collections it stays at ~650 MiB. A
- * full collection costs some 20–40 ms there; below this size memory is not the constraint.
+ * moved by that much from run to run (639–676 MiB), with three collections it stays at 636–654
+ * MiB. A full collection costs some 40–70 ms there (the million ids are marked each time); below
+ * this size memory is not the constraint.
  */
 export const COLLECT_FROM_CELLS = 20_000_000;
 
