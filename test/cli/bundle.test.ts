@@ -13,9 +13,8 @@ import { join } from 'node:path';
 import t from 'tap';
 import { CLI_HEAP_FLAGS } from '../../src/io/heap-flags.js';
 import { SHARED_PARQUET_BYTES, SHARED_READ_BYTES } from '../../src/io/row-helper.js';
-import { root, shipped, tempDir } from '../helpers.js';
+import { cli, root, shipped, tempDir } from '../helpers.js';
 
-const modules = join(root, 'dist', 'src', 'cli', 'main.js');
 const bundleDir = join(root, 'dist', 'bin');
 
 /**
@@ -29,6 +28,12 @@ function plainEnv(extra: Record<string, string> = {}): NodeJS.ProcessEnv {
 
 function spawn(entry: string, args: string[], cwd: string, extra: Record<string, string> = {}) {
   return spawnSync(process.execPath, [entry, ...args], { cwd, encoding: 'utf8', env: plainEnv(extra) });
+}
+
+/** The modules of dist/src, in this process (the same `invoke` their entry calls; worker threads are real). */
+async function modules(args: string[], cwd: string, extra: Record<string, string> = {}) {
+  const r = await cli(args, cwd, { FOLDSEAL_TRUSTED: join(root, 'protocols', 'data'), ...extra });
+  return { status: r.code, stdout: r.stdout, stderr: r.stderr };
 }
 
 const demoData = join(root, 'protocols', 'data');
@@ -62,7 +67,7 @@ t.test('runs through the launcher write the same files as the modules: the row t
   const dir = tempDir({ 'moments.yaml': demo, 'rows.yaml': onWorkers });
   for (const p of ['moments', 'rows']) {
     const a = spawn(shipped, ['run', `${p}.yaml`, '--out', `${p}-shipped`], dir, { FOLDSEAL_THREADS: '2' });
-    const b = spawn(modules, ['run', `${p}.yaml`, '--out', `${p}-modules`], dir, { FOLDSEAL_THREADS: '2' });
+    const b = await modules(['run', `${p}.yaml`, '--out', `${p}-modules`], dir, { FOLDSEAL_THREADS: '2' });
     t.equal(a.status, 0, a.stderr);
     t.equal(b.status, 0, b.stderr);
     t.equal(a.stdout.replaceAll('-shipped', ''), b.stdout.replaceAll('-modules', ''), `${p}: the same summary`);
@@ -74,7 +79,7 @@ t.test('runs through the launcher write the same files as the modules: the row t
   // Both reports of one results folder (the manifests of two runs differ in their creation time).
   const report = spawn(shipped, ['report', 'rows-modules', '--out', 'r.html'], dir);
   t.equal(report.status, 0, `report imports its chart libraries from the bundle: ${report.stderr}`);
-  t.equal(spawn(modules, ['report', 'rows-modules', '--out', 'm.html'], dir).status, 0);
+  t.equal((await modules(['report', 'rows-modules', '--out', 'm.html'], dir)).status, 0);
   t.equal(readFileSync(join(dir, 'r.html'), 'utf8'), readFileSync(join(dir, 'm.html'), 'utf8'), 'the same report');
 });
 
@@ -82,7 +87,7 @@ t.test('a user error through the launcher: the same located message and exit cod
   const dir = tempDir({ 'p.yaml': demo.replace('folds: 5', 'folds: 1') });
   for (const args of [['run', 'p.yaml'], ['validate', 'missing.yaml'], ['no-such-command']]) {
     const a = spawn(shipped, args, dir);
-    const b = spawn(modules, args, dir);
+    const b = await modules(args, dir);
     t.equal(a.status, b.status, `${args.join(' ')}: exit code ${b.status}`);
     t.not(a.status, 0, args.join(' '));
     t.equal(a.stderr, b.stderr, `${args.join(' ')}: the same message`);
