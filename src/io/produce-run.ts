@@ -121,7 +121,7 @@ async function produce(protocolPath: string, options: ProduceOptions, kept: { th
   if (input.protocol.model.kind === 'command') {
     const external = await runCommandModel(protocolPath, report, input, options);
     input.external = external.external;
-    const out = runProtocol(input, options.hooks, external.cv, undefined, await options.outputSink?.(input));
+    const out = runProtocol(input, options.hooks, external.cv, undefined, collecting(await options.outputSink?.(input), cells));
     return { report, input, out, audit };
   }
   const cv = merged
@@ -136,8 +136,20 @@ async function produce(protocolPath: string, options: ProduceOptions, kept: { th
     : await permutedScoresInWorkers(input.protocol, input.table, input.assignment, options.onPermutation).catch((e: unknown) => {
         throw asUserError(e, input.protocolFile);
       });
-  const out = runProtocol(input, options.hooks, cv, permuted, await options.outputSink?.(input));
+  const out = runProtocol(input, options.hooks, cv, permuted, collecting(await options.outputSink?.(input), cells));
   return { report, input, out, audit };
+}
+
+/** The sink, and after models.json (the last file made in pieces) a collection of what the two left behind, before the results and the manifest are made. */
+function collecting(sink: OutputSink | undefined, cells: number): OutputSink | undefined {
+  return (
+    sink &&
+    ((name, pieces) => {
+      const sha256 = sink(name, pieces);
+      if (name === 'models.json') collectGarbage(cells);
+      return sha256;
+    })
+  );
 }
 
 /** A command model's folds, refit and new-row probabilities, by running its program (only with the user's consent). */

@@ -25,15 +25,6 @@ import type { StretchRows } from '../table/streamed-grid.js';
 export const SHARED_READ_BYTES = 24 * 1024 * 1024;
 export const SHARED_PARQUET_BYTES = 8 * 1024 * 1024;
 
-function launch(parquet: boolean): Prestarted {
-  const { port1, port2 } = new MessageChannel();
-  const worker = new Worker(new URL('./row-worker.js', import.meta.url), {
-    workerData: { port: port2, parquet, ...heapFlagsForWorker() },
-    transferList: [port2],
-  });
-  return { worker, port: port1 };
-}
-
 export interface RowThread extends RowHelper, ParquetTwin, StreamTwin {
   /** Starts SHA-256 of bytes on the other thread; the returned function waits for the hex digest. */
   sha256(bytes: Uint8Array): () => string;
@@ -90,6 +81,15 @@ function takePrestarted(): Prestarted | undefined {
   const p = g[PRESTARTED];
   g[PRESTARTED] = undefined;
   return p;
+}
+
+function launch(parquet: boolean): Prestarted {
+  const { port1, port2 } = new MessageChannel();
+  const worker = new Worker(new URL('./row-worker.js', import.meta.url), {
+    workerData: { port: port2, parquet, ...heapFlagsForWorker() },
+    transferList: [port2],
+  });
+  return { worker, port: port1 };
 }
 
 /** Closes the launcher's row thread when the run will not use it (a small table, a wrong guess). */

@@ -163,7 +163,7 @@ async function validateWithData(
   describe: boolean,
   size: number,
   /** Lets the row thread go (when the folds do not keep it), once the table and its split keys are made. */
-  release: () => Promise<void> = async () => {},
+  release: () => Promise<void>,
 ): Promise<ValidationReport> {
   const p = parsed.protocol;
   const source = parsed.source;

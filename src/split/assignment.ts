@@ -13,26 +13,15 @@ export interface Assignment {
 
 /** Rows of one repeat whose fold equals / differs from `fold`, in the given row order. */
 export function foldRows(a: Assignment, repeat: number, fold: number, order: Int32Array): { test: Int32Array; train: Int32Array } {
-  const rows = lazyFoldRows(a, repeat, fold, order);
+  const rows = lazyRepeatRows(a, repeat, order)[fold - 1];
   return { test: rows.test, train: rows.train };
 }
 
 /**
- * foldRows, with the training rows listed only when first read: a model fitted from class
- * moments never reads them (a million rows' five folds of training rows are 15 MB).
- */
-export function lazyFoldRows(
-  a: Assignment,
-  repeat: number,
-  fold: number,
-  order: Int32Array,
-): { test: Int32Array; readonly train: Int32Array } {
-  return lazyRepeatRows(a, repeat, order)[fold - 1];
-}
-
-/**
- * lazyFoldRows of every fold of one repeat (index fold − 1), their test rows found in one pass
- * over the rows (a pass per fold was some 10 ms of a 100,000-row run of 10 folds).
+ * foldRows of every fold of one repeat (index fold − 1): their test rows found in one pass over
+ * the rows (a pass per fold was some 10 ms of a 100,000-row run of 10 folds), and the training
+ * rows listed only when first read (a model fitted from class moments never reads them: a
+ * million rows' five folds of training rows are 15 MB).
  */
 export function lazyRepeatRows(a: Assignment, repeat: number, order: Int32Array): { test: Int32Array; readonly train: Int32Array }[] {
   const n = a.ids.length;

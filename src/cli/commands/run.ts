@@ -15,7 +15,6 @@ import { toolInfo } from '../tool-info.js';
 import type { Protocol } from '../../protocol/types.js';
 import type { RunOutput } from '../../run/run.js';
 import type { ChosenCount } from '../../run/results.js';
-import { collectGarbage } from '../../io/heap-flags.js';
 
 export interface RunArgs {
   protocol: string;
@@ -54,12 +53,7 @@ export async function runCommand(args: RunArgs, io: CommandIo, merged?: ProduceO
     outputSink: async (input) => {
       const dir = resolve(args.out ?? `results/${input.protocol.name}`);
       folder = { dir, out: await openOutputDir(dir, Boolean(args.force), shown(dir)) };
-      return (name, pieces) => {
-        const sha256 = folder!.out.stream(name, pieces);
-        // The last file made in pieces: what the two left behind goes before the results and the manifest are made.
-        if (name === 'models.json') collectGarbage(input.table.X.rows * input.table.X.cols);
-        return sha256;
-      };
+      return (name, pieces) => folder!.out.stream(name, pieces);
     },
     merged,
     audit: true,
